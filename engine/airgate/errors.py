@@ -1,0 +1,141 @@
+"""Errors airgate reports to its users, and the exit codes of the command line.
+
+Every input problem is an :class:`AirgateError` carrying where it was found (file, 1-based line
+and column, field path), what was wrong and what is allowed, so the CLI can print one clear
+message and exit with :data:`EXIT_INPUT` — never a traceback.
+"""
+
+from __future__ import annotations
+
+import difflib
+from collections.abc import Iterable, Sequence
+
+#: All checks passed (or only warnings / information).
+EXIT_PASS = 0
+#: At least one finding of severity ``fail``.
+EXIT_FAIL = 1
+#: Input, rule-pack or usage error: nothing was evaluated, nothing written.
+EXIT_INPUT = 2
+
+
+def format_path(path: Sequence[str | int]) -> str:
+    """Render a field path like ``systems[1].zones[3].area``."""
+    out = ""
+    for part in path:
+        if isinstance(part, int):
+            out += f"[{part}]"
+        else:
+            out += ("." if out else "") + str(part)
+    return out
+
+
+def nearest(word: str, choices: Iterable[str], n: int = 3) -> list[str]:
+    """The closest valid choices to a mistyped ``word`` (for "did you mean ..." hints)."""
+    return difflib.get_close_matches(str(word), sorted(set(choices)), n=n, cutoff=0.5)
+
+
+class AirgateError(ValueError):
+    """An input or usage problem, with its location and what would be valid.
+
+    Parameters
+    ----------
+    message : str
+        What is wrong, in words a user can act on.
+    file, line, column : optional
+        Where: file path and 1-based line and column.
+    field : sequence of str | int, optional
+        Field path inside the document, e.g. ``("systems", 0, "zones", 2, "area")``.
+    allowed : sequence of str, optional
+        The valid choices or form, listed in the message.
+    hint : str, optional
+        How to fix it.
+    """
+
+    exit_code = EXIT_INPUT
+    kind = "input error"
+
+    def __init__(
+        self,
+        message: str,
+        *,
+        file: str | None = None,
+        line: int | None = None,
+        column: int | None = None,
+        field: Sequence[str | int] | None = None,
+        allowed: Sequence[str] | None = None,
+        hint: str | None = None,
+    ) -> None:
+        super().__init__(message)
+        self.message = message
+        self.file = file
+        self.line = line
+        self.column = column
+        self.field = tuple(field) if field else ()
+        self.allowed = list(allowed) if allowed else []
+        self.hint = hint
+
+    def where(self) -> str:
+        parts = [self.file or "<input>"]
+        if self.line is not None:
+            parts.append(str(self.line))
+            if self.column is not None:
+                parts.append(str(self.column))
+        return ":".join(parts)
+
+    def render(self) -> str:
+        """The message as printed by the CLI: ``file:line:col: kind: field: message``."""
+        head = f"{self.where()}: {self.kind}: "
+        if self.field:
+            head += f"{format_path(self.field)}: "
+        lines = [head + self.message]
+        if self.allowed:
+            lines.append("  allowed: " + ", ".join(self.allowed))
+        if self.hint:
+            lines.append("  fix: " + self.hint)
+        return "\n".join(lines)
+
+    def __str__(self) -> str:
+        return self.render()
+
+
+class ScheduleError(AirgateError):
+    """A problem in a ventilation schedule."""
+
+    kind = "schedule error"
+
+
+class RulePackError(AirgateError):
+    """A rule pack that breaks its schema or refers to what does not exist."""
+
+    kind = "rule pack error"
+
+
+class UsageError(AirgateError):
+    """A command-line usage problem (unknown zone id, bad option value, ...)."""
+
+    kind = "usage error"
+
+
+class ErrorGroup(AirgateError):
+    """Several input errors found in one pass, reported together (sorted by position)."""
+
+    def __init__(self, errors: Sequence[AirgateError]) -> None:
+        self.errors = sorted(errors, key=lambda e: (e.file or "", e.line or 0, e.column or 0))
+        first = self.errors[0]
+        super().__init__(first.message, file=first.file, line=first.line, column=first.column,
+                         field=first.field, allowed=first.allowed, hint=first.hint)
+        self.kind = first.kind
+
+    def render(self) -> str:
+        body = "\n".join(e.render() for e in self.errors)
+        if len(self.errors) > 1:
+            body += f"\n{len(self.errors)} errors"
+        return body
+
+
+def raise_all(errors: Sequence[AirgateError]) -> None:
+    """Raise the one error, or a group of them; do nothing when there are none."""
+    if len(errors) == 1:
+        raise errors[0]
+    if errors:
+        raise ErrorGroup(errors)

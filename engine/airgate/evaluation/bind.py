@@ -1,0 +1,137 @@
+"""Bind schedule zones to the rule pack: occupancy category, air distribution row, population.
+
+Unknown ids are input errors with the nearest valid ids; an air distribution that matches no row
+of the Ez table says which stated conditions are missing.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from airgate import formatting
+from airgate.errors import AirgateError, nearest
+from airgate.models.rules import AirDistributionRow, OccupancyCategory, RulePack
+from airgate.models.schedule import StatedDistribution, Zone
+from airgate.readers.schedule import LoadedSchedule
+
+Path_ = tuple[str | int, ...]
+
+
+@dataclass(frozen=True)
+class EzChoice:
+    """The Ez used for a zone and why."""
+
+    ez: float
+    origin: str  #: "table" | "explicit" | "assumed"
+    note: str
+    source: str
+    rows: tuple[str, ...] = ()
+
+
+def category(loaded: LoadedSchedule, pack: RulePack, zone: Zone, path: Path_) -> OccupancyCategory:
+    cat = pack.categories.get(zone.space)
+    if cat is None:
+        close = nearest(zone.space, pack.categories)
+        raise loaded.error(
+            f"unknown space type '{zone.space}' in rule pack {pack.id}"
+            + (f"; did you mean {', '.join(repr(c) for c in close)}?" if close else ""),
+            path + ("space",), hint="use an occupancy category id: airgate rules show " + pack.id,
+        )
+    return cat
+
+
+def _row_needs(row: AirDistributionRow, stated: StatedDistribution) -> list[str]:
+    """What the stated configuration lacks or contradicts for ``row`` (empty: it matches)."""
+    needs = []
+    if row.return_ is not None and stated.return_ != row.return_:
+        needs.append("return" if stated.return_ is None else f"return={row.return_}")
+    if row.mode is not None and stated.mode != row.mode:
+        needs.append("mode" if stated.mode is None else f"mode={row.mode}")
+    for name, bound in row.bounds.items():
+        value = getattr(stated, name)
+        if value is None:
+            needs.append(name)
+        elif not bound.contains(value):
+            needs.append(f"{name} in range")
+    return needs
+
+
+def _match(loaded: LoadedSchedule, pack: RulePack, stated: StatedDistribution,
+           path: Path_) -> AirDistributionRow:
+    rows = [r for r in pack.configurations.values() if r.supply == stated.supply]
+    matches = [r for r in rows if not _row_needs(r, stated)]
+    if matches:
+        return min(matches, key=lambda r: (r.ez, r.id))  # the lowest governs if several apply
+    missing = sorted({n for r in rows for n in _row_needs(r, stated) if " " not in n and "=" not in n})
+    hint = ("state " + ", ".join(missing)) if missing else "check the stated conditions"
+    raise loaded.error(
+        f"no row of {pack.air_distribution_source.table or 'the Ez table'} matches the stated "
+        f"air distribution (supply: {stated.supply})", path,
+        allowed=[r.id for r in rows], hint=hint + ", or give a row id",
+    )
+
+
+def _row(loaded: LoadedSchedule, pack: RulePack, ref: str | StatedDistribution,
+         path: Path_) -> AirDistributionRow:
+    if isinstance(ref, StatedDistribution):
+        return _match(loaded, pack, ref, path)
+    row = pack.configurations.get(ref)
+    if row is None:
+        close = nearest(ref, pack.configurations)
+        raise loaded.error(
+            f"unknown air distribution row '{ref}'"
+            + (f"; did you mean {', '.join(repr(c) for c in close)}?" if close else ""),
+            path, allowed=sorted(pack.configurations),
+        )
+    return row
+
+
+def air_distribution(loaded: LoadedSchedule, pack: RulePack, zone: Zone, path: Path_) -> EzChoice:
+    """The zone's Ez: explicit with its basis, the matched table row(s), or the pack default."""
+    if zone.ez is not None:
+        return EzChoice(zone.ez, "explicit", f"stated in the schedule: {zone.ez_basis}",
+                        "schedule")
+    refs = zone.air_distribution
+    if refs is None:
+        if pack.default_configuration is None:
+            raise loaded.error("air_distribution is not stated and the rule pack has no default",
+                               path, hint="give air_distribution (a row id) or ez with ez_basis")
+        row = pack.configurations[pack.default_configuration]
+        return EzChoice(row.ez, "assumed", f"not stated; assumed '{row.id}': {row.label}",
+                        f"{row.source.cite()} ({row.provenance})", (row.id,))
+    items = refs if isinstance(refs, list) else [refs]
+    base = path + ("air_distribution",)
+    rows = [_row(loaded, pack, ref, base + ((i,) if isinstance(refs, list) else ()))
+            for i, ref in enumerate(items)]
+    governing = min(rows, key=lambda r: (r.ez, r.id))
+    note = f"'{governing.id}': {governing.label}"
+    if len(rows) > 1:
+        others = ", ".join(f"{r.id} {formatting.number(r.ez, 'fraction')}" for r in rows)
+        note += f" (lowest of the modes analysed: {others})"
+    return EzChoice(governing.ez, "table", note,
+                    f"{governing.source.cite()} ({governing.provenance})",
+                    tuple(r.id for r in rows))
+
+
+def check_pack_checks(pack: RulePack, known: set[str]) -> None:
+    """Every check a pack lists must be one the engine implements (else the pack is wrong)."""
+    from airgate.errors import RulePackError
+
+    for i, check_id in enumerate(pack.checks):
+        if check_id not in known:
+            line, column = pack.locate(("checks", i, "id"))
+            close = nearest(check_id, known)
+            raise RulePackError(
+                f"unknown check '{check_id}'" + (f"; did you mean '{close[0]}'?" if close else ""),
+                file=pack.file, line=line, column=column, field=("checks", i, "id"),
+                allowed=sorted(known),
+            )
+
+
+def collect(errors: list[AirgateError], fn, *args):
+    """Run ``fn``; on an input error remember it and return None, so all errors are reported."""
+    try:
+        return fn(*args)
+    except AirgateError as exc:
+        errors.append(exc)
+        return None

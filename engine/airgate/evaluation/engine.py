@@ -1,0 +1,120 @@
+"""Evaluate a loaded schedule against a rule pack: the orchestrating chain."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from airgate.errors import AirgateError, raise_all
+from airgate.evaluation import bind, systems
+from airgate.evaluation.checks import KNOWN_CHECKS, Emitter
+from airgate.evaluation.findings import Location
+from airgate.evaluation.report import SAFETY_CAUTION, Report, SystemResult
+from airgate.evaluation.trail import Trail
+from airgate.evaluation.zones import ZoneContext, evaluate_zone
+from airgate.models.rules import RulePack
+from airgate.readers.rulepack import load_pack
+from airgate.readers.schedule import LoadedSchedule, read_schedule
+
+
+def _location(loaded: LoadedSchedule, path: tuple) -> Location:
+    return Location(*loaded.locate(path))
+
+
+def _bind_all(loaded: LoadedSchedule, pack: RulePack) -> list[list[ZoneContext]]:
+    errors: list[AirgateError] = []
+    out = []
+    for i, system in enumerate(loaded.model.systems):
+        ctxs = []
+        for j, zone in enumerate(system.zones):
+            path = ("systems", i, "zones", j)
+            cat = bind.collect(errors, bind.category, loaded, pack, zone, path)
+            ez = bind.collect(errors, bind.air_distribution, loaded, pack, zone, path)
+            if cat is not None and ez is not None:
+                ctxs.append(ZoneContext(zone=zone, path=path, location=_location(loaded, path),
+                                        category=cat, ez=ez, subject=f"{system.id}/{zone.id}",
+                                        system_id=system.id))
+        out.append(ctxs)
+        errors.extend(_method_errors(loaded, pack, i))
+    raise_all(errors)
+    return out
+
+
+def _method(pack: RulePack, system) -> str:
+    return system.ventilation_efficiency or pack.default_method
+
+
+def _method_errors(loaded: LoadedSchedule, pack: RulePack, i: int) -> list[AirgateError]:
+    system = loaded.model.systems[i]
+    if system.kind != "multiple-zone":
+        return []
+    method = _method(pack, system)
+    if method not in pack.methods:
+        return [loaded.error(f"rule pack {pack.id} does not allow the '{method}' ventilation "
+                             "efficiency method", ("systems", i, "ventilation_efficiency"),
+                             allowed=sorted(pack.methods))]
+    if method == "simplified":
+        return []
+    return [
+        loaded.error(f"the {method} Ev method needs primary_airflow (Vpz) for every zone",
+                     ("systems", i, "zones", j), hint="add primary_airflow, or use "
+                     "ventilation_efficiency: simplified if the pack allows it")
+        for j, zone in enumerate(system.zones) if zone.primary_airflow is None
+    ]
+
+
+def evaluate(loaded: LoadedSchedule, pack: RulePack) -> Report:
+    """Evaluate every system and zone of ``loaded`` under ``pack``."""
+    bind.check_pack_checks(pack, set(KNOWN_CHECKS))
+    units = loaded.model.project.units
+    bound = _bind_all(loaded, pack)
+    emitter = Emitter(pack, units)
+    results = []
+    for i, (system, ctxs) in enumerate(zip(loaded.model.systems, bound)):
+        where = _location(loaded, ("systems", i))
+        intake_at = _location(loaded, ("systems", i, "outdoor_air"))
+        zones = [evaluate_zone(ctx, pack, emitter) for ctx in ctxs]
+        result = SystemResult(id=system.id, name=system.name, kind=system.kind, location=where,
+                              trail=Trail(), zones=zones)
+        locate = lambda path: _location(loaded, path)  # noqa: E731
+        if system.kind == "single-zone":
+            systems.single_zone(system, ctxs, zones, result, pack, emitter, intake_at)
+        elif system.kind == "outdoor-air":
+            systems.outdoor_air(system, ctxs, zones, result, pack, emitter, intake_at, locate)
+        else:
+            systems.multiple_zone(system, ctxs, zones, result, pack, emitter, intake_at, locate,
+                                  _method(pack, system))
+        systems.air_classes(system, ctxs, emitter, where)
+        results.append(result)
+    findings = sorted(emitter.findings, key=lambda f: f.sort_key())
+    _verdicts(results, findings)
+    notes = []
+    if pack.units != units:
+        notes.append(f"The schedule is in {units} units and rule pack {pack.id} in {pack.units}; "
+                     "the pack's table values were converted exactly (1 cfm = 0.471947 L/s, "
+                     "1 ft = 0.3048 m). The standard's own table for your unit system is rounded "
+                     "separately; use that pack where one exists.")
+    cautions = [SAFETY_CAUTION, *pack.cautions]
+    return Report(schedule_file=loaded.file, project_name=loaded.model.project.name, units=units,
+                  pack=pack, systems=results, findings=findings, notes=notes, cautions=cautions)
+
+
+def _verdicts(results: list[SystemResult], findings) -> None:
+    failing = {f.subject for f in findings if f.severity == "fail"}
+    failing_systems = {f.system for f in findings if f.severity == "fail"}
+    for s in results:
+        s.verdict = "fail" if s.id in failing_systems else "pass"
+        for z in s.zones:
+            own = f"{s.id}/{z.id}" in failing
+            shared = s.kind == "single-zone" and s.id in failing
+            z.verdict = "fail" if own or shared else "pass"
+
+
+def check_file(path: str | Path, rules: str | None = None) -> Report:
+    """Read ``path``, load its rule pack (or ``rules``), and evaluate. Raises AirgateError."""
+    loaded = read_schedule(path)
+    ref = rules or loaded.model.rules
+    if ref is None:
+        raise loaded.error("no rule pack: give 'rules:' in the schedule or --rules", ("rules",),
+                           hint="e.g. rules: ashrae-62.1-2019")
+    pack = load_pack(ref, base=Path(path).resolve().parent if not rules else Path.cwd())
+    return evaluate(loaded, pack)

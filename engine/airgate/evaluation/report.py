@@ -1,0 +1,71 @@
+"""Result objects of an evaluation: per zone, per system, and the whole report."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from airgate.evaluation.findings import Finding, Location
+from airgate.evaluation.trail import Trail
+from airgate.models.rules import RulePack
+
+SAFETY_CAUTION = (
+    "Ventilation affects health. This report is an aid to review, not an approval: the adopted "
+    "local code and the licensed professional of record govern, and every result depends on the "
+    "inputs given."
+)
+
+
+@dataclass
+class ZoneResult:
+    id: str
+    name: str | None
+    space: str
+    space_label: str
+    location: Location
+    trail: Trail
+    verdict: str = "pass"
+
+
+@dataclass
+class SystemResult:
+    id: str
+    name: str | None
+    kind: str
+    location: Location
+    trail: Trail
+    zones: list[ZoneResult]
+    method: str | None = None
+    critical_zone: str | None = None
+    verdict: str = "pass"
+
+
+@dataclass
+class Report:
+    schedule_file: str
+    project_name: str
+    units: str
+    pack: RulePack
+    systems: list[SystemResult]
+    findings: list[Finding]
+    notes: list[str] = field(default_factory=list)
+    cautions: list[str] = field(default_factory=list)
+
+    @property
+    def verdict(self) -> str:
+        return "fail" if any(f.severity == "fail" for f in self.findings) else "pass"
+
+    def counts(self) -> dict[str, int]:
+        out = {"fail": 0, "warning": 0, "info": 0}
+        for f in self.findings:
+            out[f.severity] += 1
+        return out
+
+    def zone(self, zone_id: str) -> tuple[SystemResult, ZoneResult] | None:
+        for s in self.systems:
+            for z in s.zones:
+                if z.id == zone_id:
+                    return s, z
+        return None
+
+    def system(self, system_id: str) -> SystemResult | None:
+        return next((s for s in self.systems if s.id == system_id), None)

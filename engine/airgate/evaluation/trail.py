@@ -1,0 +1,62 @@
+"""The calculation trail: every computed quantity with its equation, inputs and source."""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass
+
+_PLACEHOLDER = re.compile(r"\{([^{}]+)\}")
+
+
+@dataclass(frozen=True)
+class Step:
+    """One quantity of a trail.
+
+    ``formula`` uses ``{Symbol}`` placeholders naming earlier steps of the same trail, e.g.
+    ``"{Rp}·{Pz} + {Ra}·{Az}"``; writers show it symbolically and with the values substituted.
+    """
+
+    symbol: str
+    value: float  #: in internal units of ``kind`` (see airgate.units)
+    kind: str
+    formula: str = ""
+    source: str = ""
+    note: str = ""
+    origin: str = "computed"  #: computed | schedule | table | assumed | system
+
+    def symbolic(self) -> str:
+        return _PLACEHOLDER.sub(lambda m: m.group(1), self.formula)
+
+    def inputs(self) -> list[str]:
+        return _PLACEHOLDER.findall(self.formula)
+
+
+class Trail:
+    """Ordered steps keyed by symbol."""
+
+    def __init__(self) -> None:
+        self.steps: dict[str, Step] = {}
+
+    def add(self, symbol: str, value: float, kind: str, formula: str = "", source: str = "",
+            note: str = "", origin: str = "computed") -> float:
+        value = float(value)
+        self.steps[symbol] = Step(symbol, value, kind, formula, source, note, origin)
+        return value
+
+    def copy_from(self, other: Trail, symbol: str) -> None:
+        step = other.steps[symbol]
+        self.steps[symbol] = Step(step.symbol, step.value, step.kind, source=step.source,
+                                  note=step.note or "system value", origin="system")
+
+    def __contains__(self, symbol: str) -> bool:
+        return symbol in self.steps
+
+    def __getitem__(self, symbol: str) -> Step:
+        return self.steps[symbol]
+
+    def value(self, symbol: str) -> float:
+        return self.steps[symbol].value
+
+    def substituted(self, step: Step, render) -> str:
+        """The formula with each placeholder replaced by ``render(step_of_placeholder)``."""
+        return _PLACEHOLDER.sub(lambda m: render(self.steps[m.group(1)]), step.formula)

@@ -1,0 +1,181 @@
+"""Typed model of a rule pack (format version 1), with every value in internal units.
+
+The pack file itself is validated against ``rules/schema/rule-pack.schema.json`` first
+(:mod:`airgate.readers.rulepack`); these classes hold the result. Units of every numeric field are
+given in brackets; "internal" means the units of :mod:`airgate.units` (L/s, m², person, K, m/s).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from airgate.readers.document import Document, Path_
+
+
+@dataclass(frozen=True)
+class Source:
+    """Where a value comes from: document, edition, table and/or section."""
+
+    document: str
+    edition: str
+    table: str = ""
+    section: str = ""
+
+    def cite(self) -> str:
+        where = ", ".join(p for p in (self.table, self.section) if p)
+        return f"{self.document}, {self.edition} edition" + (f", {where}" if where else "")
+
+    def as_dict(self) -> dict[str, str]:
+        out = {"document": self.document, "edition": self.edition}
+        if self.table:
+            out["table"] = self.table
+        if self.section:
+            out["section"] = self.section
+        return out
+
+
+@dataclass(frozen=True)
+class Equation:
+    """An equation the pack cites for a step of the calculation trail."""
+
+    key: str
+    form: str
+    source: Source
+    provenance: str
+
+
+@dataclass(frozen=True)
+class OccupancyCategory:
+    """One row of the breathing-zone rate table."""
+
+    id: str
+    label: str
+    group: str
+    rp: float  #: outdoor airflow per person Rp [L/s per person]
+    ra: float  #: outdoor airflow per area Ra [L/s per m²]
+    density: float | None  #: default occupant density [person per m²]; None: table gives none
+    air_class: int  #: air class 1–4 [–]
+    provenance: str
+    source: Source
+    notes: str = ""
+    #: the row as printed in the pack, in the pack's own units (for provenance in reports)
+    printed: dict[str, float | None] = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class Bound:
+    """A condition range on a stated quantity, in internal units."""
+
+    lt: float | None = None
+    le: float | None = None
+    gt: float | None = None
+    ge: float | None = None
+
+    def contains(self, x: float, tol: float = 1e-9) -> bool:
+        if self.lt is not None and not x < self.lt - tol:
+            return False
+        if self.le is not None and not x <= self.le + tol:
+            return False
+        if self.gt is not None and not x > self.gt + tol:
+            return False
+        if self.ge is not None and not x >= self.ge - tol:
+            return False
+        return True
+
+
+@dataclass(frozen=True)
+class AirDistributionRow:
+    """One configuration of the zone air distribution effectiveness table."""
+
+    id: str
+    label: str
+    ez: float  #: zone air distribution effectiveness Ez [–]
+    supply: str
+    return_: str | None
+    mode: str | None
+    bounds: dict[str, Bound]  #: temperature_difference [K], jet_velocity / throw_velocity [m/s]
+    provenance: str
+    source: Source
+
+
+@dataclass(frozen=True)
+class SimplifiedEv:
+    """Simplified system ventilation efficiency: Ev = slope·D + intercept below the breakpoint."""
+
+    breakpoint: float  #: diversity D at which Ev becomes constant [–]
+    slope: float  #: [–]
+    intercept: float  #: [–]
+    above_breakpoint: float  #: Ev for D at or above the breakpoint [–]
+    vav_minimum_primary_ratio: float | None  #: VAV zone minimum Vpz / Voz [–]
+    source: Source
+    provenance: str
+
+
+@dataclass(frozen=True)
+class DetailedEv:
+    """Detailed (zone-by-zone) system ventilation efficiency calculation."""
+
+    source: Source
+    provenance: str
+
+
+@dataclass(frozen=True)
+class TableEv:
+    """System ventilation efficiency looked up against the largest primary outdoor-air fraction."""
+
+    rows: tuple[tuple[float, float], ...]  #: (largest Zp up to [–], Ev [–]), ascending
+    interpolate: bool
+    above_last: float | str  #: Ev above the last row [–], or "detailed"
+    source: Source
+    provenance: str
+
+
+@dataclass(frozen=True)
+class Check:
+    """A requirement the engine evaluates, with the severity and citation the pack gives it."""
+
+    id: str
+    severity: str
+    title: str
+    source: Source
+
+
+@dataclass
+class RulePack:
+    """A loaded, validated rule pack."""
+
+    id: str
+    title: str
+    document: str
+    edition: str
+    units: str
+    jurisdiction: str | None
+    effective: str | None
+    provenance: str
+    verify: bool
+    cautions: tuple[str, ...]
+    equations: dict[str, Equation]
+    occupancy_source: Source
+    occupancy_provenance: str
+    categories: dict[str, OccupancyCategory]
+    air_distribution_source: Source
+    air_distribution_provenance: str
+    configurations: dict[str, AirDistributionRow]
+    default_configuration: str | None
+    default_method: str
+    methods: dict[str, SimplifiedEv | DetailedEv | TableEv]
+    checks: dict[str, Check]
+    file: str
+    document_positions: Document | None = None
+
+    def cite(self, key: str) -> str:
+        """Citation of an equation key, with its provenance (e.g. for a trail step)."""
+        eq = self.equations.get(key)
+        if eq is None:
+            return f"{self.document}, {self.edition} edition"
+        return f"{eq.source.cite()} ({eq.provenance})"
+
+    def locate(self, path: Path_) -> tuple[int | None, int | None]:
+        if self.document_positions is None:
+            return (None, None)
+        return self.document_positions.locate(path)

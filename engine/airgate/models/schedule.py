@@ -1,0 +1,238 @@
+"""The ventilation schedule, format version 1: the public input contract.
+
+Quantities are strings with units (``"5000 ft2"``, ``"850 L/s"``) or bare numbers in the project's
+unit system; they are parsed with pint while the model is validated (the project's unit system is
+passed as validation context) and stored as floats in internal units (:mod:`airgate.units`).
+The JSON Schema published by ``airgate schema schedule`` is generated from these classes.
+"""
+
+from __future__ import annotations
+
+from typing import Annotated, Any, Literal
+
+from pydantic import (
+    BaseModel,
+    BeforeValidator,
+    ConfigDict,
+    Field,
+    ValidationInfo,
+    WithJsonSchema,
+    field_validator,
+    model_validator,
+)
+
+from airgate import units
+
+_QUANTITY_SCHEMA = {
+    "anyOf": [
+        {"type": "number"},
+        {"type": "string", "description": "a number followed by a unit, e.g. '850 cfm'"},
+    ]
+}
+
+
+def _quantity(kind: str, *, positive: bool) -> BeforeValidator:
+    def validate(value: Any, info: ValidationInfo) -> float:
+        system = (info.context or {}).get("units", units.IP)
+        try:
+            x = units.parse(value, kind, system)
+        except units.QuantityError as exc:
+            raise ValueError(str(exc)) from None
+        if positive and x <= 0:
+            raise ValueError(f"must be greater than zero, got {value!r}")
+        if x < 0:
+            raise ValueError(f"must not be negative, got {value!r}")
+        return x
+
+    return BeforeValidator(validate)
+
+
+def Q(kind: str, description: str, *, positive: bool = False) -> Any:  # noqa: N802
+    """A quantity field of ``kind``; ``description`` ends with its units in brackets."""
+    return Annotated[
+        float,
+        _quantity(kind, positive=positive),
+        WithJsonSchema({**_QUANTITY_SCHEMA, "description": description}),
+        Field(description=description),
+    ]
+
+
+def _finite_count(value: Any) -> Any:
+    if isinstance(value, bool):
+        raise ValueError("expected a number of people, got a true/false value")
+    if isinstance(value, str):
+        try:
+            return units.parse(value, "people", units.IP)
+        except units.QuantityError as exc:
+            raise ValueError(str(exc)) from None
+    if isinstance(value, (int, float)) and value != value:  # NaN
+        raise ValueError("is not a finite number")
+    return value
+
+
+People = Annotated[
+    float,
+    BeforeValidator(_finite_count),
+    Field(ge=0, allow_inf_nan=False, description="Number of people. [people]"),
+    WithJsonSchema({"anyOf": [{"type": "number", "minimum": 0}, {"type": "string"}],
+                    "description": "Number of people. [people]"}),
+]
+
+
+def _id(value: Any) -> Any:
+    if isinstance(value, bool):
+        raise ValueError("an id must be text such as \"204\" or \"AHU-1\"")
+    if isinstance(value, (int, float)):
+        return str(value)
+    return value
+
+
+Id = Annotated[
+    str,
+    BeforeValidator(_id),
+    Field(min_length=1, max_length=200, pattern=r"^[^\s/][^/]*$",
+          description="Identifier: text without '/' and not starting with a space. [–]"),
+]
+
+
+class _Model(BaseModel):
+    model_config = ConfigDict(extra="forbid", frozen=True, str_strip_whitespace=True,
+                              populate_by_name=True)
+
+
+class Project(_Model):
+    """What the schedule is about and which unit system its bare numbers use."""
+
+    name: str = Field(min_length=1, description="Project name. [–]")
+    units: Literal["IP", "SI"] = Field(description="Unit system of bare numbers. [–]")
+    owner: str | None = Field(None, description="Building owner. [–]")
+    location: str | None = Field(None, description="Site or jurisdiction. [–]")
+    notes: str | None = Field(None, description="Free text. [–]")
+
+
+class StatedDistribution(_Model):
+    """The zone's air distribution as the designer states it; the pack's table row is matched."""
+
+    supply: Literal["ceiling", "floor", "makeup"] = Field(description="Where air is supplied. [–]")
+    return_: Literal["ceiling", "floor", "near", "far"] | None = Field(
+        None, alias="return", description="Where air is returned (makeup: near or far). [–]")
+    mode: Literal["cooling", "heating"] | None = Field(None, description="Supply air mode. [–]")
+    temperature_difference: Q(
+        "temperature_difference",
+        "Supply air temperature minus space temperature (warm supply). [°F in IP, K in SI]",
+    ) | None = None
+    jet_velocity: Q(
+        "velocity",
+        "Supply jet velocity reaching down toward the floor (150 fpm / 0.8 m/s test). [fpm or m/s]",
+    ) | None = None
+    throw_velocity: Q(
+        "velocity",
+        "Vertical throw velocity at 4.5 ft (1.4 m) above the floor. [fpm or m/s]",
+    ) | None = None
+
+
+DistributionRef = Annotated[str, Field(min_length=1, description="A row id of the pack's Ez table. [–]")]
+
+
+class Zone(_Model):
+    """One ventilation zone (a space or group of spaces with one set of requirements)."""
+
+    id: Id
+    name: str | None = Field(None, description="Room or zone name. [–]")
+    space: str = Field(min_length=1, description="Occupancy category id of the rule pack. [–]")
+    area: Q("area", "Zone floor area Az (net occupiable). [ft² or m²]", positive=True)
+    occupants: People | None = Field(
+        None, description="Zone population Pz; default: table density × Az. [people]")
+    height: Q("length", "Ceiling height. [ft or m]", positive=True) | None = None
+    volume: Q("volume", "Zone volume. [ft³ or m³]", positive=True) | None = None
+    air_distribution: (
+        DistributionRef | StatedDistribution | list[DistributionRef | StatedDistribution] | None
+    ) = Field(None, description="Ez table row id or stated configuration; a list of modes: the "
+                                "lowest Ez governs. [–]")
+    ez: float | None = Field(None, gt=0, le=2, allow_inf_nan=False,
+                             description="Explicit zone air distribution effectiveness Ez. [–]")
+    ez_basis: str | None = Field(None, min_length=1, description="Why the explicit Ez applies. [–]")
+    primary_airflow: Q(
+        "airflow", "Zone primary airflow Vpz at the design condition analysed. [cfm or L/s]",
+        positive=True) | None = None
+    ep: float | None = Field(None, gt=0, le=1, allow_inf_nan=False,
+                             description="Primary air fraction of zone supply Ep (secondary "
+                                         "recirculation); default 1. [–]")
+    er: float | None = Field(None, ge=0, le=1, allow_inf_nan=False,
+                             description="Fraction of secondary recirculated air drawn from the "
+                                         "system return Er. [–]")
+    outdoor_air: Q(
+        "airflow", "Outdoor air delivered to the zone (outdoor-air systems). [cfm or L/s]"
+    ) | None = None
+    air_class: Literal[1, 2, 3, 4] | None = Field(
+        None, description="Air class, where it differs from the category's. [–]")
+    notes: str | None = Field(None, description="Free text. [–]")
+
+    @model_validator(mode="after")
+    def _ez_has_basis(self) -> Zone:
+        if self.ez is not None and self.ez_basis is None:
+            raise ValueError("an explicit ez needs ez_basis: say why it applies")
+        if self.ez is not None and self.air_distribution is not None:
+            raise ValueError("give either air_distribution or an explicit ez, not both")
+        if self.er is not None and self.ep is None:
+            raise ValueError("er (secondary recirculation) needs ep, the primary air fraction")
+        return self
+
+
+class System(_Model):
+    """An air system and the zones it serves."""
+
+    id: Id
+    name: str | None = Field(None, description="Air system name. [–]")
+    kind: Literal["single-zone", "outdoor-air", "multiple-zone"] = Field(
+        description="single-zone, 100 % outdoor-air, or multiple-zone recirculating. [–]")
+    outdoor_air: Q("airflow", "Scheduled minimum outdoor-air intake Vot. [cfm or L/s]")
+    supply_airflow: Q(
+        "airflow", "System primary airflow Vps at the condition analysed; default ΣVpz. "
+                   "[cfm or L/s]", positive=True) | None = None
+    population: People | None = Field(
+        None, description="System population Ps; default ΣPz. [people]")
+    ventilation_efficiency: Literal["simplified", "detailed", "table"] | None = Field(
+        None, description="Ev method (multiple-zone); default: the pack's. [–]")
+    variable_air_volume: bool = Field(
+        True, description="Zones have variable primary airflow (VAV terminals). [–]")
+    recirculates: bool | None = Field(
+        None, description="Return air is recirculated; default: not for outdoor-air systems. [–]")
+    zones: list[Zone] = Field(min_length=1, description="Zones served. [–]")
+    notes: str | None = Field(None, description="Free text. [–]")
+
+    @model_validator(mode="after")
+    def _kind_fits(self) -> System:
+        if self.kind == "single-zone" and len(self.zones) != 1:
+            raise ValueError(f"a single-zone system serves exactly one zone, this one lists "
+                             f"{len(self.zones)}; use kind: multiple-zone")
+        return self
+
+    @property
+    def is_recirculating(self) -> bool:
+        return self.recirculates if self.recirculates is not None else self.kind != "outdoor-air"
+
+
+class Schedule(_Model):
+    """A building's ventilation schedule, format version 1."""
+
+    schedule: Literal[1] = Field(description="Schedule format version. [–]")
+    project: Project
+    rules: str | None = Field(None, description="Rule pack id or path; --rules overrides. [–]")
+    systems: list[System] = Field(min_length=1, description="Air systems. [–]")
+
+    @field_validator("systems")
+    @classmethod
+    def _unique_ids(cls, systems: list[System]) -> list[System]:
+        seen: set[str] = set()
+        for s in systems:
+            if s.id in seen:
+                raise ValueError(f"duplicate system id '{s.id}'")
+            seen.add(s.id)
+        zones: set[str] = set()
+        for s in systems:
+            for z in s.zones:
+                if z.id in zones:
+                    raise ValueError(f"duplicate zone id '{z.id}' (zone ids are unique in a schedule)")
+                zones.add(z.id)
+        return systems

@@ -1,0 +1,226 @@
+"""Units at the edges: parse schedule and rule-pack quantities with pint, hand plain floats on.
+
+The math layer never sees a pint Quantity. Every quantity is converted here to airgate's
+internal units (an SI set chosen for the trade):
+
+==========================  ==================  ====================  ======================
+kind                        internal            IP display            SI display
+==========================  ==================  ====================  ======================
+airflow                     L/s                 cfm                   L/s
+area                        m²                  ft²                   m²
+volume                      m³                  ft³                   m³
+length                      m                   ft                    m
+airflow_per_person (Rp)     L/s per person      cfm/person            L/s·person
+airflow_per_area (Ra)       L/s per m²          cfm/ft²               L/s·m²
+people (Pz, Ps)             person              people                people
+density                     person per m²       people/1000 ft²       people/100 m²
+temperature_difference      K                   °F (difference)       K
+velocity                    m/s                 fpm                   m/s
+fraction (Ez, Ev, D, ...)   1                   –                     –
+==========================  ==================  ====================  ======================
+
+Exact factors (common practice; NIST SP 811): 1 ft = 0.3048 m, so 1 cfm = 0.471947443 L/s and
+1 cfm/ft² = 5.08 L/s·m².
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass
+from functools import lru_cache
+
+import pint
+
+IP = "IP"
+SI = "SI"
+UNIT_SYSTEMS = (IP, SI)
+
+
+@lru_cache(maxsize=1)
+def registry() -> pint.UnitRegistry:
+    """airgate's pint registry: pint's defaults plus the trade's shorthand units."""
+    ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
+    # pint would otherwise read "cfm" as centi-fermi.
+    ureg.define("cubic_foot_per_minute = foot ** 3 / minute = cfm")
+    ureg.define("feet_per_minute = foot / minute = fpm")
+    ureg.define("person = [] = people = persons = occupant = occupants")
+    return ureg
+
+
+@dataclass(frozen=True)
+class Kind:
+    """A physical kind of quantity: its internal unit and how each unit system shows it."""
+
+    name: str
+    internal: str
+    ip: str
+    si: str
+    ip_label: str
+    si_label: str
+    example: str
+    #: display value = value in ``ip``/``si`` unit × scale (people per 1000 ft², per 100 m²)
+    ip_scale: float = 1.0
+    si_scale: float = 1.0
+
+    def unit(self, system: str) -> str:
+        return self.ip if system == IP else self.si
+
+    def label(self, system: str) -> str:
+        return self.ip_label if system == IP else self.si_label
+
+    def scale(self, system: str) -> float:
+        return self.ip_scale if system == IP else self.si_scale
+
+
+KINDS: dict[str, Kind] = {
+    k.name: k
+    for k in (
+        Kind("airflow", "L/s", "cfm", "L/s", "cfm", "L/s", "'850 cfm' or '400 L/s'"),
+        Kind("area", "m**2", "ft**2", "m**2", "ft²", "m²", "'5000 ft2' or '465 m2'"),
+        Kind("volume", "m**3", "ft**3", "m**3", "ft³", "m³", "'45000 ft3' or '1270 m3'"),
+        Kind("length", "m", "ft", "m", "ft", "m", "'9 ft' or '2.7 m'"),
+        Kind(
+            "airflow_per_person", "L/s/person", "cfm/person", "L/s/person",
+            "cfm/person", "L/s·person", "'5 cfm/person' or '2.5 L/s/person'",
+        ),
+        Kind(
+            "airflow_per_area", "L/s/m**2", "cfm/ft**2", "L/s/m**2",
+            "cfm/ft²", "L/s·m²", "'0.06 cfm/ft2' or '0.3 L/s/m2'",
+        ),
+        Kind("people", "person", "person", "person", "people", "people", "'25' or '25 people'"),
+        Kind(
+            "density", "person/m**2", "person/ft**2", "person/m**2",
+            "people/1000 ft²", "people/100 m²", "'5' (per 1000 ft2 in IP, per 100 m2 in SI)",
+            ip_scale=1000.0, si_scale=100.0,
+        ),
+        Kind(
+            "temperature_difference", "delta_degC", "delta_degF", "delta_degC",
+            "°F", "K", "'15 delta_degF' or '8 K'",
+        ),
+        Kind("velocity", "m/s", "fpm", "m/s", "fpm", "m/s", "'150 fpm' or '0.8 m/s'"),
+        Kind("fraction", "dimensionless", "dimensionless", "dimensionless", "", "", "'0.8'"),
+    )
+}
+
+#: pint unit strings for machine output (JSON), parseable by a stock pint registry once
+#: ``person = []`` is defined. ``cfm`` is written out, since stock pint reads it as centi-fermi.
+JSON_UNITS: dict[tuple[str, str], str] = {
+    ("airflow", IP): "ft**3/min", ("airflow", SI): "L/s",
+    ("area", IP): "ft**2", ("area", SI): "m**2",
+    ("volume", IP): "ft**3", ("volume", SI): "m**3",
+    ("length", IP): "ft", ("length", SI): "m",
+    ("airflow_per_person", IP): "ft**3/min/person", ("airflow_per_person", SI): "L/s/person",
+    ("airflow_per_area", IP): "ft**3/min/ft**2", ("airflow_per_area", SI): "L/s/m**2",
+    ("people", IP): "person", ("people", SI): "person",
+    ("density", IP): "person/ft**2", ("density", SI): "person/m**2",
+    ("temperature_difference", IP): "delta_degF", ("temperature_difference", SI): "kelvin",
+    ("velocity", IP): "ft/min", ("velocity", SI): "m/s",
+    ("fraction", IP): "", ("fraction", SI): "",
+}
+
+_SUPERSCRIPTS = str.maketrans({"²": "**2", "³": "**3", "·": "*", "°": "deg"})
+_POWER = re.compile(r"(?<=[A-Za-z])([23])\b")
+_TEMP_DIFF = re.compile(r"\b(deg\s*F|degF|F)\b")
+_TEMP_DIFF_C = re.compile(r"\b(deg\s*C|degC|C)\b")
+
+
+def _normalise(text: str, kind: str) -> str:
+    text = text.strip().translate(_SUPERSCRIPTS)
+    text = _POWER.sub(r"**\1", text)  # ft2 -> ft**2, m3 -> m**3
+    if kind == "temperature_difference":
+        # A supply-to-room temperature difference is a difference, never an absolute reading.
+        text = _TEMP_DIFF.sub("delta_degF", text)
+        text = _TEMP_DIFF_C.sub("delta_degC", text)
+    return text
+
+
+def _article(kind: str) -> str:
+    words = kind.replace("_", " ")
+    return ("an " if words[0] in "aeiou" else "a ") + words
+
+
+class QuantityError(ValueError):
+    """A quantity that could not be read; the message says what is expected."""
+
+
+def parse(raw: object, kind: str, system: str) -> float:
+    """Read a schedule quantity and return it in the internal unit of ``kind``.
+
+    Parameters
+    ----------
+    raw : str | int | float
+        ``"5000 ft2"``, ``"850 L/s"`` or a bare number in the project's unit system.
+    kind : str
+        A key of :data:`KINDS`.
+    system : str
+        ``"IP"`` or ``"SI"``: the unit of bare numbers.
+
+    Raises
+    ------
+    QuantityError
+        Unreadable text, wrong dimension, or a value that is not finite.
+    """
+    k = KINDS[kind]
+    ureg = registry()
+    if isinstance(raw, bool):
+        raise QuantityError(f"expected a number or a quantity such as {k.example}, got {raw!r}")
+    if isinstance(raw, (int, float)):
+        value = float(raw)
+        if not math.isfinite(value):
+            raise QuantityError(f"{raw!r} is not a finite number")
+        return to_internal(value, kind, system)
+    if not isinstance(raw, str):
+        raise QuantityError(f"expected a number or a quantity such as {k.example}, got {raw!r}")
+    text = _normalise(raw, kind)
+    try:
+        q = ureg.Quantity(text)
+    except Exception as exc:  # pint raises several kinds for unreadable text
+        raise QuantityError(f"cannot read {raw!r} as a quantity such as {k.example}") from exc
+    if not isinstance(q, pint.Quantity):
+        q = ureg.Quantity(float(q), "dimensionless")
+    if q.dimensionless and kind not in ("fraction", "people") and q.units == ureg.dimensionless:
+        value = float(q.magnitude)
+        if not math.isfinite(value):
+            raise QuantityError(f"{raw!r} is not a finite number")
+        return to_internal(value, kind, system)
+    try:
+        value = float(q.to(k.internal).magnitude)
+    except pint.DimensionalityError as exc:
+        raise QuantityError(
+            f"{raw!r} has units of {q.units:~} ({q.dimensionality}); "
+            f"expected {_article(kind)} such as {k.example}"
+        ) from exc
+    if not math.isfinite(value):
+        raise QuantityError(f"{raw!r} is not a finite number")
+    return value
+
+
+@lru_cache(maxsize=64)
+def _factor(kind: str, system: str) -> float:
+    """Internal units per display unit (display value × factor = internal value)."""
+    k = KINDS[kind]
+    ureg = registry()
+    if k.name == "temperature_difference":
+        return float(ureg.Quantity(1.0, k.unit(system)).to(k.internal).magnitude)
+    return float(ureg.Quantity(1.0, k.unit(system)).to(k.internal).magnitude) / k.scale(system)
+
+
+def to_internal(value: float, kind: str, system: str) -> float:
+    """A bare number in the ``system`` display unit of ``kind``, in internal units."""
+    return value * _factor(kind, system)
+
+
+def to_display(value: float, kind: str, system: str) -> float:
+    """An internal value in the ``system`` display unit of ``kind`` (e.g. L/s → cfm)."""
+    return value / _factor(kind, system)
+
+
+def to_json_unit(value: float, kind: str, system: str) -> float:
+    """An internal value in the unit named by :data:`JSON_UNITS` (no display scaling)."""
+    return to_display(value, kind, system) / KINDS[kind].scale(system)
+
+
+def label(kind: str, system: str) -> str:
+    """The short unit label shown to people, e.g. ``cfm`` or ``L/s·m²``."""
+    return KINDS[kind].label(system)

@@ -1,0 +1,91 @@
+"""``airgate explain``: the calculation trail of a zone or system, as a reviewer writes it by hand."""
+
+from __future__ import annotations
+
+from airgate import formatting, units
+from airgate.evaluation.report import Report, SystemResult, ZoneResult
+from airgate.evaluation.trail import Step, Trail
+from airgate.writers.text import clean
+
+_ORIGIN = {
+    "schedule": "from the schedule",
+    "table": "from the rule pack",
+    "assumed": "assumed",
+    "system": "system value",
+    "explicit": "stated in the schedule",
+}
+
+
+def _bare(step: Step, system: str) -> str:
+    return formatting.number(units.to_display(step.value, step.kind, system), step.kind)
+
+
+def _with_unit(step: Step, system: str) -> str:
+    shown = _bare(step, system)
+    unit = units.label(step.kind, system)
+    return f"{shown} {unit}" if unit else shown
+
+
+def trail_lines(trail: Trail, system: str, indent: str = "  ") -> list[str]:
+    width = max((len(s.symbol) for s in trail.steps.values()), default=3)
+    out = []
+    for step in trail.steps.values():
+        name = step.symbol.ljust(width)
+        pad = indent + " " * width
+        if step.formula:
+            out.append(f"{indent}{name} = {step.symbolic()}")
+            subst = trail.substituted(step, lambda s: _bare(s, system)).replace("·", " × ")
+            if subst != step.symbolic():
+                out.append(f"{pad} = {subst}")
+            out.append(f"{pad} = {_with_unit(step, system)}")
+        else:
+            out.append(f"{indent}{name} = {_with_unit(step, system)}")
+        why = [step.note or ("" if step.formula else _ORIGIN.get(step.origin, ""))]
+        why = [w for w in why if w]
+        if step.source:
+            why.append(step.source)
+        for w in why:
+            out.append(f"{pad}   {clean(w)}")
+    return out
+
+
+def _findings(report: Report, subject_prefix: str, exact: bool) -> list[str]:
+    out = []
+    for f in report.findings:
+        if (f.subject == subject_prefix) if exact else f.subject.startswith(subject_prefix):
+            out.append(f"  {f.severity.upper()} [{f.rule}] {clean(f.subject)}: {clean(f.message)}")
+            out.append(f"      {f.source} · at {clean(f.location)}")
+    return out or ["  none"]
+
+
+def zone(report: Report, s: SystemResult, z: ZoneResult) -> str:
+    system = report.units
+    head = f"Zone {clean(s.id)}/{clean(z.id)}" + (f" “{clean(z.name)}”" if z.name else "")
+    out = [
+        f"{head} — {clean(z.space)} ({z.space_label}) — {z.verdict.upper()}",
+        f"  served by {clean(s.id)} ({s.kind}); written at {clean(z.location)}",
+        f"  rule pack {report.pack.id} ({report.units} report units)",
+        "",
+    ]
+    out += trail_lines(z.trail, system)
+    out += ["", "Findings"] + _findings(report, f"{s.id}/{z.id}", exact=True)
+    out += ["", *[f"Caution: {c}" for c in report.cautions[:1]]]
+    return "\n".join(out) + "\n"
+
+
+def system_(report: Report, s: SystemResult) -> str:
+    system = report.units
+    head = f"System {clean(s.id)}" + (f" “{clean(s.name)}”" if s.name else "")
+    out = [f"{head} — {s.kind}" + (f", {s.method} Ev" if s.method else "") +
+           f" — {s.verdict.upper()}", f"  written at {clean(s.location)}",
+           f"  rule pack {report.pack.id}", ""]
+    for z in s.zones:
+        out.append(f"  Zone {clean(z.id)}" + (f" “{clean(z.name)}”" if z.name else "") +
+                   f" — {clean(z.space)} — {z.verdict.upper()}")
+        out += trail_lines(z.trail, system, indent="    ")
+        out.append("")
+    out.append(f"  System {clean(s.id)}")
+    out += trail_lines(s.trail, system, indent="    ")
+    out += ["", "Findings"] + _findings(report, s.id, exact=False)
+    out += ["", *[f"Caution: {c}" for c in report.cautions[:1]]]
+    return "\n".join(out) + "\n"

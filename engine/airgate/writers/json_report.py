@@ -1,0 +1,112 @@
+"""JSON report, contract version 1 (docs/report-format.md).
+
+Values are ``{"value": 425.0, "unit": "ft**3/min"}`` in the schedule's unit system; units are pint
+expressions (a stock pint registry parses them once ``person = []`` is defined). Output is
+deterministic: keys in a fixed order, numbers rounded to 6 significant digits, no timestamps.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from typing import Any
+
+from airgate import __version__, units
+from airgate.evaluation.findings import Amount, Finding
+from airgate.evaluation.report import Report, SystemResult, ZoneResult
+from airgate.evaluation.trail import Step, Trail
+
+REPORT_VERSION = 1
+
+
+def _round(x: float) -> float | None:
+    if math.isnan(x) or math.isinf(x):
+        return None  # JSON has no infinity; the trail note says why
+    return float(f"{x:.6g}")
+
+
+def value(x: float, kind: str, system: str) -> dict[str, Any]:
+    return {"value": _round(units.to_json_unit(x, kind, system)),
+            "unit": units.JSON_UNITS[(kind, system)]}
+
+
+def _symbol_key(symbol: str) -> str:
+    """ASCII keys for machine use: ``ΣRp·Pz`` → ``sum_Rp_Pz``, ``max Zpz`` → ``max_Zpz``."""
+    out = symbol.replace("Σ", "sum_").replace("·", "_").replace(" ", "_")
+    return out.replace("(", "").replace(")", "")
+
+
+def _values(trail: Trail, system: str) -> dict[str, Any]:
+    return {_symbol_key(s.symbol): value(s.value, s.kind, system) for s in trail.steps.values()}
+
+
+def _trail(trail: Trail, system: str) -> list[dict[str, Any]]:
+    def step(s: Step) -> dict[str, Any]:
+        out: dict[str, Any] = {"symbol": _symbol_key(s.symbol), "label": s.symbol, **value(s.value, s.kind, system),
+                               "origin": s.origin}
+        if s.formula:
+            out["formula"] = s.symbolic()
+        if s.source:
+            out["source"] = s.source
+        if s.note:
+            out["note"] = s.note
+        return out
+
+    return [step(s) for s in trail.steps.values()]
+
+
+def _zone(z: ZoneResult, system: str) -> dict[str, Any]:
+    return {
+        "id": z.id, "name": z.name, "space": z.space, "space_label": z.space_label,
+        "verdict": z.verdict, "values": _values(z.trail, system),
+        "location": _location(z.location), "trail": _trail(z.trail, system),
+    }
+
+
+def _system(s: SystemResult, system: str) -> dict[str, Any]:
+    return {
+        "id": s.id, "name": s.name, "kind": s.kind, "verdict": s.verdict,
+        "ventilation_efficiency_method": s.method, "critical_zone": s.critical_zone,
+        "values": _values(s.trail, system), "location": _location(s.location),
+        "trail": _trail(s.trail, system), "zones": [_zone(z, system) for z in s.zones],
+    }
+
+
+def _location(loc) -> dict[str, Any]:
+    return {"file": loc.file, "line": loc.line, "column": loc.column}
+
+
+def _amount(a: Amount | None, system: str) -> dict[str, Any] | None:
+    return None if a is None else value(a.value, a.kind, system)
+
+
+def _finding(f: Finding, system: str) -> dict[str, Any]:
+    return {
+        "rule": f.rule, "severity": f.severity, "subject": f.subject, "message": f.message,
+        "required": _amount(f.required, system), "provided": _amount(f.provided, system),
+        "source": f.source, "location": _location(f.location),
+    }
+
+
+def to_dict(report: Report) -> dict[str, Any]:
+    system = report.units
+    pack = report.pack
+    return {
+        "report_version": REPORT_VERSION,
+        "generator": f"airgate {__version__}",
+        "verdict": report.verdict,
+        "schedule": {"file": report.schedule_file, "project": report.project_name,
+                     "units": system},
+        "rules": {"id": pack.id, "title": pack.title, "document": pack.document,
+                  "edition": pack.edition, "units": pack.units, "provenance": pack.provenance,
+                  "verify": pack.verify},
+        "summary": report.counts(),
+        "systems": [_system(s, system) for s in report.systems],
+        "findings": [_finding(f, system) for f in report.findings],
+        "notes": list(report.notes),
+        "cautions": list(report.cautions),
+    }
+
+
+def render(report: Report) -> str:
+    return json.dumps(to_dict(report), indent=2, ensure_ascii=False, allow_nan=False) + "\n"

@@ -1,0 +1,122 @@
+"""The terminal report: a reviewer's summary per system, then the findings, then the cautions."""
+
+from __future__ import annotations
+
+import re
+
+from airgate import __version__, formatting, units
+from airgate.evaluation.report import Report, SystemResult, ZoneResult
+
+_CONTROL = re.compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f]")
+WIDTH = 100
+
+
+def clean(text: object) -> str:
+    """Input text made safe for a terminal: control characters become '?'."""
+    return _CONTROL.sub("?", str(text))
+
+
+def _num(trail, symbol: str) -> str:
+    if symbol not in trail:
+        return "–"
+    s = trail[symbol]
+    return formatting.number(units.to_display(s.value, s.kind, _num.system), s.kind)
+
+
+def _table(rows: list[list[str]], right: set[int]) -> list[str]:
+    widths = [max(len(r[i]) for r in rows) for i in range(len(rows[0]))]
+    out = []
+    for r in rows:
+        cells = [c.rjust(w) if i in right else c.ljust(w) for i, (c, w) in enumerate(zip(r, widths))]
+        out.append("    " + "  ".join(cells).rstrip())
+    return out
+
+
+def _zone_rows(s: SystemResult, system: str) -> list[str]:
+    a, q = units.label("area", system), units.label("airflow", system)
+    head = ["zone", "space", f"Az {a}", "Pz", f"Vbz {q}", "Ez", f"Voz {q}"]
+    multi = s.kind == "multiple-zone" and any("Vpz" in z.trail for z in s.zones)
+    if multi:
+        head += [f"Vpz {q}", "Zpz", "Evz"]
+    if s.kind == "outdoor-air":
+        head += [f"OA {q}"]
+    head += ["verdict"]
+    rows = [head]
+    for z in s.zones:
+        t = z.trail
+        pz = _num(t, "Pz") + ("*" if t["Pz"].origin != "schedule" else "")
+        row = [clean(z.id), clean(z.space), _num(t, "Az"), pz, _num(t, "Vbz"),
+               f"{t.value('Ez'):.2f}", _num(t, "Voz")]
+        if multi:
+            crit = "◂" if s.critical_zone == z.id else ""
+            row += [_num(t, "Vpz"), _num(t, "Zpz"), _num(t, "Evz") + crit]
+        if s.kind == "outdoor-air":
+            row += [_num(t, "Voz_design")]
+        row += [z.verdict.upper() if z.verdict == "fail" else z.verdict]
+        rows.append(row)
+    return _table(rows, right=set(range(2, len(head) - 1)))
+
+
+def _system(s: SystemResult, system: str) -> list[str]:
+    t = s.trail
+    title = f"{clean(s.id)}" + (f" “{clean(s.name)}”" if s.name else "")
+    kind = s.kind + (f", {s.method} Ev" if s.method else "")
+    lines = [f"■ {title} — {kind} — {s.verdict.upper()}"]
+    if s.kind == "multiple-zone":
+        q = units.label("airflow", system)
+        parts = [f"Ps {_num(t, 'Ps')}", f"ΣPz {_num(t, 'ΣPz')}", f"D {_num(t, 'D')}",
+                 f"Vou {_num(t, 'Vou')} {q}"]
+        if "Vps" in t:
+            parts += [f"Vps {_num(t, 'Vps')} {q}", f"Xs {_num(t, 'Xs')}"]
+        parts.append(f"Ev {_num(t, 'Ev')}" + (f" (critical zone {clean(s.critical_zone)})"
+                                               if s.critical_zone else ""))
+        lines.append("    " + " · ".join(parts))
+    required, provided = t.value("Vot"), t.value("Vot_design")
+    margin = provided - required
+    rel = margin / required if required > 0 else float("inf")
+    lines.append(
+        f"    outdoor-air intake: required Vot {formatting.amount(required, 'airflow', system)}"
+        f" · scheduled {formatting.amount(provided, 'airflow', system)}"
+        f" · margin {formatting.amount(margin, 'airflow', system)} ({formatting.percent(rel)})")
+    lines.append("")
+    lines += _zone_rows(s, system)
+    return lines
+
+
+def render(report: Report) -> str:
+    system = report.units
+    _num.system = system
+    pack = report.pack
+    out = [
+        f"airgate {__version__} — ventilation review",
+        f"schedule : {clean(report.schedule_file)} — {clean(report.project_name)} ({system} units)",
+        f"rule pack: {pack.id} — {pack.title}",
+    ]
+    if pack.verify:
+        out.append("           table values partly entered from memory: verify against the "
+                   "adopted edition")
+    out += [f"note     : {n}" for n in report.notes]
+    out.append("")
+    for s in report.systems:
+        out += _system(s, system)
+        out.append("")
+    out.append("    * Pz not stated in the schedule: default density × Az (or 0 where the table "
+               "gives no density)")
+    out.append("    ◂ critical zone (lowest Evz)")
+    out.append("")
+    c = report.counts()
+    out.append(f"Findings — {c['fail']} fail, {c['warning']} warning, {c['info']} info")
+    if not report.findings:
+        out.append("    none")
+    for f in report.findings:
+        out.append(f"  {f.severity.upper():<8}{clean(f.subject)}  [{f.rule}]")
+        out.append(f"      {clean(f.message)}")
+        out.append(f"      at {clean(f.location)} · {f.source}")
+    out.append("")
+    failing = sum(1 for s in report.systems if s.verdict == "fail")
+    out.append(f"Result: {report.verdict.upper()} — {failing} of {len(report.systems)} systems "
+               f"fail; {c['fail']} failing, {c['warning']} warning, {c['info']} info findings.")
+    out.append("")
+    out.append("Cautions")
+    out += [f"  - {x}" for x in report.cautions]
+    return "\n".join(out) + "\n"

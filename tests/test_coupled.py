@@ -1,0 +1,291 @@
+"""Tests of airgate.procedures.coupled (multiple-zone recirculating system).
+
+Each check names its source: domain.md §2 / §4 equations, the detailed Ev calculation
+(reference-values.md C), or an outside numerical reference (numpy.linalg.solve,
+scipy.integrate.solve_ivp).
+"""
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from scipy.integrate import solve_ivp
+
+from airgate.procedures import coupled as cpl
+from airgate.procedures import dilution as dil
+
+LS_TO_M3H = 3.6  # 1 L/s = 3.6 m3/h (exact)
+
+
+def _physics_rhs(vol, vpz, vot, exh, loss, c_out, eta_oa, eta_rec):
+    """Right-hand side written from the module's physical description (zone balances, mixed
+    return, mixed supply), independently of the engine's coupling weights."""
+    vps = vpz.sum()
+    ret = vpz - exh
+    big_r = ret.sum()
+
+    def supply(c):
+        c_r = ret @ c / big_r if big_r > 0 else 0.0
+        return (vot * (1 - eta_oa) * c_out + (vps - vot) * (1 - eta_rec) * c_r) / vps
+
+    def rhs(_t, c, gen):
+        return (gen + vpz * supply(c) - (vpz + loss) * c) / vol
+
+    return rhs, supply
+
+
+def _reference_transient(breaks, gen, vol, vpz, vot, exh, loss, c0, times, c_out=0.0,
+                         eta_oa=0.0, eta_rec=0.0):
+    """scipy.integrate.solve_ivp (LSODA, rtol=1e-10), piece by piece: the outside reference.
+    Per-piece inputs are 2-D (zone) or 1-D (system) arrays indexed by piece."""
+    n_p = breaks.size - 1
+
+    def at(x, j, zone):
+        x = np.asarray(x, dtype=float)
+        return x[j] if x.ndim == (2 if zone else 1) else x
+
+    out = np.empty((times.size, np.size(vol)))
+    sup = np.empty(times.size)
+    c = np.broadcast_to(np.asarray(c0, dtype=float), np.shape(vol)).copy()
+    for j in range(n_p):
+        z = [np.broadcast_to(at(a, j, True), np.shape(vol)) for a in (gen, vpz, exh, loss)]
+        rhs, supply = _physics_rhs(vol, z[1], at(vot, j, False), z[2], z[3], c_out, eta_oa,
+                                   eta_rec)
+        last = j == n_p - 1
+        sel = (times >= breaks[j]) & ((times < breaks[j + 1]) | (last & (times <= breaks[j + 1])))
+        t_eval = np.unique(np.concatenate((times[sel], [breaks[j + 1]])))
+        sol = solve_ivp(rhs, (breaks[j], breaks[j + 1]), c, method="LSODA", rtol=1e-10,
+                        atol=1e-14 * max(1.0, np.abs(c).max()), t_eval=t_eval, args=(z[0],))
+        out[sel] = sol.y[:, : sel.sum()].T
+        sup[sel] = [supply(col) for col in sol.y[:, : sel.sum()].T]
+        c = sol.y[:, -1]
+    return out, sup
+
+
+# --------------------------------------------------------------------------- steady state
+
+
+def test_steady_state_no_filter_closed_form_domain_md_section_4():
+    # domain.md §4: with no filter and no losses, C_s = C_out + (1 − x)·ΣGz/Vot and
+    # C_z = C_s + Gz/Vpz, x = Vot/Vps.
+    rng = np.random.default_rng(62)
+    vpz = rng.uniform(200, 3000, 15)
+    gen = rng.uniform(0, 1e5, 15)
+    vot, c_out = 0.3 * vpz.sum(), 415.0
+    res = cpl.coupled_steady_state(gen, 100.0, vpz, vot, c_out)
+    x = vot / vpz.sum()
+    c_s = c_out + (1 - x) * gen.sum() / vot
+    assert res.supply == pytest.approx(c_s, rel=1e-13)
+    np.testing.assert_allclose(res.zone, c_s + gen / vpz, rtol=1e-13)
+    # the mixed return is the Vpz-weighted zone mean
+    assert res.mixed_return == pytest.approx(vpz @ res.zone / vpz.sum(), rel=1e-13)
+
+
+def test_steady_state_matches_dense_linear_solve():
+    # O(N) closed form against numpy.linalg.solve (outside reference) of the same balances
+    # written with explicit unknowns [C_1..C_N, C_r, C_s]: zones, mixed return, mixed supply.
+    rng = np.random.default_rng(5)
+    for n in (1, 2, 7, 40):
+        vol = rng.uniform(30, 600, n)
+        vpz = rng.uniform(100, 2500, n)
+        exh = np.where(rng.random(n) < 0.4, vpz * rng.uniform(0, 1, n), 0.0)
+        vot = max(exh.sum(), rng.uniform(0.05, 1.0) * vpz.sum())
+        vot = min(vot, vpz.sum())
+        cadr, kd, ki = rng.uniform(0, 400, n), rng.uniform(0, 2, n), 0.3
+        gen = rng.uniform(0, 1e4, n)
+        c_out, eta_oa, eta_rec = 11.0, 0.35, 0.8
+        res = cpl.coupled_steady_state(gen, vol, vpz, vot, c_out, eta_oa, eta_rec, exh, cadr,
+                                       kd, ki)
+        ret, vps = vpz - exh, vpz.sum()
+        a = np.zeros((n + 2, n + 2))
+        rhs = np.zeros(n + 2)
+        a[:n, :n] = -np.diag(vpz + cadr + (kd + ki) * vol)
+        a[:n, n + 1] = vpz
+        rhs[:n] = -gen
+        a[n, :n], a[n, n] = -ret, ret.sum()
+        a[n + 1, n], a[n + 1, n + 1] = -(vps - vot) * (1 - eta_rec), vps
+        rhs[n + 1] = vot * (1 - eta_oa) * c_out
+        dense = np.linalg.solve(a, rhs)
+        np.testing.assert_allclose(res.zone, dense[:n], rtol=1e-11)
+        assert res.supply == pytest.approx(dense[n + 1], rel=1e-11)
+        assert res.mixed_return == pytest.approx(dense[n], rel=1e-11)
+
+
+def test_steady_state_is_linear_time_and_memory_for_200k_zones():
+    # O(N): 200,000 zones on one air handler (a dense matrix would need 320 GB), checked
+    # against the domain.md §4 closed form.
+    n = 200_000
+    vpz = np.linspace(300.0, 900.0, n)
+    gen = np.linspace(0.0, 50.0, n)
+    vot = 0.25 * vpz.sum()
+    res = cpl.coupled_steady_state(gen, 50.0, vpz, vot)
+    c_s = 0.75 * gen.sum() / vot
+    assert res.supply == pytest.approx(c_s, rel=1e-11)
+    np.testing.assert_allclose(res.zone, c_s + gen / vpz, rtol=1e-11)
+
+
+def test_supply_coupling_weights_domain_md_section_4():
+    # Module model (domain.md §4 mixing): Σw = (1 − η_rec)(1 − x) without exhaust, a = x(1 − η_oa)C_out.
+    vpz = np.array([400.0, 600.0, 1000.0])
+    a, w = cpl.supply_coupling(vpz, 500.0, 20.0, 0.5, 0.6)
+    assert a == pytest.approx(0.25 * 0.5 * 20.0)
+    np.testing.assert_allclose(w, 0.4 * 0.75 * vpz / vpz.sum(), rtol=1e-15)
+    a, w = cpl.supply_coupling(vpz, 500.0, zone_exhaust=[400.0, 0.0, 0.0])
+    np.testing.assert_allclose(w, [0.0, 0.75 * 600 / 1600, 0.75 * 1000 / 1600], rtol=1e-15)
+
+
+def test_full_outdoor_air_system_uncouples_zones():
+    # domain.md §2 100 % outdoor-air system: Vot = ΣVpz, so each zone is a single zone with
+    # Q_oa = Vpz (domain.md §4 C_ss = G/Q_oa + C_out).
+    vpz = np.array([300.0, 800.0])
+    res = cpl.coupled_steady_state([600.0, 400.0], 100.0, vpz, vpz.sum(), 3.0)
+    np.testing.assert_allclose(res.zone, 3.0 + np.array([600.0, 400.0]) / vpz, rtol=1e-14)
+
+
+def test_one_zone_system_equals_single_zone_procedure():
+    # domain.md §4: one zone with Vot of outdoor air and Vpz − Vot recirculated through η_rec
+    # is the single-zone balance with Q_oa = Vot, Q_rec = Vpz − Vot.
+    v, vpz, vot, g = 150.0, 1200.0, 300.0, 2500.0
+    kw = dict(outdoor_concentration=9.0, outdoor_filter_efficiency=0.3)
+    single = dil.steady_state_concentration(g, v, vot, 9.0, 0.3, vpz - vot, 0.7, 50.0, 0.2)
+    res = cpl.coupled_steady_state([g], v, [vpz], vot, 9.0, 0.3, 0.7, 0.0, 50.0, 0.2)
+    assert res.zone[0] == pytest.approx(single, rel=1e-13)
+    breaks, times = np.array([0.0, 2.0, 5.0]), np.linspace(0, 5, 11)
+    gen = np.array([[g], [0.2 * g]])
+    one = dil.piecewise_transient(breaks, gen, v, vot, 4.0, times, recirc_airflow=vpz - vot,
+                                  recirc_efficiency=0.7, cadr=50.0, k_deposition=0.2, **kw)
+    many = cpl.coupled_piecewise_transient(breaks, gen, [v], [vpz], vot, 4.0, times,
+                                           recirc_filter_efficiency=0.7, cadr=50.0,
+                                           k_deposition=0.2, **kw)
+    np.testing.assert_allclose(many.zone, one, rtol=1e-12)
+
+
+def test_air_balance_is_enforced():
+    # Module model: ΣE_z <= Vot <= ΣVpz and E_z <= Vpz (mass balance; common practice).
+    with pytest.raises(ValueError, match="air balance"):
+        cpl.coupled_steady_state([1.0, 1.0], 10.0, [100.0, 100.0], 250.0)
+    with pytest.raises(ValueError, match="air balance"):
+        cpl.coupled_steady_state([1.0, 1.0], 10.0, [100.0, 100.0], 50.0, zone_exhaust=[80.0, 0])
+    with pytest.raises(ValueError, match="exceed"):
+        cpl.coupled_steady_state([1.0, 1.0], 10.0, [100.0, 100.0], 150.0, zone_exhaust=[120.0, 0])
+    with pytest.raises(ValueError, match="removes nothing"):
+        cpl.coupled_steady_state([1.0, 1.0], 10.0, [100.0, 100.0], 0.0)
+
+
+# --------------------------------------------------------------------------- detailed Ev
+
+
+zone_strategy = st.tuples(
+    st.sampled_from([0.0, 2.5, 3.8, 5.0, 10.0]),  # Rp, L/s·person (reference-values.md A, SI)
+    st.integers(0, 150),  # Pz
+    st.sampled_from([0.3, 0.6, 0.9]),  # Ra, L/s·m2 (reference-values.md A, SI)
+    st.floats(5.0, 2000.0),  # Az, m2
+    st.floats(0.05, 1.0),  # Zpz = Vbz/Vpz (Ez = 1)
+)
+
+
+@settings(max_examples=150, deadline=None)
+@given(zones=st.lists(zone_strategy, min_size=1, max_size=25), k=st.floats(1e-3, 1e4))
+def test_detailed_ev_intake_gives_critical_zone_its_single_zone_concentration(zones, k):
+    # domain.md §4 / reference-values.md C: Vbz = Rp·Pz + Ra·Az, D = 1, Ez = 1 (Voz = Vbz),
+    # Vou = ΣVbz, Xs = Vou/Vps, Zpz = Voz/Vpz, Ev = 1 + Xs − max Zpz, Vot = Vou/Ev. With
+    # Gz = k·Vbz the critical zone reaches exactly k (= G/Vbz with clean air) and no zone
+    # exceeds it.
+    rp, pz, ra, az, zpz = (np.array(col, dtype=float) for col in zip(*zones))
+    vbz = rp * pz + ra * az
+    vpz = vbz / zpz
+    vou, vps = vbz.sum(), vpz.sum()
+    ev = 1 + vou / vps - zpz.max()
+    vot = vou / ev
+    res = cpl.coupled_steady_state(k * vbz * LS_TO_M3H, 100.0, vpz * LS_TO_M3H, vot * LS_TO_M3H)
+    assert res.zone[np.argmax(zpz)] == pytest.approx(k, rel=1e-12)
+    assert res.zone.max() <= k * (1 + 1e-12)
+    # each zone: C_z = k·(1 − max Zpz + Zpz)  (derived from the same closed form)
+    np.testing.assert_allclose(res.zone, k * (1 - zpz.max() + zpz), rtol=1e-11)
+
+
+# --------------------------------------------------------------------------- transients
+
+
+def _case(name, rng):
+    n = {"random": 6, "vav": 5, "exhausted-and-identical": 6, "outdoor-air-only": 4,
+         "forty-zones": 40}[name]
+    vol = rng.uniform(30, 400, n)
+    vpz = rng.uniform(150, 2500, n)
+    exh = np.where(rng.random(n) < 0.3, vpz * rng.uniform(0, 0.9, n), 0.0)
+    if name == "exhausted-and-identical":
+        vol[1:4], vpz[1:4], exh[:] = 120.0, 700.0, 0.0
+        exh[0] = vpz[0]  # a room whose air all leaves by exhaust
+    vot = max(exh.sum(), 0.25 * vpz.sum())
+    if name == "outdoor-air-only":
+        exh[:], vot = 0.0, vpz.sum()
+    if name == "vav":
+        vpz = vpz * rng.uniform(0.3, 1.0, (4, n))  # zone primary airflow reset per piece
+        vot = 0.3 * vpz.sum(axis=1)
+    loss = rng.uniform(0, 300, n)
+    return vol, vpz, vot, exh, loss
+
+
+@pytest.mark.parametrize("name", ["random", "vav", "exhausted-and-identical",
+                                  "outdoor-air-only", "forty-zones"])
+def test_coupled_transient_matches_solve_ivp(name):
+    # Exact secular-mode solution against scipy.integrate.solve_ivp (LSODA, rtol=1e-10) as
+    # outside reference, 1e-6 relative; generation per piece, filters, losses, exhaust.
+    rng = np.random.default_rng(abs(hash(name)) % 2**32)
+    vol, vpz, vot, exh, loss = _case(name, rng)
+    n = vol.size
+    breaks = np.array([0.0, 0.75, 2.0, 4.5, 8.0])
+    gen = rng.uniform(0, 2e4, (4, n)) * (rng.random((4, n)) < 0.8)
+    c0 = rng.uniform(0, 40, n)
+    times = np.sort(np.concatenate((rng.uniform(0, 8, 40), breaks)))
+    got = cpl.coupled_piecewise_transient(breaks, gen, vol, vpz, vot, c0, times,
+                                          outdoor_concentration=6.0,
+                                          outdoor_filter_efficiency=0.4,
+                                          recirc_filter_efficiency=0.55, zone_exhaust=exh,
+                                          cadr=loss)
+    ref, ref_supply = _reference_transient(breaks, gen, vol, vpz, vot, exh, loss, c0, times,
+                                           6.0, 0.4, 0.55)
+    np.testing.assert_allclose(got.zone, ref, rtol=1e-6, atol=1e-12 * np.abs(ref).max())
+    np.testing.assert_allclose(got.supply, ref_supply, rtol=1e-6)
+
+
+def test_coupled_transient_settles_to_coupled_steady_state():
+    # domain.md §4: at constant inputs the transient tends to the steady state (after 60
+    # time constants of the slowest mode the deviation is below e^-60).
+    rng = np.random.default_rng(9)
+    n = 30
+    vol, vpz, gen = rng.uniform(50, 300, n), rng.uniform(200, 1500, n), rng.uniform(0, 9e3, n)
+    vot = 0.15 * vpz.sum()
+    ss = cpl.coupled_steady_state(gen, vol, vpz, vot, 4.0, 0.2, 0.3, 0.0, 20.0)
+    end = cpl.coupled_piecewise_transient([0.0, 200.0], gen, vol, vpz, vot, 0.0, [200.0],
+                                          outdoor_concentration=4.0,
+                                          outdoor_filter_efficiency=0.2,
+                                          recirc_filter_efficiency=0.3, cadr=20.0)
+    np.testing.assert_allclose(end.zone[0], ss.zone, rtol=1e-12)
+    assert end.supply[0] == pytest.approx(ss.supply, rel=1e-12)
+
+
+def test_identical_zones_large_system_is_cheap_and_exact():
+    # Complexity claim of coupled_piecewise_transient: with one zone type (K = 1) a
+    # 100,000-zone system is O(N) per step; by symmetry every zone equals the one-zone case
+    # with the same outdoor fraction (domain.md §4 mixing).
+    n = 100_000
+    breaks, times = [0.0, 1.0, 3.0], np.linspace(0.0, 3.0, 7)
+    gen = np.array([[900.0], [100.0]])
+    big = cpl.coupled_piecewise_transient(breaks, gen, 80.0, np.full(n, 500.0), 0.2 * 500 * n,
+                                          0.0, times)
+    one = cpl.coupled_piecewise_transient(breaks, gen, [80.0], [500.0], 100.0, 0.0, times)
+    np.testing.assert_allclose(big.zone, np.broadcast_to(one.zone, big.zone.shape), rtol=1e-10)
+
+
+def test_shared_and_explicit_zone_inputs_agree():
+    # Layout rule: scalars and (n_pieces, 1) broadcast over zones; arrays give the same.
+    breaks, times = [0.0, 1.0, 2.0], [0.5, 1.5, 2.0]
+    shared = cpl.coupled_piecewise_transient(breaks, [[50.0], [10.0]], 40.0, [300.0, 500.0],
+                                             200.0, 1.0, times, cadr=30.0)
+    explicit = cpl.coupled_piecewise_transient(breaks, [[50.0, 50.0], [10.0, 10.0]],
+                                               [40.0, 40.0], [300.0, 500.0],
+                                               np.array([200.0, 200.0]), [1.0, 1.0], times,
+                                               cadr=[30.0, 30.0])
+    np.testing.assert_array_equal(shared.zone, explicit.zone)
+    np.testing.assert_array_equal(shared.supply, explicit.supply)
