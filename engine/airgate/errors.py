@@ -75,7 +75,7 @@ class AirgateError(ValueError):
         self.hint = hint
 
     def where(self) -> str:
-        parts = [self.file or "<input>"]
+        parts = [self.file or "airgate"]
         if self.line is not None:
             parts.append(str(self.line))
             if self.column is not None:

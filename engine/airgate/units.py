@@ -126,7 +126,7 @@ _TEMP_DIFF_C = re.compile(r"\b(deg\s*C|degC|C)\b")
 
 
 def _normalise(text: str, kind: str) -> str:
-    text = text.strip().translate(_SUPERSCRIPTS)
+    text = text.strip().translate(_SUPERSCRIPTS).replace("^", "**")
     text = _POWER.sub(r"**\1", text)  # ft2 -> ft**2, m3 -> m**3
     if kind == "temperature_difference":
         # A supply-to-room temperature difference is a difference, never an absolute reading.
@@ -144,13 +144,55 @@ class QuantityError(ValueError):
     """A quantity that could not be read; the message says what is expected."""
 
 
+#: The longest quantity text read; anything longer is refused before it reaches pint.
+MAX_QUANTITY_TEXT = 80
+#: A quantity as written: a decimal number, then optionally a unit expression.
+_QUANTITY = re.compile(r"^(?P<number>[-+]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][-+]?[0-9]+)?)"
+                       r"\s*(?P<unit>.*)$")
+#: A unit expression after normalisation: unit names with small integer powers, joined by
+#: ``*``, ``/`` or spaces (no numbers of its own, so pint never evaluates arithmetic).
+_UNIT_EXPR = re.compile(r"^[A-Za-z_µ]+(?:\*\*-?[0-9])?(?:\s*[*/ ]\s*[A-Za-z_µ]+(?:\*\*-?[0-9])?)*$")
+_THOUSANDS = re.compile(r"^[-+]?[0-9]{1,3}(?:,[0-9]{3})+(?:\.[0-9]*)?(?:\s|$)")
+
+
+def _finite(value: float, raw: object) -> float:
+    if not math.isfinite(value):
+        raise QuantityError(f"{raw!r} is not a finite number")
+    return value
+
+
+def _read_text(raw: str, kind: str) -> tuple[float, str]:
+    """Split quantity text into its number and its normalised unit expression ('' if bare)."""
+    k = KINDS[kind]
+    if len(raw) > MAX_QUANTITY_TEXT:
+        raise QuantityError(f"quantity text is longer than {MAX_QUANTITY_TEXT} characters; "
+                            f"expected a number and a unit such as {k.example}")
+    text = raw.strip()
+    if _THOUSANDS.match(text):
+        raise QuantityError(f"cannot read {raw!r}: write the number without a thousands "
+                            f"separator, e.g. {text.replace(',', '')!r}")
+    match = _QUANTITY.match(text)
+    if match is None:
+        raise QuantityError(f"cannot read {raw!r}: expected a number first, then a unit, "
+                            f"such as {k.example}")
+    unit = _normalise(match["unit"], kind) if match["unit"].strip() else ""
+    if unit and not unit[0].isalpha():
+        raise QuantityError(f"cannot read {raw!r} as a number followed by a unit; expected a "
+                            f"quantity such as {k.example}")
+    if unit and not _UNIT_EXPR.match(unit):
+        raise QuantityError(f"cannot read the unit of {raw!r} (unit names with powers 2 or 3, "
+                            f"joined by '/' or '*'); expected a quantity such as {k.example}")
+    return float(match["number"]), unit
+
+
 def parse(raw: object, kind: str, system: str) -> float:
     """Read a schedule quantity and return it in the internal unit of ``kind``.
 
     Parameters
     ----------
     raw : str | int | float
-        ``"5000 ft2"``, ``"850 L/s"`` or a bare number in the project's unit system.
+        ``"5000 ft2"``, ``"850 L/s"`` or a bare number in the project's unit system. Text must
+        be a decimal number followed by an optional unit expression (no arithmetic).
     kind : str
         A key of :data:`KINDS`.
     system : str
@@ -162,38 +204,32 @@ def parse(raw: object, kind: str, system: str) -> float:
         Unreadable text, wrong dimension, or a value that is not finite.
     """
     k = KINDS[kind]
-    ureg = registry()
-    if isinstance(raw, bool):
+    if isinstance(raw, bool) or not isinstance(raw, (int, float, str)):
         raise QuantityError(f"expected a number or a quantity such as {k.example}, got {raw!r}")
     if isinstance(raw, (int, float)):
-        value = float(raw)
-        if not math.isfinite(value):
-            raise QuantityError(f"{raw!r} is not a finite number")
+        return to_internal(_finite(float(raw), raw), kind, system)
+    value, unit = _read_text(raw, kind)
+    _finite(value, raw)
+    if not unit:
         return to_internal(value, kind, system)
-    if not isinstance(raw, str):
-        raise QuantityError(f"expected a number or a quantity such as {k.example}, got {raw!r}")
-    text = _normalise(raw, kind)
+    ureg = registry()
     try:
-        q = ureg.Quantity(text)
-    except Exception as exc:  # pint raises several kinds for unreadable text
-        raise QuantityError(f"cannot read {raw!r} as a quantity such as {k.example}") from exc
-    if not isinstance(q, pint.Quantity):
-        q = ureg.Quantity(float(q), "dimensionless")
-    if q.dimensionless and kind not in ("fraction", "people") and q.units == ureg.dimensionless:
-        value = float(q.magnitude)
-        if not math.isfinite(value):
-            raise QuantityError(f"{raw!r} is not a finite number")
-        return to_internal(value, kind, system)
+        q = ureg.Quantity(value, unit)
+    except pint.UndefinedUnitError as exc:
+        names = ", ".join(repr(n) for n in exc.unit_names) or repr(unit)
+        raise QuantityError(f"unknown unit {names} in {raw!r}; expected a quantity such as "
+                            f"{k.example}") from exc
+    except Exception as exc:  # pint raises several kinds for malformed unit expressions
+        raise QuantityError(f"cannot read the unit of {raw!r}; expected a quantity such as "
+                            f"{k.example}") from exc
     try:
-        value = float(q.to(k.internal).magnitude)
+        converted = float(q.to(k.internal).magnitude)
     except pint.DimensionalityError as exc:
         raise QuantityError(
             f"{raw!r} has units of {q.units:~} ({q.dimensionality}); "
             f"expected {_article(kind)} such as {k.example}"
         ) from exc
-    if not math.isfinite(value):
-        raise QuantityError(f"{raw!r} is not a finite number")
-    return value
+    return _finite(converted, raw)
 
 
 @lru_cache(maxsize=64)

@@ -78,12 +78,24 @@ def _row(loaded: LoadedSchedule, pack: RulePack, ref: str | StatedDistribution,
     row = pack.configurations.get(ref)
     if row is None:
         close = nearest(ref, pack.configurations)
+        hint = None
+        if _is_number(ref):
+            hint = (f"to state the zone's Ez directly, write ez: {ref} with ez_basis: (why it "
+                    "applies) instead of air_distribution")
         raise loaded.error(
-            f"unknown air distribution row '{ref}'"
+            f"unknown air distribution row '{ref}' in rule pack {pack.id}"
             + (f"; did you mean {', '.join(repr(c) for c in close)}?" if close else ""),
-            path, allowed=sorted(pack.configurations),
+            path, allowed=sorted(pack.configurations), hint=hint,
         )
     return row
+
+
+def _is_number(text: str) -> bool:
+    try:
+        float(text)
+    except ValueError:
+        return False
+    return True
 
 
 def air_distribution(loaded: LoadedSchedule, pack: RulePack, zone: Zone, path: Path_) -> EzChoice:

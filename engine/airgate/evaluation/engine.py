@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from airgate.errors import AirgateError, raise_all
+from airgate.errors import AirgateError, RulePackError, raise_all
 from airgate.evaluation import bind, systems
 from airgate.evaluation.checks import KNOWN_CHECKS, Emitter
 from airgate.evaluation.findings import Location
@@ -12,7 +12,7 @@ from airgate.evaluation.report import SAFETY_CAUTION, Report, SystemResult
 from airgate.evaluation.trail import Trail
 from airgate.evaluation.zones import ZoneContext, evaluate_zone
 from airgate.models.rules import RulePack
-from airgate.readers.rulepack import load_pack
+from airgate.readers.rulepack import load_pack, resolve
 from airgate.readers.schedule import LoadedSchedule, read_schedule
 
 
@@ -55,9 +55,10 @@ def _method_errors(loaded: LoadedSchedule, pack: RulePack, i: int) -> list[Airga
     if method == "simplified":
         return []
     return [
-        loaded.error(f"the {method} Ev method needs primary_airflow (Vpz) for every zone",
-                     ("systems", i, "zones", j), hint="add primary_airflow, or use "
-                     "ventilation_efficiency: simplified if the pack allows it")
+        loaded.error(f"the {method} Ev method needs primary_airflow (Vpz) for every zone; "
+                     f"zone '{zone.id}' gives none", ("systems", i, "zones", j, "primary_airflow"),
+                     hint="add primary_airflow, or use ventilation_efficiency: simplified if "
+                     "the pack allows it")
         for j, zone in enumerate(system.zones) if zone.primary_airflow is None
     ]
 
@@ -109,6 +110,28 @@ def _verdicts(results: list[SystemResult], findings) -> None:
             z.verdict = "fail" if own or shared else "pass"
 
 
+def _pack(loaded: LoadedSchedule, ref: str, from_option: bool) -> RulePack:
+    """Load the rule pack ``ref``; a pack that cannot be found is reported where it was named.
+
+    A path in the schedule is relative to the schedule's folder, one given with ``--rules`` to
+    the working directory.
+    """
+    base = Path.cwd() if from_option else Path(loaded.file).parent
+    try:
+        path = resolve(ref, base)
+        if not path.is_file():
+            what = "is a folder, not a rule pack file" if path.is_dir() else "not found"
+            raise RulePackError(f"rule pack file {path} {what}",
+                                hint="give a built-in pack id (airgate rules list) or the path "
+                                "of a pack file")
+    except RulePackError as exc:
+        if from_option:
+            exc.field = ("--rules",)
+            raise
+        raise loaded.error(exc.message, ("rules",), allowed=exc.allowed, hint=exc.hint) from None
+    return load_pack(str(path))
+
+
 def check_file(path: str | Path, rules: str | None = None) -> Report:
     """Read ``path``, load its rule pack (or ``rules``), and evaluate. Raises AirgateError."""
     loaded = read_schedule(path)
@@ -116,5 +139,4 @@ def check_file(path: str | Path, rules: str | None = None) -> Report:
     if ref is None:
         raise loaded.error("no rule pack: give 'rules:' in the schedule or --rules", ("rules",),
                            hint="e.g. rules: ashrae-62.1-2019")
-    pack = load_pack(ref, base=Path(path).resolve().parent if not rules else Path.cwd())
-    return evaluate(loaded, pack)
+    return evaluate(loaded, _pack(loaded, ref, from_option=bool(rules)))

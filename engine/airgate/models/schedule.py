@@ -21,6 +21,8 @@ from pydantic import (
     model_validator,
 )
 
+from pydantic_core import PydanticCustomError
+
 from airgate import units
 
 _QUANTITY_SCHEMA = {
@@ -79,9 +81,15 @@ People = Annotated[
 ]
 
 
+def cross_field(field: str, message: str) -> PydanticCustomError:
+    """A rule between fields, reported at ``field`` (the reader appends it to the location)."""
+    return PydanticCustomError("cross_field", message, {"field": field})
+
+
 def _id(value: Any) -> Any:
     if isinstance(value, bool):
-        raise ValueError("an id must be text such as \"204\" or \"AHU-1\"")
+        raise ValueError(f"an id must be text such as \"204\" or \"AHU-1\", got "
+                         f"{str(value).lower()}; put it in quotes if that is the id")
     if isinstance(value, (int, float)):
         return str(value)
     return value
@@ -171,11 +179,12 @@ class Zone(_Model):
     @model_validator(mode="after")
     def _ez_has_basis(self) -> Zone:
         if self.ez is not None and self.ez_basis is None:
-            raise ValueError("an explicit ez needs ez_basis: say why it applies")
+            raise cross_field("ez", "an explicit ez needs ez_basis: say why it applies")
         if self.ez is not None and self.air_distribution is not None:
-            raise ValueError("give either air_distribution or an explicit ez, not both")
+            raise cross_field("ez", "give either air_distribution or an explicit ez, not both")
         if self.er is not None and self.ep is None:
-            raise ValueError("er (secondary recirculation) needs ep, the primary air fraction")
+            raise cross_field("er", "er (secondary recirculation) needs ep, the primary air "
+                                    "fraction")
         return self
 
 
@@ -204,8 +213,8 @@ class System(_Model):
     @model_validator(mode="after")
     def _kind_fits(self) -> System:
         if self.kind == "single-zone" and len(self.zones) != 1:
-            raise ValueError(f"a single-zone system serves exactly one zone, this one lists "
-                             f"{len(self.zones)}; use kind: multiple-zone")
+            raise cross_field("kind", f"a single-zone system serves exactly one zone, this one "
+                                      f"lists {len(self.zones)}; use kind: multiple-zone")
         return self
 
     @property

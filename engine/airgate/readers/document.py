@@ -1,13 +1,18 @@
 """Load a YAML or JSON document into plain Python data, keeping every node's position.
 
-YAML is read with PyYAML's safe loader (no tags that build objects). Duplicate keys, non-string
-keys, excessive alias expansion and nesting are input errors, each with its line and column.
-Positions are 1-based and keyed by field path, e.g. ``("systems", 0, "zones", 2, "area")``.
+YAML is read with PyYAML's safe loader (no tags that build objects), with plain scalars resolved
+as the YAML 1.2 core schema does: only ``true``/``false`` are booleans (``yes``, ``no``, ``on``,
+``off`` stay text), ``12:30`` is text rather than a base-60 number, ``030`` is thirty rather than
+octal, ``1e5`` is a number, and dates stay text. Duplicate keys, non-scalar keys, excessive alias
+expansion and nesting are input errors, each with its line and column. Positions are 1-based and
+keyed by field path, e.g. ``("systems", 0, "zones", 2, "area")``; a syntax error also names the
+field being read when it happened.
 """
 
 from __future__ import annotations
 
 import json
+import re
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -24,13 +29,51 @@ MAX_DEPTH = 64
 MAX_BYTES = 50 * 1024 * 1024
 
 
+class _Loader(yaml.SafeLoader):
+    """PyYAML's safe loader with YAML 1.2 core-schema resolution of plain scalars."""
+
+    yaml_implicit_resolvers: dict = {}
+
+    def construct_yaml_int(self, node: yaml.ScalarNode) -> int:
+        """Decimal, ``0o`` octal or ``0x`` hexadecimal (YAML 1.2); never 1.1 octal or base 60."""
+        text = self.construct_scalar(node)
+        sign = -1 if text.startswith("-") else 1
+        digits = text.lstrip("+-")
+        if digits.startswith("0o"):
+            return sign * int(digits[2:], 8)
+        if digits.startswith("0x"):
+            return sign * int(digits[2:], 16)
+        return sign * int(digits, 10)
+
+
+_Loader.add_implicit_resolver(
+    "tag:yaml.org,2002:null", re.compile(r"^(?:~|null|Null|NULL|)$"), ["~", "n", "N", ""])
+_Loader.add_implicit_resolver(
+    "tag:yaml.org,2002:bool", re.compile(r"^(?:true|True|TRUE|false|False|FALSE)$"), list("tTfF"))
+_Loader.add_implicit_resolver(
+    "tag:yaml.org,2002:int", re.compile(r"^(?:[-+]?[0-9]+|0o[0-7]+|0x[0-9a-fA-F]+)$"),
+    list("-+0123456789"))
+_Loader.add_implicit_resolver(
+    "tag:yaml.org,2002:float",
+    re.compile(r"^(?:[-+]?(?:\.[0-9]+|[0-9]+(?:\.[0-9]*)?)(?:[eE][-+]?[0-9]+)?"
+               r"|[-+]?\.(?:inf|Inf|INF)|\.(?:nan|NaN|NAN))$"),
+    list("-+.0123456789"))
+_Loader.add_implicit_resolver("tag:yaml.org,2002:merge", re.compile(r"^(?:<<)$"), ["<"])
+_Loader.add_constructor("tag:yaml.org,2002:int", _Loader.construct_yaml_int)
+
+
 @dataclass
 class Document:
-    """Plain data plus where each value was written."""
+    """Plain data plus where each value was written.
+
+    ``texts`` keeps the source text of plain scalars that were read as numbers or booleans, so a
+    text field (an id such as ``0101``) can be taken exactly as written.
+    """
 
     file: str
     data: Any
     positions: dict[Path_, tuple[int, int]] = field(default_factory=dict)
+    texts: dict[Path_, str] = field(default_factory=dict)
 
     def locate(self, path: Path_) -> tuple[int | None, int | None]:
         """Line and column of ``path``, or of its nearest ancestor that has one."""
@@ -45,6 +88,20 @@ class Document:
     def error(self, cls: type[AirgateError], message: str, path: Path_, **kw: Any) -> AirgateError:
         line, column = self.locate(path)
         return cls(message, file=self.file, line=line, column=column, field=path, **kw)
+
+
+def _limit_error(error_cls: type[AirgateError], what: str, file: str, path: Path_,
+                 line: int | None = None, column: int | None = None) -> AirgateError:
+    if what == "nodes":
+        return error_cls(
+            f"document has more than {MAX_NODES} values (alias expansion?); the node limit "
+            "stops it here", file=file, line=line, column=column, field=path,
+            hint="remove YAML aliases that expand to huge trees, or split the file")
+    return error_cls(
+        f"nesting deeper than {MAX_DEPTH} levels; the depth limit stops it here",
+        file=file, line=line, column=column, field=path,
+        hint="a schedule or rule pack needs only a few levels; check for a runaway "
+             "or self-referencing structure")
 
 
 class _Builder:
@@ -63,30 +120,36 @@ class _Builder:
 
     def build(self, node: yaml.Node, path: Path_, depth: int) -> Any:
         self.count += 1
+        mark = node.start_mark
         if self.count > MAX_NODES:
-            raise self.fail(node, f"document has more than {MAX_NODES} values (alias expansion?)",
-                            path, hint="remove YAML aliases or split the file")
+            raise _limit_error(self.error_cls, "nodes", self.doc.file, path,
+                               mark.line + 1, mark.column + 1)
         if depth > MAX_DEPTH:
-            raise self.fail(node, f"nesting deeper than {MAX_DEPTH} levels", path)
-        self.doc.positions.setdefault(path, (node.start_mark.line + 1, node.start_mark.column + 1))
+            raise _limit_error(self.error_cls, "depth", self.doc.file, path,
+                               mark.line + 1, mark.column + 1)
+        self.doc.positions.setdefault(path, (mark.line + 1, mark.column + 1))
         if isinstance(node, yaml.MappingNode):
             return self._mapping(node, path, depth)
         if isinstance(node, yaml.SequenceNode):
             return [self.build(item, path + (i,), depth + 1) for i, item in enumerate(node.value)]
         try:
-            return self.loader.construct_object(node, deep=True)
+            value = self.loader.construct_object(node, deep=True)
         except yaml.YAMLError as exc:
             raise self.fail(node, f"cannot read value: {exc}", path) from None
+        if isinstance(value, (bool, int, float)) and node.style is None:
+            self.doc.texts[path] = node.value
+        return value
 
     def _mapping(self, node: yaml.MappingNode, path: Path_, depth: int) -> dict[str, Any]:
         self.loader.flatten_mapping(node)  # resolve YAML merge keys (<<) first
         out: dict[str, Any] = {}
         for key_node, value_node in node.value:
             if not isinstance(key_node, yaml.ScalarNode):
-                raise self.fail(key_node, "a key must be a plain name", path)
+                raise self.fail(key_node, "a key must be a plain name, not a list or mapping",
+                                path, hint="write 'name: value'")
             key = self.loader.construct_object(key_node)
             if not isinstance(key, str):
-                key = str(key)
+                key = key_node.value  # as written: 'true', '1', '~'
             if key in out:
                 first = self.doc.positions.get(path + (key,), (None, None))[0]
                 raise self.fail(
@@ -98,6 +161,12 @@ class _Builder:
             )
             out[key] = self.build(value_node, path + (key,), depth + 1)
         return out
+
+
+def _line_column(raw: bytes, offset: int) -> tuple[int, int]:
+    """1-based line and column of byte ``offset`` (the column counts bytes)."""
+    line = raw[:offset].count(b"\n") + 1
+    return line, offset - (raw.rfind(b"\n", 0, offset) + 1) + 1
 
 
 def read_text(path: Path, error_cls: type[AirgateError]) -> str:
@@ -114,71 +183,209 @@ def read_text(path: Path, error_cls: type[AirgateError]) -> str:
     if len(raw) > MAX_BYTES:
         raise error_cls(f"file is larger than {MAX_BYTES // (1024 * 1024)} MiB", file=name)
     if b"\x00" in raw:
+        line, column = _line_column(raw, raw.index(b"\x00"))
         raise error_cls("file is binary (contains NUL bytes), expected YAML or JSON text",
-                        file=name)
+                        file=name, line=line, column=column,
+                        hint="give the schedule or rule pack as a text file")
     try:
         return raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
-        line = raw[: exc.start].count(b"\n") + 1
+        line, column = _line_column(raw, exc.start)
         raise error_cls(
             f"file is not UTF-8 text (byte 0x{raw[exc.start]:02x} at offset {exc.start})",
-            file=name, line=line, hint="save the file as UTF-8",
+            file=name, line=line, column=column, hint="save the file as UTF-8",
         ) from None
+
+
+class _PathTracker:
+    """Follows YAML parser events to know which field is being read (for syntax errors)."""
+
+    def __init__(self) -> None:
+        #: per open collection: [is_mapping, key or index, expecting a key?]
+        self.stack: list[list[Any]] = []
+
+    def _value_started(self) -> None:
+        if not self.stack:
+            return
+        top = self.stack[-1]
+        if not top[0]:
+            top[1] += 1
+
+    def _value_done(self, scalar_key: str | None = None) -> None:
+        if not self.stack or not self.stack[-1][0]:
+            return
+        top = self.stack[-1]
+        if top[2]:  # a key was read; its value comes next
+            top[1], top[2] = scalar_key, False
+        else:
+            top[2] = True
+
+    def feed(self, event: yaml.Event) -> None:
+        if isinstance(event, (yaml.MappingStartEvent, yaml.SequenceStartEvent)):
+            self._value_started()
+            mapping = isinstance(event, yaml.MappingStartEvent)
+            self.stack.append([True, None, True] if mapping else [False, -1, False])
+        elif isinstance(event, (yaml.MappingEndEvent, yaml.SequenceEndEvent)):
+            self.stack.pop()
+            self._value_done()
+        elif isinstance(event, (yaml.ScalarEvent, yaml.AliasEvent)):
+            self._value_started()
+            self._value_done(event.value if isinstance(event, yaml.ScalarEvent) else None)
+
+    def path(self) -> Path_:
+        out: list[str | int] = []
+        for is_mapping, at, expecting_key in self.stack:
+            if is_mapping and (expecting_key or at is None):
+                break
+            if not is_mapping and at < 0:
+                break
+            out.append(at)
+        return tuple(out)
+
+
+def path_at_error(text: str) -> Path_:
+    """The field path being read where ``text`` stops parsing (``()`` when unknown)."""
+    tracker = _PathTracker()
+    try:
+        for event in yaml.parse(text, Loader=_Loader):
+            tracker.feed(event)
+    except yaml.YAMLError:
+        pass
+    return tracker.path()
+
+
+def _syntax_error(exc: yaml.MarkedYAMLError, text: str, file: str,
+                  error_cls: type[AirgateError]) -> AirgateError:
+    mark = exc.problem_mark or exc.context_mark
+    problem = exc.problem or str(exc)
+    hint = None
+    lines = text.splitlines()
+    if mark is not None and mark.line < len(lines) and "\t" in lines[mark.line][: mark.column + 1]:
+        problem += " (YAML does not allow tabs for indentation)"
+        hint = "indent with spaces"
+    elif mark is not None and mark.index >= len(text.rstrip()):
+        hint = "the file ends too early; is it complete?"
+    if exc.context and exc.context_mark and exc.context_mark is not mark:
+        problem += f" ({exc.context} on line {exc.context_mark.line + 1})"
+    return error_cls(
+        f"not valid YAML: {problem}", file=file,
+        line=mark.line + 1 if mark else None, column=mark.column + 1 if mark else None,
+        field=path_at_error(text), hint=hint,
+    )
 
 
 def parse_yaml(text: str, file: str, error_cls: type[AirgateError]) -> Document:
     """Parse YAML (or JSON, a near subset) text into a :class:`Document`."""
     doc = Document(file=file, data=None)
-    loader = yaml.SafeLoader(text)
+    loader = _Loader(text)
     try:
         node = loader.get_single_node()
         if node is None:
-            raise error_cls("document is empty", file=file, line=1, column=1)
+            raise error_cls("document is empty", file=file, line=1, column=1,
+                            hint="a schedule starts with 'schedule: 1'")
         doc.data = _Builder(doc, loader, error_cls).build(node, (), 0)
     except yaml.MarkedYAMLError as exc:
-        mark = exc.problem_mark or exc.context_mark
-        problem = exc.problem or str(exc)
-        if "\t" in problem or "'\\t'" in problem:
-            problem += " (YAML does not allow tabs for indentation)"
-        raise error_cls(
-            f"not valid YAML: {problem}", file=file,
-            line=mark.line + 1 if mark else None, column=mark.column + 1 if mark else None,
-        ) from None
+        raise _syntax_error(exc, text, file, error_cls) from None
     except yaml.YAMLError as exc:
         raise error_cls(f"not valid YAML: {exc}", file=file) from None
     except RecursionError:
-        raise error_cls(f"nesting deeper than {MAX_DEPTH} levels", file=file) from None
+        raise _limit_error(error_cls, "depth", file, ()) from None
     finally:
         loader.dispose()
     return doc
 
 
+class _Duplicated(dict):
+    """A JSON object in which a key was given twice (kept to report where)."""
+
+    def __init__(self, pairs: list[tuple[str, Any]], key: str) -> None:
+        super().__init__(pairs)
+        self.duplicate = key
+
+
+class _Constant:
+    """A ``NaN`` / ``Infinity`` token, which strict JSON does not allow."""
+
+    def __init__(self, name: str) -> None:
+        self.name = name
+
+
+def _json_pairs(pairs: list[tuple[str, Any]]) -> dict[str, Any]:
+    out: dict[str, Any] = {}
+    for key, value in pairs:
+        if key in out:
+            return _Duplicated(pairs, key)
+        out[key] = value
+    return out
+
+
+def _walk_json(data: Any) -> tuple[str, Path_, str] | None:
+    """The first problem in parsed JSON: ``(what, path, detail)``, or None when clean."""
+    todo: list[tuple[Any, Path_]] = [(data, ())]
+    count = 0
+    while todo:
+        value, path = todo.pop()
+        count += 1
+        if count > MAX_NODES:
+            return ("nodes", path, "")
+        if len(path) > MAX_DEPTH:
+            return ("depth", path, "")
+        if isinstance(value, _Constant):
+            return ("constant", path, value.name)
+        if isinstance(value, _Duplicated):
+            return ("duplicate", path + (value.duplicate,), value.duplicate)
+        if isinstance(value, dict):
+            todo.extend((v, path + (k,)) for k, v in reversed(list(value.items())))
+        elif isinstance(value, list):
+            todo.extend((v, path + (i,)) for i, v in reversed(list(enumerate(value))))
+    return None
+
+
+def _json_positions(text: str, file: str, error_cls: type[AirgateError]) -> Document:
+    """Compose JSON text as YAML for positions (tabs, JSON whitespace, become spaces)."""
+    return parse_yaml(text.replace("\t", " "), file, error_cls)
+
+
+def _json_decode_error(exc: json.JSONDecodeError, text: str, file: str,
+                       error_cls: type[AirgateError]) -> AirgateError:
+    before = text[: exc.pos].rstrip()
+    hint = None
+    if before.endswith(",") and text[exc.pos: exc.pos + 1] in "}]":
+        hint = "JSON allows no comma before a closing } or ]; remove it"
+    elif exc.pos >= len(text.rstrip()):
+        hint = "the file ends too early; is it complete?"
+    elif exc.msg.startswith("Expecting property name") and text[exc.pos: exc.pos + 1] == "'":
+        hint = "JSON names and text use double quotes"
+    return error_cls(f"not valid JSON: {exc.msg}", file=file, line=exc.lineno,
+                     column=exc.colno, field=path_at_error(text[: exc.pos].replace("\t", " ")),
+                     hint=hint)
+
+
 def parse_json(text: str, file: str, error_cls: type[AirgateError]) -> Document:
     """Parse strict JSON; positions come from a YAML composition of the same text if possible."""
-
-    def no_duplicates(pairs: list[tuple[str, Any]]) -> dict[str, Any]:
-        out: dict[str, Any] = {}
-        for key, value in pairs:
-            if key in out:
-                raise ValueError(f"duplicate key '{key}'")
-            out[key] = value
-        return out
-
-    def no_constants(name: str) -> float:
-        raise ValueError(f"{name} is not a number JSON allows")
-
     try:
-        data = json.loads(text, object_pairs_hook=no_duplicates, parse_constant=no_constants)
+        data = json.loads(text, object_pairs_hook=_json_pairs, parse_constant=_Constant)
     except json.JSONDecodeError as exc:
-        raise error_cls(f"not valid JSON: {exc.msg}", file=file, line=exc.lineno,
-                        column=exc.colno) from None
-    except (ValueError, RecursionError) as exc:
-        raise error_cls(f"not valid JSON: {exc}", file=file) from None
+        raise _json_decode_error(exc, text, file, error_cls) from None
+    except RecursionError:
+        raise _limit_error(error_cls, "depth", file, ()) from None
+    problem = _walk_json(data)
+    if problem is not None and problem[0] in ("nodes", "depth"):
+        raise _limit_error(error_cls, problem[0], file, problem[1])
     try:
-        positions = parse_yaml(text, file, error_cls).positions
-    except AirgateError:
+        positions = _json_positions(text, file, error_cls).positions
+    except AirgateError as exc:
+        if problem is not None and problem[0] == "duplicate" and exc.line is not None:
+            raise exc from None  # the YAML reading located the same duplicate key
         positions = {}
-    return Document(file=file, data=data, positions=positions)
+    doc = Document(file=file, data=data, positions=positions)
+    if problem is None:
+        return doc
+    what, path, detail = problem
+    if what == "duplicate":
+        raise doc.error(error_cls, f"duplicate key '{detail}'", path, hint="give each key once")
+    raise doc.error(error_cls, f"{detail} is not a number JSON allows", path,
+                    hint="give a finite number")
 
 
 def load(path: Path | str, error_cls: type[AirgateError]) -> Document:

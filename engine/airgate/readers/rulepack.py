@@ -8,6 +8,7 @@ Table values are converted from the pack's declared unit system to internal unit
 from __future__ import annotations
 
 import json
+import math
 from functools import lru_cache
 from importlib import resources
 from pathlib import Path
@@ -80,8 +81,25 @@ def load_pack(ref: str, base: Path | None = None) -> RulePack:
     return build(doc)
 
 
+def _non_finite(data: Any, path: tuple = ()) -> tuple | None:
+    """The path of the first NaN or infinite number (JSON Schema lets them pass), or None."""
+    if isinstance(data, float) and not math.isfinite(data):
+        return path
+    items = data.items() if isinstance(data, dict) else (
+        enumerate(data) if isinstance(data, list) else ())
+    for key, value in items:
+        found = _non_finite(value, path + (key,))
+        if found is not None:
+            return found
+    return None
+
+
 def validate_document(doc: Document) -> None:
     """Check a pack document against the JSON Schema; raise on the most relevant error."""
+    bad = _non_finite(doc.data)
+    if bad is not None:
+        raise doc.error(RulePackError, "must be a finite number, got "
+                        f"{_get(doc.data, bad)!r}", bad, hint="give the table value as a number")
     validator = jsonschema.Draft202012Validator(pack_schema())
     error = jsonschema.exceptions.best_match(validator.iter_errors(doc.data))
     if error is None:
@@ -100,6 +118,12 @@ def validate_document(doc: Document) -> None:
     elif error.validator == "enum":
         allowed = [json.dumps(v) for v in error.validator_value]
     raise doc.error(RulePackError, message, path, allowed=allowed)
+
+
+def _get(data: Any, path: tuple) -> Any:
+    for part in path:
+        data = data[part]
+    return data
 
 
 def _source(raw: dict[str, Any] | None, pack: dict[str, Any], fallback: Source | None = None) -> Source:

@@ -6,6 +6,7 @@ wrong and what is allowed.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -67,6 +68,53 @@ def _clean_path(raw: Any, loc: tuple) -> Path_:
     return tuple(out)
 
 
+#: What pydantic's type names mean in a schedule.
+_TYPE_WORDS = {
+    "a valid string": "text", "a valid dictionary": "a mapping", "a valid list": "a list",
+    "a valid number": "a number", "a valid integer": "a whole number",
+    "a valid boolean": "true or false",
+}
+
+#: How to fix a field whose value has the wrong shape.
+_FIELD_HINTS = {
+    "air_distribution": "give a row id of the pack's Ez table (airgate rules show PACK), stated "
+                        "conditions such as {supply: ceiling, mode: cooling}, or a list of "
+                        "them; an explicit Ez goes in ez: with ez_basis:",
+    "zones": "zones is a list: start each zone with '- id: ...'",
+    "systems": "systems is a list: start each system with '- id: ...'",
+}
+
+#: Error kinds whose message does not already show the value given.
+_SHOW_INPUT = ("_type", "_parsing", "greater_than", "greater_than_equal", "less_than",
+               "less_than_equal", "finite_number", "string_too_short", "string_pattern_mismatch")
+
+
+def _type_words(msg: str) -> str:
+    text = msg.removeprefix("Input should be ")
+    text = re.sub(r" or instance of \w+$", "", text)
+    return _TYPE_WORDS.get(text, text)
+
+
+def _literal_choices(expected: str) -> list[str]:
+    """``"'a', 'b' or 'c'"`` → ``["a", "b", "c"]`` (pydantic's wording of a Literal)."""
+    parts = re.split(r",\s*|\s+or\s+", expected)
+    return [p.strip().strip("'") for p in parts if p.strip()]
+
+
+def _field_description(path: Path_) -> str | None:
+    model = _owner(path[:-1])
+    for name, info in model.model_fields.items():
+        if (info.alias or name) == path[-1]:
+            return info.description
+    return None
+
+
+def _shown(value: Any) -> str:
+    if isinstance(value, bool):
+        return str(value).lower()
+    return repr(value)
+
+
 def _describe(err: dict[str, Any], path: Path_) -> tuple[str, list[str], str | None]:
     kind = err["type"]
     ctx = err.get("ctx") or {}
@@ -76,28 +124,38 @@ def _describe(err: dict[str, Any], path: Path_) -> tuple[str, list[str], str | N
         msg = f"unknown field '{path[-1]}'" + (f"; did you mean '{close[0]}'?" if close else "")
         return msg, known, "remove the field or correct its name"
     if kind == "missing":
-        return f"missing required field '{path[-1]}'", [], None
+        description = _field_description(path)
+        hint = f"add {path[-1]}: " + (description or "") if description else None
+        return f"missing required field '{path[-1]}'", [], hint
     if kind == "literal_error":
-        expected = str(ctx.get("expected", ""))
-        return f"{err['input']!r} is not allowed", [e.strip() for e in expected.split(" or ")], None
+        allowed = _literal_choices(str(ctx.get("expected", "")))
+        value = err["input"]
+        close = nearest(value, allowed) if isinstance(value, str) else []
+        msg = f"{_shown(value)} is not allowed" + (
+            f"; did you mean '{close[0]}'?" if close else "")
+        return msg, allowed, None
     msg = err["msg"]
     for prefix in ("Value error, ", "Assertion failed, "):
         if msg.startswith(prefix):
             msg = msg[len(prefix):]
-    if "input" in err and kind.endswith("_type"):
-        msg += f", got {err['input']!r}"
-    return msg, [], None
+    if "input" in err and kind.endswith(_SHOW_INPUT):
+        msg += f", got {_shown(err['input'])}"
+    hint = _FIELD_HINTS.get(str(path[-1])) if path and kind.endswith("_type") else None
+    return msg, [], hint
+
+
+def _error_path(doc: Document, err: dict[str, Any]) -> Path_:
+    loc = tuple(err["loc"])
+    if err["type"] == "missing":
+        return _clean_path(doc.data, loc[:-1]) + (loc[-1],)
+    path = _clean_path(doc.data, loc)
+    if err["type"] == "cross_field":
+        path += (err["ctx"]["field"],)
+    return path
 
 
 def _errors_from_validation(exc: ValidationError, doc: Document) -> list[AirgateError]:
-    items = []
-    for err in exc.errors(include_url=False):
-        loc = tuple(err["loc"])
-        if err["type"] == "missing":
-            path = _clean_path(doc.data, loc[:-1]) + (loc[-1],)
-        else:
-            path = _clean_path(doc.data, loc)
-        items.append((path, err))
+    items = [(_error_path(doc, err), err) for err in exc.errors(include_url=False)]
     # A union field reports a type error per branch; keep the branch that got further.
     deeper = {p for p, e in items if not e["type"].endswith("_type")}
     kept: dict[Path_, list[dict[str, Any]]] = {}
@@ -108,9 +166,11 @@ def _errors_from_validation(exc: ValidationError, doc: Document) -> list[Airgate
     out: list[AirgateError] = []
     for path, errs in kept.items():
         if len(errs) > 1 and all(e["type"].endswith("_type") for e in errs):
-            wanted = sorted({e["msg"].removeprefix("Input should be ") for e in errs})
-            out.append(doc.error(ScheduleError, f"has the wrong type, got {errs[0]['input']!r}",
-                                 path, allowed=wanted))
+            wanted = sorted({_type_words(e["msg"]) for e in errs})
+            out.append(doc.error(
+                ScheduleError, f"expected {', '.join(wanted[:-1])} or {wanted[-1]}, got "
+                f"{_shown(errs[0]['input'])}", path, allowed=wanted,
+                hint=_FIELD_HINTS.get(str(path[-1])) if path else None))
             continue
         for err in errs:
             msg, allowed, hint = _describe(err, path)
@@ -118,11 +178,49 @@ def _errors_from_validation(exc: ValidationError, doc: Document) -> list[Airgate
     return out[:MAX_ERRORS]
 
 
+#: Fields that hold text (ids, names, references): a plain scalar YAML read as a number is
+#: taken as written (``id: 0101`` is "0101", not 101), keyed by the model owning the field.
+_TEXT_FIELDS: dict[type[BaseModel], frozenset[str]] = {
+    Schedule: frozenset({"rules"}),
+    Project: frozenset({"name", "owner", "location", "notes"}),
+    System: frozenset({"id", "name", "notes"}),
+    Zone: frozenset({"id", "name", "space", "notes", "ez_basis", "air_distribution"}),
+}
+
+
+def _as_written(doc: Document, node: Any, path: Path_, model: type[BaseModel]) -> None:
+    """Replace numbers YAML read in text fields by their source text (in place)."""
+    if not isinstance(node, dict):
+        return
+    for key, value in node.items():
+        at = path + (key,)
+        if key in _TEXT_FIELDS.get(model, ()):
+            items = enumerate(value) if isinstance(value, list) else [(None, value)]
+            for i, item in items:
+                where = at if i is None else at + (i,)
+                if (isinstance(item, (int, float)) and not isinstance(item, bool)
+                        and where in doc.texts):
+                    if i is None:
+                        node[key] = doc.texts[where]
+                    else:
+                        value[i] = doc.texts[where]
+        child = {"project": Project, "systems": System, "zones": Zone}.get(key)
+        if child is Project:
+            _as_written(doc, value, at, Project)
+        elif child is not None and isinstance(value, list) and model in (Schedule, System):
+            for i, item in enumerate(value):
+                _as_written(doc, item, at + (i,), child)
+
+
+def _items(value: Any) -> list[Any]:
+    return value if isinstance(value, list) else []
+
+
 def _duplicate_ids(doc: Document) -> list[AirgateError]:
     errors: list[AirgateError] = []
     systems: dict[str, Path_] = {}
     zones: dict[str, Path_] = {}
-    for i, system in enumerate(doc.data.get("systems") or []):
+    for i, system in enumerate(_items(doc.data.get("systems"))):
         if not isinstance(system, dict):
             continue
         for seen, key, path, what in [(systems, system.get("id"), ("systems", i, "id"), "system")]:
@@ -133,7 +231,7 @@ def _duplicate_ids(doc: Document) -> list[AirgateError]:
                                         hint="give every system its own id"))
             elif key is not None:
                 seen[str(key)] = path
-        for j, zone in enumerate(system.get("zones") or []):
+        for j, zone in enumerate(_items(system.get("zones"))):
             if isinstance(zone, dict) and zone.get("id") is not None:
                 key = str(zone["id"])
                 path = ("systems", i, "zones", j, "id")
@@ -147,34 +245,62 @@ def _duplicate_ids(doc: Document) -> list[AirgateError]:
     return errors
 
 
+def _units(doc: Document) -> str:
+    """The project's unit system, checked first: every quantity depends on it."""
+    data = doc.data
+    project = data.get("project")
+    if project is None:
+        raise doc.error(ScheduleError, "missing required field 'project'", ("project",),
+                        hint="add project: {name: ..., units: IP} (or units: SI)")
+    if not isinstance(project, dict):
+        raise doc.error(ScheduleError, f"project must be a mapping with name and units, got "
+                        f"{_shown(project)}", ("project",),
+                        hint="write project: {name: ..., units: IP} (or units: SI)")
+    if "units" not in project:
+        raise doc.error(ScheduleError, "missing project.units: IP or SI (the unit of bare "
+                        "numbers)", ("project", "units"), allowed=["IP", "SI"],
+                        hint="add units: IP or units: SI under project")
+    system = project["units"]
+    if system not in ("IP", "SI"):
+        hint = (f"write {system.upper()} in capitals" if isinstance(system, str)
+                and system.strip().upper() in ("IP", "SI") else None)
+        raise doc.error(ScheduleError, f"project.units must say IP or SI (the unit of bare "
+                        f"numbers), got {_shown(system)}", ("project", "units"),
+                        allowed=["IP", "SI"], hint=hint)
+    return system
+
+
 def validate(doc: Document) -> Schedule:
     """Validate a schedule document into the typed model, or raise every problem found."""
     data = doc.data
     if not isinstance(data, dict):
-        raise doc.error(ScheduleError, "a schedule is a mapping with keys schedule, project, "
-                        "systems", (), hint="see docs/schedule-format.md")
+        raise doc.error(ScheduleError, f"a schedule is a mapping with keys schedule, project, "
+                        f"systems; this file holds {_kind_of(data)}", (),
+                        hint="see docs/schedule-format.md")
     if "schedule" not in data:
-        raise doc.error(ScheduleError, "missing 'schedule: 1' (the format version)", (),
-                        hint="add 'schedule: 1' as the first line")
-    project = data.get("project")
-    system = project.get("units") if isinstance(project, dict) else None
-    if system not in ("IP", "SI"):
-        where = ("project", "units") if isinstance(project, dict) and "units" in project else (
-            ("project",) if isinstance(project, dict) else ())
-        raise doc.error(ScheduleError, "project.units must say IP or SI (the unit of bare numbers)",
-                        where, allowed=["IP", "SI"])
+        raise doc.error(ScheduleError, "missing 'schedule: 1' (the format version)",
+                        ("schedule",), hint="add 'schedule: 1' as the first line")
+    system = _units(doc)
+    _as_written(doc, data, (), Schedule)
     errors = _duplicate_ids(doc)
     try:
         model = Schedule.model_validate(data, context={"units": system})
     except ValidationError as exc:
-        errors = _errors_from_validation(exc, doc) + [
-            e for e in errors if "duplicate" in e.message]
-        # pydantic reports duplicate ids itself too; keep the located ones only
-        errors = [e for e in errors if not (e.field == ("systems",) and "duplicate" in e.message)]
-        raise_all(_dedupe(errors))
-        raise
+        # pydantic reports duplicate ids too, at 'systems'; keep the located ones only
+        found = [e for e in _errors_from_validation(exc, doc)
+                 if not (e.field == ("systems",) and "duplicate" in e.message)]
+        raise_all(_dedupe(found + errors))
+        raise doc.error(ScheduleError, f"the schedule is not valid: {exc}", ()) from None
     raise_all(errors)
     return model
+
+
+def _kind_of(value: Any) -> str:
+    if isinstance(value, list):
+        return "a list"
+    if isinstance(value, str):
+        return "a single text value"
+    return f"a single value ({_shown(value)})"
 
 
 def _dedupe(errors: list[AirgateError]) -> list[AirgateError]:

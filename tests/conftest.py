@@ -1,0 +1,36 @@
+"""Shared helpers: build small schedules in a temporary folder and evaluate them."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+import yaml
+
+from airgate.evaluation.engine import check_file
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = ROOT / "fixtures" / "demo" / "fernhollow-civic-centre.yaml"
+
+#: exact factor, 1 cfm = 0.3048³ m³ / 60 s (NIST SP 811; common practice)
+CFM = 0.3048**3 * 1000 / 60
+FT2 = 0.3048**2
+
+
+def schedule(systems: list[dict], units: str = "IP", rules: str = "ashrae-62.1-2019") -> dict:
+    return {"schedule": 1, "project": {"name": "Test building (invented)", "units": units},
+            "rules": rules, "systems": systems}
+
+
+@pytest.fixture
+def evaluate(tmp_path: Path):
+    """Write a schedule dict to a file and evaluate it; returns the Report."""
+    counter = {"n": 0}
+
+    def run(data: dict, rules: str | None = None):
+        counter["n"] += 1
+        path = tmp_path / f"schedule-{counter['n']}.yaml"
+        path.write_text(yaml.safe_dump(data, sort_keys=False), encoding="utf-8")
+        return check_file(path, rules)
+
+    return run

@@ -1,0 +1,91 @@
+"""The JSON report follows contract version 1 (docs/report-format.md)."""
+
+from __future__ import annotations
+
+import json
+
+import pint
+import pytest
+
+from airgate.cli import main
+
+from conftest import DEMO
+
+SYSTEM_VALUES = {"multiple-zone": {"Vot", "Vot_design", "Ps", "D", "Vou", "Vps", "Xs", "Ev"},
+                 "single-zone": {"Vot", "Vot_design"}, "outdoor-air": {"Vot", "Vot_design"}}
+ZONE_VALUES = {"Pz", "Az", "Rp", "Ra", "Ez", "Vbz", "Voz"}
+
+
+@pytest.fixture(scope="module")
+def report():
+    import contextlib
+    import io
+
+    out = io.StringIO()
+    with contextlib.redirect_stdout(out):
+        code = main(["check", str(DEMO), "--format", "json"])
+    assert code == 1
+    return json.loads(out.getvalue())
+
+
+def _values(obj):
+    yield from obj["values"].values()
+
+
+def test_top_level(report):
+    assert report["report_version"] == 1
+    assert report["verdict"] in ("pass", "fail")
+    assert {"id", "title", "document", "edition", "units"} <= set(report["rules"])
+    assert isinstance(report["systems"], list) and isinstance(report["findings"], list)
+    assert report["cautions"] and "licensed professional" in report["cautions"][0]
+
+
+def test_systems_and_zones(report):
+    for s in report["systems"]:
+        assert {"id", "kind", "verdict", "values", "zones"} <= set(s)
+        assert SYSTEM_VALUES[s["kind"]] <= set(s["values"])
+        for z in s["zones"]:
+            assert {"id", "name", "space", "verdict", "values"} <= set(z)
+            need = ZONE_VALUES | ({"Vpz", "Zpz", "Evz"} if s["kind"] == "multiple-zone" else set())
+            assert need <= set(z["values"])
+
+
+def test_values_have_units_a_stock_pint_registry_parses(report):
+    # pint as the outside reference: every unit string parses with a stock registry once a
+    # dimensionless 'person' is defined, and has the dimension its symbol implies.
+    ureg = pint.UnitRegistry()
+    ureg.define("person = []")
+    airflow = ureg.Quantity(1, "L/s").dimensionality
+    for s in report["systems"]:
+        for key, v in s["values"].items():
+            assert set(v) == {"value", "unit"}
+            q = ureg.Quantity(1, v["unit"]) if v["unit"] else None
+            if key in ("Vot", "Vot_design", "Vou", "Vps"):
+                assert q.dimensionality == airflow
+            if key in ("D", "Xs", "Ev"):
+                assert v["unit"] == ""
+        for z in s["zones"]:
+            for key in ("Vbz", "Voz"):
+                assert ureg.Quantity(1, z["values"][key]["unit"]).dimensionality == airflow
+            assert ureg.Quantity(1, z["values"]["Az"]["unit"]).dimensionality == \
+                ureg.Quantity(1, "m**2").dimensionality
+
+
+def test_ip_values_are_in_cfm(report):
+    # The demo is in IP: 1 ft**3/min is 0.471947 L/s (pint as outside reference).
+    ureg = pint.UnitRegistry()
+    s = report["systems"][0]
+    q = ureg.Quantity(s["values"]["Vot"]["value"], s["values"]["Vot"]["unit"])
+    assert q.to("L/s").magnitude == pytest.approx(930 * 0.47194745, rel=1e-4)
+
+
+def test_findings(report):
+    assert report["findings"]
+    for f in report["findings"]:
+        assert {"rule", "severity", "subject", "message", "required", "provided", "source",
+                "location"} <= set(f)
+        assert f["severity"] in ("fail", "warning", "info")
+        assert {"file", "line", "column"} == set(f["location"]) and f["location"]["line"] >= 1
+        assert f["subject"].count("/") <= 1
+    intake = next(f for f in report["findings"] if f["rule"] == "system-intake")
+    assert intake["required"]["value"] > intake["provided"]["value"]
