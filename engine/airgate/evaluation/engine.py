@@ -30,9 +30,11 @@ def _bind_all(loaded: LoadedSchedule, pack: RulePack) -> list[list[ZoneContext]]
             cat = bind.collect(errors, bind.category, loaded, pack, zone, path)
             ez = bind.collect(errors, bind.air_distribution, loaded, pack, zone, path)
             if cat is not None and ez is not None:
+                fields = {name: _location(loaded, path + (name,))
+                          for name in ("area", "occupants") if getattr(zone, name) is not None}
                 ctxs.append(ZoneContext(zone=zone, path=path, location=_location(loaded, path),
                                         category=cat, ez=ez, subject=f"{system.id}/{zone.id}",
-                                        system_id=system.id))
+                                        system_id=system.id, fields=fields))
         out.append(ctxs)
         errors.extend(_method_errors(loaded, pack, i))
     raise_all(errors)

@@ -23,6 +23,7 @@ class ZoneResult:
     space_label: str
     location: Location
     trail: Trail
+    air_class: int = 1
     verdict: str = "pass"
 
 

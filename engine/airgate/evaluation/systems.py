@@ -142,9 +142,10 @@ def _ev(system: System, ctxs, zones, trail: Trail, method_name: str, pack: RuleP
     ev = eff.system_ventilation_efficiency_table(zp[critical], method.rows, method.interpolate)
     if math.isnan(ev):
         if method.above_last == "detailed":
-            ev, critical = _detailed(system, ctxs, zones, trail, pack.methods.get("detailed")
-                                     or DetailedEv(method.source, method.provenance), pack)
-            trail.add("Ev", ev, "fraction", source=src,
+            detailed = pack.methods.get("detailed") or DetailedEv(method.source, method.provenance)
+            ev, critical = _detailed(system, ctxs, zones, trail, detailed, pack)
+            trail.add("Ev", ev, "fraction",
+                      source=f"{detailed.source.cite()} ({detailed.provenance})",
                       note="largest Zpz above the table: detailed calculation, lowest Evz")
             return ev, critical
         ev = float(method.above_last)
@@ -218,8 +219,10 @@ def _limiting_zones(system, ctxs, zones, trail: Trail, emitter: Emitter, locate)
         vpz_min = eff.minimum_primary_airflow(
             zt.value("Voz"), trail.value("Xs"), needed, ctx.zone.ep or 1.0, ctx.zone.er or 0.0,
             zt.value("Ez"))
+        formula = ("{Voz} / (1 + {Xs} − {Ev_needed})" if ctx.zone.ep is None else
+                   "{Voz}·{Ep}·{Fc} / ({Fa}·(1 − {Ev_needed}) + {Xs}·{Fb})")
         zt.add("Vpz_min", vpz_min, "airflow", note="least Vpz for Evz ≥ Ev_needed, Xs held",
-               formula="{Voz} / (1 + {Xs} − {Ev_needed})" if ctx.zone.ep is None else "")
+               formula=formula)
         if math.isinf(vpz_min):
             text = "no primary airflow reaches it at this intake; raise the system intake"
             fixes.append(f"{z.id} (no Vpz suffices)")
@@ -241,7 +244,7 @@ def multiple_zone(system: System, ctxs: list[ZoneContext], zones: list[ZoneResul
                   locate, method_name: str) -> None:
     """Multiple-zone recirculating system: D, Vou, Ev, Vot (Section 6.2.5, Appendix A)."""
     trail = result.trail
-    d = _population(system, zones, trail, pack, emitter, where)
+    d = _population(system, zones, trail, pack, emitter, result.location)
     trail.add("Σ(Rp·Pz)", float(sum(z.trail.value("Rp") * z.trail.value("Pz") for z in zones)),
               "airflow", note="people component summed over the zones")
     trail.add("Σ(Ra·Az)", float(sum(z.trail.value("Ra") * z.trail.value("Az") for z in zones)),
@@ -259,9 +262,11 @@ def multiple_zone(system: System, ctxs: list[ZoneContext], zones: list[ZoneResul
     if ev <= 0:
         emitter.emit("ventilation-efficiency-positive", system.id,
                      f"Ev = {ev:.3f}: no outdoor-air intake can ventilate the critical zone "
-                     f"{result.critical_zone}; raise its primary airflow", where, system=system.id)
+                     f"{result.critical_zone}; raise its primary airflow", result.location,
+                     system=system.id)
         trail.add("Vot", math.inf, "airflow", note="Ev ≤ 0: no intake suffices")
-        trail.add("Vot_design", system.outdoor_air, "airflow", origin="schedule")
+        trail.add("Vot_design", system.outdoor_air, "airflow", origin="schedule",
+                  note="scheduled minimum outdoor-air intake", source=str(where))
         return
     trail.add("Vot", eff.outdoor_air_intake(trail.value("Vou"), ev), "airflow",
               formula="{Vou} / {Ev}", source=pack.cite("multiple_zone_intake"))

@@ -22,7 +22,7 @@ class Step:
     formula: str = ""
     source: str = ""
     note: str = ""
-    origin: str = "computed"  #: computed | schedule | table | assumed | system
+    origin: str = "computed"  #: computed | schedule | table | explicit | assumed | system
 
     def symbolic(self) -> str:
         return _PLACEHOLDER.sub(lambda m: m.group(1), self.formula)

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 from airgate.evaluation.bind import EzChoice
 from airgate.evaluation.checks import Emitter
@@ -25,6 +25,11 @@ class ZoneContext:
     ez: EzChoice
     subject: str
     system_id: str
+    #: where each stated field was written (area, occupants, ...) for the trail's sources
+    fields: dict[str, Location] = field(default_factory=dict)
+
+    def where(self, name: str) -> str:
+        return str(self.fields.get(name, self.location))
 
     @property
     def air_class(self) -> int:
@@ -35,7 +40,7 @@ def _population(trail: Trail, ctx: ZoneContext, pack: RulePack, emitter: Emitter
     cat = ctx.category
     if ctx.zone.occupants is not None:
         return trail.add("Pz", ctx.zone.occupants, "people", origin="schedule",
-                         note="stated in the schedule", source=str(ctx.location))
+                         note="stated in the schedule", source=ctx.where("occupants"))
     if cat.density is None:
         if cat.rp > 0:
             emitter.emit(
@@ -59,7 +64,7 @@ def evaluate_zone(ctx: ZoneContext, pack: RulePack, emitter: Emitter) -> ZoneRes
     zone, cat = ctx.zone, ctx.category
     trail = Trail()
     row = f"{cat.source.cite()}, row '{cat.label}' ({cat.provenance})"
-    trail.add("Az", zone.area, "area", origin="schedule", source=str(ctx.location))
+    trail.add("Az", zone.area, "area", origin="schedule", source=ctx.where("area"))
     trail.add("Rp", cat.rp, "airflow_per_person", origin="table", source=row)
     trail.add("Ra", cat.ra, "airflow_per_area", origin="table", source=row)
     _population(trail, ctx, pack, emitter)
@@ -82,4 +87,4 @@ def evaluate_zone(ctx: ZoneContext, pack: RulePack, emitter: Emitter) -> ZoneRes
                      "no outdoor air is required by this procedure",
                      ctx.location, system=ctx.system_id, zone=zone.id)
     return ZoneResult(id=zone.id, name=zone.name, space=cat.id, space_label=cat.label,
-                      location=ctx.location, trail=trail)
+                      location=ctx.location, trail=trail, air_class=ctx.air_class)

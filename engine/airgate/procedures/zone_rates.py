@@ -77,16 +77,3 @@ def zone_outdoor_airflow(vbz: F, ez: F) -> F:
     """
     return vbz / ez
 
-
-def minimum_ez_governs(ez_values: np.ndarray) -> float:
-    """The governing Ez where a zone has several operating modes: the lowest.
-
-    Parameters
-    ----------
-    ez_values : array
-        Ez of each mode analysed (heating, cooling, ...). [–]
-
-    Source: ANSI/ASHRAE 62.1-2019 Section 6.2.2.2 (Ez for the mode analysed; the lowest governs
-    when a single design value is stated) — common practice.
-    """
-    return float(np.min(ez_values))

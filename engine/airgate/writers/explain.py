@@ -52,7 +52,8 @@ def trail_lines(trail: Trail, system: str, indent: str = "  ") -> list[str]:
 def _findings(report: Report, subject_prefix: str, exact: bool) -> list[str]:
     out = []
     for f in report.findings:
-        if (f.subject == subject_prefix) if exact else f.subject.startswith(subject_prefix):
+        mine = f.subject == subject_prefix or (not exact and f.subject.startswith(subject_prefix + "/"))
+        if mine:
             out.append(f"  {f.severity.upper()} [{f.rule}] {clean(f.subject)}: {clean(f.message)}")
             out.append(f"      {f.source} · at {clean(f.location)}")
     return out or ["  none"]

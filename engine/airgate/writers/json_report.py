@@ -58,7 +58,7 @@ def _trail(trail: Trail, system: str) -> list[dict[str, Any]]:
 def _zone(z: ZoneResult, system: str) -> dict[str, Any]:
     return {
         "id": z.id, "name": z.name, "space": z.space, "space_label": z.space_label,
-        "verdict": z.verdict, "values": _values(z.trail, system),
+        "air_class": z.air_class, "verdict": z.verdict, "values": _values(z.trail, system),
         "location": _location(z.location), "trail": _trail(z.trail, system),
     }
 
@@ -82,7 +82,8 @@ def _amount(a: Amount | None, system: str) -> dict[str, Any] | None:
 
 def _finding(f: Finding, system: str) -> dict[str, Any]:
     return {
-        "rule": f.rule, "severity": f.severity, "subject": f.subject, "message": f.message,
+        "rule": f.rule, "severity": f.severity, "subject": f.subject, "system": f.system,
+        "zone": f.zone, "message": f.message,
         "required": _amount(f.required, system), "provided": _amount(f.provided, system),
         "source": f.source, "location": _location(f.location),
     }

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 import re
 
 from airgate import __version__, formatting, units
@@ -74,10 +75,14 @@ def _system(s: SystemResult, system: str) -> list[str]:
     required, provided = t.value("Vot"), t.value("Vot_design")
     margin = provided - required
     rel = margin / required if required > 0 else float("inf")
-    lines.append(
-        f"    outdoor-air intake: required Vot {formatting.amount(required, 'airflow', system)}"
-        f" · scheduled {formatting.amount(provided, 'airflow', system)}"
-        f" · margin {formatting.amount(margin, 'airflow', system)} ({formatting.percent(rel)})")
+    if math.isinf(required):
+        lines.append("    outdoor-air intake: no intake suffices (Ev ≤ 0) · scheduled "
+                     f"{formatting.amount(provided, 'airflow', system)}")
+    else:
+        lines.append(
+            f"    outdoor-air intake: required Vot {formatting.amount(required, 'airflow', system)}"
+            f" · scheduled {formatting.amount(provided, 'airflow', system)}"
+            f" · margin {formatting.amount(margin, 'airflow', system)} ({formatting.percent(rel)})")
     lines.append("")
     lines += _zone_rows(s, system)
     return lines
@@ -102,7 +107,7 @@ def render(report: Report) -> str:
         out.append("")
     out.append("    * Pz not stated in the schedule: default density × Az (or 0 where the table "
                "gives no density)")
-    out.append("    ◂ critical zone (lowest Evz)")
+    out.append("    ◂ critical zone (lowest Evz; for the table method, largest Zpz)")
     out.append("")
     c = report.counts()
     out.append(f"Findings — {c['fail']} fail, {c['warning']} warning, {c['info']} info")
