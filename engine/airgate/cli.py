@@ -102,7 +102,12 @@ def _rules(args: argparse.Namespace, parser: argparse.ArgumentParser) -> int:
             sys.stdout.write(f"{pack.id:28} {pack.units}  {pack.title}\n")
         return EXIT_PASS
     if args.rules_command == "show":
-        sys.stdout.write(pack_summary(load_pack(args.pack)))
+        from airgate.evaluation.bind import check_pack_checks
+        from airgate.evaluation.checks import KNOWN_CHECKS
+
+        pack = load_pack(args.pack)
+        check_pack_checks(pack, set(KNOWN_CHECKS))  # a pack is shown only if it would run
+        sys.stdout.write(pack_summary(pack))
         return EXIT_PASS
     parser.parse_args(["rules", "--help"])
     return EXIT_INPUT

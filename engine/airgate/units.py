@@ -151,7 +151,8 @@ _QUANTITY = re.compile(r"^(?P<number>[-+]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE
                        r"\s*(?P<unit>.*)$")
 #: A unit expression after normalisation: unit names with small integer powers, joined by
 #: ``*``, ``/`` or spaces (no numbers of its own, so pint never evaluates arithmetic).
-_UNIT_EXPR = re.compile(r"^[A-Za-z_µ]+(?:\*\*-?[0-9])?(?:\s*[*/ ]\s*[A-Za-z_µ]+(?:\*\*-?[0-9])?)*$")
+_UNIT_NAME = r"[A-Za-z_µ]+(?:\*\*-?[0-9])?"
+_UNIT_EXPR = re.compile(rf"^{_UNIT_NAME}(?:\s*[*/ ]\s*{_UNIT_NAME})*$")
 _THOUSANDS = re.compile(r"^[-+]?[0-9]{1,3}(?:,[0-9]{3})+(?:\.[0-9]*)?(?:\s|$)")
 
 

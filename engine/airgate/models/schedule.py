@@ -68,7 +68,7 @@ def _finite_count(value: Any) -> Any:
         except units.QuantityError as exc:
             raise ValueError(str(exc)) from None
     if isinstance(value, (int, float)) and value != value:  # NaN
-        raise ValueError("is not a finite number")
+        raise ValueError(f"is not a finite number, got {value!r}")
     return value
 
 
@@ -140,6 +140,8 @@ class StatedDistribution(_Model):
 
 
 DistributionRef = Annotated[str, Field(min_length=1, description="A row id of the pack's Ez table. [–]")]
+#: Several modes analysed (cooling and heating, say); at least one.
+DistributionModes = Annotated[list[DistributionRef | StatedDistribution], Field(min_length=1)]
 
 
 class Zone(_Model):
@@ -154,7 +156,7 @@ class Zone(_Model):
     height: Q("length", "Ceiling height. [ft or m]", positive=True) | None = None
     volume: Q("volume", "Zone volume. [ft³ or m³]", positive=True) | None = None
     air_distribution: (
-        DistributionRef | StatedDistribution | list[DistributionRef | StatedDistribution] | None
+        DistributionRef | StatedDistribution | DistributionModes | None
     ) = Field(None, description="Ez table row id or stated configuration; a list of modes: the "
                                 "lowest Ez governs. [–]")
     ez: float | None = Field(None, gt=0, le=2, allow_inf_nan=False,

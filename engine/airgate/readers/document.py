@@ -26,13 +26,47 @@ Path_ = tuple[str | int, ...]
 #: Hard limits that keep a hostile document from exhausting memory or the stack.
 MAX_NODES = 500_000
 MAX_DEPTH = 64
+#: Values reached through aliases (a repeated anchor is expanded at each alias).
+MAX_ALIAS_VALUES = 100_000
 MAX_BYTES = 50 * 1024 * 1024
+
+_MERGE_TAG = "tag:yaml.org,2002:merge"
+
+
+class _LimitReached(Exception):
+    """The composer passed :data:`MAX_NODES` or :data:`MAX_DEPTH` (raised with its mark)."""
+
+    def __init__(self, what: str, mark: yaml.Mark) -> None:
+        super().__init__(what)
+        self.what = what
+        self.mark = mark
 
 
 class _Loader(yaml.SafeLoader):
-    """PyYAML's safe loader with YAML 1.2 core-schema resolution of plain scalars."""
+    """PyYAML's safe loader with YAML 1.2 core-schema resolution of plain scalars.
+
+    It also counts nodes and nesting while composing, so a huge or deep document is refused
+    before it is held in memory.
+    """
 
     yaml_implicit_resolvers: dict = {}
+
+    def __init__(self, stream: str) -> None:
+        super().__init__(stream)
+        self.composed = 0
+        self.depth = 0
+
+    def compose_node(self, parent: yaml.Node | None, index: Any) -> yaml.Node:
+        self.composed += 1
+        if self.composed > MAX_NODES:
+            raise _LimitReached("nodes", self.peek_event().start_mark)
+        if self.depth > MAX_DEPTH:
+            raise _LimitReached("depth", self.peek_event().start_mark)
+        self.depth += 1
+        try:
+            return super().compose_node(parent, index)
+        finally:
+            self.depth -= 1
 
     def construct_yaml_int(self, node: yaml.ScalarNode) -> int:
         """Decimal, ``0o`` octal or ``0x`` hexadecimal (YAML 1.2); never 1.1 octal or base 60."""
@@ -90,16 +124,27 @@ class Document:
         return cls(message, file=self.file, line=line, column=column, field=path, **kw)
 
 
+#: How many levels of a field path a limit error shows (the rest is only counted).
+_SHOWN_LEVELS = 8
+
+
 def _limit_error(error_cls: type[AirgateError], what: str, file: str, path: Path_,
                  line: int | None = None, column: int | None = None) -> AirgateError:
+    """The error for a document that passes a hard limit, at ``path`` (shown shortened)."""
+    where = f" ({len(path)} levels down)" if len(path) > _SHOWN_LEVELS else ""
+    shown = path[:_SHOWN_LEVELS]
     if what == "nodes":
         return error_cls(
-            f"document has more than {MAX_NODES} values (alias expansion?); the node limit "
-            "stops it here", file=file, line=line, column=column, field=path,
-            hint="remove YAML aliases that expand to huge trees, or split the file")
+            f"document has more than {MAX_NODES} values; the node limit stops it here{where}",
+            file=file, line=line, column=column, field=shown, hint="split the file")
+    if what == "aliases":
+        return error_cls(
+            f"aliases expand to more than {MAX_ALIAS_VALUES} values (alias expansion?); the "
+            f"node limit stops it here{where}", file=file, line=line, column=column, field=shown,
+            hint="remove YAML aliases that expand to huge trees")
     return error_cls(
-        f"nesting deeper than {MAX_DEPTH} levels; the depth limit stops it here",
-        file=file, line=line, column=column, field=path,
+        f"nesting deeper than {MAX_DEPTH} levels; the depth limit stops it here{where}",
+        file=file, line=line, column=column, field=shown,
         hint="a schedule or rule pack needs only a few levels; check for a runaway "
              "or self-referencing structure")
 
@@ -110,6 +155,9 @@ class _Builder:
         self.loader = loader
         self.error_cls = error_cls
         self.count = 0
+        self.expanded = 0
+        self.built: set[int] = set()
+        self.first_own: dict[int, int] = {}
 
     def fail(self, node: yaml.Node, message: str, path: Path_, hint: str | None = None):
         mark = node.start_mark
@@ -121,13 +169,18 @@ class _Builder:
     def build(self, node: yaml.Node, path: Path_, depth: int) -> Any:
         self.count += 1
         mark = node.start_mark
-        if self.count > MAX_NODES:
-            raise _limit_error(self.error_cls, "nodes", self.doc.file, path,
+        if id(node) in self.built:  # reached again through an alias
+            self.expanded += 1
+        else:
+            self.built.add(id(node))
+        if self.count > MAX_NODES or self.expanded > MAX_ALIAS_VALUES:
+            what = "nodes" if self.count > MAX_NODES else "aliases"
+            raise _limit_error(self.error_cls, what, self.doc.file, path,
                                mark.line + 1, mark.column + 1)
         if depth > MAX_DEPTH:
             raise _limit_error(self.error_cls, "depth", self.doc.file, path,
                                mark.line + 1, mark.column + 1)
-        self.doc.positions.setdefault(path, (mark.line + 1, mark.column + 1))
+        self.doc.positions[path] = (mark.line + 1, mark.column + 1)
         if isinstance(node, yaml.MappingNode):
             return self._mapping(node, path, depth)
         if isinstance(node, yaml.SequenceNode):
@@ -140,22 +193,40 @@ class _Builder:
             self.doc.texts[path] = node.value
         return value
 
+    def _flatten(self, node: yaml.MappingNode) -> int:
+        """Resolve YAML merge keys (<<) once per node; the index of the node's own first pair.
+
+        The merged pairs come first, then the mapping's own, which override them; only the
+        mapping's own keys must be unique. (A node reached again through an alias is already
+        flattened, so the index is remembered.)
+        """
+        if id(node) not in self.first_own:
+            own_count = sum(1 for key, _ in node.value if key.tag != _MERGE_TAG)
+            self.loader.flatten_mapping(node)
+            self.first_own[id(node)] = len(node.value) - own_count
+        return self.first_own[id(node)]
+
     def _mapping(self, node: yaml.MappingNode, path: Path_, depth: int) -> dict[str, Any]:
-        self.loader.flatten_mapping(node)  # resolve YAML merge keys (<<) first
+        first_own = self._flatten(node)
         out: dict[str, Any] = {}
-        for key_node, value_node in node.value:
+        own: set[str] = set()
+        for index, (key_node, value_node) in enumerate(node.value):
             if not isinstance(key_node, yaml.ScalarNode):
                 raise self.fail(key_node, "a key must be a plain name, not a list or mapping",
                                 path, hint="write 'name: value'")
             key = self.loader.construct_object(key_node)
             if not isinstance(key, str):
                 key = key_node.value  # as written: 'true', '1', '~'
-            if key in out:
+            if key in own:
                 first = self.doc.positions.get(path + (key,), (None, None))[0]
                 raise self.fail(
                     key_node, f"duplicate key '{key}' (first given on line {first})",
                     path + (key,), hint="give each key once",
                 )
+            if index >= first_own:
+                own.add(key)
+                self.doc.positions.pop(path + (key,), None)
+                self.doc.texts.pop(path + (key,), None)
             self.doc.positions[path + (key,)] = (
                 value_node.start_mark.line + 1, value_node.start_mark.column + 1,
             )
@@ -243,11 +314,16 @@ class _PathTracker:
         return tuple(out)
 
 
-def path_at_error(text: str) -> Path_:
-    """The field path being read where ``text`` stops parsing (``()`` when unknown)."""
+def path_at_error(text: str, stop: int | None = None) -> Path_:
+    """The field path being read where ``text`` stops parsing, or at character ``stop``.
+
+    ``()`` when nothing is known.
+    """
     tracker = _PathTracker()
     try:
-        for event in yaml.parse(text, Loader=_Loader):
+        for event in yaml.parse(text, Loader=yaml.SafeLoader):
+            if stop is not None and event.start_mark.index >= stop:
+                break
             tracker.feed(event)
     except yaml.YAMLError:
         pass
@@ -270,7 +346,7 @@ def _syntax_error(exc: yaml.MarkedYAMLError, text: str, file: str,
     return error_cls(
         f"not valid YAML: {problem}", file=file,
         line=mark.line + 1 if mark else None, column=mark.column + 1 if mark else None,
-        field=path_at_error(text), hint=hint,
+        field=path_at_error(text, mark.index if mark else None), hint=hint,
     )
 
 
@@ -286,6 +362,9 @@ def parse_yaml(text: str, file: str, error_cls: type[AirgateError]) -> Document:
         doc.data = _Builder(doc, loader, error_cls).build(node, (), 0)
     except yaml.MarkedYAMLError as exc:
         raise _syntax_error(exc, text, file, error_cls) from None
+    except _LimitReached as exc:
+        raise _limit_error(error_cls, exc.what, file, path_at_error(text, exc.mark.index),
+                           exc.mark.line + 1, exc.mark.column + 1) from None
     except yaml.YAMLError as exc:
         raise error_cls(f"not valid YAML: {exc}", file=file) from None
     except RecursionError:
@@ -361,6 +440,15 @@ def _json_decode_error(exc: json.JSONDecodeError, text: str, file: str,
                      hint=hint)
 
 
+def _same_problem(problem: tuple[str, Path_, str] | None, exc: AirgateError) -> bool:
+    """Whether the YAML reading of JSON text failed on the problem the JSON walk found."""
+    if problem is None or exc.line is None:
+        return False
+    if problem[0] == "duplicate":
+        return exc.message.startswith("duplicate key")
+    return problem[0] in ("nodes", "depth") and "limit stops it" in exc.message
+
+
 def parse_json(text: str, file: str, error_cls: type[AirgateError]) -> Document:
     """Parse strict JSON; positions come from a YAML composition of the same text if possible."""
     try:
@@ -370,18 +458,18 @@ def parse_json(text: str, file: str, error_cls: type[AirgateError]) -> Document:
     except RecursionError:
         raise _limit_error(error_cls, "depth", file, ()) from None
     problem = _walk_json(data)
-    if problem is not None and problem[0] in ("nodes", "depth"):
-        raise _limit_error(error_cls, problem[0], file, problem[1])
     try:
         positions = _json_positions(text, file, error_cls).positions
     except AirgateError as exc:
-        if problem is not None and problem[0] == "duplicate" and exc.line is not None:
-            raise exc from None  # the YAML reading located the same duplicate key
+        if _same_problem(problem, exc):
+            raise exc from None  # the YAML reading located the same duplicate key or limit
         positions = {}
     doc = Document(file=file, data=data, positions=positions)
     if problem is None:
         return doc
     what, path, detail = problem
+    if what in ("nodes", "depth"):
+        raise _limit_error(error_cls, what, file, path, *doc.locate(path))
     if what == "duplicate":
         raise doc.error(error_cls, f"duplicate key '{detail}'", path, hint="give each key once")
     raise doc.error(error_cls, f"{detail} is not a number JSON allows", path,

@@ -95,6 +95,11 @@ def _type_words(msg: str) -> str:
     return _TYPE_WORDS.get(text, text)
 
 
+def _either(words: list[str]) -> str:
+    """``["a list", "text"]`` → ``"a list or text"``."""
+    return words[0] if len(words) == 1 else f"{', '.join(words[:-1])} or {words[-1]}"
+
+
 def _literal_choices(expected: str) -> list[str]:
     """``"'a', 'b' or 'c'"`` → ``["a", "b", "c"]`` (pydantic's wording of a Literal)."""
     parts = re.split(r",\s*|\s+or\s+", expected)
@@ -110,9 +115,15 @@ def _field_description(path: Path_) -> str | None:
 
 
 def _shown(value: Any) -> str:
+    """A value as the message shows it: short, and in the document's own words."""
     if isinstance(value, bool):
         return str(value).lower()
-    return repr(value)
+    if isinstance(value, dict):
+        return "a mapping"
+    if isinstance(value, list):
+        return "a list"
+    text = repr(value)
+    return text if len(text) <= 60 else text[:57] + "..."
 
 
 def _describe(err: dict[str, Any], path: Path_) -> tuple[str, list[str], str | None]:
@@ -134,10 +145,17 @@ def _describe(err: dict[str, Any], path: Path_) -> tuple[str, list[str], str | N
         msg = f"{_shown(value)} is not allowed" + (
             f"; did you mean '{close[0]}'?" if close else "")
         return msg, allowed, None
+    if kind == "too_short" and isinstance(err.get("input"), list):
+        need = ctx.get("min_length", 1)
+        msg = f"needs at least {need} item{'s' if need != 1 else ''}, got " + (
+            "an empty list" if not err["input"] else f"{len(err['input'])}")
+        return msg, [], _FIELD_HINTS.get(str(path[-1])) if path else None
     msg = err["msg"]
     for prefix in ("Value error, ", "Assertion failed, "):
         if msg.startswith(prefix):
             msg = msg[len(prefix):]
+    if kind.endswith("_type") and msg.startswith("Input should be "):
+        msg = f"expected {_type_words(msg)}"
     if "input" in err and kind.endswith(_SHOW_INPUT):
         msg += f", got {_shown(err['input'])}"
     hint = _FIELD_HINTS.get(str(path[-1])) if path and kind.endswith("_type") else None
@@ -168,8 +186,8 @@ def _errors_from_validation(exc: ValidationError, doc: Document) -> list[Airgate
         if len(errs) > 1 and all(e["type"].endswith("_type") for e in errs):
             wanted = sorted({_type_words(e["msg"]) for e in errs})
             out.append(doc.error(
-                ScheduleError, f"expected {', '.join(wanted[:-1])} or {wanted[-1]}, got "
-                f"{_shown(errs[0]['input'])}", path, allowed=wanted,
+                ScheduleError, f"expected {_either(wanted)}, got {_shown(errs[0]['input'])}",
+                path, allowed=wanted,
                 hint=_FIELD_HINTS.get(str(path[-1])) if path else None))
             continue
         for err in errs:
