@@ -258,3 +258,12 @@ def test_assumed_air_distribution_is_a_warning(evaluate):
     r = evaluate(schedule([{"id": "S", "kind": "single-zone", "outdoor_air": 500, "zones": [z]}]))
     assert [(f.rule, f.severity) for f in r.findings] == [("air-distribution-assumed", "warning")]
     assert r.systems[0].zones[0].trail.value("Ez") == 1.0
+
+
+def test_fields_a_system_kind_ignores_are_noted(evaluate):
+    # Nothing the user wrote is dropped silently (common practice for review tools).
+    z = zone("1", "office-space", "1000 ft2", primary_airflow="400 cfm")
+    r = evaluate(schedule([{"id": "S", "kind": "single-zone", "outdoor_air": 500,
+                            "population": 3, "zones": [z]}]))
+    assert any("systems[0].population" in n and "ignored" in n for n in r.notes)
+    assert any("systems[0].zones[0].primary_airflow" in n for n in r.notes)

@@ -50,7 +50,7 @@ def test_every_table_value_has_source_and_provenance(pack_id):
         assert eq.provenance in ("published", "from memory", "derived") and eq.source.section
 
 
-@pytest.mark.parametrize("pack_id", PACKS)
+@pytest.mark.parametrize("pack_id", [p for p in PACKS if p.startswith("ashrae-62.1-")])
 def test_occupancy_table_breadth(pack_id):
     # The core issue asks for at least 40 rows across these groups.
     pack = load_pack(pack_id)

@@ -22,7 +22,8 @@ def _parser() -> argparse.ArgumentParser:
         prog="airgate",
         description="Check a building's ventilation schedule against a rule pack of a published "
                     "ventilation rate procedure.",
-        epilog="Exit codes: 0 all pass, 1 failing findings, 2 input or usage error.")
+        epilog="Exit codes: 0 all pass, 1 failing findings, 2 input or usage error, "
+               "3 internal error.")
     p.add_argument("--version", action="version", version=f"airgate {__version__}")
     sub = p.add_subparsers(dest="command", metavar="COMMAND")
 
@@ -109,8 +110,8 @@ def _rules(args: argparse.Namespace, parser: argparse.ArgumentParser) -> int:
         check_pack_checks(pack, set(KNOWN_CHECKS))  # a pack is shown only if it would run
         sys.stdout.write(pack_summary(pack))
         return EXIT_PASS
-    parser.parse_args(["rules", "--help"])
-    return EXIT_INPUT
+    raise UsageError("choose what to do with rule packs", allowed=["list", "show ID"],
+                     hint="airgate rules list")
 
 
 def _schema(args: argparse.Namespace) -> int:

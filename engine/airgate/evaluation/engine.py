@@ -10,6 +10,7 @@ from airgate.evaluation.checks import KNOWN_CHECKS, Emitter
 from airgate.evaluation.findings import Location
 from airgate.evaluation.report import SAFETY_CAUTION, Report, SystemResult
 from airgate.evaluation.trail import Trail
+from airgate.evaluation.unused import unused_fields
 from airgate.evaluation.zones import ZoneContext, evaluate_zone
 from airgate.models.rules import RulePack
 from airgate.readers.rulepack import load_pack, resolve
@@ -90,7 +91,7 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack) -> Report:
         results.append(result)
     findings = sorted(emitter.findings, key=lambda f: f.sort_key())
     _verdicts(results, findings)
-    notes = []
+    notes = unused_fields(loaded.model, lambda path: str(_location(loaded, path)))
     if pack.units != units:
         notes.append(f"The schedule is in {units} units and rule pack {pack.id} in {pack.units}; "
                      "the pack's table values were converted exactly (1 cfm = 0.471947 L/s, "

@@ -95,11 +95,18 @@ def _id(value: Any) -> Any:
     return value
 
 
+_ID_PATTERN = r"^[^\s/][^/]*$"
+_ID_TEXT = "Identifier: text without '/' and not starting with a space. [–]"
+
 Id = Annotated[
     str,
     BeforeValidator(_id),
-    Field(min_length=1, max_length=200, pattern=r"^[^\s/][^/]*$",
-          description="Identifier: text without '/' and not starting with a space. [–]"),
+    Field(min_length=1, max_length=200, pattern=_ID_PATTERN, description=_ID_TEXT),
+    WithJsonSchema({"anyOf": [
+        {"type": "string", "minLength": 1, "maxLength": 200, "pattern": _ID_PATTERN},
+        {"type": "number", "description": "a bare number is read as text (quote ids to keep "
+                                          "leading zeros in JSON)"}],
+        "description": _ID_TEXT}),
 ]
 
 

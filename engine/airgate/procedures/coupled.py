@@ -206,14 +206,26 @@ def _in_room_loss(volume, cadr, k_deposition, k_inactivation):
 
 # --------------------------------------------------------------------------- exact transient
 #
-# With δ = C − C_ss on a piece, dδ/dt = A·δ, A = −diag(d) + u·wᵀ, d_z = D_z/V_z, u_z = Vpz/V_z.
-# The coupling signal σ(τ) = wᵀδ(τ) is a sum of exponentials e^(−ν_i τ) whose rates are the
-# roots of the secular equation  Σ_k c_k/(p_k − ν) = 1  over the distinct decay rates p_k of
-# the zones that return air (c_k = Σ w_z u_z over zones with d_z = p_k); each root lies in
-# its own interval between poles.  Given σ, every zone is a scalar linear ODE solved exactly:
-#     δ_z(τ) = γ_z·e^(−d_z τ) + u_z·Σ_i β_i e^(−ν_i τ)/(d_z − ν_i),
-#     β_i = [Σ_z w_z δ_z(0)/(d_z − ν_i)] / [Σ_k c_k/(p_k − ν_i)²],   γ_z = δ_z(0) − u_z·Σ_i β_i/(d_z − ν_i).
+# On a piece, dC/dt = A·C + b with A = −diag(d) + u·wᵀ, d_z = D_z/V_z, u_z = Vpz/V_z and
+# b_z = (G_z + Vpz·a)/V_z, so C(τ) = e^(Aτ)·C(0) + (∫₀^τ e^(As) ds)·b: no steady state is
+# needed, and a system that removes nothing (concentrations growing linearly) is exact too.
+# For a vector x the coupling signal wᵀe^(Aτ)x is a sum of exponentials e^(−ν_i τ) whose rates
+# are the roots of the secular equation  Σ_k c_k/(p_k − ν) = 1  over the distinct decay rates
+# p_k of the zones that return air (c_k = Σ w_z u_z over zones with d_z = p_k), one root per
+# interval between poles. Given that signal every zone is a scalar linear ODE, solved exactly:
+#     (e^(Aτ)x)_z = γ_z·e^(−d_z τ) + u_z·Σ_i β_i e^(−ν_i τ)/(d_z − ν_i),
+#     β_i = [Σ_z w_z x_z/(d_z − ν_i)] / [Σ_k c_k/(p_k − ν_i)²],  γ_z = x_z − u_z·Σ_i β_i/(d_z − ν_i);
+# the integral over [0, τ] replaces each e^(−rτ) by τ·φ(rτ), φ(y) = (1 − e^(−y))/y.
 # Roots are kept as (anchor pole, offset) so that every difference d_z − ν_i is accurate.
+
+
+def _chi(x):
+    """(1 − e^(−x) − x·e^(−x)) / x², limit 1/2 at 0 (series below 1e-3)."""
+    x = np.asarray(x, dtype=float)
+    small = x < 1e-3
+    safe = np.where(small, 1.0, x)
+    series = 0.5 + x * (-1 / 3 + x * (1 / 8 + x * (-1 / 30 + x / 144)))
+    return np.where(small, series, (-np.expm1(-safe) - safe * np.exp(-safe)) / safe**2)
 
 
 class _Modes(NamedTuple):
@@ -308,33 +320,62 @@ def _modes(d, u, w):
                   resonant)
 
 
-def _project(m, delta0):
-    """β (K,) and γ (n,) for the deviation δ(0) from the piece's steady state."""
+def _project(m, x):
+    """β (K, n_vec) and γ (n, n_vec) of zone vectors x (n, n_vec) (see the comment above)."""
     g = m.group
     ret = g >= 0
-    wd = np.bincount(g[ret], weights=(m.w * delta0)[ret], minlength=m.nu.size)
-    beta = (wd @ m.inv_delta) / m.fprime
-    gamma = delta0.copy()
-    gamma[ret] -= m.u[ret] * (m.inv_delta @ beta)[g[ret]]
-    gamma[m.others] -= m.u[m.others] * (m.inv_delta_o @ beta)
+    x = np.asarray(x, dtype=float)
+    wx = np.zeros((m.nu.size, x.shape[1]))
+    np.add.at(wx, g[ret], m.w[ret, None] * x[ret])
+    beta = (m.inv_delta.T @ wx) / m.fprime[:, None]
+    gamma = x.copy()
+    gamma[ret] -= m.u[ret, None] * (m.inv_delta @ beta)[g[ret]]
+    gamma[m.others] -= m.u[m.others, None] * (m.inv_delta_o @ beta)
     return beta, gamma
 
 
-def _deviation(m, beta, gamma, tau):
-    """δ(τ) for times τ (n_t,) since the start of the piece: shape (n_t, n)."""
+def _kernels(rate, tau):
+    """e^(−rτ) and its integral over [0, τ], τ·φ(rτ) = −expm1(−rτ)/r (τ where r = 0)."""
+    x = -rate * tau
+    tphi = np.divide(-np.expm1(x), rate, out=np.broadcast_to(tau, x.shape).copy(),
+                     where=rate > 0)
+    return np.exp(x), tphi
+
+
+def _state(m, beta, gamma, tau):
+    """C(τ) = e^(Aτ)·C(0) + ∫₀^τ e^(As)ds·b from the projections (β, γ) of [C(0), b] (two
+    columns), at times τ (n_t,) since the start of the piece: shape (n_t, n). One
+    (n_t, K)·(K, K) matrix product carries all the coupled modes."""
     tau = np.asarray(tau, dtype=float)[:, None]
-    modes = np.exp(-tau * m.nu[None, :]) * beta[None, :]  # (n_t, K)
-    out = gamma[None, :] * np.exp(-tau * m.d[None, :])
+    e_nu, i_nu = _kernels(m.nu[None, :], tau)
+    modes = e_nu * beta[None, :, 0] + i_nu * beta[None, :, 1]  # (n_t, K)
+    e_d, i_d = _kernels(m.d[None, :], tau)
+    out = gamma[None, :, 0] * e_d + gamma[None, :, 1] * i_d
     ret = m.group >= 0
     out[:, ret] += m.u[ret] * (modes @ m.inv_delta.T)[:, m.group[ret]]
     out[:, m.others] += m.u[m.others] * (modes @ m.inv_delta_o.T)
-    if np.any(m.resonant):  # ∫ e^(−d(τ−s)) e^(−ν s) ds = e^(−min(d,ν)τ)·τ·φ(|d − ν|τ)
+    if np.any(m.resonant):
         zr = m.others[m.resonant]
-        dl = m.delta_o[m.resonant][None, :, :]
-        lo = np.minimum(m.d[zr][:, None], m.nu[None, :])[None, :, :]
-        conv = np.exp(-lo * tau[:, :, None]) * tau[:, :, None] * _phi(np.abs(dl) * tau[:, :, None])
-        out[:, zr] += m.u[zr] * np.sum(conv * beta[None, None, :], axis=2)
+        conv = sum(np.sum(_resonant_convolution(m, zr, tau[:, :, None], integrated)
+                          * beta[None, None, :, col], axis=2)
+                   for col, integrated in ((0, False), (1, True)))
+        out[:, zr] += m.u[zr] * conv
     return out
+
+
+def _resonant_convolution(m, zr, tau, integrated):
+    """E = ∫₀^τ e^(−d(τ−s))·e^(−νs) ds = e^(−min(d,ν)τ)·τ·φ(|d − ν|τ) for zones zr whose rate
+    nearly equals a mode rate; integrated: (τφ(ντ) − τφ(dτ))/(d − ν), or τ²·χ at the mean
+    rate where d ≈ ν (relative error about ((d − ν)/d)², below 1e-12 here)."""
+    dl = m.delta_o[m.resonant][None, :, :]
+    dz = m.d[zr][None, :, None]
+    nu = m.nu[None, None, :]
+    if not integrated:
+        return np.exp(-np.minimum(dz, nu) * tau) * tau * _phi(np.abs(dl) * tau)
+    near = np.abs(dl) < 1e-6 * np.maximum(dz, nu)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        far = (_kernels(nu, tau)[1] - _kernels(dz, tau)[1]) / np.where(near, 1.0, dl)
+    return np.where(near, tau**2 * _chi(0.5 * (dz + nu) * tau), far)
 
 
 class CoupledTransient(NamedTuple):
@@ -380,9 +421,10 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
     """Exact transient of a coupled system for inputs constant on each piece.
 
     Solves ``V_z·dC_z/dt = G_z + Vpz·C_s − (Vpz + L_z)·C_z``, ``C_s = a + Σ w_z C_z`` (module
-    model, domain.md §4) piece by piece in closed form: the secular-equation modes of the
-    diagonal-plus-rank-one matrix (see the comment above :func:`_secular_roots`). No ODE
-    solver and no N×N matrix.
+    model, domain.md §4) piece by piece in closed form, ``C(τ) = e^(Aτ)C(0) + ∫₀^τ e^(As)ds·b``,
+    through the secular-equation modes of the diagonal-plus-rank-one matrix A (see the
+    comment above :func:`_chi`). No ODE solver and no N×N matrix; no steady state is needed,
+    so a system that removes nothing is solved exactly too.
 
     Complexity, honestly: with K the number of distinct decay rates among the zones that
     return air (K = N when every zone differs, K = 1 for identical zones), each airflow
@@ -434,34 +476,31 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
         dict(outdoor_intake=outdoor_intake, outdoor_concentration=outdoor_concentration,
              outdoor_filter_efficiency=outdoor_filter_efficiency,
              recirc_filter_efficiency=recirc_filter_efficiency))
-    nz = zone["generation"].shape[1]
-    vol = np.broadcast_to(_positive("volume", volume), (nz,))
-    c = np.broadcast_to(_nonneg("c0", c0), (nz,)).astype(float)
+    vol = np.broadcast_to(_positive("volume", volume), zone["generation"].shape[1:])
+    c = np.broadcast_to(_nonneg("c0", c0), vol.shape).astype(float)
     gen = _nonneg("generation_per_piece", zone["generation"])
     loss = _in_room_loss(vol, zone["cadr"], zone["k_deposition"], zone["k_inactivation"])
-    eta_oa = _fraction("outdoor_filter_efficiency", system["outdoor_filter_efficiency"])
-    c_out = _nonneg("outdoor_concentration", system["outdoor_concentration"])
+    outdoor = (_nonneg("outdoor_concentration", system["outdoor_concentration"])
+               * (1 - _fraction("outdoor_filter_efficiency",
+                                system["outdoor_filter_efficiency"])))
     t = np.asarray(output_times, dtype=float)
     if t.ndim != 1 or np.any(~np.isfinite(t)) or np.any((t < b[0]) | (t > b[-1])):
         raise ValueError(f"output_times must be 1-D within [{b[0]}, {b[-1]}] h")
     piece_of = np.clip(np.searchsorted(b, t, side="right") - 1, 0, n - 1)
-    out_zone = np.empty((t.size, nz))
-    out_supply = np.empty(t.size)
+    out_zone, out_supply = np.empty((t.size, vol.size)), np.empty(t.size)
     key, m = None, None
     for j in range(n):
         vpz = zone["primary_airflow"][j]
         sysm = _system(vpz, system["outdoor_intake"][j], zone["zone_exhaust"][j],
                        system["recirc_filter_efficiency"][j])
-        a = sysm.x * (1 - eta_oa[j]) * c_out[j]
-        c_ss, _ = _steady(gen[j], vpz, loss[j], a, sysm)
         new_key = (vpz.tobytes(), loss[j].tobytes(), sysm.w.tobytes())
         if new_key != key:  # modes depend on airflows and losses only, not on generation
             key, m = new_key, _modes((vpz + loss[j]) / vol, vpz / vol, sysm.w)
-        delta0 = c - c_ss
-        beta, gamma = _project(m, delta0)
+        a = sysm.x * outdoor[j]
+        beta, gamma = _project(m, np.column_stack((c, (gen[j] + vpz * a) / vol)))
         sel = np.flatnonzero(piece_of == j)
-        if sel.size:
-            out_zone[sel] = c_ss + _deviation(m, beta, gamma, t[sel] - b[j])
-            out_supply[sel] = a + out_zone[sel] @ sysm.w
-        c = c_ss + _deviation(m, beta, gamma, [b[j + 1] - b[j]])[0]
+        values = _state(m, beta, gamma, np.append(t[sel] - b[j], b[j + 1] - b[j]))
+        out_zone[sel] = values[:-1]
+        out_supply[sel] = a + values[:-1] @ sysm.w
+        c = values[-1]
     return CoupledTransient(out_zone, out_supply)

@@ -92,6 +92,13 @@ def _psi(x):
     return np.where(small, series, (safe + np.expm1(-safe)) / safe**2)
 
 
+def _on_piece(c_start, lam, source_rate, tau):
+    """C(τ) = c_start·e^(−λτ) + s·τ·φ(λτ); τ·φ(λτ) = −expm1(−λτ)/λ, or τ where λ = 0."""
+    x = -lam * tau
+    tphi = np.divide(-np.expm1(x), lam, out=np.broadcast_to(tau, x.shape).copy(), where=lam > 0)
+    return c_start * np.exp(x) + source_rate * tphi
+
+
 def _clean_airflow(volume, outdoor_airflow, recirc_airflow, recirc_efficiency, cadr,
                    k_deposition, k_inactivation):
     """λ·V, the equivalent clean airflow [m3/h], with its inputs validated."""
@@ -506,8 +513,7 @@ def piecewise_solution(times_breaks, generation_per_piece, volume, outdoor_airfl
     c = np.broadcast_to(c_init, shape[1:]).astype(float)
     for j, dt in enumerate(np.diff(b)):  # sequential in time, vectorised over zones
         c_start[j] = c
-        x = lam[j] * dt
-        c = c * np.exp(-x) + s[j] * dt * _phi(x)
+        c = _on_piece(c, lam[j], s[j], dt)
     return PiecewiseSolution(b, c_start, np.array(lam), np.array(s), c)
 
 
@@ -539,10 +545,15 @@ def evaluate_piecewise(solution, times):
     if t.ndim != 1:
         raise ValueError("times must be 1-D")
     extra = (1,) * (solution.c_start.ndim - 1)
-    tau = (t - solution.breaks[idx]).reshape(t.shape + extra)
-    lam = solution.loss_rate[idx]
-    x = lam * tau
-    return solution.c_start[idx] * np.exp(-x) + solution.source_rate[idx] * tau * _phi(x)
+    out = np.empty(t.shape + solution.c_start.shape[1:])
+    order = np.argsort(idx, kind="stable")
+    starts = np.searchsorted(idx[order], np.arange(solution.breaks.size))
+    for j in np.flatnonzero(np.diff(starts)):  # loop over pieces; zones stay vectorised
+        sel = order[starts[j]:starts[j + 1]]
+        tau = (t[sel] - solution.breaks[j]).reshape((-1,) + extra)
+        out[sel] = _on_piece(solution.c_start[j], solution.loss_rate[j],
+                             solution.source_rate[j], tau)
+    return out
 
 
 def piecewise_transient(times_breaks, generation_per_piece, volume, outdoor_airflow, c0,

@@ -74,11 +74,25 @@ def resolve(ref: str, base: Path | None = None) -> Path:
 
 
 def load_pack(ref: str, base: Path | None = None) -> RulePack:
-    """Load and validate the pack named by id or path."""
+    """Load and validate the pack named by id or path (cached while the file is unchanged)."""
     path = resolve(ref, base)
+    try:
+        stat = path.stat()
+        key = (str(path.resolve()), stat.st_mtime_ns, stat.st_size)
+    except OSError:
+        key = None  # let the loader report the problem with its usual message
+    if key is not None and key in _CACHE:
+        return _CACHE[key]
     doc = load(path, RulePackError)
     validate_document(doc)
-    return build(doc)
+    pack = build(doc)
+    if key is not None:
+        _CACHE[key] = pack
+    return pack
+
+
+#: loaded packs by (file, mtime, size); packs are read-only once built
+_CACHE: dict[tuple[str, int, int], RulePack] = {}
 
 
 def _non_finite(data: Any, path: tuple = ()) -> tuple | None:

@@ -105,9 +105,12 @@ def render(report: Report) -> str:
     for s in report.systems:
         out += _system(s, system)
         out.append("")
-    out.append("    * Pz not stated in the schedule: default density × Az (or 0 where the table "
-               "gives no density)")
-    out.append("    ◂ critical zone (lowest Evz; for the table method, largest Zpz)")
+    zones = [z for s in report.systems for z in s.zones]
+    if any(z.trail["Pz"].origin != "schedule" for z in zones):
+        out.append("    * Pz not stated in the schedule: default density × Az (or 0 where the "
+                   "table gives no density)")
+    if any(s.critical_zone for s in report.systems):
+        out.append("    ◂ critical zone (lowest Evz; for the table method, largest Zpz)")
     out.append("")
     c = report.counts()
     out.append(f"Findings — {c['fail']} fail, {c['warning']} warning, {c['info']} info")
