@@ -133,7 +133,8 @@ def test_steady_state_is_linear_time_and_memory_for_200k_zones():
 
 
 def test_supply_coupling_weights_domain_md_section_4():
-    # Module model (domain.md §4 mixing): Σw = (1 − η_rec)(1 − x) without exhaust, a = x(1 − η_oa)C_out.
+    # Module model (domain.md §4 mixing): Σw = (1 − η_rec)(1 − x) without exhaust,
+    # a = x(1 − η_oa)C_out.
     vpz = np.array([400.0, 600.0, 1000.0])
     a, w = cpl.supply_coupling(vpz, 500.0, 20.0, 0.5, 0.6)
     assert a == pytest.approx(0.25 * 0.5 * 20.0)

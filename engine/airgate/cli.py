@@ -32,6 +32,8 @@ def _parser() -> argparse.ArgumentParser:
     c.add_argument("--rules", help="rule pack id or path (overrides the schedule's 'rules:')")
     c.add_argument("--format", choices=["text", "json"], default="text", help="report format")
     c.add_argument("-o", "--output", help="write the report to this file instead of stdout")
+    c.add_argument("--series-step", type=int, default=0, metavar="MINUTES",
+                   help="JSON: include each zone's design-day CO2 series at this step")
     c.add_argument("--exit-zero", action="store_true",
                    help="exit 0 even when findings fail (input errors still exit 2)")
 
@@ -58,7 +60,10 @@ def _check(args: argparse.Namespace) -> int:
     from airgate.writers import json_report, output, text
 
     report = check_file(args.file, args.rules)
-    rendered = json_report.render(report) if args.format == "json" else text.render(report)
+    if args.series_step < 0:
+        raise UsageError("--series-step takes a number of minutes, 0 or more")
+    rendered = (json_report.render(report, args.series_step) if args.format == "json"
+                else text.render(report))
     if args.output:
         output.write_atomic(args.output, rendered)
     else:

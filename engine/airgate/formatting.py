@@ -15,6 +15,14 @@ def number(value: float, kind: str) -> str:
         return "∞" if value > 0 else "−∞"
     if kind == "fraction":
         return f"{value:.3f}"
+    if kind == "concentration_ppm":
+        return f"{value:,.0f}"
+    if kind == "time":
+        return f"{value:,.0f}" if abs(value) >= 10 else f"{value:.1f}"
+    if kind == "rate":
+        return f"{value:.2f}"
+    if kind in ("gas_flow", "gas_generation"):
+        return f"{value:.4g}"
     if kind == "people":
         text = f"{value:,.1f}"
         return text[:-2] if text.endswith(".0") else text

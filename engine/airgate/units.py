@@ -100,6 +100,12 @@ KINDS: dict[str, Kind] = {
         ),
         Kind("velocity", "m/s", "fpm", "m/s", "fpm", "m/s", "'150 fpm' or '0.8 m/s'"),
         Kind("fraction", "dimensionless", "dimensionless", "dimensionless", "", "", "'0.8'"),
+        Kind("concentration_ppm", "ppm", "ppm", "ppm", "ppm", "ppm", "'1100 ppm'"),
+        Kind("time", "hour", "minute", "minute", "min", "min", "'45 min'"),
+        Kind("rate", "1/hour", "1/hour", "1/hour", "1/h", "1/h", "'2.5 1/h'"),
+        Kind("gas_flow", "L/s", "L/s", "L/s", "L/s", "L/s", "'0.12 L/s'"),
+        Kind("gas_generation", "L/s/person", "L/s/person", "L/s/person", "L/s·person",
+             "L/s·person", "'0.0048 L/s/person'"),
     )
 }
 
@@ -117,6 +123,11 @@ JSON_UNITS: dict[tuple[str, str], str] = {
     ("temperature_difference", IP): "delta_degF", ("temperature_difference", SI): "kelvin",
     ("velocity", IP): "ft/min", ("velocity", SI): "m/s",
     ("fraction", IP): "", ("fraction", SI): "",
+    ("concentration_ppm", IP): "ppm", ("concentration_ppm", SI): "ppm",
+    ("time", IP): "minute", ("time", SI): "minute",
+    ("rate", IP): "1/hour", ("rate", SI): "1/hour",
+    ("gas_flow", IP): "L/s", ("gas_flow", SI): "L/s",
+    ("gas_generation", IP): "L/s/person", ("gas_generation", SI): "L/s/person",
 }
 
 _SUPERSCRIPTS = str.maketrans({"²": "**2", "³": "**3", "·": "*", "°": "deg"})

@@ -147,3 +147,23 @@ def collect(errors: list[AirgateError], fn, *args):
     except AirgateError as exc:
         errors.append(exc)
         return None
+
+
+def dilution_refs(loaded: LoadedSchedule, zone: Zone, path: Path_) -> None:
+    """The zone's occupancy profile and CO2 activity must exist."""
+    from airgate.readers.datatables import data_table
+
+    profiles = loaded.model.profiles
+    if zone.profile is not None and zone.profile not in profiles:
+        close = nearest(zone.profile, profiles)
+        raise loaded.error(
+            f"unknown occupancy profile '{zone.profile}'"
+            + (f"; did you mean '{close[0]}'?" if close else ""), path + ("profile",),
+            allowed=sorted(profiles), hint="define it under 'profiles:' or remove the reference")
+    table = data_table("occupant-co2-generation")
+    if zone.activity is not None and zone.activity not in table.rows:
+        close = nearest(zone.activity, table.rows)
+        raise loaded.error(
+            f"unknown occupant activity '{zone.activity}'"
+            + (f"; did you mean '{close[0]}'?" if close else ""), path + ("activity",),
+            allowed=sorted(table.rows))

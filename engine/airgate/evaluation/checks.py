@@ -21,6 +21,8 @@ KNOWN_CHECKS: dict[str, str] = {
     "population-without-density": "no occupants stated and no default density",
     "diversity-above-one": "system population Ps above ΣPz",
     "zone-air-sum": "outdoor-air system: zone outdoor air sums above the intake",
+    "concentration-limit": "zone concentration (steady or peak over the profile) above a declared limit",
+    "short-term-averaging": "population may be averaged over T = 3v/Vbz where the peak is brief",
 }
 
 

@@ -5,7 +5,7 @@ from __future__ import annotations
 from pathlib import Path
 
 from airgate.errors import AirgateError, RulePackError, raise_all
-from airgate.evaluation import bind, systems
+from airgate.evaluation import bind, dilution, systems
 from airgate.evaluation.checks import KNOWN_CHECKS, Emitter
 from airgate.evaluation.findings import Location
 from airgate.evaluation.report import SAFETY_CAUTION, Report, SystemResult
@@ -30,6 +30,7 @@ def _bind_all(loaded: LoadedSchedule, pack: RulePack) -> list[list[ZoneContext]]
             path = ("systems", i, "zones", j)
             cat = bind.collect(errors, bind.category, loaded, pack, zone, path)
             ez = bind.collect(errors, bind.air_distribution, loaded, pack, zone, path)
+            bind.collect(errors, bind.dilution_refs, loaded, zone, path)
             if cat is not None and ez is not None:
                 fields = {name: _location(loaded, path + (name,))
                           for name in ("area", "occupants") if getattr(zone, name) is not None}
@@ -88,6 +89,7 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack) -> Report:
             systems.multiple_zone(system, ctxs, zones, result, pack, emitter, intake_at, locate,
                                   _method(pack, system))
         systems.air_classes(system, ctxs, emitter, where)
+        dilution.analyse(system, ctxs, result, loaded.model, emitter)
         results.append(result)
     findings = sorted(emitter.findings, key=lambda f: f.sort_key())
     _verdicts(results, findings)

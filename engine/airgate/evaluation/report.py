@@ -25,6 +25,9 @@ class ZoneResult:
     trail: Trail
     air_class: int = 1
     verdict: str = "pass"
+    #: CO2 dilution trail and design-day series, where the zone's volume is known
+    dilution: Trail | None = None
+    series: object | None = None
 
 
 @dataclass

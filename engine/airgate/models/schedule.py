@@ -24,6 +24,7 @@ from pydantic import (
 from pydantic_core import PydanticCustomError
 
 from airgate import units
+from airgate.models.profiles import Profile
 
 _QUANTITY_SCHEMA = {
     "anyOf": [
@@ -122,6 +123,10 @@ class Project(_Model):
     units: Literal["IP", "SI"] = Field(description="Unit system of bare numbers. [–]")
     owner: str | None = Field(None, description="Building owner. [–]")
     location: str | None = Field(None, description="Site or jurisdiction. [–]")
+    outdoor_co2: float = Field(420.0, gt=0, le=5000, allow_inf_nan=False,
+                               description="Outdoor CO2 concentration. [ppm]")
+    co2_limit: float | None = Field(None, gt=0, le=50000, allow_inf_nan=False,
+                                    description="Indoor CO2 limit to report against. [ppm]")
     notes: str | None = Field(None, description="Free text. [–]")
 
 
@@ -181,6 +186,13 @@ class Zone(_Model):
     outdoor_air: Q(
         "airflow", "Outdoor air delivered to the zone (outdoor-air systems). [cfm or L/s]"
     ) | None = None
+    profile: str | None = Field(None, min_length=1,
+                                description="Name of an occupancy profile under 'profiles'. [–]")
+    activity: str | None = Field(None, min_length=1,
+                                 description="Occupant activity id of the CO2 generation table. [–]")
+    co2_generation: float | None = Field(
+        None, gt=0, le=0.1, allow_inf_nan=False,
+        description="CO2 generation per occupant, overriding the activity's. [L/s per person]")
     air_class: Literal[1, 2, 3, 4] | None = Field(
         None, description="Air class, where it differs from the category's. [–]")
     notes: str | None = Field(None, description="Free text. [–]")
@@ -237,6 +249,8 @@ class Schedule(_Model):
     schedule: Literal[1] = Field(description="Schedule format version. [–]")
     project: Project
     rules: str | None = Field(None, description="Rule pack id or path; --rules overrides. [–]")
+    profiles: dict[str, Profile] = Field(default_factory=dict,
+                                         description="Named occupancy profiles. [–]")
     systems: list[System] = Field(min_length=1, description="Air systems. [–]")
 
     @field_validator("systems")

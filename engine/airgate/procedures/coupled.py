@@ -29,7 +29,14 @@ from typing import NamedTuple
 
 import numpy as np
 
-from airgate.procedures.dilution import _check_breaks, _fraction, _nonneg, _phi, _positive
+from airgate.procedures.dilution import (
+    _check_breaks,
+    _exp_and_integral,
+    _fraction,
+    _nonneg,
+    _phi,
+    _positive,
+)
 
 __all__ = [
     "CoupledSteadyState",
@@ -214,7 +221,8 @@ def _in_room_loss(volume, cadr, k_deposition, k_inactivation):
 # p_k of the zones that return air (c_k = Σ w_z u_z over zones with d_z = p_k), one root per
 # interval between poles. Given that signal every zone is a scalar linear ODE, solved exactly:
 #     (e^(Aτ)x)_z = γ_z·e^(−d_z τ) + u_z·Σ_i β_i e^(−ν_i τ)/(d_z − ν_i),
-#     β_i = [Σ_z w_z x_z/(d_z − ν_i)] / [Σ_k c_k/(p_k − ν_i)²],  γ_z = x_z − u_z·Σ_i β_i/(d_z − ν_i);
+#     β_i = [Σ_z w_z x_z/(d_z − ν_i)] / [Σ_k c_k/(p_k − ν_i)²],
+#     γ_z = x_z − u_z·Σ_i β_i/(d_z − ν_i);
 # the integral over [0, τ] replaces each e^(−rτ) by τ·φ(rτ), φ(y) = (1 − e^(−y))/y.
 # Roots are kept as (anchor pole, offset) so that every difference d_z − ν_i is accurate.
 
@@ -243,9 +251,10 @@ class _Modes(NamedTuple):
 
 
 def _secular_roots(poles, c):
-    """Roots ν of Σ_k c_k/(p_k − ν) = 1 for increasing poles p and c > 0 with Σ c/p < 1.
+    """Roots ν of Σ_k c_k/(p_k − ν) = 1 for increasing poles p and c > 0 with Σ c/p <= 1.
 
-    Root 0 lies in (0, p_0), root i >= 1 in (p_(i−1), p_i). Returned as ``anchor`` (pole
+    Root 0 lies in [0, p_0) (at 0 when Σ c/p = 1: the system removes nothing), root i >= 1
+    in (p_(i−1), p_i). Returned as ``anchor`` (pole
     index) and ``t`` with ν = p[anchor] + t, the anchor being the nearer pole. Safeguarded
     Newton on F(t) = t·(f − 1) (the anchor's pole removed), vectorised over all roots:
     O(K²) per iteration.
@@ -293,8 +302,9 @@ def _secular_roots(poles, c):
 
 
 def _modes(d, u, w):
-    """Mode data for one airflow configuration: O(N + K²) memory, O(K²) per root iteration."""
-    coupled = w * u > 0
+    """Mode data for one airflow configuration: O(N + K² + n_o·K) memory and work per root
+    iteration, n_o being the number of zones that return no air."""
+    coupled = w * u > 1e-290  # subnormal couplings would overflow 1/(p − ν); they are nil
     idx = np.flatnonzero(coupled)
     order = idx[np.argsort(d[idx], kind="stable")]
     ds = d[order]
@@ -325,8 +335,8 @@ def _project(m, x):
     g = m.group
     ret = g >= 0
     x = np.asarray(x, dtype=float)
-    wx = np.zeros((m.nu.size, x.shape[1]))
-    np.add.at(wx, g[ret], m.w[ret, None] * x[ret])
+    wx = np.column_stack([np.bincount(g[ret], weights=m.w[ret] * col[ret], minlength=m.nu.size)
+                          for col in x.T])
     beta = (m.inv_delta.T @ wx) / m.fprime[:, None]
     gamma = x.copy()
     gamma[ret] -= m.u[ret, None] * (m.inv_delta @ beta)[g[ret]]
@@ -334,22 +344,14 @@ def _project(m, x):
     return beta, gamma
 
 
-def _kernels(rate, tau):
-    """e^(−rτ) and its integral over [0, τ], τ·φ(rτ) = −expm1(−rτ)/r (τ where r = 0)."""
-    x = -rate * tau
-    tphi = np.divide(-np.expm1(x), rate, out=np.broadcast_to(tau, x.shape).copy(),
-                     where=rate > 0)
-    return np.exp(x), tphi
-
-
 def _state(m, beta, gamma, tau):
     """C(τ) = e^(Aτ)·C(0) + ∫₀^τ e^(As)ds·b from the projections (β, γ) of [C(0), b] (two
     columns), at times τ (n_t,) since the start of the piece: shape (n_t, n). One
     (n_t, K)·(K, K) matrix product carries all the coupled modes."""
     tau = np.asarray(tau, dtype=float)[:, None]
-    e_nu, i_nu = _kernels(m.nu[None, :], tau)
+    e_nu, i_nu = _exp_and_integral(m.nu[None, :], tau)
     modes = e_nu * beta[None, :, 0] + i_nu * beta[None, :, 1]  # (n_t, K)
-    e_d, i_d = _kernels(m.d[None, :], tau)
+    e_d, i_d = _exp_and_integral(m.d[None, :], tau)
     out = gamma[None, :, 0] * e_d + gamma[None, :, 1] * i_d
     ret = m.group >= 0
     out[:, ret] += m.u[ret] * (modes @ m.inv_delta.T)[:, m.group[ret]]
@@ -374,7 +376,8 @@ def _resonant_convolution(m, zr, tau, integrated):
         return np.exp(-np.minimum(dz, nu) * tau) * tau * _phi(np.abs(dl) * tau)
     near = np.abs(dl) < 1e-6 * np.maximum(dz, nu)
     with np.errstate(divide="ignore", invalid="ignore"):
-        far = (_kernels(nu, tau)[1] - _kernels(dz, tau)[1]) / np.where(near, 1.0, dl)
+        far = ((_exp_and_integral(nu, tau)[1] - _exp_and_integral(dz, tau)[1])
+               / np.where(near, 1.0, dl))
     return np.where(near, tau**2 * _chi(0.5 * (dz + nu) * tau), far)
 
 
@@ -426,11 +429,14 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
     comment above :func:`_chi`). No ODE solver and no N×N matrix; no steady state is needed,
     so a system that removes nothing is solved exactly too.
 
-    Complexity, honestly: with K the number of distinct decay rates among the zones that
-    return air (K = N when every zone differs, K = 1 for identical zones), each airflow
-    configuration costs O(K²) per root iteration (a few tens, once, reused while airflows
-    and losses stay the same); each piece then costs O(N + K²) and each output time
-    O(N + K²) (one matrix product). It is O(N) per step only when K is small.
+    Complexity, honestly: with K the number of distinct decay rates (V_pz + L_z)/V_z among
+    the zones that return air (K = N when every zone differs, K = 1 for identical zones) and
+    n_o the zones that return none, each airflow configuration costs O(K² + n_o·K) per root
+    iteration (most roots converge in under ten Newton steps, the few that fall back to
+    bisection are iterated alone; computed once and reused while airflows and losses stay
+    the same); each piece and each output time then cost O(N + K² + n_o·K),
+    the K² part being one matrix product. That is O(N) per step only when K is small; for
+    K = N it is O(N²) per step — exact, but not linear.
 
     Layout: zone inputs are ``(n_zones,)`` (constant) or ``(n_pieces, n_zones)`` (per piece;
     ``(n_pieces, 1)`` for all zones alike); system inputs (``outdoor_intake``,

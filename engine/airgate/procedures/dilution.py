@@ -25,40 +25,26 @@ from typing import NamedTuple
 import numpy as np
 
 __all__ = [
-    "PiecewiseSolution",
-    "breathing_zone_concentration",
-    "co2_excess_ppm",
-    "dcv_setpoint_ppm",
-    "evaluate_piecewise",
-    "inactivation_rate_from_half_life",
-    "loss_breakdown",
-    "loss_rate",
-    "peak_concentration",
-    "piecewise_solution",
-    "piecewise_transient",
-    "steady_state_concentration",
-    "time_to_fraction_of_steady_state",
-    "time_to_fraction_removed",
-    "time_weighted_average",
-    "transient_concentration",
+    "PiecewiseSolution", "breathing_zone_concentration", "co2_excess_ppm", "dcv_setpoint_ppm",
+    "evaluate_piecewise", "inactivation_rate_from_half_life", "loss_breakdown", "loss_rate",
+    "peak_concentration", "piecewise_solution", "piecewise_transient",
+    "steady_state_concentration", "time_to_fraction_of_steady_state",
+    "time_to_fraction_removed", "time_weighted_average", "transient_concentration",
 ]
 
 
 # --------------------------------------------------------------------------- helpers
 
 
-def _nonneg(name, value):
+def _nonneg(name, value, *, strict=False):
     a = np.asarray(value, dtype=float)
-    if not np.all(np.isfinite(a)) or np.any(a < 0):
-        raise ValueError(f"{name} must be finite and >= 0, got {value!r}")
+    if not np.all(np.isfinite(a)) or np.any(a <= 0 if strict else a < 0):
+        raise ValueError(f"{name} must be finite and {'>' if strict else '>='} 0, got {value!r}")
     return a
 
 
 def _positive(name, value):
-    a = np.asarray(value, dtype=float)
-    if not np.all(np.isfinite(a)) or np.any(a <= 0):
-        raise ValueError(f"{name} must be finite and > 0, got {value!r}")
-    return a
+    return _nonneg(name, value, strict=True)
 
 
 def _fraction(name, value, *, open_top=False):
@@ -92,11 +78,19 @@ def _psi(x):
     return np.where(small, series, (safe + np.expm1(-safe)) / safe**2)
 
 
+def _exp_and_integral(rate, tau):
+    """e^(−rτ) and its integral over [0, τ], τ·φ(rτ): −expm1(−rτ)/r, or τ·(1 − rτ/2) where
+    rτ < 1e-8 (which also covers r = 0 and subnormal products)."""
+    y = rate * tau
+    small = y < 1e-8
+    tphi = np.where(small, tau * (1.0 - 0.5 * y), -np.expm1(-y) / np.where(small, 1.0, rate))
+    return np.exp(-y), tphi
+
+
 def _on_piece(c_start, lam, source_rate, tau):
-    """C(τ) = c_start·e^(−λτ) + s·τ·φ(λτ); τ·φ(λτ) = −expm1(−λτ)/λ, or τ where λ = 0."""
-    x = -lam * tau
-    tphi = np.divide(-np.expm1(x), lam, out=np.broadcast_to(tau, x.shape).copy(), where=lam > 0)
-    return c_start * np.exp(x) + source_rate * tphi
+    """C(τ) = c_start·e^(−λτ) + s·τ·φ(λτ)."""
+    decay, tphi = _exp_and_integral(lam, tau)
+    return c_start * decay + source_rate * tphi
 
 
 def _clean_airflow(volume, outdoor_airflow, recirc_airflow, recirc_efficiency, cadr,
@@ -166,18 +160,8 @@ def loss_rate(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficiency=0.0
     ----------
     volume : float or array_like
         Zone volume; must be > 0. [m3]
-    outdoor_airflow : float or array_like
-        Outdoor airflow, Q_oa. [m3/h]
-    recirc_airflow : float or array_like
-        Recirculated airflow through a filter, Q_rec. [m3/h]
-    recirc_efficiency : float or array_like
-        Efficiency of that filter, η_rec. [-]
-    cadr : float or array_like
-        Clean-air delivery rate of in-room air cleaners. [m3/h]
-    k_deposition : float or array_like
-        Deposition rate. [1/h]
-    k_inactivation : float or array_like
-        Inactivation rate. [1/h]
+    outdoor_airflow, recirc_airflow, recirc_efficiency, cadr, k_deposition, k_inactivation
+        As in :func:`loss_breakdown`. [m3/h], [m3/h], [-], [m3/h], [1/h], [1/h]
 
     Returns
     -------
@@ -297,7 +281,8 @@ def co2_excess_ppm(generation_Ls, airflow_Ls):  # noqa: N803 - trade unit in the
     return _out(1e6 * _nonneg("generation_Ls", generation_Ls) / _positive("airflow_Ls", airflow_Ls))
 
 
-def dcv_setpoint_ppm(outdoor_ppm, co2_generation_per_person_Ls, outdoor_air_per_person_Ls):  # noqa: N803
+def dcv_setpoint_ppm(outdoor_ppm, co2_generation_per_person_Ls,  # noqa: N803
+                     outdoor_air_per_person_Ls):
     """CO2 set point that holds a zone at its outdoor air per person at steady state.
 
     ``C_zone = C_out + 10⁶ · N / Voz_per_person`` (domain.md §2, "Demand-controlled
@@ -373,22 +358,12 @@ def time_to_fraction_removed(lam, fraction):
 
 
 def time_to_fraction_of_steady_state(lam, fraction=0.95):
-    """Time for a clean zone to reach a fraction f of its steady concentration.
+    """Time for a clean zone to reach a fraction f of its steady concentration [h].
 
     From ``C/C_ss = 1 − e^(−λt)``: ``t = ln(1 / (1 − f)) / λ``; 95 % takes about 3/λ
-    (domain.md §4 and §2, the short-term averaging time T = 3·v/Vbz).
-
-    Parameters
-    ----------
-    lam : float or array_like
-        Loss rate λ; must be > 0. [1/h]
-    fraction : float or array_like
-        Fraction of steady state, 0 <= f < 1. [-]
-
-    Returns
-    -------
-    float or ndarray
-        Time. [h]
+    (domain.md §4, and §2: the short-term averaging time T = 3·v/Vbz). ``lam`` is λ > 0
+    [1/h]; ``fraction`` is f, 0 <= f < 1 [-]. Same formula as
+    :func:`time_to_fraction_removed`.
     """
     return time_to_fraction_removed(lam, fraction)
 
@@ -517,15 +492,6 @@ def piecewise_solution(times_breaks, generation_per_piece, volume, outdoor_airfl
     return PiecewiseSolution(b, c_start, np.array(lam), np.array(s), c)
 
 
-def _locate(solution, times):
-    t = np.asarray(times, dtype=float)
-    b = solution.breaks
-    if np.any(~np.isfinite(t)) or np.any(t < b[0]) or np.any(t > b[-1]):
-        raise ValueError(f"times must lie within [{b[0]}, {b[-1]}] h")
-    idx = np.clip(np.searchsorted(b, t, side="right") - 1, 0, b.size - 2)
-    return t, idx
-
-
 def evaluate_piecewise(solution, times):
     """Concentration of a piecewise solution at given times (exact).
 
@@ -541,9 +507,10 @@ def evaluate_piecewise(solution, times):
     ndarray, shape (n_times, *zone_shape)
         Concentration. [C]
     """
-    t, idx = _locate(solution, np.atleast_1d(times))
-    if t.ndim != 1:
-        raise ValueError("times must be 1-D")
+    t, b = np.atleast_1d(np.asarray(times, dtype=float)), solution.breaks
+    if t.ndim != 1 or np.any(~np.isfinite(t)) or np.any((t < b[0]) | (t > b[-1])):
+        raise ValueError(f"times must be 1-D and lie within [{b[0]}, {b[-1]}] h")
+    idx = np.clip(np.searchsorted(b, t, side="right") - 1, 0, b.size - 2)
     extra = (1,) * (solution.c_start.ndim - 1)
     out = np.empty(t.shape + solution.c_start.shape[1:])
     order = np.argsort(idx, kind="stable")
@@ -560,25 +527,11 @@ def piecewise_transient(times_breaks, generation_per_piece, volume, outdoor_airf
                         output_times, *, outdoor_concentration=0.0,
                         outdoor_filter_efficiency=0.0, recirc_airflow=0.0,
                         recirc_efficiency=0.0, cadr=0.0, k_deposition=0.0, k_inactivation=0.0):
-    """Concentration at output times for piecewise-constant inputs (exact).
+    """Concentration at output times for piecewise-constant inputs (exact; domain.md §4).
 
-    :func:`piecewise_solution` followed by :func:`evaluate_piecewise` (domain.md §4,
-    "Transient", applied piece by piece).
-
-    Parameters
-    ----------
-    times_breaks, generation_per_piece, volume, outdoor_airflow, c0
-        As in :func:`piecewise_solution`. [h], [C·m3/h], [m3], [m3/h], [C]
-    output_times : array_like, shape (n_times,)
-        Times within the span of ``times_breaks``, in any order. [h]
-    outdoor_concentration, outdoor_filter_efficiency, recirc_airflow, recirc_efficiency, cadr, \
-k_deposition, k_inactivation
-        As in :func:`piecewise_solution`. [C], [-], [m3/h], [-], [m3/h], [1/h], [1/h]
-
-    Returns
-    -------
-    ndarray, shape (n_times, *zone_shape)
-        Concentration. [C]
+    :func:`piecewise_solution` (same arguments and units) then :func:`evaluate_piecewise` at
+    ``output_times`` (shape (n_times,), within the span of ``times_breaks``, any order) [h].
+    Returns an ndarray of shape (n_times, *zone_shape). [C]
     """
     sol = piecewise_solution(
         times_breaks, generation_per_piece, volume, outdoor_airflow, c0,

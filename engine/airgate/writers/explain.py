@@ -69,6 +69,9 @@ def zone(report: Report, s: SystemResult, z: ZoneResult) -> str:
         "",
     ]
     out += trail_lines(z.trail, system)
+    if z.dilution is not None:
+        out += ["", "  CO2 from occupants (well-mixed mass balance)"]
+        out += trail_lines(z.dilution, system)
     out += ["", "Findings"] + _findings(report, f"{s.id}/{z.id}", exact=True)
     out += ["", *[f"Caution: {c}" for c in report.cautions[:1]]]
     return "\n".join(out) + "\n"

@@ -55,20 +55,44 @@ def _trail(trail: Trail, system: str) -> list[dict[str, Any]]:
     return [step(s) for s in trail.steps.values()]
 
 
-def _zone(z: ZoneResult, system: str) -> dict[str, Any]:
+def _series(z: ZoneResult, step_minutes: int) -> dict[str, Any] | None:
+    series = z.series
+    if series is None or not step_minutes:
+        return None
+    every = max(1, int(step_minutes))  # the series is sampled each minute
+    return {"profile": series.profile, "step": {"value": every, "unit": "minute"},
+            "time": {"values": [_round(v * 60) for v in series.times[::every]], "unit": "minute"},
+            "CO2": {"values": [_round(v) for v in series.ppm[::every]], "unit": "ppm"},
+            "occupancy": {"values": [_round(v) for v in series.occupancy[::every]], "unit": ""}}
+
+
+def _dilution(z: ZoneResult, system: str, step_minutes: int) -> dict[str, Any] | None:
+    if z.dilution is None:
+        return None
+    out: dict[str, Any] = {"contaminant": "CO2 from occupants",
+                           "values": _values(z.dilution, system),
+                           "trail": _trail(z.dilution, system)}
+    series = _series(z, step_minutes)
+    if series is not None:
+        out["series"] = series
+    return out
+
+
+def _zone(z: ZoneResult, system: str, step_minutes: int = 0) -> dict[str, Any]:
     return {
         "id": z.id, "name": z.name, "space": z.space, "space_label": z.space_label,
         "air_class": z.air_class, "verdict": z.verdict, "values": _values(z.trail, system),
         "location": _location(z.location), "trail": _trail(z.trail, system),
+        "dilution": _dilution(z, system, step_minutes),
     }
 
 
-def _system(s: SystemResult, system: str) -> dict[str, Any]:
+def _system(s: SystemResult, system: str, step_minutes: int = 0) -> dict[str, Any]:
     return {
         "id": s.id, "name": s.name, "kind": s.kind, "verdict": s.verdict,
         "ventilation_efficiency_method": s.method, "critical_zone": s.critical_zone,
         "values": _values(s.trail, system), "location": _location(s.location),
-        "trail": _trail(s.trail, system), "zones": [_zone(z, system) for z in s.zones],
+        "trail": _trail(s.trail, system), "zones": [_zone(z, system, step_minutes) for z in s.zones],
     }
 
 
@@ -89,7 +113,7 @@ def _finding(f: Finding, system: str) -> dict[str, Any]:
     }
 
 
-def to_dict(report: Report) -> dict[str, Any]:
+def to_dict(report: Report, series_step: int = 0) -> dict[str, Any]:
     system = report.units
     pack = report.pack
     return {
@@ -102,12 +126,13 @@ def to_dict(report: Report) -> dict[str, Any]:
                   "edition": pack.edition, "units": pack.units, "provenance": pack.provenance,
                   "verify": pack.verify},
         "summary": report.counts(),
-        "systems": [_system(s, system) for s in report.systems],
+        "systems": [_system(s, system, series_step) for s in report.systems],
         "findings": [_finding(f, system) for f in report.findings],
         "notes": list(report.notes),
         "cautions": list(report.cautions),
     }
 
 
-def render(report: Report) -> str:
-    return json.dumps(to_dict(report), indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+def render(report: Report, series_step: int = 0) -> str:
+    """The JSON report; ``series_step`` > 0 adds each zone's design-day CO2 series [minutes]."""
+    return json.dumps(to_dict(report, series_step), indent=2, ensure_ascii=False, allow_nan=False) + "\n"

@@ -85,7 +85,27 @@ def _system(s: SystemResult, system: str) -> list[str]:
             f" · margin {formatting.amount(margin, 'airflow', system)} ({formatting.percent(rel)})")
     lines.append("")
     lines += _zone_rows(s, system)
+    lines += _dilution_rows(s, system)
     return lines
+
+
+def _dilution_rows(s: SystemResult, system: str) -> list[str]:
+    zones = [z for z in s.zones if z.dilution is not None]
+    if not zones:
+        return []
+    q = units.label("airflow", system)
+    head = ["zone", f"Q_oa {q}", "ACH", "CO2 ppm", "Δ ppm", "τ min", "99 % min", "DCV ppm",
+            "P_max", "peak ppm", "24h avg"]
+    rows = [head]
+    for z in zones:
+        t = z.dilution
+        excess = t.value("C_ss") - t.value("C_out")
+        rows.append([clean(z.id), _num(t, "Q_oa"), _num(t, "ACH"), _num(t, "C_ss"),
+                     formatting.number(excess, "concentration_ppm"), _num(t, "tau"),
+                     _num(t, "t99"), _num(t, "C_dcv"), _num(t, "P_max"), _num(t, "C_peak"),
+                     _num(t, "C_twa")])
+    out = ["", f"    CO2 from occupants (outdoor {formatting.number(zones[0].dilution.value('C_out'), 'concentration_ppm')} ppm; well-mixed steady state at design occupancy)"]
+    return out + _table(rows, right=set(range(1, len(head))))
 
 
 def render(report: Report) -> str:

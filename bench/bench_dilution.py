@@ -1,0 +1,157 @@
+"""Benchmark: exact piecewise dilution solutions against scipy.integrate.solve_ivp.
+
+Not a test. Run from the repository root:
+
+    PYTHONPATH=engine python bench/bench_dilution.py
+
+Two problems, each solved once by airgate's exact procedures and once by solve_ivp on the same
+equations (all zones as one vectorised system, restarted at every hourly break so that no
+integrator steps across a jump in its inputs), with one-minute output over 24 h:
+
+1. 1,000 independent single zones (airgate.procedures.dilution.piecewise_transient);
+2. one air handler serving 1,000 zones coupled through return air
+   (airgate.procedures.coupled.coupled_piecewise_transient), once with every zone different
+   (K = 1,000 distinct zone rates: the exact method's worst case, O(N + K²) per output time)
+   and once with the zones drawn from 10 room types (K = 10).
+
+CO2 in ppm from an hourly office occupancy profile; 0.0052 L/s of CO2 per person and 420 ppm
+outdoors (reference-values.md G). Prints wall times (best of a few runs for the exact side,
+one run for solve_ivp), their ratio and the largest relative difference between the two.
+"""
+
+from __future__ import annotations
+
+import time
+
+import numpy as np
+from scipy.integrate import solve_ivp
+
+from airgate.procedures.coupled import coupled_piecewise_transient, supply_coupling
+from airgate.procedures.dilution import piecewise_transient
+
+N_ZONES = 1000
+HOURS = 24
+C_OUT = 420.0  # ppm
+CO2_PER_PERSON = 1e6 * 0.0052 * 3.6  # ppm·m3/h per person (0.0052 L/s)
+RTOL = 1e-10
+METHODS = ("LSODA", "DOP853")
+
+# Fraction of design occupancy in each hour of the day: an office with a lunch dip.
+PROFILE = np.array([0, 0, 0, 0, 0, 0, 0.05, 0.3, 0.9, 1.0, 1.0, 0.95,
+                    0.5, 0.9, 1.0, 1.0, 0.9, 0.6, 0.2, 0.05, 0, 0, 0, 0.0])
+
+
+def _timed(fn, repeats):
+    best, out = np.inf, None
+    for _ in range(repeats):
+        start = time.perf_counter()
+        out = fn()
+        best = min(best, time.perf_counter() - start)
+    return best, out
+
+
+def _piecewise_ivp(rhs_for_piece, y0, breaks, times, method):
+    """solve_ivp piece by piece on the same piecewise-constant problem; (n_times, n)."""
+    out = np.empty((times.size, y0.size))
+    y = y0.copy()
+    for j in range(breaks.size - 1):
+        last = j == breaks.size - 2
+        sel = (times >= breaks[j]) & ((times < breaks[j + 1]) | (last & (times <= breaks[j + 1])))
+        t_eval = np.unique(np.concatenate((times[sel], [breaks[j + 1]])))
+        sol = solve_ivp(rhs_for_piece(j), (breaks[j], breaks[j + 1]), y, method=method,
+                        rtol=RTOL, atol=1e-12 * C_OUT, t_eval=t_eval)
+        if not sol.success:
+            raise RuntimeError(sol.message)
+        out[sel] = sol.y[:, : sel.sum()].T
+        y = sol.y[:, -1]
+    return out
+
+
+def _report(title, compared, t_exact, t_ivp, exact, ref):
+    rel = np.max(np.abs(exact - ref) / np.abs(ref))
+    print(f"\n{title}")
+    print(f"  compared: {compared}")
+    print(f"  exact procedure : {t_exact * 1e3:10.2f} ms (best of runs)")
+    for method, (t, r) in t_ivp.items():
+        rel = np.max(np.abs(exact - r) / np.abs(r))
+        print(f"  solve_ivp {method:6s}: {t * 1e3:10.2f} ms  -> ratio {t / t_exact:8.1f}x, "
+              f"largest relative difference {rel:.2e}")
+
+
+def single_zones(rng, breaks, times):
+    vol = rng.uniform(30.0, 500.0, N_ZONES)  # m3
+    q_oa = vol * rng.uniform(0.5, 6.0, N_ZONES)  # m3/h: 0.5 to 6 outdoor air changes per hour
+    people = rng.integers(1, 30, N_ZONES)
+    gen = CO2_PER_PERSON * PROFILE[:, None] * people[None, :]  # (24, n_zones)
+
+    def exact():
+        return piecewise_transient(breaks, gen, vol, q_oa, C_OUT, times,
+                                   outdoor_concentration=C_OUT)
+
+    t_exact, c_exact = _timed(exact, 5)
+
+    def rhs_for_piece(j):
+        src = gen[j] + q_oa * C_OUT
+        return lambda _t, y: (src - q_oa * y) / vol
+
+    ivp = {}
+    for method in METHODS:
+        t0 = time.perf_counter()
+        ref = _piecewise_ivp(rhs_for_piece, np.full(N_ZONES, C_OUT), breaks, times, method)
+        ivp[method] = (time.perf_counter() - t0, ref)
+    _report(f"{N_ZONES} single zones, {HOURS} hourly pieces, {times.size} one-minute outputs",
+            f"dilution.piecewise_transient vs solve_ivp(rtol={RTOL:g}) on all {N_ZONES} zones "
+            "as one system", t_exact, ivp, c_exact, ref)
+    return ivp
+
+
+def coupled_system(rng, breaks, times, n_types=None):
+    """n_types=None: every zone different (K = N); else zones repeat n_types room types."""
+    kinds = rng.integers(0, n_types or N_ZONES, N_ZONES) if n_types else np.arange(N_ZONES)
+    vol = rng.uniform(30.0, 500.0, N_ZONES)[kinds]
+    vpz = vol * rng.uniform(2.0, 8.0, N_ZONES)[kinds]  # m3/h primary airflow
+    exhaust = np.where(rng.random(N_ZONES) < 0.05, 0.5 * vpz, 0.0)  # a few exhausted rooms
+    cadr = np.where(rng.random(N_ZONES) < 0.2, rng.uniform(50, 300, N_ZONES), 0.0)[kinds]
+    vot = max(exhaust.sum(), 0.3 * vpz.sum())
+    people = rng.integers(1, 30, N_ZONES)
+    gen = CO2_PER_PERSON * PROFILE[:, None] * people[None, :]
+    kw = dict(outdoor_concentration=C_OUT, recirc_filter_efficiency=0.0, zone_exhaust=exhaust,
+              cadr=cadr)
+
+    def exact():
+        return coupled_piecewise_transient(breaks, gen, vol, vpz, vot, C_OUT, times, **kw).zone
+
+    t_exact, c_exact = _timed(exact, 3)
+    a, w = supply_coupling(vpz, vot, C_OUT, 0.0, 0.0, exhaust)
+
+    def rhs_for_piece(j):
+        return lambda _t, y: (gen[j] + vpz * (a + w @ y) - (vpz + cadr) * y) / vol
+
+    ivp = {}
+    for method in METHODS:
+        t0 = time.perf_counter()
+        ref = _piecewise_ivp(rhs_for_piece, np.full(N_ZONES, C_OUT), breaks, times, method)
+        ivp[method] = (time.perf_counter() - t0, ref)
+    k = np.unique((vpz + cadr) / vol).size
+    _report(f"one air handler, {N_ZONES} coupled zones (distinct zone rates K = {k}), "
+            f"{HOURS} hourly pieces, {times.size} one-minute outputs",
+            "coupled.coupled_piecewise_transient vs solve_ivp(rtol="
+            f"{RTOL:g}) on the {N_ZONES}-zone system with the rank-one coupling in its "
+            "right-hand side", t_exact, ivp, c_exact, ref)
+    return ivp
+
+
+def main():
+    rng = np.random.default_rng(2024)
+    breaks = np.arange(HOURS + 1, dtype=float)
+    times = np.linspace(0.0, HOURS, HOURS * 60 + 1)
+    print("airgate dilution benchmark: exact piecewise solutions vs scipy.integrate.solve_ivp")
+    print("CO2 [ppm], hourly occupancy profile, 24 h, one-minute output; every number below "
+          "is from this one run")
+    single_zones(rng, breaks, times)
+    coupled_system(rng, breaks, times)
+    coupled_system(rng, breaks, times, n_types=10)
+
+
+if __name__ == "__main__":
+    main()

@@ -1,0 +1,312 @@
+"""CO2 from occupants in each zone: the well-mixed mass balance applied to the evaluated schedule.
+
+For every zone whose height or volume is known: steady-state CO2 at design occupancy, the
+outdoor-air change rate, time constant and purge times, the DCV set point matching the required
+outdoor airflow, the occupancy the delivered outdoor air supports and — with an occupancy
+profile — the design day's peak and time-weighted average.
+
+Units: the engine's internal units (airflow L/s, volume m³, time h). The mass-balance procedures
+take m³/h, so airflows are multiplied by 3.6 at the call, and a CO2 generation G [L/s] enters as
+``10⁶·3.6·G`` ppm·m³/h so that ``C = C_out + 10⁶·G/Q`` in ppm (domain.md §4, CO2 as a tracer).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from airgate.evaluation.checks import Emitter
+from airgate.evaluation.report import SystemResult, ZoneResult
+from airgate.evaluation.trail import Trail
+from airgate.evaluation.zones import ZoneContext
+from airgate.models.schedule import Schedule, System
+from airgate.procedures import coupled, dilution
+from airgate.readers.datatables import data_table
+
+LS = 3.6  #: m³/h per L/s (exact)
+PPM = 1e6  #: ppm per unit volume fraction
+MB = "well-mixed mass balance (domain.md §4)"
+PURGE = "t = ln(1/(1 − f))/λ; CDC 2003 Guidelines for Environmental Infection Control, App. B"
+CO2_TABLE = "occupant-co2-generation"
+STEP_H = 1.0 / 60.0  #: sampling step of the design-day series [h]
+
+
+@dataclass
+class Series:
+    """A zone's CO2 over the design day (the second day of a two-day run: periodic start)."""
+
+    times: np.ndarray  #: [h] after midnight
+    ppm: np.ndarray  #: [ppm]
+    occupancy: np.ndarray  #: fraction of Pz present [–]
+    profile: str
+
+
+def volume_of(ctx: ZoneContext) -> float | None:
+    """Zone volume [m³]: stated, or height × area."""
+    if ctx.zone.volume is not None:
+        return ctx.zone.volume
+    if ctx.zone.height is not None:
+        return ctx.zone.height * ctx.zone.area
+    return None
+
+
+def _start(ctx: ZoneContext, z: ZoneResult, schedule: Schedule, volume: float) -> Trail:
+    """Volume, outdoor level, generation per person and total generation."""
+    t = Trail()
+    t.add("V", volume, "volume", origin="schedule" if ctx.zone.volume else "computed",
+          note="" if ctx.zone.volume else "height × Az")
+    project = schedule.project
+    t.add("C_out", project.outdoor_co2, "concentration_ppm", origin="schedule",
+          note="outdoor CO2 (project.outdoor_co2; 420 ppm when not stated)")
+    table = data_table(CO2_TABLE)
+    if ctx.zone.co2_generation is not None:
+        t.add("N", ctx.zone.co2_generation, "gas_generation", origin="schedule",
+              note="CO2 generation per occupant stated in the schedule")
+    else:
+        row = ctx.zone.activity or table.default
+        t.add("N", table.rows[row].value, "gas_generation", origin="table",
+              source=table.cite(row), note=f"activity '{row}'")
+    t.copy_from(z.trail, "Pz")
+    t.add("G", t.value("N") * t.value("Pz"), "gas_flow", formula="{N}·{Pz}",
+          note="CO2 generated at design occupancy")
+    return t
+
+
+def _steady_single(t: Trail, q_oa: float, q_note: str) -> None:
+    t.add("Q_oa", q_oa, "airflow", note=q_note)
+    c = dilution.steady_state_concentration(PPM * LS * t.value("G"), t.value("V"), LS * q_oa,
+                                            t.value("C_out"))
+    t.add("C_ss", float(c), "concentration_ppm", formula="{C_out} + 10⁶·{G} / {Q_oa}", source=MB,
+          note="steady state at design occupancy")
+
+
+def _rates(t: Trail) -> None:
+    """Change rate, time constant, time to 95 % of steady state, purge times."""
+    q = t.value("Q_oa")
+    lam = float(dilution.loss_rate(t.value("V"), LS * q))
+    t.add("ACH", lam, "rate", formula="3.6·{Q_oa} / {V}", source=MB,
+          note="outdoor-air changes per hour (CO2 has no other removal)")
+    if lam <= 0:
+        return
+    t.add("tau", 1 / lam, "time", formula="1 / {ACH}", note="time constant")
+    t.add("t95", float(dilution.time_to_fraction_of_steady_state(lam, 0.95)), "time",
+          formula="3·{tau}", note="time to 95 % of steady state", source=MB)
+    t.add("t99", float(dilution.time_to_fraction_removed(lam, 0.99)), "time",
+          formula="4.61·{tau}", note="purge time to 99 % removal", source=PURGE)
+    t.add("t99.9", float(dilution.time_to_fraction_removed(lam, 0.999)), "time",
+          formula="6.91·{tau}", note="purge time to 99.9 % removal", source=PURGE)
+
+
+def _dcv(t: Trail, z: ZoneResult) -> None:
+    """CO2 set point that keeps the zone at its required Voz at design occupancy."""
+    t.copy_from(z.trail, "Voz")
+    if t.value("Pz") <= 0 or t.value("Voz") <= 0:
+        return
+    per_person = t.value("Voz") / t.value("Pz")
+    setpoint = dilution.dcv_setpoint_ppm(t.value("C_out"), t.value("N"), per_person)
+    t.add("C_dcv", float(setpoint), "concentration_ppm", formula="{C_out} + 10⁶·{N}·{Pz} / {Voz}",
+          source=MB, note="DCV set point: steady CO2 when the zone gets exactly its Voz")
+    t.copy_from(z.trail, "Rp")
+    t.copy_from(z.trail, "Ra")
+    t.copy_from(z.trail, "Az")
+    t.copy_from(z.trail, "Ez")
+    t.add("Voz_min", t.value("Ra") * t.value("Az") / t.value("Ez"), "airflow",
+          formula="{Ra}·{Az} / {Ez}", note="DCV reset: Voz at zero occupancy; Voz rises by "
+                                           "Rp/Ez per person present")
+
+
+def _capacity(t: Trail, q_oa: float, note: str) -> None:
+    """Occupants the delivered outdoor air supports under the pack's rates."""
+    rp, ra, az, ez = (t.value(s) for s in ("Rp", "Ra", "Az", "Ez"))
+    if rp <= 0:
+        return
+    t.add("P_max", max(0.0, (q_oa * ez - ra * az) / rp), "people",
+          formula="({Q_oa}·{Ez} − {Ra}·{Az}) / {Rp}",
+          note=note or "occupants the delivered outdoor air supports (Rp·P + Ra·Az ≤ Q_oa·Ez)")
+
+
+def _short_term(t: Trail, ctx: ZoneContext, z: ZoneResult, fractions: np.ndarray,
+                emitter: Emitter) -> None:
+    """T = 3v/Vbz: whether the profile's peak may be averaged over it (Section 6.2.6.2)."""
+    vbz = z.trail.value("Vbz")
+    if vbz <= 0:
+        return
+    t.copy_from(z.trail, "Vbz")
+    t.add("T", 3 * t.value("V") / (LS * vbz), "time", formula="3·{V} / {Vbz}",
+          note="averaging time for short-term conditions (50·v/Vbz in SI, minutes)")
+    window = max(1, int(round(t.value("T") / STEP_H)))
+    kernel = np.ones(window) / window
+    cyclic = np.concatenate([fractions, fractions[: window - 1]])
+    best = float(np.max(np.convolve(cyclic, kernel, mode="valid")))
+    peak = float(np.max(fractions))
+    if peak > 0 and best < peak * (1 - 1e-9):
+        t.add("Pz_avg", best * z.trail.value("Pz"), "people", note="largest population averaged "
+              "over any window of length T in the profile")
+        emitter.emit("short-term-averaging", ctx.subject,
+                     f"the profile's peak ({peak:.2f} × Pz) lasts less than T = "
+                     f"{t.value('T') * 60:.0f} min; the population may be averaged over T to "
+                     f"{t.value('Pz_avg'):.1f} people (the design uses Pz)", ctx.location,
+                     system=ctx.system_id, zone=z.id)
+
+
+def _profile_pieces(schedule: Schedule, ctx: ZoneContext) -> tuple[np.ndarray, np.ndarray] | None:
+    if ctx.zone.profile is None:
+        return None
+    return schedule.profiles[ctx.zone.profile].pieces("weekday")
+
+
+def _two_days(breaks: np.ndarray, fractions: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    return np.concatenate([breaks[:-1], breaks + 24.0]), np.concatenate([fractions, fractions])
+
+
+def _sample_fractions(breaks: np.ndarray, fractions: np.ndarray, times: np.ndarray) -> np.ndarray:
+    idx = np.clip(np.searchsorted(breaks, times % 24.0, side="right") - 1, 0, len(fractions) - 1)
+    return fractions[idx]
+
+
+def _day_series_single(t: Trail, breaks, fractions, name: str) -> Series:
+    b2, f2 = _two_days(breaks, fractions)
+    gen = PPM * LS * t.value("G") * f2
+    sol = dilution.piecewise_solution(b2, gen, t.value("V"), LS * t.value("Q_oa"),
+                                      t.value("C_out"), outdoor_concentration=t.value("C_out"))
+    t.add("C_peak", float(dilution.peak_concentration(sol, 24.0, 48.0)[0]), "concentration_ppm",
+          note=f"peak over the design day, profile '{name}' (exact piecewise solution)",
+          source=MB)
+    t.add("C_twa", float(dilution.time_weighted_average(sol, 24.0, 48.0)), "concentration_ppm",
+          note="24-hour time-weighted average (exact integral)", source=MB)
+    times = 24.0 + np.arange(0, 24 * 60 + 1) * STEP_H
+    ppm = np.asarray(dilution.evaluate_piecewise(sol, times), dtype=float)
+    return Series(times - 24.0, ppm, _sample_fractions(breaks, fractions, times), name)
+
+
+def _limit(t: Trail, ctx: ZoneContext, schedule: Schedule, emitter: Emitter) -> None:
+    limit = schedule.project.co2_limit
+    if limit is None:
+        return
+    worst, what = (t.value("C_peak"), "peak over the design day") if "C_peak" in t else (
+        t.value("C_ss"), "steady state at design occupancy")
+    t.add("C_limit", limit, "concentration_ppm", origin="schedule", note="declared CO2 limit")
+    if worst > limit * (1 + 1e-9):
+        emitter.emit("concentration-limit", ctx.subject,
+                     f"CO2 {worst:,.0f} ppm ({what}) is above the declared limit of "
+                     f"{limit:,.0f} ppm", ctx.location, system=ctx.system_id, zone=ctx.zone.id)
+
+
+def _outdoor_air_to_zone(system: System, ctx: ZoneContext, z: ZoneResult,
+                         result: SystemResult) -> tuple[float, str]:
+    if system.kind == "single-zone":
+        return system.outdoor_air, "the system's scheduled outdoor-air intake"
+    if ctx.zone.outdoor_air is not None:
+        return ctx.zone.outdoor_air, "outdoor air scheduled to the zone"
+    total = result.trail.value("ΣVoz")
+    share = z.trail.value("Voz") / total if total > 0 else 0.0
+    return system.outdoor_air * share, "share of the intake in proportion to Voz (not scheduled)"
+
+
+def _single_path(system, ctxs, result, schedule, emitter, out) -> None:
+    for ctx, z in zip(ctxs, result.zones):
+        volume = volume_of(ctx)
+        if volume is None:
+            continue
+        t = _start(ctx, z, schedule, volume)
+        q, note = _outdoor_air_to_zone(system, ctx, z, result)
+        _steady_single(t, q, note)
+        _rates(t)
+        _dcv(t, z)
+        _capacity(t, q, "")
+        pieces = _profile_pieces(schedule, ctx)
+        if pieces is not None and t.value("Q_oa") > 0:
+            z.series = _day_series_single(t, *pieces, ctx.zone.profile)
+            _short_term(t, ctx, z, z.series.occupancy[:-1], emitter)
+        _limit(t, ctx, schedule, emitter)
+        z.dilution = t
+        out.append(z)
+
+
+def _coupled_steady(system: System, ctxs, result: SystemResult, trails: list[Trail]) -> bool:
+    """Steady CO2 of every zone of a multiple-zone system through the coupled balance."""
+    vpz = np.array([LS * z.trail.value("Vpz") for z in result.zones])
+    vot = LS * system.outdoor_air
+    if vot > vpz.sum() * (1 + 1e-12) or vot <= 0:
+        return False
+    gen = np.array([PPM * LS * t.value("G") for t in trails])
+    c_out = trails[0].value("C_out")
+    volume = np.array([t.value("V") for t in trails])
+    steady = coupled.coupled_steady_state(gen, volume, vpz, vot, outdoor_concentration=c_out)
+    x = vot / vpz.sum()
+    for t, z, c in zip(trails, result.zones, steady.zone):
+        t.copy_from(z.trail, "Vpz")
+        t.add("x", x, "fraction", note="outdoor fraction of the supply at the scheduled intake")
+        t.add("C_ss", float(c), "concentration_ppm", source=MB,
+              note="steady state at design occupancy; zones coupled through the return air")
+        excess = float(c) - c_out
+        direct = z.trail.value("Vpz") * x
+        q_eq = PPM * t.value("G") / excess if excess > 0 and t.value("G") > 0 else direct
+        t.add("Q_oa", q_eq, "airflow", note="equivalent outdoor airflow, 10⁶·G/(C_ss − C_out): "
+              "the clean air the zone effectively receives")
+    return True
+
+
+def _coupled_series(schedule: Schedule, system: System, ctxs, result, trails) -> None:
+    profiles = [_profile_pieces(schedule, c) for c in ctxs]
+    if all(p is None for p in profiles):
+        return
+    edges = sorted({float(b) for p in profiles if p is not None for b in p[0]} | {0.0, 24.0})
+    breaks = np.asarray(edges)
+    mids = (breaks[:-1] + breaks[1:]) / 2
+    frac = np.ones((len(mids), len(ctxs)))
+    for j, p in enumerate(profiles):
+        if p is not None:
+            frac[:, j] = _sample_fractions(p[0], p[1], mids)
+    b2 = np.concatenate([breaks[:-1], breaks + 24.0])
+    f2 = np.concatenate([frac, frac])
+    gen = f2 * np.array([PPM * LS * t.value("G") for t in trails])[None, :]
+    times = 24.0 + np.arange(0, 24 * 60 + 1) * STEP_H
+    vpz = np.array([LS * z.trail.value("Vpz") for z in result.zones])
+    c_out = trails[0].value("C_out")
+    run = coupled.coupled_piecewise_transient(
+        b2, gen, np.array([t.value("V") for t in trails]), vpz, LS * system.outdoor_air,
+        np.full(len(ctxs), c_out), times, outdoor_concentration=c_out)
+    for j, (t, z, ctx) in enumerate(zip(trails, result.zones, ctxs)):
+        ppm = run.zone[:, j]
+        name = ctx.zone.profile or "constant at design occupancy"
+        occ = _sample_fractions(breaks, frac[:, j], times)
+        z.series = Series(times - 24.0, ppm, occ, name)
+        t.add("C_peak", float(ppm.max()), "concentration_ppm", source=MB,
+              note=f"peak over the design day, profile '{name}' (exact coupled solution, "
+                   "sampled each minute)")
+        t.add("C_twa", float(np.trapezoid(ppm, times) / 24.0), "concentration_ppm", source=MB,
+              note="24-hour time-weighted average")
+
+
+def _multiple_zone(system, ctxs, result, schedule, emitter, out) -> None:
+    volumes = [volume_of(c) for c in ctxs]
+    if any(v is None for v in volumes) or any("Vpz" not in z.trail for z in result.zones):
+        return  # the coupled balance needs every zone's volume and primary airflow
+    trails = [_start(c, z, schedule, v) for c, z, v in zip(ctxs, result.zones, volumes)]
+    if not _coupled_steady(system, ctxs, result, trails):
+        return
+    _coupled_series(schedule, system, ctxs, result, trails)
+    for ctx, z, t in zip(ctxs, result.zones, trails):
+        _rates(t)
+        _dcv(t, z)
+        if z.series is not None and ctx.zone.profile is not None:
+            _short_term(t, ctx, z, z.series.occupancy[:-1], emitter)
+        _limit(t, ctx, schedule, emitter)
+        z.dilution = t
+        out.append(z)
+
+
+def analyse(system: System, ctxs: list[ZoneContext], result: SystemResult, schedule: Schedule,
+            emitter: Emitter) -> list[ZoneResult]:
+    """Attach a CO2 dilution trail (and design-day series) to every zone that can have one."""
+    out: list[ZoneResult] = []
+    if math.isinf(result.trail.value("Vot")):
+        return out
+    if system.kind == "multiple-zone":
+        _multiple_zone(system, ctxs, result, schedule, emitter, out)
+    else:
+        _single_path(system, ctxs, result, schedule, emitter, out)
+    return out

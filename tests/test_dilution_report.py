@@ -1,0 +1,132 @@
+"""The CO2 dilution analysis through the engine (domain.md §4; reference-values.md F, G)."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+
+from conftest import CFM, schedule
+
+FT = 0.3048
+
+
+def single(zone_extra=None, outdoor_air="620 cfm", project_extra=None, **kw):
+    z = {"id": "1", "space": "conference-meeting", "area": "2000 ft2", "occupants": 100,
+         "height": "10 ft", "air_distribution": "ceiling-supply-cool", **(zone_extra or {})}
+    data = schedule([{"id": "S", "kind": "single-zone", "outdoor_air": outdoor_air,
+                      "zones": [z]}], **kw)
+    data["project"].update(project_extra or {})
+    return data
+
+
+def test_steady_co2_at_7_5_L_s_per_person_is_about_700_ppm(evaluate):
+    # reference-values.md G: 7.5 L/s (15 cfm) per person ↔ about 700 ppm above outdoor
+    # (ASHRAE technical FAQ, published); 0.0052 L/s / 7.5 L/s → 693 ppm (derived).
+    r = evaluate(single({"co2_generation": 0.0052}, outdoor_air="750 L/s"))
+    t = r.systems[0].zones[0].dilution
+    assert t.value("C_ss") - t.value("C_out") == pytest.approx(693.3, abs=0.1)
+    assert t.value("C_out") == 420  # common practice default outdoor level
+
+
+@pytest.mark.parametrize("ach, t99, t999", [(2, 138, 207), (6, 46, 69), (12, 23, 35)])
+def test_purge_times_cdc_2003_table_b1(evaluate, ach, t99, t999):
+    # CDC, Guidelines for Environmental Infection Control in Health-Care Facilities (2003),
+    # Appendix B, Table B.1: minutes to 99 % and 99.9 % removal at a given air change rate.
+    volume = 2000 * 10 * FT**3  # m3
+    q = ach * volume / 3.6  # L/s
+    r = evaluate(single(outdoor_air=f"{q!r} L/s"))
+    t = r.systems[0].zones[0].dilution
+    assert t.value("ACH") == pytest.approx(ach)
+    assert round(t.value("t99") * 60) == t99
+    assert round(t.value("t99.9") * 60) == t999
+
+
+def test_dcv_setpoint_matches_required_airflow(evaluate):
+    # Derived from the steady balance (domain.md §2 DCV): C = C_out + 10⁶·N·Pz/Voz with
+    # Voz = 620 cfm (reference-values.md C worked example) and N = 0.0048 L/s (Persily & de Jonge
+    # 2017 as quoted, reference-values.md G).
+    r = evaluate(single())
+    t = r.systems[0].zones[0].dilution
+    expected = 420 + 1e6 * 0.0048 * 100 / (620 * CFM)
+    assert t.value("C_dcv") == pytest.approx(expected, rel=1e-9)
+    # at exactly the required intake the steady state equals the set point
+    assert t.value("C_ss") == pytest.approx(t.value("C_dcv"), rel=1e-6)
+    # DCV reset: Voz at zero occupancy is the area part, Ra·Az/Ez = 0.06·2000 = 120 cfm
+    assert t.value("Voz_min") / CFM == pytest.approx(120, rel=1e-9)
+
+
+def test_capacity_at_delivered_air(evaluate):
+    # Derived: the occupancy P with Rp·P + Ra·Az = Q·Ez; at Q = Voz it is the design Pz,
+    # and 100 cfm more supports 100/5 = 20 more people (Rp = 5 cfm/person).
+    assert evaluate(single()).systems[0].zones[0].dilution.value("P_max") == pytest.approx(100)
+    r = evaluate(single(outdoor_air="720 cfm"))
+    assert r.systems[0].zones[0].dilution.value("P_max") == pytest.approx(120)
+
+
+def test_tenfold_airflow_tenfold_lower_excess(evaluate):
+    # reference-values.md H (common practice): steady excess = generation / airflow.
+    a = evaluate(single(outdoor_air="100 L/s")).systems[0].zones[0].dilution
+    b = evaluate(single(outdoor_air="1000 L/s")).systems[0].zones[0].dilution
+    ratio = (a.value("C_ss") - 420) / (b.value("C_ss") - 420)
+    assert ratio == pytest.approx(10)
+
+
+def test_declared_limit_is_a_finding(evaluate):
+    r = evaluate(single(project_extra={"co2_limit": 1500}))
+    (f,) = [f for f in r.findings if f.rule == "concentration-limit"]
+    assert f.severity == "fail" and f.subject == "S/1"
+    assert evaluate(single(project_extra={"co2_limit": 2500})).verdict == "pass"
+
+
+def test_multiple_zone_steady_state_matches_closed_form(evaluate):
+    # domain.md §4: without filters or losses C_s = C_out + (1 − x)·ΣGz/Vot and
+    # C_z = C_s + Gz/Vpz (x = Vot/Vps).
+    zones = [{"id": str(i), "space": "office-space", "area": f"{a} ft2", "occupants": p,
+              "height": "9 ft", "air_distribution": "ceiling-supply-cool",
+              "primary_airflow": f"{v} cfm"} for i, (a, p, v) in
+             enumerate([(2000, 12, 900), (1000, 20, 500), (600, 3, 200)])]
+    r = evaluate(schedule([{"id": "M", "kind": "multiple-zone", "outdoor_air": "600 cfm",
+                            "zones": zones}]))
+    vpz = np.array([900, 500, 200]) * CFM
+    g = np.array([12, 20, 3]) * 0.0048  # L/s of CO2
+    vot = 600 * CFM
+    cs = 420 + (1 - vot / vpz.sum()) * 1e6 * g.sum() / vot
+    for z, gz, v in zip(r.systems[0].zones, g, vpz):
+        assert z.dilution.value("C_ss") == pytest.approx(cs + 1e6 * gz / v, rel=1e-9)
+
+
+def test_profile_gives_peak_and_average(evaluate):
+    data = single({"profile": "am"})
+    data["profiles"] = {"am": {"weekday": {"08:00-12:00": 1.0}}}
+    r = evaluate(data)
+    z = r.systems[0].zones[0]
+    t = z.dilution
+    # exact results agree with the minute-sampled series (trapezoid rule, common practice)
+    assert t.value("C_peak") >= z.series.ppm.max() - 1e-9
+    twa = np.trapezoid(z.series.ppm, z.series.times) / 24
+    assert t.value("C_twa") == pytest.approx(twa, rel=1e-4)
+    # four hours at Q: the peak approaches the steady state as 1 − e^(−λ·4h)
+    lam = t.value("ACH")
+    expected = 420 + (t.value("C_ss") - 420) * (1 - math.exp(-lam * 4))
+    assert t.value("C_peak") == pytest.approx(expected, rel=1e-6)
+
+
+def test_short_term_averaging_is_reported(evaluate):
+    # Section 6.2.6.2 (from memory): with T = 3v/Vbz longer than the peak, the population may
+    # be averaged over T; here v = 2000·30 ft3, Vbz = 620 cfm → T = 290 min against a 60 min peak.
+    data = single({"profile": "brief", "height": "30 ft"})
+    data["profiles"] = {"brief": {"weekday": {"10:00-11:00": 1.0}}}
+    r = evaluate(data)
+    t = r.systems[0].zones[0].dilution
+    assert t.value("T") * 60 == pytest.approx(3 * 60000 / 620, rel=1e-9)
+    (f,) = [f for f in r.findings if f.rule == "short-term-averaging"]
+    assert f.severity == "info"
+    assert t.value("Pz_avg") == pytest.approx(100 * 60 / (3 * 60000 / 620), rel=1e-2)
+
+
+def test_zone_without_height_has_no_dilution(evaluate):
+    data = single()
+    del data["systems"][0]["zones"][0]["height"]
+    assert evaluate(data).systems[0].zones[0].dilution is None
