@@ -298,6 +298,10 @@ def test_sealed_zone_without_losses_grows_linearly():
     np.testing.assert_allclose(dil.evaluate_piecewise(sol, [0.0, 1.0, 2.0, 4.0]),
                                [1.0, 7.0, 13.0, 13.0], rtol=1e-15)
     assert dil.time_weighted_average(sol, 0.0, 2.0) == pytest.approx(7.0, rel=1e-14)
+    # the λ → 0 limit is continuous: a subnormal loss rate behaves as none (regression pin)
+    tiny = dil.piecewise_transient([0.0, 2.0], [300.0], 50.0, 0.0, 1.0, [1.0, 2.0],
+                                   recirc_airflow=1.0, recirc_efficiency=5e-324)
+    np.testing.assert_allclose(tiny, [7.0, 13.0], rtol=1e-15)
 
 
 # --------------------------------------------------------------------------- floats and arrays

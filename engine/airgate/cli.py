@@ -44,6 +44,14 @@ def _parser() -> argparse.ArgumentParser:
     g.add_argument("--system", help="system id")
     e.add_argument("--rules", help="rule pack id or path")
 
+    pl = sub.add_parser("plot", help="draw a zone's (or system's) CO2 over the design day")
+    pl.add_argument("file")
+    g = pl.add_mutually_exclusive_group(required=True)
+    g.add_argument("--zone", help="zone id")
+    g.add_argument("--system", help="system id (all its zones)")
+    pl.add_argument("-o", "--output", required=True, help="picture file, .png or .svg")
+    pl.add_argument("--rules", help="rule pack id or path")
+
     r = sub.add_parser("rules", help="list or show rule packs")
     rs = r.add_subparsers(dest="rules_command", metavar="ACTION")
     rs.add_parser("list", help="list the built-in rule packs")
@@ -89,6 +97,25 @@ def _explain(args: argparse.Namespace) -> int:
     if system is None:
         raise _unknown("system", args.system, [s.id for s in report.systems])
     sys.stdout.write(explain.system_(report, system))
+    return EXIT_PASS
+
+
+def _plot(args: argparse.Namespace) -> int:
+    from airgate.evaluation.engine import check_file
+    from airgate.writers import plot
+
+    report = check_file(args.file, args.rules)
+    if args.zone is not None:
+        found = report.zone(args.zone)
+        if found is None:
+            raise _unknown("zone", args.zone, [z.id for s in report.systems for z in s.zones])
+        system, zones = found[0], [found[1]]
+    else:
+        system = report.system(args.system)
+        if system is None:
+            raise _unknown("system", args.system, [s.id for s in report.systems])
+        zones = system.zones
+    plot.plot(report, system, zones, args.output)
     return EXIT_PASS
 
 
@@ -143,6 +170,8 @@ def run(argv: Sequence[str] | None = None) -> int:
         return _explain(args)
     if args.command == "rules":
         return _rules(args, parser)
+    if args.command == "plot":
+        return _plot(args)
     if args.command == "schema":
         return _schema(args)
     parser.print_help()

@@ -1,0 +1,83 @@
+"""``airgate plot``: CO2 over the design day with the limit line and the occupancy profile.
+
+matplotlib is an optional extra (``pip install "airgate[plot]"``); without it the command says
+how to install it. The file extension picks the format (PNG or SVG). Output is deterministic:
+no timestamps or random ids in the file (SVG hash salt fixed, PNG metadata cleared).
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from airgate.errors import UsageError
+from airgate.evaluation.report import Report, SystemResult, ZoneResult
+from airgate.writers.text import clean
+
+FORMATS = {".png": "png", ".svg": "svg"}
+
+
+def _pyplot():
+    try:
+        import matplotlib
+
+        matplotlib.use("Agg")
+        matplotlib.rcParams["svg.hashsalt"] = "airgate"
+        import matplotlib.pyplot as plt
+    except ImportError:
+        raise UsageError("plotting needs matplotlib",
+                         hint='pip install "airgate[plot]" (or pip install matplotlib)') from None
+    return plt
+
+
+def _zones(report: Report, system: SystemResult, zones: list[ZoneResult]) -> list[ZoneResult]:
+    usable = [z for z in zones if z.series is not None]
+    if not usable:
+        which = zones[0].id if len(zones) == 1 else system.id
+        raise UsageError(f"no design-day CO2 series for {which}: give the zone a height or "
+                         "volume and an occupancy profile")
+    return usable
+
+
+def plot(report: Report, system: SystemResult, zones: list[ZoneResult], output: str) -> None:
+    """Draw CO2 against time of day for ``zones``, with limit and occupancy, to ``output``."""
+    suffix = Path(output).suffix.lower()
+    if suffix not in FORMATS:
+        raise UsageError(f"cannot tell the picture format from '{output}'",
+                         allowed=sorted(FORMATS), hint="name the file .png or .svg")
+    zones = _zones(report, system, zones)
+    plt = _pyplot()
+    fig, (ax, occ) = plt.subplots(2, 1, figsize=(9, 6), sharex=True,
+                                  gridspec_kw={"height_ratios": [3, 1]})
+    for z in zones:
+        label = f"{clean(z.id)} {clean(z.name or '')}".strip()
+        ax.plot(z.series.times, z.series.ppm, label=label, linewidth=1.6)
+        occ.step(z.series.times, z.series.occupancy, where="post", linewidth=1.2, label=label)
+    first = zones[0].dilution
+    ax.axhline(first.value("C_out"), color="0.5", linestyle=":", linewidth=1,
+               label=f"outdoor {first.value('C_out'):.0f} ppm")
+    if "C_limit" in first:
+        ax.axhline(first.value("C_limit"), color="tab:red", linestyle="--", linewidth=1.2,
+                   label=f"limit {first.value('C_limit'):.0f} ppm")
+    ax.set_ylabel("CO2 [ppm]")
+    ax.set_title(f"{clean(report.project_name)} — {clean(system.id)}: CO2 from occupants over "
+                 "the design day (well-mixed)", fontsize=10)
+    ax.grid(True, alpha=0.3)
+    ax.legend(fontsize=8, loc="upper left")
+    occ.set_ylabel("occupancy [× Pz]")
+    occ.set_xlabel("time of day [h]")
+    occ.set_xlim(0, 24)
+    occ.set_xticks(range(0, 25, 3))
+    occ.grid(True, alpha=0.3)
+    fig.text(0.01, 0.005, "Aid to review only: the adopted code and the licensed professional "
+             "of record govern; results depend on the inputs given.", fontsize=7, color="0.4")
+    fig.tight_layout(rect=(0, 0.02, 1, 1))
+    metadata = {"Software": None} if suffix == ".png" else {"Date": None}
+    tmp = Path(output).with_name(f".{Path(output).name}.tmp")
+    try:
+        fig.savefig(tmp, format=FORMATS[suffix], dpi=120, metadata=metadata)
+        tmp.replace(output)
+    except OSError as exc:
+        tmp.unlink(missing_ok=True)
+        raise UsageError(f"cannot write {output}: {exc.strerror}") from None
+    finally:
+        plt.close(fig)

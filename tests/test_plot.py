@@ -1,0 +1,42 @@
+"""``airgate plot`` writes a readable, deterministic picture (matplotlib, optional extra)."""
+
+from __future__ import annotations
+
+import pytest
+
+pytest.importorskip("matplotlib")
+
+from airgate.cli import main  # noqa: E402
+
+from conftest import DEMO  # noqa: E402
+
+
+def test_png_of_a_zone(tmp_path, capsys):
+    out = tmp_path / "zone.png"
+    assert main(["plot", str(DEMO), "--zone", "203", "-o", str(out)]) == 0
+    data = out.read_bytes()
+    assert data[:8] == b"\x89PNG\r\n\x1a\n" and len(data) > 20_000
+
+
+def test_svg_of_a_system_is_deterministic(tmp_path, capsys):
+    a, b = tmp_path / "a.svg", tmp_path / "b.svg"
+    assert main(["plot", str(DEMO), "--system", "AHU-3", "-o", str(a)]) == 0
+    assert main(["plot", str(DEMO), "--system", "AHU-3", "-o", str(b)]) == 0
+    text = a.read_text(encoding="utf-8")
+    assert "<svg" in text and "CO2" in text
+    assert a.read_bytes() == b.read_bytes()
+
+
+def test_unknown_extension_and_missing_series(tmp_path, capsys):
+    assert main(["plot", str(DEMO), "--zone", "203", "-o", str(tmp_path / "x.gif")]) == 2
+    assert "png" in capsys.readouterr().err
+    import yaml
+
+    data = yaml.safe_load(DEMO.read_text(encoding="utf-8"))
+    for z in data["systems"][1]["zones"]:
+        z.pop("profile", None)
+    path = tmp_path / "noprofile.yaml"
+    path.write_text(yaml.safe_dump(data), encoding="utf-8")
+    assert main(["plot", str(path), "--system", "DOAS-1", "-o", str(tmp_path / "y.png")]) == 2
+    assert "occupancy profile" in capsys.readouterr().err
+    assert not (tmp_path / "y.png").exists()
