@@ -1,0 +1,6 @@
+"""One module per CLI command. Each defines ``register(subparsers)`` and ``run(args) -> int``.
+
+``airgate.cli`` assembles them in the order of :data:`COMMANDS`.
+"""
+
+COMMANDS = ("check", "explain", "plot", "rules", "schema")

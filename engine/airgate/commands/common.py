@@ -1,0 +1,25 @@
+"""Helpers shared by commands."""
+
+from __future__ import annotations
+
+from airgate.errors import UsageError, nearest
+
+
+def unknown(what: str, value: str, ids: list[str]) -> UsageError:
+    """A usage error for an id that is not in the schedule, with the nearest ids."""
+    close = nearest(value, ids)
+    return UsageError(f"no {what} '{value}' in the schedule"
+                      + (f"; did you mean {', '.join(close)}?" if close else ""), allowed=ids)
+
+
+def pick(report, zone_id: str | None, system_id: str | None):
+    """(system, zones) for ``--zone`` or ``--system``; usage error when the id is unknown."""
+    if zone_id is not None:
+        found = report.zone(zone_id)
+        if found is None:
+            raise unknown("zone", zone_id, [z.id for s in report.systems for z in s.zones])
+        return found[0], [found[1]]
+    system = report.system(system_id)
+    if system is None:
+        raise unknown("system", system_id, [s.id for s in report.systems])
+    return system, system.zones

@@ -1,0 +1,31 @@
+"""``airgate explain``: the calculation trail of a zone or a system."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+
+from airgate.commands.common import pick
+from airgate.errors import EXIT_PASS
+
+
+def register(sub) -> None:
+    e = sub.add_parser("explain", help="print the calculation trail of a zone or system")
+    e.add_argument("file")
+    g = e.add_mutually_exclusive_group(required=True)
+    g.add_argument("--zone", help="zone id")
+    g.add_argument("--system", help="system id")
+    e.add_argument("--rules", help="rule pack id or path")
+
+
+def run(args: argparse.Namespace) -> int:
+    from airgate.evaluation.engine import check_file
+    from airgate.writers import explain
+
+    report = check_file(args.file, args.rules)
+    system, zones = pick(report, args.zone, args.system)
+    if args.zone is not None:
+        sys.stdout.write(explain.zone(report, system, zones[0]))
+    else:
+        sys.stdout.write(explain.system_(report, system))
+    return EXIT_PASS

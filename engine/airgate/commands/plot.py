@@ -1,0 +1,28 @@
+"""``airgate plot``: a picture of CO2 over the design day for a zone or a system's zones."""
+
+from __future__ import annotations
+
+import argparse
+
+from airgate.commands.common import pick
+from airgate.errors import EXIT_PASS
+
+
+def register(sub) -> None:
+    pl = sub.add_parser("plot", help="draw a zone's (or system's) CO2 over the design day")
+    pl.add_argument("file")
+    g = pl.add_mutually_exclusive_group(required=True)
+    g.add_argument("--zone", help="zone id")
+    g.add_argument("--system", help="system id (all its zones)")
+    pl.add_argument("-o", "--output", required=True, help="picture file, .png or .svg")
+    pl.add_argument("--rules", help="rule pack id or path")
+
+
+def run(args: argparse.Namespace) -> int:
+    from airgate.evaluation.engine import check_file
+    from airgate.writers import plot
+
+    report = check_file(args.file, args.rules)
+    system, zones = pick(report, args.zone, args.system)
+    plot.plot(report, system, zones, args.output)
+    return EXIT_PASS

@@ -1,0 +1,29 @@
+"""``airgate schema``: print a published JSON Schema."""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+
+from airgate.errors import EXIT_PASS
+
+
+def register(sub) -> None:
+    s = sub.add_parser("schema", help="print a published JSON Schema")
+    s.add_argument("which", choices=["schedule", "rules"])
+
+
+def run(args: argparse.Namespace) -> int:
+    if args.which == "schedule":
+        from airgate.models.schedule import Schedule
+
+        schema = Schedule.model_json_schema()
+        schema["$schema"] = "https://json-schema.org/draft/2020-12/schema"
+        schema["title"] = "airgate ventilation schedule, format version 1"
+    else:
+        from airgate.readers.rulepack import pack_schema
+
+        schema = pack_schema()
+    sys.stdout.write(json.dumps(schema, indent=2, ensure_ascii=False, sort_keys=True) + "\n")
+    return EXIT_PASS
