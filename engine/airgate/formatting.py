@@ -21,7 +21,7 @@ def number(value: float, kind: str) -> str:
         return f"{value:,.0f}" if abs(value) >= 10 else f"{value:.1f}"
     if kind == "rate":
         return f"{value:.2f}"
-    if kind in ("gas_flow", "gas_generation"):
+    if kind in ("gas_flow", "gas_generation", "emission", "concentration"):
         return f"{value:.4g}"
     if kind == "people":
         text = f"{value:,.1f}"

@@ -104,6 +104,8 @@ KINDS: dict[str, Kind] = {
         Kind("time", "hour", "minute", "minute", "min", "min", "'45 min'"),
         Kind("rate", "1/hour", "1/hour", "1/hour", "1/h", "1/h", "'2.5 1/h'"),
         Kind("gas_flow", "L/s", "L/s", "L/s", "L/s", "L/s", "'0.12 L/s'"),
+        Kind("emission", "1/hour", "1/hour", "1/hour", "/h", "/h", "'50 /h'"),
+        Kind("concentration", "1/m**3", "1/m**3", "1/m**3", "/m³", "/m³", "'3 /m3'"),
         Kind("gas_generation", "L/s/person", "L/s/person", "L/s/person", "L/s·person",
              "L/s·person", "'0.0048 L/s/person'"),
     )
@@ -127,6 +129,8 @@ JSON_UNITS: dict[tuple[str, str], str] = {
     ("time", IP): "minute", ("time", SI): "minute",
     ("rate", IP): "1/hour", ("rate", SI): "1/hour",
     ("gas_flow", IP): "L/s", ("gas_flow", SI): "L/s",
+    ("emission", IP): "1/hour", ("emission", SI): "1/hour",
+    ("concentration", IP): "1/m**3", ("concentration", SI): "1/m**3",
     ("gas_generation", IP): "L/s/person", ("gas_generation", SI): "L/s/person",
 }
 

@@ -5,7 +5,7 @@ from __future__ import annotations
 from pathlib import Path
 
 from airgate.errors import AirgateError, RulePackError, raise_all
-from airgate.evaluation import bind, dilution, systems
+from airgate.evaluation import bind, contaminants, dilution, systems
 from airgate.evaluation.checks import KNOWN_CHECKS, Emitter
 from airgate.evaluation.findings import Location
 from airgate.evaluation.report import SAFETY_CAUTION, Report, SystemResult
@@ -90,6 +90,7 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack) -> Report:
                                   _method(pack, system))
         systems.air_classes(system, ctxs, emitter, where)
         dilution.analyse(system, ctxs, result, loaded.model, emitter)
+        contaminants.analyse(system, ctxs, result, loaded.model, emitter)
         results.append(result)
     findings = sorted(emitter.findings, key=lambda f: f.sort_key())
     _verdicts(results, findings)

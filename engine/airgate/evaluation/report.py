@@ -28,6 +28,8 @@ class ZoneResult:
     #: CO2 dilution trail and design-day series, where the zone's volume is known
     dilution: Trail | None = None
     series: object | None = None
+    #: declared contaminants: id → trail (same zones as the CO2 analysis)
+    contaminants: dict[str, Trail] = field(default_factory=dict)
 
 
 @dataclass

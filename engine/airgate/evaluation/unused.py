@@ -9,7 +9,7 @@ from airgate.models.schedule import Schedule
 _SYSTEM_FIELDS = {
     "population": {"multiple-zone"},
     "ventilation_efficiency": {"multiple-zone"},
-    "supply_airflow": {"multiple-zone"},
+    "supply_airflow": {"multiple-zone", "single-zone"},
 }
 _ZONE_FIELDS = {
     "primary_airflow": {"multiple-zone"},

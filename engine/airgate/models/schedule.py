@@ -24,40 +24,9 @@ from pydantic import (
 from pydantic_core import PydanticCustomError
 
 from airgate import units
+from airgate.models.equipment import AirCleaner, Contaminant, Filter
 from airgate.models.profiles import Profile
-
-_QUANTITY_SCHEMA = {
-    "anyOf": [
-        {"type": "number"},
-        {"type": "string", "description": "a number followed by a unit, e.g. '850 cfm'"},
-    ]
-}
-
-
-def _quantity(kind: str, *, positive: bool) -> BeforeValidator:
-    def validate(value: Any, info: ValidationInfo) -> float:
-        system = (info.context or {}).get("units", units.IP)
-        try:
-            x = units.parse(value, kind, system)
-        except units.QuantityError as exc:
-            raise ValueError(str(exc)) from None
-        if positive and x <= 0:
-            raise ValueError(f"must be greater than zero, got {value!r}")
-        if x < 0:
-            raise ValueError(f"must not be negative, got {value!r}")
-        return x
-
-    return BeforeValidator(validate)
-
-
-def Q(kind: str, description: str, *, positive: bool = False) -> Any:  # noqa: N802
-    """A quantity field of ``kind``; ``description`` ends with its units in brackets."""
-    return Annotated[
-        float,
-        _quantity(kind, positive=positive),
-        WithJsonSchema({**_QUANTITY_SCHEMA, "description": description}),
-        Field(description=description),
-    ]
+from airgate.models.quantities import Q
 
 
 def _finite_count(value: Any) -> Any:
@@ -186,6 +155,8 @@ class Zone(_Model):
     outdoor_air: Q(
         "airflow", "Outdoor air delivered to the zone (outdoor-air systems). [cfm or L/s]"
     ) | None = None
+    air_cleaners: list[AirCleaner] = Field(default_factory=list,
+                                           description="In-room air cleaners. [–]")
     profile: str | None = Field(None, min_length=1,
                                 description="Name of an occupancy profile under 'profiles'. [–]")
     activity: str | None = Field(None, min_length=1,
@@ -226,6 +197,7 @@ class System(_Model):
         None, description="Ev method (multiple-zone); default: the pack's. [–]")
     variable_air_volume: bool = Field(
         True, description="Zones have variable primary airflow (VAV terminals). [–]")
+    filter: Filter | None = Field(None, description="Particle filter on the supply air. [–]")
     recirculates: bool | None = Field(
         None, description="Return air is recirculated; default: not for outdoor-air systems. [–]")
     zones: list[Zone] = Field(min_length=1, description="Zones served. [–]")
@@ -251,7 +223,20 @@ class Schedule(_Model):
     rules: str | None = Field(None, description="Rule pack id or path; --rules overrides. [–]")
     profiles: dict[str, Profile] = Field(default_factory=dict,
                                          description="Named occupancy profiles. [–]")
+    contaminants: list[Contaminant] = Field(
+        default_factory=list, description="Contaminants to analyse besides occupant CO2. [–]")
     systems: list[System] = Field(min_length=1, description="Air systems. [–]")
+
+    @field_validator("contaminants")
+    @classmethod
+    def _unique_contaminants(cls, items: list[Contaminant]) -> list[Contaminant]:
+        seen: set[str] = set()
+        for c in items:
+            if c.id.lower() in seen or c.id.lower() == "co2":
+                raise ValueError(f"contaminant id '{c.id}' is used twice (CO2 from occupants is "
+                                 "always analysed and needs no entry)")
+            seen.add(c.id.lower())
+        return items
 
     @field_validator("systems")
     @classmethod

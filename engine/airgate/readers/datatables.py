@@ -17,9 +17,10 @@ from airgate.readers.rulepack import builtin_rules_dir
 class DataRow:
     id: str
     label: str
-    value: float  #: in the table's units
+    value: float | None  #: in the table's units (single-valued tables)
     provenance: str
     notes: str = ""
+    values: dict[str, float] | None = None  #: several values per row (e.g. by size range)
 
 
 @dataclass(frozen=True)
@@ -47,8 +48,9 @@ def data_table(table_id: str) -> DataTable:
     if error is not None:
         raise doc.error(RulePackError, error.message, tuple(error.absolute_path))
     data = doc.data
-    rows = {r["id"]: DataRow(r["id"], r["label"], float(r["value"]), r["provenance"],
-                             r.get("notes", "")) for r in data["rows"]}
+    rows = {str(r["id"]): DataRow(str(r["id"]), r["label"],
+                                  float(r["value"]) if "value" in r else None, r["provenance"],
+                                  r.get("notes", ""), r.get("values")) for r in data["rows"]}
     if data["default"] not in rows:
         raise doc.error(RulePackError, f"default row '{data['default']}' is not in the table",
                         ("default",), allowed=sorted(rows))

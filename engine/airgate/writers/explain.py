@@ -72,6 +72,9 @@ def zone(report: Report, s: SystemResult, z: ZoneResult) -> str:
     if z.dilution is not None:
         out += ["", "  CO2 from occupants (well-mixed mass balance)"]
         out += trail_lines(z.dilution, system)
+    for cid, t in sorted(z.contaminants.items()):
+        out += ["", f"  {clean(cid)} (well-mixed mass balance, every removal mechanism)"]
+        out += trail_lines(t, system)
     out += ["", "Findings"] + _findings(report, f"{s.id}/{z.id}", exact=True)
     out += ["", *[f"Caution: {c}" for c in report.cautions[:1]]]
     return "\n".join(out) + "\n"

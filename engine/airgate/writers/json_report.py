@@ -84,6 +84,8 @@ def _zone(z: ZoneResult, system: str, step_minutes: int = 0) -> dict[str, Any]:
         "air_class": z.air_class, "verdict": z.verdict, "values": _values(z.trail, system),
         "location": _location(z.location), "trail": _trail(z.trail, system),
         "dilution": _dilution(z, system, step_minutes),
+        "contaminants": {cid: {"values": _values(t, system), "trail": _trail(t, system)}
+                         for cid, t in sorted(z.contaminants.items())},
     }
 
 

@@ -86,7 +86,27 @@ def _system(s: SystemResult, system: str) -> list[str]:
     lines.append("")
     lines += _zone_rows(s, system)
     lines += _dilution_rows(s, system)
+    lines += _contaminant_rows(s, system)
     return lines
+
+
+def _contaminant_rows(s: SystemResult, system: str) -> list[str]:
+    ids = sorted({cid for z in s.zones for cid in z.contaminants})
+    out: list[str] = []
+    q = units.label("airflow", system)
+    for cid in ids:
+        head = ["zone", "C ss /m³", f"clean air {q}", "per person", "eq. ACH", "peak", "24h avg"]
+        rows = [head]
+        for z in s.zones:
+            t = z.contaminants.get(cid)
+            if t is None:
+                continue
+            rows.append([clean(z.id), _num(t, "C_ss"), _num(t, "Qc"), _num(t, "Qc_pp"),
+                         _num(t, "ACHe"), _num(t, "C_peak"), _num(t, "C_twa")])
+        out += ["", f"    {clean(cid)} (well-mixed steady state; clean air = outdoor air + "
+                    "filtration + air cleaners + deposition + inactivation)"]
+        out += _table(rows, right=set(range(1, len(head))))
+    return out
 
 
 def _dilution_rows(s: SystemResult, system: str) -> list[str]:

@@ -1,0 +1,216 @@
+"""Declared contaminants (respiratory aerosol, user-defined sources) in each zone.
+
+The same well-mixed balance as the CO2 analysis (domain.md §4) with every removal term:
+outdoor air, the system filter on outdoor and recirculated air (MERV → efficiency by particle
+size range, ANSI/ASHRAE 52.2-2017 Table 12-1), in-room air cleaners (CADR), deposition and
+inactivation. Amounts are in the contaminant's own unit; concentrations per m³; generation
+[unit/h] = concentration × m³/h, as the procedures expect.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from airgate.evaluation.checks import Emitter
+from airgate.evaluation.dilution import LS, MB, STEP_H, _profile_pieces, _two_days, volume_of
+from airgate.evaluation.report import SystemResult, ZoneResult
+from airgate.evaluation.trail import Trail
+from airgate.evaluation.zones import ZoneContext
+from airgate.models.equipment import Contaminant
+from airgate.models.schedule import Schedule, System
+from airgate.procedures import coupled, dilution
+from airgate.readers.datatables import data_table
+
+MECHANISMS = (("outdoor_air", "Qc_oa", "outdoor air"),
+              ("recirculation_filter", "Qc_filter", "filtration of recirculated air"),
+              ("air_cleaner", "Qc_cleaner", "in-room air cleaners"),
+              ("deposition", "Qc_dep", "deposition"),
+              ("inactivation", "Qc_inact", "inactivation"))
+
+
+def filter_efficiency(system: System, c: Contaminant) -> tuple[float, str]:
+    """Single-pass efficiency of the system filter for ``c`` and where it comes from."""
+    if c.kind == "gas" or system.filter is None:
+        return 0.0, "no filter" if system.filter is None else "a particle filter removes no gas"
+    if system.filter.efficiency is not None:
+        return system.filter.efficiency, "stated filter efficiency"
+    table = data_table("merv-efficiency")
+    rated = sorted((int(k) for k in table.rows if int(k) <= system.filter.merv), reverse=True)
+    if not rated:
+        return 0.0, f"MERV {system.filter.merv}: below the table, no efficiency credited"
+    row = table.rows[str(rated[0])]
+    note = f"MERV {system.filter.merv}, {c.size_range}"
+    if rated[0] != system.filter.merv:
+        note += f" (credited as the next lower listed rating, MERV {rated[0]})"
+    return float(row.values[c.size_range]), f"{note}; {table.cite(row.id)}"
+
+
+def _k_inact(c: Contaminant) -> float:
+    if c.half_life is not None:
+        return float(dilution.inactivation_rate_from_half_life(c.half_life))
+    return c.inactivation or 0.0
+
+
+def _cadr(ctx: ZoneContext, c: Contaminant) -> float:
+    return 0.0 if c.kind == "gas" else sum(a.cadr for a in ctx.zone.air_cleaners)
+
+
+def _generation(ctx: ZoneContext, z: ZoneResult, c: Contaminant) -> tuple[float, float]:
+    """(people part, constant part) of the emission at design occupancy [unit/h]."""
+    return c.per_person * z.trail.value("Pz"), c.per_area * ctx.zone.area + c.per_zone
+
+
+def _start(ctx, z, c: Contaminant, system: System) -> Trail:
+    t = Trail()
+    t.add("V", volume_of(ctx), "volume")
+    people, rest = _generation(ctx, z, c)
+    t.add("E", people + rest, "emission", note=f"{c.unit}/h at design occupancy "
+          f"(per person {c.per_person:g}, per m² {c.per_area:g}, per zone {c.per_zone:g})")
+    eff, why = filter_efficiency(system, c)
+    t.add("eta", eff, "fraction", note=why)
+    t.add("CADR", _cadr(ctx, c), "airflow", note="sum of the zone's air cleaners")
+    t.add("k_dep", 0.0 if c.kind == "gas" else c.deposition, "rate", note="deposition")
+    t.add("k_inact", _k_inact(c), "rate", note="inactivation" + (
+        f" from half-life {c.half_life:g} h" if c.half_life else ""))
+    return t
+
+
+def _single(ctx, z, c, system: System, schedule: Schedule, emitter: Emitter) -> Trail | None:
+    co2 = z.dilution
+    if co2 is None or "Q_oa" not in co2:
+        return None
+    t = _start(ctx, z, c, system)
+    q_oa = co2.value("Q_oa")
+    q_rec = 0.0
+    if system.kind == "single-zone" and system.supply_airflow is not None:
+        q_rec = max(0.0, system.supply_airflow - q_oa)
+    t.add("Q_oa", q_oa, "airflow", note=co2["Q_oa"].note)
+    t.add("Q_rec", q_rec, "airflow", note="recirculated airflow through the filter (supply − "
+          "outdoor air)" if q_rec else "no recirculation analysed")
+    kw = dict(recirc_airflow=LS * q_rec, recirc_efficiency=t.value("eta"),
+              cadr=LS * t.value("CADR"), k_deposition=t.value("k_dep"),
+              k_inactivation=t.value("k_inact"))
+    c_ss = dilution.steady_state_concentration(
+        t.value("E"), t.value("V"), LS * q_oa, c.outdoor, outdoor_filter_efficiency=t.value("eta"),
+        **kw)
+    t.add("C_ss", float(c_ss), "concentration", note=f"{c.unit}/m³ at steady state", source=MB)
+    parts = dilution.loss_breakdown(t.value("V"), LS * q_oa, **kw)
+    for key, symbol, what in MECHANISMS:
+        t.add(symbol, float(parts[key]) / LS, "airflow", note=f"equivalent clean airflow: {what}")
+    _totals(t, z)
+    pieces = _profile_pieces(schedule, ctx)
+    if pieces is not None:
+        people, rest = _generation(ctx, z, c)
+        b2, f2 = _two_days(*pieces)
+        sol = dilution.piecewise_solution(
+            b2, people * f2 + rest, t.value("V"), LS * q_oa, c.outdoor,
+            outdoor_concentration=c.outdoor, outdoor_filter_efficiency=t.value("eta"), **kw)
+        t.add("C_peak", float(dilution.peak_concentration(sol, 24.0, 48.0)[0]), "concentration",
+              note=f"peak over the design day, profile '{ctx.zone.profile}'", source=MB)
+        t.add("C_twa", float(dilution.time_weighted_average(sol, 24.0, 48.0)), "concentration",
+              note="24-hour time-weighted average", source=MB)
+    return t
+
+
+def _totals(t: Trail, z: ZoneResult) -> None:
+    total = sum(t.value(s) for _, s, _ in MECHANISMS)
+    t.add("Qc", total, "airflow", note="equivalent clean airflow, all mechanisms")
+    pz = z.trail.value("Pz")
+    if pz > 0:
+        t.add("Qc_pp", total / pz, "airflow_per_person", note="equivalent clean airflow per person")
+    t.add("ACHe", LS * total / t.value("V"), "rate", note="equivalent air changes per hour")
+
+
+def _coupled(system: System, ctxs, result: SystemResult, c: Contaminant, schedule: Schedule):
+    """Steady state (and design day) of one contaminant over a multiple-zone system."""
+    if any(z.dilution is None for z in result.zones):
+        return None
+    trails = [_start(ctx, z, c, system) for ctx, z in zip(ctxs, result.zones)]
+    eta = trails[0].value("eta")
+    vpz = np.array([LS * z.trail.value("Vpz") for z in result.zones])
+    vol = np.array([t.value("V") for t in trails])
+    kw = dict(outdoor_concentration=c.outdoor, outdoor_filter_efficiency=eta,
+              recirc_filter_efficiency=eta,
+              cadr=np.array([LS * t.value("CADR") for t in trails]),
+              k_deposition=np.array([t.value("k_dep") for t in trails]),
+              k_inactivation=np.array([t.value("k_inact") for t in trails]))
+    gen = np.array([t.value("E") for t in trails])
+    steady = coupled.coupled_steady_state(gen, vol, vpz, LS * system.outdoor_air, **kw)
+    for t, z, cz, v in zip(trails, result.zones, steady.zone, vpz):
+        t.add("C_ss", float(cz), "concentration", note=f"{c.unit}/m³ at steady state; zones "
+              "coupled through the return air", source=MB)
+        t.add("C_s", float(steady.supply), "concentration", note="mixed supply air")
+        supply = v * (1 - steady.supply / cz) / LS if cz > 0 else 0.0
+        t.add("Qc_supply", supply, "airflow", note="equivalent clean airflow delivered by the "
+              "supply air (outdoor air and filtered recirculation, coupled)")
+        for symbol, value, what in (("Qc_cleaner", t.value("CADR"), "in-room air cleaners"),
+                                    ("Qc_dep", t.value("k_dep") * t.value("V") / LS, "deposition"),
+                                    ("Qc_inact", t.value("k_inact") * t.value("V") / LS,
+                                     "inactivation")):
+            t.add(symbol, value, "airflow", note=f"equivalent clean airflow: {what}")
+        total = supply + t.value("Qc_cleaner") + t.value("Qc_dep") + t.value("Qc_inact")
+        t.add("Qc", total, "airflow", note="equivalent clean airflow, all mechanisms")
+        if z.trail.value("Pz") > 0:
+            t.add("Qc_pp", total / z.trail.value("Pz"), "airflow_per_person",
+                  note="equivalent clean airflow per person")
+        t.add("ACHe", LS * total / t.value("V"), "rate", note="equivalent air changes per hour")
+    _coupled_day(system, ctxs, result, c, schedule, trails, vol, vpz, kw)
+    return trails
+
+
+def _coupled_day(system, ctxs, result, c, schedule, trails, vol, vpz, kw) -> None:
+    profiles = [_profile_pieces(schedule, ctx) for ctx in ctxs]
+    if all(p is None for p in profiles):
+        return
+    edges = sorted({float(b) for p in profiles if p is not None for b in p[0]} | {0.0, 24.0})
+    breaks = np.asarray(edges)
+    mids = (breaks[:-1] + breaks[1:]) / 2
+    gen = np.empty((len(mids), len(ctxs)))
+    for j, (ctx, z, p) in enumerate(zip(ctxs, result.zones, profiles)):
+        people, rest = _generation(ctx, z, c)
+        frac = np.ones(len(mids)) if p is None else p[1][
+            np.clip(np.searchsorted(p[0], mids, side="right") - 1, 0, len(p[1]) - 1)]
+        gen[:, j] = people * frac + rest
+    b2, g2 = _two_days(breaks, gen)
+    times = 24.0 + np.arange(0, 24 * 60 + 1) * STEP_H
+    run = coupled.coupled_piecewise_transient(
+        b2, g2, vol, vpz, LS * system.outdoor_air, np.full(len(ctxs), c.outdoor), times, **kw)
+    for j, t in enumerate(trails):
+        series = run.zone[:, j]
+        t.add("C_peak", float(series.max()), "concentration", source=MB,
+              note="peak over the design day (exact coupled solution, sampled each minute)")
+        t.add("C_twa", float(np.trapezoid(series, times) / 24.0), "concentration", source=MB,
+              note="24-hour time-weighted average")
+
+
+def _limit(t: Trail, ctx: ZoneContext, c: Contaminant, emitter: Emitter) -> None:
+    if c.limit is None:
+        return
+    t.add("C_limit", c.limit, "concentration", origin="schedule", note="declared limit")
+    worst = t.value("C_peak") if "C_peak" in t else t.value("C_ss")
+    if worst > c.limit * (1 + 1e-9):
+        emitter.emit("concentration-limit", ctx.subject,
+                     f"{c.label or c.id} {worst:.4g} {c.unit}/m³ is above the declared limit of "
+                     f"{c.limit:g} {c.unit}/m³", ctx.location, system=ctx.system_id,
+                     zone=ctx.zone.id)
+
+
+def analyse(system: System, ctxs: list[ZoneContext], result: SystemResult, schedule: Schedule,
+            emitter: Emitter) -> None:
+    """Attach one trail per declared contaminant to every zone the CO2 analysis covered."""
+    if math.isinf(result.trail.value("Vot")):
+        return
+    for c in schedule.contaminants:
+        if system.kind == "multiple-zone":
+            trails = _coupled(system, ctxs, result, c, schedule)
+            pairs = zip(ctxs, result.zones, trails or [])
+        else:
+            pairs = ((ctx, z, _single(ctx, z, c, system, schedule, emitter))
+                     for ctx, z in zip(ctxs, result.zones))
+        for ctx, z, t in pairs:
+            if t is None:
+                continue
+            _limit(t, ctx, c, emitter)
+            z.contaminants[c.id] = t

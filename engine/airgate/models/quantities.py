@@ -1,0 +1,45 @@
+"""Quantity fields for the input models: a number with units, or a bare number in the project's
+unit system (passed as pydantic validation context), stored in internal units."""
+
+from __future__ import annotations
+
+from typing import Annotated, Any
+
+from pydantic import BeforeValidator, Field, ValidationInfo, WithJsonSchema
+
+from airgate import units
+
+_QUANTITY_SCHEMA = {
+    "anyOf": [
+        {"type": "number"},
+        {"type": "string", "description": "a number followed by a unit, e.g. '850 cfm'"},
+    ]
+}
+
+
+def _quantity(kind: str, *, positive: bool) -> BeforeValidator:
+    def validate(value: Any, info: ValidationInfo) -> float:
+        system = (info.context or {}).get("units", units.IP)
+        try:
+            x = units.parse(value, kind, system)
+        except units.QuantityError as exc:
+            raise ValueError(str(exc)) from None
+        if positive and x <= 0:
+            raise ValueError(f"must be greater than zero, got {value!r}")
+        if x < 0:
+            raise ValueError(f"must not be negative, got {value!r}")
+        return x
+
+    return BeforeValidator(validate)
+
+
+def Q(kind: str, description: str, *, positive: bool = False) -> Any:  # noqa: N802
+    """A quantity field of ``kind``; ``description`` ends with its units in brackets."""
+    return Annotated[
+        float,
+        _quantity(kind, positive=positive),
+        WithJsonSchema({**_QUANTITY_SCHEMA, "description": description}),
+        Field(description=description),
+    ]
+
+
