@@ -142,6 +142,8 @@ def _coupled(system: System, ctxs, result: SystemResult, c: Contaminant, schedul
         t.add("C_ss", float(cz), "concentration", note=f"{c.unit}/m³ at steady state; zones "
               "coupled through the return air", source=MB)
         t.add("C_s", float(steady.supply), "concentration", note="mixed supply air")
+        if t.value("E") <= 0:
+            continue  # no emission here: an equivalent clean airflow is not defined
         supply = v * (1 - steady.supply / cz) / LS if cz > 0 else 0.0
         t.add("Qc_supply", supply, "airflow", note="equivalent clean airflow delivered by the "
               "supply air (outdoor air and filtered recirculation, coupled)")
