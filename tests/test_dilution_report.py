@@ -130,3 +130,20 @@ def test_zone_without_height_has_no_dilution(evaluate):
     data = single()
     del data["systems"][0]["zones"][0]["height"]
     assert evaluate(data).systems[0].zones[0].dilution is None
+
+
+def test_multiple_zone_capacity_reaches_the_intake_exactly(evaluate):
+    # Derived (62.1-2019 Appendix A, detailed Ev): with zone j at P_max the required Vot equals
+    # the scheduled intake; the check recomputes Vot through the engine with that population.
+    zones = [{"id": str(i), "space": "office-space", "area": f"{a} ft2", "occupants": p,
+              "height": "9 ft", "air_distribution": "ceiling-supply-cool",
+              "primary_airflow": f"{v} cfm"} for i, (a, p, v) in
+             enumerate([(2000, 12, 900), (1000, 20, 500), (600, 3, 200)])]
+    data = schedule([{"id": "M", "kind": "multiple-zone", "outdoor_air": "600 cfm",
+                      "ventilation_efficiency": "detailed", "zones": zones}])
+    r = evaluate(data)
+    p_max = r.systems[0].zones[1].dilution.value("P_max")
+    assert p_max > 20
+    data["systems"][0]["zones"][1]["occupants"] = p_max
+    r2 = evaluate(data)
+    assert r2.systems[0].trail.value("Vot") == pytest.approx(600 * CFM, rel=1e-6)

@@ -297,6 +297,7 @@ def _multiple_zone(system, ctxs, result, schedule, emitter, out) -> None:
         _limit(t, ctx, schedule, emitter)
         z.dilution = t
         out.append(z)
+    multiple_zone_capacity(system, result)
 
 
 def analyse(system: System, ctxs: list[ZoneContext], result: SystemResult, schedule: Schedule,
@@ -310,3 +311,43 @@ def analyse(system: System, ctxs: list[ZoneContext], result: SystemResult, sched
     else:
         _single_path(system, ctxs, result, schedule, emitter, out)
     return out
+
+
+def _vot_with(system_trail: Trail, zones: list[ZoneResult], j: int, people: float) -> float:
+    """Required Vot of a detailed-Ev system if zone j held ``people`` (D held) [L/s]."""
+    zt = zones[j].trail
+    rp, ra, az, ez = (zt.value(s) for s in ("Rp", "Ra", "Az", "Ez"))
+    d = system_trail.value("D")
+    vou = d * (system_trail.value("Σ(Rp·Pz)") + rp * (people - zt.value("Pz"))) + \
+        system_trail.value("Σ(Ra·Az)")
+    xs = vou / system_trail.value("Vps")
+    zpz = np.array([z.trail.value("Zpz") for z in zones])
+    zpz[j] = (rp * people + ra * az) / ez / zt.value("Vpz")
+    ev = float(np.min(1 + xs - zpz))
+    return vou / ev if ev > 0 else math.inf
+
+
+def multiple_zone_capacity(system: System, result: SystemResult) -> None:
+    """P_max per zone of a detailed-Ev, single-path system: the most people zone j can hold
+    (others unchanged, D held) before the required Vot exceeds the scheduled intake. Found by
+    bisection on the monotone Vot(P) of ANSI/ASHRAE 62.1-2019 Appendix A (derived)."""
+    if result.method != "detailed" or any(c.ep is not None for c in
+                                          (z for z in system.zones)):
+        return
+    st = result.trail
+    target = system.outdoor_air
+    for j, z in enumerate(result.zones):
+        if z.dilution is None or z.trail.value("Rp") <= 0:
+            continue
+        if _vot_with(st, result.zones, j, 0.0) > target:
+            z.dilution.add("P_max", 0.0, "people", note="the intake falls short even with the "
+                           "zone empty")
+            continue
+        lo, hi = 0.0, max(1.0, z.trail.value("Pz"))
+        while _vot_with(st, result.zones, j, hi) <= target and hi < 1e7:
+            hi *= 2
+        for _ in range(80):
+            mid = 0.5 * (lo + hi)
+            lo, hi = (mid, hi) if _vot_with(st, result.zones, j, mid) <= target else (lo, mid)
+        z.dilution.add("P_max", lo, "people", note="occupants the zone can hold at the scheduled "
+                       "intake, other zones unchanged and D held (detailed Ev, bisection)")
