@@ -79,7 +79,7 @@ def _start(ctx, z, c: Contaminant, system: System) -> Trail:
 
 def _single(ctx, z, c, system: System, schedule: Schedule, emitter: Emitter) -> Trail | None:
     co2 = z.dilution
-    if co2 is None or "Q_oa" not in co2:
+    if co2 is None or "C_ss" not in co2:
         return None
     t = _start(ctx, z, c, system)
     q_oa = co2.value("Q_oa")
@@ -92,6 +92,8 @@ def _single(ctx, z, c, system: System, schedule: Schedule, emitter: Emitter) -> 
     kw = dict(recirc_airflow=LS * q_rec, recirc_efficiency=t.value("eta"),
               cadr=LS * t.value("CADR"), k_deposition=t.value("k_dep"),
               k_inactivation=t.value("k_inact"))
+    if dilution.loss_rate(t.value("V"), LS * q_oa, **kw) <= 0:
+        return None  # nothing removes it: no steady state
     c_ss = dilution.steady_state_concentration(
         t.value("E"), t.value("V"), LS * q_oa, c.outdoor, outdoor_filter_efficiency=t.value("eta"),
         **kw)

@@ -117,8 +117,11 @@ def _dcv(t: Trail, z: ZoneResult) -> None:
                                            "Rp/Ez per person present")
 
 
-def _capacity(t: Trail, q_oa: float, note: str) -> None:
+def _capacity(t: Trail, z: ZoneResult, q_oa: float, note: str) -> None:
     """Occupants the delivered outdoor air supports under the pack's rates."""
+    for symbol in ("Rp", "Ra", "Az", "Ez"):
+        if symbol not in t:
+            t.copy_from(z.trail, symbol)
     rp, ra, az, ez = (t.value(s) for s in ("Rp", "Ra", "Az", "Ez"))
     if rp <= 0:
         return
@@ -212,10 +215,20 @@ def _single_path(system, ctxs, result, schedule, emitter, out) -> None:
             continue
         t = _start(ctx, z, schedule, volume)
         q, note = _outdoor_air_to_zone(system, ctx, z, result)
+        if q <= 0:
+            t.add("Q_oa", 0.0, "airflow", note="no outdoor air reaches the zone: CO2 rises "
+                  "without bound while it is occupied (no steady state)")
+            if schedule.project.co2_limit is not None and t.value("G") > 0:
+                emitter.emit("concentration-limit", ctx.subject, "no outdoor air reaches the "
+                             "occupied zone: CO2 rises without bound, above any limit",
+                             ctx.location, system=ctx.system_id, zone=z.id)
+            z.dilution = t
+            out.append(z)
+            continue
         _steady_single(t, q, note)
         _rates(t)
         _dcv(t, z)
-        _capacity(t, q, "")
+        _capacity(t, z, q, "")
         pieces = _profile_pieces(schedule, ctx)
         if pieces is not None and t.value("Q_oa") > 0:
             z.series = _day_series_single(t, *pieces, ctx.zone.profile)
