@@ -349,3 +349,17 @@ def test_damaged_demo_never_gets_a_traceback(data: bytes, capsys):
         if code == 2:
             assert not target.exists()
             assert re.match(re.escape(str(path)) + r":\d+(:\d+)?: schedule error: ", err), err
+
+
+def test_limits_are_configurable_by_environment(tmp_path):
+    # docs/limits.md: AIRGATE_MAX_NODES lowers the value limit for one run.
+    import subprocess
+    import sys
+
+    from conftest import DEMO, ROOT
+
+    env = {**__import__("os").environ, "AIRGATE_MAX_NODES": "50"}
+    run = subprocess.run([sys.executable, "-m", "airgate", "check", str(DEMO)], cwd=ROOT,
+                         env=env, capture_output=True, text=True)
+    assert run.returncode == 2
+    assert "more than 50 values" in run.stderr and "Traceback" not in run.stderr

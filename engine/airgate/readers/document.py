@@ -23,12 +23,25 @@ from airgate.errors import AirgateError
 
 Path_ = tuple[str | int, ...]
 
-#: Hard limits that keep a hostile document from exhausting memory or the stack.
-MAX_NODES = 500_000
-MAX_DEPTH = 64
+
+def _limit(name: str, default: int) -> int:
+    """A limit from the environment (docs/limits.md), or its default; bad values are ignored."""
+    import os
+
+    try:
+        value = int(os.environ.get(name, default))
+    except ValueError:
+        return default
+    return value if value > 0 else default
+
+
+#: Hard limits that keep a hostile document from exhausting memory or the stack; each can be
+#: set by an environment variable of the same name with the AIRGATE_ prefix (docs/limits.md).
+MAX_NODES = _limit("AIRGATE_MAX_NODES", 500_000)
+MAX_DEPTH = _limit("AIRGATE_MAX_DEPTH", 64)
 #: Values reached through aliases (a repeated anchor is expanded at each alias).
-MAX_ALIAS_VALUES = 100_000
-MAX_BYTES = 50 * 1024 * 1024
+MAX_ALIAS_VALUES = _limit("AIRGATE_MAX_ALIAS_VALUES", 100_000)
+MAX_BYTES = _limit("AIRGATE_MAX_BYTES", 50 * 1024 * 1024)
 
 _MERGE_TAG = "tag:yaml.org,2002:merge"
 
