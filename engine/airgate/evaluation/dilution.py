@@ -105,6 +105,8 @@ def _dcv(t: Trail, z: ZoneResult) -> None:
     if t.value("Pz") <= 0 or t.value("Voz") <= 0:
         return
     per_person = t.value("Voz") / t.value("Pz")
+    if not math.isfinite(per_person) or t.value("N") <= 0:
+        return
     setpoint = dilution.dcv_setpoint_ppm(t.value("C_out"), t.value("N"), per_person)
     t.add("C_dcv", float(setpoint), "concentration_ppm", formula="{C_out} + 10⁶·{N}·{Pz} / {Voz}",
           source=MB, note="DCV set point: steady CO2 when the zone gets exactly its Voz")
