@@ -238,8 +238,9 @@ def test_zero_byte_file_is_empty(tmp_path, capsys):
 def test_missing_file_and_folder(tmp_path, capsys):
     code, _, err = _run(capsys, ["check", str(tmp_path / "absent.yaml")])
     assert code == 2 and f"{tmp_path / 'absent.yaml'}: schedule error: file not found" in err
+    # a folder is checked schedule by schedule (batch); one without schedules is a usage error
     code, _, err = _run(capsys, ["check", str(tmp_path)])
-    assert code == 2 and "is a directory, expected a file" in err
+    assert code == 2 and f"folder {tmp_path} holds no schedule" in err
 
 
 def test_node_limit_applies_while_composing(tmp_path, capsys, monkeypatch):

@@ -9,9 +9,24 @@ import pytest
 import yaml
 
 from airgate.evaluation.checks import KNOWN_CHECKS
-from airgate.readers.rulepack import builtin_pack_ids, builtin_rules_dir, load_pack, pack_schema
+from airgate.readers import options
+from airgate.readers.rulepack import (
+    builtin_pack_ids,
+    builtin_rules_dir,
+    load_document,
+    load_pack,
+    pack_schema,
+)
 
 PACKS = builtin_pack_ids()
+PROVENANCE = ("published", "from memory", "derived", "invented")
+
+
+def _load(pack_id: str):
+    """The built pack; one with options is built under each combination of them."""
+    declared = options.declared(load_document(pack_id).data)
+    combos = options.combinations(declared) if declared else [{}]
+    return [load_pack(pack_id, options=combo) for combo in combos]
 GROUPS = {"educational-facilities", "office-buildings", "food-and-beverage-service", "general",
           "public-assembly-spaces", "retail", "hotels-motels-resorts-dormitories",
           "sports-and-entertainment", "miscellaneous-spaces"}
@@ -32,22 +47,24 @@ def test_pack_validates_and_is_named_for_its_id(pack_id):
     path = builtin_rules_dir() / f"{pack_id}.yaml"
     data = yaml.safe_load(path.read_text(encoding="utf-8"))
     jsonschema.Draft202012Validator(pack_schema()).validate(data)
-    pack = load_pack(pack_id)
-    assert pack.id == pack_id
-    assert set(pack.checks) <= set(KNOWN_CHECKS)
-    assert pack.cautions, "every pack carries cautions"
+    for pack in _load(pack_id):
+        assert pack.id == pack_id
+        assert set(pack.checks) <= set(KNOWN_CHECKS)
+        assert pack.cautions, "every pack carries cautions"
 
 
 @pytest.mark.parametrize("pack_id", PACKS)
 def test_every_table_value_has_source_and_provenance(pack_id):
-    pack = load_pack(pack_id)
-    for table in (pack.categories.values(), pack.configurations.values(), pack.methods.values()):
-        for row in table:
-            assert row.provenance in ("published", "from memory", "derived")
-            assert row.source.document and row.source.edition
-            assert row.source.table or row.source.section
-    for eq in pack.equations.values():
-        assert eq.provenance in ("published", "from memory", "derived") and eq.source.section
+    for pack in _load(pack_id):
+        tables = (pack.categories.values(), pack.configurations.values(), pack.methods.values(),
+                  pack.requirements.values())
+        for table in tables:
+            for row in table:
+                assert row.provenance in PROVENANCE
+                assert row.source.document and row.source.edition
+                assert row.source.table or row.source.section
+        for eq in pack.equations.values():
+            assert eq.provenance in PROVENANCE and eq.source.section
 
 
 @pytest.mark.parametrize("pack_id", [p for p in PACKS if p.startswith("ashrae-62.1-")])

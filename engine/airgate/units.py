@@ -17,6 +17,7 @@ density                     person per m²       people/1000 ft²       people/1
 temperature_difference      K                   °F (difference)       K
 velocity                    m/s                 fpm                   m/s
 fraction (Ez, Ev, D, ...)   1                   –                     –
+count (Nbr, MERV, class)    1                   –                     –
 ==========================  ==================  ====================  ======================
 
 Exact factors (common practice; NIST SP 811): 1 ft = 0.3048 m, so 1 cfm = 0.471947443 L/s and
@@ -100,6 +101,7 @@ KINDS: dict[str, Kind] = {
         ),
         Kind("velocity", "m/s", "fpm", "m/s", "fpm", "m/s", "'150 fpm' or '0.8 m/s'"),
         Kind("fraction", "dimensionless", "dimensionless", "dimensionless", "", "", "'0.8'"),
+        Kind("count", "dimensionless", "dimensionless", "dimensionless", "", "", "'3'"),
         Kind("concentration_ppm", "ppm", "ppm", "ppm", "ppm", "ppm", "'1100 ppm'"),
         Kind("time", "hour", "minute", "minute", "min", "min", "'45 min'"),
         Kind("rate", "1/hour", "1/hour", "1/hour", "1/h", "1/h", "'2.5 1/h'"),
@@ -125,6 +127,7 @@ JSON_UNITS: dict[tuple[str, str], str] = {
     ("temperature_difference", IP): "delta_degF", ("temperature_difference", SI): "kelvin",
     ("velocity", IP): "ft/min", ("velocity", SI): "m/s",
     ("fraction", IP): "", ("fraction", SI): "",
+    ("count", IP): "", ("count", SI): "",
     ("concentration_ppm", IP): "ppm", ("concentration_ppm", SI): "ppm",
     ("time", IP): "minute", ("time", SI): "minute",
     ("rate", IP): "1/hour", ("rate", SI): "1/hour",

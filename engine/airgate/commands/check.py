@@ -1,38 +1,182 @@
-"""``airgate check``: evaluate a schedule and report findings."""
+"""``airgate check``: evaluate one or more schedules, write reports, and gate on the result.
+
+Formats are chosen with ``--format NAME[:FILE]`` (repeatable); at most one goes to standard
+output. Every schedule is evaluated before anything is written: bad input anywhere stops the run
+with exit 2 and writes nothing (each output file is written atomically).
+"""
 
 from __future__ import annotations
 
 import argparse
+import datetime as dt
 import sys
+from pathlib import Path
 
-from airgate.errors import EXIT_FAIL, EXIT_PASS, UsageError
+from airgate.commands.common import add_rules_path
+from airgate.errors import EXIT_FAIL, EXIT_PASS, AirgateError, ErrorGroup, UsageError, raise_all
+
+SCHEDULE_SUFFIXES = (".yaml", ".yml", ".json")
 
 
 def register(sub) -> None:
-    c = sub.add_parser("check", help="evaluate a schedule and report findings")
-    c.add_argument("file", help="schedule file (.yaml, .yml or .json)")
+    c = sub.add_parser("check", help="evaluate schedules and report findings",
+                       description="Evaluate ventilation schedules against a rule pack.")
+    c.add_argument("paths", nargs="+", metavar="PATH",
+                   help="schedule files (.yaml, .yml, .json; also CSV tables STEM.zones.csv, "
+                        ".xlsx, gbXML .xml, .ifc — see docs/importing.md) or folders holding "
+                        "YAML/JSON schedules")
     c.add_argument("--rules", help="rule pack id or path (overrides the schedule's 'rules:')")
-    c.add_argument("--format", choices=["text", "json"], default="text", help="report format")
-    c.add_argument("-o", "--output", help="write the report to this file instead of stdout")
-    c.add_argument("--series-step", type=int, default=0, metavar="MINUTES",
-                   help="JSON: include each zone's design-day CO2 series at this step")
+    add_rules_path(c)
+    c.add_argument("--format", action="append", metavar="NAME[:FILE]", dest="formats",
+                   help="report format, optionally with a file to write it to; repeatable. "
+                        "NAME: text (default), json, junit, sarif, markdown, html")
+    c.add_argument("-o", "--output", help="file for the one --format given without a file")
+    c.add_argument("--waivers", action="append", default=[], metavar="FILE",
+                   help="a waivers file applied to every schedule (repeatable)")
+    c.add_argument("--as-of", metavar="YYYY-MM-DD",
+                   help="judge waiver expiry on this date (default: today)")
+    c.add_argument("--fail-on", choices=["fail", "warning"], default="fail",
+                   help="lowest severity that fails the run (warning: also stale waivers)")
     c.add_argument("--exit-zero", action="store_true",
                    help="exit 0 even when findings fail (input errors still exit 2)")
+    c.add_argument("--series-step", type=int, default=0, metavar="MINUTES",
+                   help="JSON: include each zone's design-day CO2 series at this step")
+
+
+def _destinations(args: argparse.Namespace) -> list[tuple[str, str | None]]:
+    """(format, file or None for stdout) pairs, checked before anything is evaluated."""
+    from airgate.writers.formats import FORMATS
+
+    specs = args.formats or ["text"]
+    out: list[tuple[str, str | None]] = []
+    for spec in specs:
+        name, sep, dest = spec.partition(":")
+        if name not in FORMATS:
+            raise UsageError(f"unknown report format '{name}'", allowed=list(FORMATS),
+                             field=("--format",), hint="e.g. --format html:report.html")
+        if sep and not dest:
+            raise UsageError(f"--format {spec}: give a file after the colon", field=("--format",))
+        out.append((name, dest or None))
+    bare = [i for i, (_, d) in enumerate(out) if d is None]
+    if args.output:
+        if len(bare) != 1:
+            raise UsageError("-o names the file of the one --format given without a file; "
+                             f"{len(bare)} are without one", field=("-o",),
+                             hint="write each as --format NAME:FILE")
+        out[bare[0]] = (out[bare[0]][0], args.output)
+    elif len(bare) > 1:
+        raise UsageError("at most one format can go to standard output; "
+                         f"{', '.join(out[i][0] for i in bare)} have no file",
+                         field=("--format",), hint="write the others as --format NAME:FILE")
+    files = [Path(d).resolve() for _, d in out if d is not None]
+    if len(set(files)) != len(files):
+        raise UsageError("two formats would write the same file", field=("--format",))
+    for _, d in out:
+        if d is not None and Path(d).is_dir():
+            raise UsageError(f"cannot write {d}: it is a folder", field=("--format",))
+        if d is not None and not (Path(d).parent if str(Path(d).parent) else Path(".")).is_dir():
+            raise UsageError(f"cannot write {d}: folder {Path(d).parent} does not exist",
+                             field=("--format",))
+    return out
+
+
+def schedules(paths: list[str]) -> list[str]:
+    """The schedule files named, folders expanded to their *.yaml, *.yml and *.json files
+    (not recursive, sorted by name); each file once, in the order given."""
+    out: list[str] = []
+    for p in paths:
+        path = Path(p)
+        if path.is_dir():
+            found = sorted(str(f) for f in path.iterdir()
+                           if f.is_file() and f.suffix.lower() in SCHEDULE_SUFFIXES)
+            if not found:
+                raise UsageError(f"folder {p} holds no schedule (*.yaml, *.yml, *.json)",
+                                 field=("PATH",))
+            out += found
+        else:
+            out.append(p)  # as given: reports copy the path
+    seen: set[str] = set()
+    return [f for f in out if not (f in seen or seen.add(f))]
+
+
+def _as_of(text: str | None) -> dt.date | None:
+    if text is None:
+        return None
+    try:
+        return dt.date.fromisoformat(text)
+    except ValueError:
+        raise UsageError(f"--as-of takes a date written YYYY-MM-DD, got {text!r}",
+                         field=("--as-of",)) from None
+
+
+class _Progress:
+    """A one-line progress bar on standard error, only when it is a terminal."""
+
+    def __init__(self, total: int) -> None:
+        self.total = total
+        self.on = total > 1 and sys.stderr.isatty()
+
+    def step(self, done: int, name: str) -> None:
+        if not self.on:
+            return
+        width = 24
+        filled = width * done // self.total
+        bar = "█" * filled + "·" * (width - filled)
+        sys.stderr.write(f"\r\033[Kchecking {bar} {done}/{self.total} {name[-40:]}")
+        sys.stderr.flush()
+
+    def close(self) -> None:
+        if self.on:
+            sys.stderr.write("\r\033[K")
+            sys.stderr.flush()
+
+
+def _evaluate(files: list[str], args, entries, as_of):
+    from airgate.evaluation.engine import check_file
+
+    reports, errors = [], []
+    progress = _Progress(len(files))
+    try:
+        for i, f in enumerate(files):
+            progress.step(i, f)
+            try:
+                reports.append(check_file(f, args.rules, entries, as_of, search=args.rules_path))
+            except ErrorGroup as exc:
+                errors += exc.errors
+            except AirgateError as exc:
+                errors.append(exc)
+        progress.step(len(files), "")
+    finally:
+        progress.close()
+    raise_all(errors)  # every bad schedule of the run is reported, then nothing is written
+    return reports
 
 
 def run(args: argparse.Namespace) -> int:
-    from airgate.evaluation.engine import check_file
-    from airgate.writers import json_report, output, text
+    from airgate.evaluation import waivers as waiver_rules
+    from airgate.evaluation.batch import gather
+    from airgate.readers.waivers import read_waivers
+    from airgate.writers import formats, output
 
     if args.series_step < 0:
         raise UsageError("--series-step takes a number of minutes, 0 or more")
-    report = check_file(args.file, args.rules)
-    rendered = (json_report.render(report, args.series_step) if args.format == "json"
-                else text.render(report))
-    if args.output:
-        output.write_atomic(args.output, rendered)
-    else:
-        sys.stdout.write(rendered)
-    if report.verdict == "fail" and not args.exit_zero:
+    targets = _destinations(args)
+    as_of = _as_of(args.as_of)
+    files = schedules(args.paths)
+    written = {Path(d).resolve() for _, d in targets if d is not None}
+    if any(Path(f).resolve() in written for f in [*files, *args.waivers]):
+        raise UsageError("a report would overwrite one of the schedules or waivers files "
+                         "read", field=("--format",))
+    entries = [e for w in args.waivers for e in waiver_rules.from_file(read_waivers(w))]
+    reports = _evaluate(files, args, entries, as_of)
+    batch = gather(reports, entries, args.fail_on)
+    rendered = [(d, formats.render(name, batch, args.series_step)) for name, d in targets]
+    for dest, body in rendered:
+        if dest is not None:
+            output.write_atomic(dest, body)
+    for dest, body in rendered:
+        if dest is None:
+            sys.stdout.write(body)
+    if batch.gate_fails() and not args.exit_zero:
         return EXIT_FAIL
     return EXIT_PASS

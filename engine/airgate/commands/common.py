@@ -23,3 +23,10 @@ def pick(report, zone_id: str | None, system_id: str | None):
     if system is None:
         raise unknown("system", system_id, [s.id for s in report.systems])
     return system, system.zones
+
+
+def add_rules_path(parser) -> None:
+    """``--rules-path DIR`` (repeatable): folders of rule packs searched after the built-in ones."""
+    parser.add_argument("--rules-path", action="append", default=[], metavar="DIR",
+                        help="a folder of rule packs, searched by id after the built-in packs "
+                             "(repeatable; also AIRGATE_RULES_PATH)")

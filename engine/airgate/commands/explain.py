@@ -5,7 +5,7 @@ from __future__ import annotations
 import argparse
 import sys
 
-from airgate.commands.common import pick
+from airgate.commands.common import add_rules_path, pick
 from airgate.errors import EXIT_PASS
 
 
@@ -16,13 +16,14 @@ def register(sub) -> None:
     g.add_argument("--zone", help="zone id")
     g.add_argument("--system", help="system id")
     e.add_argument("--rules", help="rule pack id or path")
+    add_rules_path(e)
 
 
 def run(args: argparse.Namespace) -> int:
     from airgate.evaluation.engine import check_file
     from airgate.writers import explain
 
-    report = check_file(args.file, args.rules)
+    report = check_file(args.file, args.rules, search=args.rules_path)
     system, zones = pick(report, args.zone, args.system)
     if args.zone is not None:
         sys.stdout.write(explain.zone(report, system, zones[0]))

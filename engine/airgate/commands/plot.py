@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import argparse
 
-from airgate.commands.common import pick
+from airgate.commands.common import add_rules_path, pick
 from airgate.errors import EXIT_PASS
 
 
@@ -16,13 +16,14 @@ def register(sub) -> None:
     g.add_argument("--system", help="system id (all its zones)")
     pl.add_argument("-o", "--output", required=True, help="picture file, .png or .svg")
     pl.add_argument("--rules", help="rule pack id or path")
+    add_rules_path(pl)
 
 
 def run(args: argparse.Namespace) -> int:
     from airgate.evaluation.engine import check_file
     from airgate.writers import plot
 
-    report = check_file(args.file, args.rules)
+    report = check_file(args.file, args.rules, search=args.rules_path)
     system, zones = pick(report, args.zone, args.system)
     plot.plot(report, system, zones, args.output)
     return EXIT_PASS

@@ -32,9 +32,12 @@ def category(loaded: LoadedSchedule, pack: RulePack, zone: Zone, path: Path_) ->
     cat = pack.categories.get(zone.space)
     if cat is None:
         close = nearest(zone.space, pack.categories)
+        gone = pack.retirement("occupancy", zone.space)
         raise loaded.error(
             f"unknown space type '{zone.space}' in rule pack {pack.id}"
-            + (f"; did you mean {', '.join(repr(c) for c in close)}?" if close else ""),
+            + (f"; it was {gone.text()}" if gone else "")
+            + (f"; did you mean {', '.join(repr(c) for c in close)}?" if close and not gone
+               else ""),
             path + ("space",), hint="use an occupancy category id: airgate rules show " + pack.id,
         )
     return cat
@@ -82,9 +85,12 @@ def _row(loaded: LoadedSchedule, pack: RulePack, ref: str | StatedDistribution,
         if _is_number(ref):
             hint = (f"to state the zone's Ez directly, write ez: {ref} with ez_basis: (why it "
                     "applies) instead of air_distribution")
+        gone = pack.retirement("air_distribution", ref)
         raise loaded.error(
             f"unknown air distribution row '{ref}' in rule pack {pack.id}"
-            + (f"; did you mean {', '.join(repr(c) for c in close)}?" if close else ""),
+            + (f"; it was {gone.text()}" if gone else "")
+            + (f"; did you mean {', '.join(repr(c) for c in close)}?" if close and not gone
+               else ""),
             path, allowed=sorted(pack.configurations), hint=hint,
         )
     return row
@@ -131,11 +137,11 @@ def check_pack_checks(pack: RulePack, known: set[str]) -> None:
 
     for i, check_id in enumerate(pack.checks):
         if check_id not in known:
-            line, column = pack.locate(("checks", i, "id"))
+            file, line, column, field = pack.where(("checks", i, "id"))
             close = nearest(check_id, known)
             raise RulePackError(
                 f"unknown check '{check_id}'" + (f"; did you mean '{close[0]}'?" if close else ""),
-                file=pack.file, line=line, column=column, field=("checks", i, "id"),
+                file=file, line=line, column=column, field=field,
                 allowed=sorted(known),
             )
 

@@ -2,26 +2,32 @@
 
 from __future__ import annotations
 
+import datetime as dt
+from collections.abc import Sequence
 from pathlib import Path
 
 from airgate.errors import AirgateError, RulePackError, raise_all
-from airgate.evaluation import bind, contaminants, dilution, systems
+from airgate.evaluation import bind, contaminants, coverage, dilution, systems, waivers
 from airgate.evaluation.checks import KNOWN_CHECKS, Emitter
 from airgate.evaluation.findings import Location
+from airgate.evaluation.requirements import Run as RequirementRun
 from airgate.evaluation.report import SAFETY_CAUTION, Report, SystemResult
 from airgate.evaluation.trail import Trail
 from airgate.evaluation.unused import unused_fields
 from airgate.evaluation.zones import ZoneContext, evaluate_zone
 from airgate.models.rules import RulePack
+from airgate.readers.options import OptionError, as_schedule_error
 from airgate.readers.rulepack import load_pack, resolve
-from airgate.readers.schedule import LoadedSchedule, read_schedule
+from airgate.readers.schedule import LoadedSchedule
+from airgate.readers.sources import import_notes, read_any
 
 
 def _location(loaded: LoadedSchedule, path: tuple) -> Location:
     return Location(*loaded.locate(path))
 
 
-def _bind_all(loaded: LoadedSchedule, pack: RulePack) -> list[list[ZoneContext]]:
+def _bind_all(loaded: LoadedSchedule, pack: RulePack,
+              run: RequirementRun | None = None) -> list[list[ZoneContext]]:
     errors: list[AirgateError] = []
     out = []
     for i, system in enumerate(loaded.model.systems):
@@ -31,9 +37,11 @@ def _bind_all(loaded: LoadedSchedule, pack: RulePack) -> list[list[ZoneContext]]
             cat = bind.collect(errors, bind.category, loaded, pack, zone, path)
             ez = bind.collect(errors, bind.air_distribution, loaded, pack, zone, path)
             bind.collect(errors, bind.dilution_refs, loaded, zone, path)
+            if cat is not None and ez is not None and run is not None:  # the pack's requirements
+                cat, ez = bind.collect(errors, run.adjust, i, j, cat, ez) or (None, None)
             if cat is not None and ez is not None:
-                fields = {name: _location(loaded, path + (name,))
-                          for name in ("area", "occupants") if getattr(zone, name) is not None}
+                fields = {name: _location(loaded, path + (name,)) for name in
+                          ("area", "occupants", "bedrooms") if getattr(zone, name) is not None}
                 ctxs.append(ZoneContext(zone=zone, path=path, location=_location(loaded, path),
                                         category=cat, ez=ez, subject=f"{system.id}/{zone.id}",
                                         system_id=system.id, fields=fields))
@@ -53,9 +61,12 @@ def _method_errors(loaded: LoadedSchedule, pack: RulePack, i: int) -> list[Airga
         return []
     method = _method(pack, system)
     if method not in pack.methods:
-        return [loaded.error(f"rule pack {pack.id} does not allow the '{method}' ventilation "
-                             "efficiency method", ("systems", i, "ventilation_efficiency"),
-                             allowed=sorted(pack.methods))]
+        gone = pack.retirement("ventilation_efficiency", method) if method else None
+        what = (f"rule pack {pack.id} has no procedure for multiple-zone systems" if not pack.methods
+                else f"rule pack {pack.id} does not allow the '{method}' ventilation efficiency "
+                "method" + (f"; it was {gone.text()}" if gone else ""))
+        at = "ventilation_efficiency" if system.ventilation_efficiency else "kind"
+        return [loaded.error(what, ("systems", i, at), allowed=sorted(pack.methods))]
     if method == "simplified":
         return []
     return [
@@ -67,11 +78,20 @@ def _method_errors(loaded: LoadedSchedule, pack: RulePack, i: int) -> list[Airga
     ]
 
 
-def evaluate(loaded: LoadedSchedule, pack: RulePack) -> Report:
-    """Evaluate every system and zone of ``loaded`` under ``pack``."""
+def evaluate(loaded: LoadedSchedule, pack: RulePack,
+             extra_waivers: Sequence[waivers.WaiverEntry] = (),
+             as_of: dt.date | None = None) -> Report:
+    """Evaluate every system and zone of ``loaded`` under ``pack``.
+
+    The schedule's own waivers, then ``extra_waivers`` (a waivers file), are applied with expiry
+    judged on ``as_of`` (default today).
+    """
     bind.check_pack_checks(pack, set(KNOWN_CHECKS))
+    entries = [*waivers.from_schedule(loaded), *extra_waivers]
+    raise_all(waivers.rule_errors(entries, KNOWN_CHECKS))
     units = loaded.model.project.units
-    bound = _bind_all(loaded, pack)
+    run = RequirementRun(pack, loaded)
+    bound = _bind_all(loaded, pack, run)
     emitter = Emitter(pack, units)
     results = []
     for i, (system, ctxs) in enumerate(zip(loaded.model.systems, bound)):
@@ -91,8 +111,10 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack) -> Report:
         systems.air_classes(system, ctxs, emitter, where)
         dilution.analyse(system, ctxs, result, loaded.model, emitter)
         contaminants.analyse(system, ctxs, result, loaded.model, emitter)
+        run.evaluate(i, system, ctxs, result, emitter)
         results.append(result)
     findings = sorted(emitter.findings, key=lambda f: f.sort_key())
+    findings, statuses, waiver_date = waivers.review(findings, entries, pack, results, as_of)
     _verdicts(results, findings)
     notes = unused_fields(loaded.model, lambda path: str(_location(loaded, path)))
     if pack.units != units:
@@ -101,13 +123,18 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack) -> Report:
                      "1 ft = 0.3048 m). The standard's own table for your unit system is rounded "
                      "separately; use that pack where one exists.")
     cautions = [SAFETY_CAUTION, *pack.cautions]
+    cases = coverage.cases(loaded.model, pack, results, findings,
+                           lambda path: _location(loaded, path))
     return Report(schedule_file=loaded.file, project_name=loaded.model.project.name, units=units,
-                  pack=pack, systems=results, findings=findings, notes=notes, cautions=cautions)
+                  pack=pack, systems=results, findings=findings, notes=notes, cautions=cautions,
+                  waivers=statuses, waiver_date=waiver_date, cases=cases,
+                  requirements=run.outcomes)
 
 
 def _verdicts(results: list[SystemResult], findings) -> None:
-    failing = {f.subject for f in findings if f.severity == "fail"}
-    failing_systems = {f.system for f in findings if f.severity == "fail"}
+    live = [f for f in findings if f.severity == "fail" and not f.waived]
+    failing = {f.subject for f in live}
+    failing_systems = {f.system for f in live}
     for s in results:
         s.verdict = "fail" if s.id in failing_systems else "pass"
         for z in s.zones:
@@ -116,7 +143,8 @@ def _verdicts(results: list[SystemResult], findings) -> None:
             z.verdict = "fail" if own or shared else "pass"
 
 
-def _pack(loaded: LoadedSchedule, ref: str, from_option: bool) -> RulePack:
+def _pack(loaded: LoadedSchedule, ref: str, from_option: bool,
+          search: Sequence[str | Path] = ()) -> RulePack:
     """Load the rule pack ``ref``; a pack that cannot be found is reported where it was named.
 
     A path in the schedule is relative to the schedule's folder, one given with ``--rules`` to
@@ -124,7 +152,7 @@ def _pack(loaded: LoadedSchedule, ref: str, from_option: bool) -> RulePack:
     """
     base = Path.cwd() if from_option else Path(loaded.file).parent
     try:
-        path = resolve(ref, base)
+        path = resolve(ref, base, search)
         if not path.is_file():
             what = "is a folder, not a rule pack file" if path.is_dir() else "not found"
             raise RulePackError(f"rule pack file {path} {what}",
@@ -135,14 +163,24 @@ def _pack(loaded: LoadedSchedule, ref: str, from_option: bool) -> RulePack:
             exc.field = ("--rules",)
             raise
         raise loaded.error(exc.message, ("rules",), allowed=exc.allowed, hint=exc.hint) from None
-    return load_pack(str(path))
+    try:
+        return load_pack(str(path), options=loaded.model.project.options, search=search)
+    except OptionError as exc:
+        raise as_schedule_error(exc, loaded) from None
 
 
-def check_file(path: str | Path, rules: str | None = None) -> Report:
-    """Read ``path``, load its rule pack (or ``rules``), and evaluate. Raises AirgateError."""
-    loaded = read_schedule(path)
+def check_file(path: str | Path, rules: str | None = None,
+               extra_waivers: Sequence[waivers.WaiverEntry] = (),
+               as_of: dt.date | None = None, search: Sequence[str | Path] = ()) -> Report:
+    """Read ``path``, load its rule pack (or ``rules``), and evaluate. Raises AirgateError.
+
+    ``search``: folders of rule packs searched after the built-in ones (``--rules-path``).
+    """
+    loaded = read_any(path)  # YAML/JSON, or imported from CSV/XLSX, gbXML, IFC by suffix
     ref = rules or loaded.model.rules
     if ref is None:
         raise loaded.error("no rule pack: give 'rules:' in the schedule or --rules", ("rules",),
                            hint="e.g. rules: ashrae-62.1-2019")
-    return evaluate(loaded, _pack(loaded, ref, from_option=bool(rules)))
+    report = evaluate(loaded, _pack(loaded, ref, from_option=bool(rules), search=search), extra_waivers, as_of)
+    report.notes.extend(import_notes(loaded))  # rooms read/mapped/rejected; what was not mapped
+    return report

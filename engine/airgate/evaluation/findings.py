@@ -31,6 +31,17 @@ class Location:
 
 
 @dataclass(frozen=True)
+class WaiverMark:
+    """The approved alternative (waiver) that covers a finding; see evaluation/waivers.py."""
+
+    reason: str
+    approved_by: str
+    expires: str | None  #: last day it applies, ISO date; None: no expiry
+    location: Location  #: where the waiver is written
+    origin: str  #: "schedule" (the schedule's waivers:) or "waivers file" (--waivers)
+
+
+@dataclass(frozen=True)
 class Finding:
     rule: str
     severity: str
@@ -43,6 +54,12 @@ class Finding:
     system: str = ""
     zone: str | None = None
     extra: dict[str, str] = field(default_factory=dict)
+    #: set when an approved alternative covers the finding: it stays in every report, marked
+    waiver: WaiverMark | None = None
+
+    @property
+    def waived(self) -> bool:
+        return self.waiver is not None
 
     def sort_key(self) -> tuple:
         return (SEVERITY_RANK[self.severity], self.location.file, self.location.line or 0,

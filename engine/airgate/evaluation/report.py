@@ -3,10 +3,15 @@
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 from airgate.evaluation.findings import Finding, Location
 from airgate.evaluation.trail import Trail
 from airgate.models.rules import RulePack
+
+if TYPE_CHECKING:
+    from airgate.evaluation.coverage import CheckCase
+    from airgate.evaluation.waivers import WaiverStatus
 
 SAFETY_CAUTION = (
     "Ventilation affects health. This report is an aid to review, not an approval: the adopted "
@@ -55,16 +60,31 @@ class Report:
     findings: list[Finding]
     notes: list[str] = field(default_factory=list)
     cautions: list[str] = field(default_factory=list)
+    #: every waiver that concerns this schedule and what became of it (applied, expired, unmatched)
+    waivers: list[WaiverStatus] = field(default_factory=list)
+    #: the date expiry was judged on (ISO), when some waiver has an expiry date
+    waiver_date: str | None = None
+    #: every check that ran, per subject, with its findings (passes included)
+    cases: list[CheckCase] = field(default_factory=list)
+    #: every requirement of the pack on every subject it applies to (airgate.evaluation.requirements)
+    requirements: list = field(default_factory=list)
 
     @property
     def verdict(self) -> str:
-        return "fail" if any(f.severity == "fail" for f in self.findings) else "pass"
+        """``fail`` when a finding of severity fail is not waived."""
+        return "fail" if any(f.severity == "fail" and not f.waived for f in self.findings) \
+            else "pass"
 
     def counts(self) -> dict[str, int]:
+        """Findings that are not waived, by severity."""
         out = {"fail": 0, "warning": 0, "info": 0}
         for f in self.findings:
-            out[f.severity] += 1
+            if not f.waived:
+                out[f.severity] += 1
         return out
+
+    def waived_count(self) -> int:
+        return sum(1 for f in self.findings if f.waived)
 
     def zone(self, zone_id: str) -> tuple[SystemResult, ZoneResult] | None:
         for s in self.systems:

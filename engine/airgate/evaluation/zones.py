@@ -11,7 +11,7 @@ from airgate.evaluation.report import ZoneResult
 from airgate.evaluation.trail import Trail
 from airgate.models.rules import OccupancyCategory, RulePack
 from airgate.models.schedule import Zone
-from airgate.procedures import zone_rates
+from airgate.procedures import dwelling, zone_rates
 
 
 @dataclass
@@ -41,6 +41,13 @@ def _population(trail: Trail, ctx: ZoneContext, pack: RulePack, emitter: Emitter
     if ctx.zone.occupants is not None:
         return trail.add("Pz", ctx.zone.occupants, "people", origin="schedule",
                          note="stated in the schedule", source=ctx.where("occupants"))
+    if cat.default_occupants == "bedrooms-plus-one" and ctx.zone.bedrooms is not None:
+        trail.add("Nbr", ctx.zone.bedrooms, "count", origin="schedule",
+                  source=ctx.where("bedrooms"), note="number of bedrooms")
+        return trail.add("Pz", dwelling.default_occupants(ctx.zone.bedrooms), "people",
+                         formula="{Nbr} + 1", origin="computed",
+                         source=pack.cite("default_population"),
+                         note="occupants not stated: bedrooms + 1")
     if cat.density is None:
         if cat.rp > 0:
             emitter.emit(
@@ -50,8 +57,7 @@ def _population(trail: Trail, ctx: ZoneContext, pack: RulePack, emitter: Emitter
                 ctx.location, system=ctx.system_id, zone=ctx.zone.id)
         return trail.add("Pz", 0.0, "people", origin="assumed",
                          note="no occupants stated and no default density in the table")
-    trail.add("density", cat.density, "density", origin="table",
-              source=f"{cat.source.cite()}, row '{cat.label}' ({cat.provenance})",
+    trail.add("density", cat.density, "density", origin="table", source=cat.cite("density"),
               note="default occupant density")
     return trail.add("Pz", zone_rates.default_population(cat.density, trail.value("Az")),
                      "people", formula="{density}·{Az}", origin="computed",
@@ -63,10 +69,9 @@ def evaluate_zone(ctx: ZoneContext, pack: RulePack, emitter: Emitter) -> ZoneRes
     """Compute Vbz and Voz for one zone, keeping every step of the trail."""
     zone, cat = ctx.zone, ctx.category
     trail = Trail()
-    row = f"{cat.source.cite()}, row '{cat.label}' ({cat.provenance})"
     trail.add("Az", zone.area, "area", origin="schedule", source=ctx.where("area"))
-    trail.add("Rp", cat.rp, "airflow_per_person", origin="table", source=row)
-    trail.add("Ra", cat.ra, "airflow_per_area", origin="table", source=row)
+    trail.add("Rp", cat.rp, "airflow_per_person", origin="table", source=cat.cite("Rp"))
+    trail.add("Ra", cat.ra, "airflow_per_area", origin="table", source=cat.cite("Ra"))
     _population(trail, ctx, pack, emitter)
     vbz = zone_rates.breathing_zone_outdoor_airflow(
         cat.rp, trail.value("Pz"), cat.ra, trail.value("Az"))

@@ -8,8 +8,12 @@ given in brackets; "internal" means the units of :mod:`airgate.units` (L/s, m²,
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, Any
 
-from airgate.readers.document import Document, Path_
+from airgate.readers.document import Path_
+
+if TYPE_CHECKING:
+    from airgate.models.requirements import Requirement
 
 
 @dataclass(frozen=True)
@@ -60,6 +64,18 @@ class OccupancyCategory:
     notes: str = ""
     #: the row as printed in the pack, in the pack's own units (for provenance in reports)
     printed: dict[str, float | None] = field(default_factory=dict)
+    #: how the default population is found when the table gives no density: None, or
+    #: ``"bedrooms-plus-one"`` (dwelling units: Pz = Nbr + 1)
+    default_occupants: str | None = None
+    #: citations of single fields that differ from the row's source (amended by a layered pack,
+    #: or raised by a requirement), by field name (``Rp``, ``Ra``, ``density``)
+    cited: dict[str, str] = field(default_factory=dict)
+
+    def cite(self, name: str) -> str:
+        """Citation of one value of the row (``Rp``, ``Ra``, ``density``) with its provenance."""
+        if name in self.cited:
+            return self.cited[name]
+        return f"{self.source.cite()}, row '{self.label}' ({self.provenance})"
 
 
 @dataclass(frozen=True)
@@ -140,9 +156,34 @@ class Check:
     source: Source
 
 
+@dataclass(frozen=True)
+class PackOption:
+    """A choice the pack leaves to the schedule (``project.options``), e.g. a category."""
+
+    name: str
+    label: str
+    values: tuple[str, ...]
+    default: str | None
+    source: Source | None = None
+
+
+@dataclass(frozen=True)
+class Retired:
+    """An entry a layered pack removed from its base, and why."""
+
+    collection: str  #: occupancy | air_distribution | ventilation_efficiency | checks | requirements
+    id: str
+    reason: str
+    pack: str  #: id of the pack that retired it
+    where: str  #: file:line of the retirement
+
+    def text(self) -> str:
+        return f"retired by rule pack {self.pack} ({self.where}): {self.reason}"
+
+
 @dataclass
 class RulePack:
-    """A loaded, validated rule pack."""
+    """A loaded, validated rule pack (a layered pack: the merged result)."""
 
     id: str
     title: str
@@ -162,11 +203,23 @@ class RulePack:
     air_distribution_provenance: str
     configurations: dict[str, AirDistributionRow]
     default_configuration: str | None
-    default_method: str
+    #: None: the pack has no procedure for multiple-zone systems
+    default_method: str | None
     methods: dict[str, SimplifiedEv | DetailedEv | TableEv]
     checks: dict[str, Check]
     file: str
-    document_positions: Document | None = None
+    #: the pack document (a :class:`airgate.readers.layering.PackDocument`): positions of values
+    document_positions: Any = None
+    #: the pack this one extends, and the whole chain from this pack to the root
+    extends: str | None = None
+    lineage: tuple[str, ...] = ()
+    #: entries removed by a layered pack, by collection then id
+    retired: dict[str, dict[str, Retired]] = field(default_factory=dict)
+    #: requirements beyond the sum of rates, by id
+    requirements: dict[str, Requirement] = field(default_factory=dict)
+    #: the options the pack declares, and those chosen when it was loaded
+    options: dict[str, PackOption] = field(default_factory=dict)
+    chosen: dict[str, str] = field(default_factory=dict)
 
     def cite(self, key: str) -> str:
         """Citation of an equation key, with its provenance (e.g. for a trail step)."""
@@ -179,3 +232,19 @@ class RulePack:
         if self.document_positions is None:
             return (None, None)
         return self.document_positions.locate(path)
+
+    def where(self, path: Path_) -> tuple[str, int | None, int | None, Path_]:
+        """File, line, column and field path (in that file) where a value of the pack is written.
+
+        For a layered pack this is the file of the pack that wrote the value: the base for an
+        inherited entry, the amending pack for an amendment.
+        """
+        if self.document_positions is None or not hasattr(self.document_positions, "origin"):
+            line, column = self.locate(path)
+            return (self.file, line, column, tuple(path))
+        o = self.document_positions.origin(tuple(path))
+        return (o.file, o.line, o.column, o.path)
+
+    def retirement(self, collection: str, entry: str) -> Retired | None:
+        """Why ``entry`` is missing from ``collection``, when a layered pack retired it."""
+        return self.retired.get(collection, {}).get(entry)

@@ -27,6 +27,7 @@ from airgate import units
 from airgate.models.equipment import AirCleaner, Contaminant, Filter
 from airgate.models.profiles import Profile
 from airgate.models.quantities import Q
+from airgate.models.waivers import Waiver
 
 
 def _finite_count(value: Any) -> Any:
@@ -85,6 +86,24 @@ class _Model(BaseModel):
                               populate_by_name=True)
 
 
+def _option_value(value: Any) -> Any:
+    if isinstance(value, bool):
+        raise ValueError("an option value is text such as II or low, got a true/false value")
+    if isinstance(value, (int, float)):
+        return str(value)
+    return value
+
+
+#: A value chosen for one of the rule pack's options (e.g. category II).
+OptionValue = Annotated[str, BeforeValidator(_option_value), Field(min_length=1, max_length=60)]
+
+
+def _whole_number(value: Any) -> Any:
+    if isinstance(value, bool):
+        raise ValueError("expected a whole number, got a true/false value")
+    return value
+
+
 class Project(_Model):
     """What the schedule is about and which unit system its bare numbers use."""
 
@@ -96,6 +115,9 @@ class Project(_Model):
                                description="Outdoor CO2 concentration. [ppm]")
     co2_limit: float | None = Field(None, gt=0, le=50000, allow_inf_nan=False,
                                     description="Indoor CO2 limit to report against. [ppm]")
+    options: dict[str, OptionValue] = Field(
+        default_factory=dict, description="Choices the rule pack leaves to the schedule, e.g. "
+                                          "{category: II, pollution: low}. [–]")
     notes: str | None = Field(None, description="Free text. [–]")
 
 
@@ -134,6 +156,9 @@ class Zone(_Model):
     area: Q("area", "Zone floor area Az (net occupiable). [ft² or m²]", positive=True)
     occupants: People | None = Field(
         None, description="Zone population Pz; default: table density × Az. [people]")
+    bedrooms: Annotated[int, BeforeValidator(_whole_number)] | None = Field(
+        None, ge=0, le=100, description="Number of bedrooms Nbr of a dwelling unit (its default "
+                                        "occupancy is Nbr + 1 where the pack says so). [–]")
     height: Q("length", "Ceiling height. [ft or m]", positive=True) | None = None
     volume: Q("volume", "Zone volume. [ft³ or m³]", positive=True) | None = None
     air_distribution: (
@@ -226,6 +251,9 @@ class Schedule(_Model):
     contaminants: list[Contaminant] = Field(
         default_factory=list, description="Contaminants to analyse besides occupant CO2. [–]")
     systems: list[System] = Field(min_length=1, description="Air systems. [–]")
+    waivers: list[Waiver] = Field(
+        default_factory=list, description="Approved alternatives: findings the reviewer "
+                                          "accepted, by rule and subject. [–]")
 
     @field_validator("contaminants")
     @classmethod

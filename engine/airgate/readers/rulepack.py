@@ -1,23 +1,22 @@
 """Find, validate and load rule packs.
 
-A pack is YAML validated against the published JSON Schema ``rule-pack.schema.json``; a pack that
-breaks it stops the run (exit 2) with the pack file, line and field path — never warn-and-skip.
-Table values are converted from the pack's declared unit system to internal units here.
+A pack is YAML (or JSON) validated against the published JSON Schema ``rule-pack.schema.json``;
+a pack that breaks it, or refers to what does not exist, stops the run (exit 2) with the pack
+file, line and field path — never warn-and-skip. Packs are found by id on the search path
+(:mod:`airgate.readers.layering`); a layered pack is merged with its base first. Options the
+pack declares are resolved with the schedule's choices (:mod:`airgate.readers.options`). Table
+values are converted from the pack's declared unit system to internal units here.
 """
 
 from __future__ import annotations
 
-import json
-import math
-from functools import lru_cache
-from importlib import resources
+import os
+from collections.abc import Mapping, Sequence
 from pathlib import Path
 from typing import Any
 
-import jsonschema
-
 from airgate import units
-from airgate.errors import RulePackError, nearest
+from airgate.errors import RulePackError
 from airgate.models.rules import (
     AirDistributionRow,
     Bound,
@@ -25,29 +24,21 @@ from airgate.models.rules import (
     DetailedEv,
     Equation,
     OccupancyCategory,
+    Retired,
     RulePack,
     SimplifiedEv,
     Source,
     TableEv,
 )
-from airgate.readers.document import Document, load
+from airgate.readers import layering
+from airgate.readers import options as opts
+from airgate.readers.layering import PACK_SUFFIXES, PackDocument, Root
+from airgate.readers.packschema import builtin_rules_dir, pack_schema
+from airgate.readers.packschema import validate as _validate
+from airgate.readers.requirements import build_requirements
 
-PACK_SUFFIXES = (".yaml", ".yml", ".json")
-
-
-def builtin_rules_dir() -> Path:
-    """The built-in ``rules/`` folder: inside an installed wheel, else the source checkout's."""
-    packaged = resources.files("airgate").joinpath("_rules")
-    if packaged.is_dir():
-        return Path(str(packaged))
-    return Path(__file__).resolve().parents[3] / "rules"
-
-
-@lru_cache(maxsize=1)
-def pack_schema() -> dict[str, Any]:
-    """The published rule-pack JSON Schema (draft 2020-12)."""
-    path = builtin_rules_dir() / "schema" / "rule-pack.schema.json"
-    return json.loads(path.read_text(encoding="utf-8"))
+__all__ = ["builtin_rules_dir", "pack_schema", "builtin_pack_ids", "resolve", "load_document",
+           "load_pack", "build", "validate_document", "is_path"]
 
 
 def builtin_pack_ids() -> list[str]:
@@ -55,89 +46,88 @@ def builtin_pack_ids() -> list[str]:
     return sorted(p.stem for p in builtin_rules_dir().glob("*.yaml"))
 
 
-def resolve(ref: str, base: Path | None = None) -> Path:
-    """Turn a pack id or a path (relative to ``base``) into a pack file path."""
-    candidate = Path(ref)
-    if candidate.suffix.lower() in PACK_SUFFIXES or "/" in ref or "\\" in ref:
+def is_path(ref: str) -> bool:
+    """Whether a pack reference is a file path (a suffix or a folder separator) or an id."""
+    return Path(ref).suffix.lower() in PACK_SUFFIXES or "/" in ref or "\\" in ref
+
+
+def resolve(ref: str, base: Path | None = None,
+            search: Sequence[str | Path] | Sequence[Root] = ()) -> Path:
+    """Turn a pack id (looked up on the search path) or a path (relative to ``base``) into a file."""
+    if is_path(ref):
+        candidate = Path(ref)
         if not candidate.is_absolute() and base is not None:
             candidate = base / candidate
         return candidate
-    path = builtin_rules_dir() / f"{ref}.yaml"
-    if not path.is_file():
-        ids = builtin_pack_ids()
-        close = nearest(ref, ids)
-        raise RulePackError(
-            f"unknown rule pack '{ref}'" + (f"; did you mean {', '.join(close)}?" if close else ""),
-            allowed=ids, hint="give a built-in pack id (airgate rules list) or a path to a pack file",
-        )
-    return path
+    return layering.find(ref, _roots(search))
 
 
-def load_pack(ref: str, base: Path | None = None) -> RulePack:
-    """Load and validate the pack named by id or path (cached while the file is unchanged)."""
-    path = resolve(ref, base)
-    try:
-        stat = path.stat()
-        key = (str(path.resolve()), stat.st_mtime_ns, stat.st_size)
-    except OSError:
-        key = None  # let the loader report the problem with its usual message
-    if key is not None and key in _CACHE:
-        return _CACHE[key]
-    doc = load(path, RulePackError)
-    validate_document(doc)
-    pack = build(doc)
-    if key is not None:
-        _CACHE[key] = pack
-    return pack
+def _roots(search: Sequence[Any]) -> tuple[Root, ...]:
+    if search and all(isinstance(r, Root) for r in search):
+        return tuple(search)
+    return layering.search_roots(search)
 
 
-#: loaded packs by (file, mtime, size); packs are read-only once built
-_CACHE: dict[tuple[str, int, int], RulePack] = {}
-
-
-def _non_finite(data: Any, path: tuple = ()) -> tuple | None:
-    """The path of the first NaN or infinite number (JSON Schema lets them pass), or None."""
-    if isinstance(data, float) and not math.isfinite(data):
-        return path
-    items = data.items() if isinstance(data, dict) else (
-        enumerate(data) if isinstance(data, list) else ())
-    for key, value in items:
-        found = _non_finite(value, path + (key,))
-        if found is not None:
-            return found
-    return None
-
-
-def validate_document(doc: Document) -> None:
+def validate_document(doc: Any) -> None:
     """Check a pack document against the JSON Schema; raise on the most relevant error."""
-    bad = _non_finite(doc.data)
-    if bad is not None:
-        raise doc.error(RulePackError, "must be a finite number, got "
-                        f"{_get(doc.data, bad)!r}", bad, hint="give the table value as a number")
-    validator = jsonschema.Draft202012Validator(pack_schema())
-    error = jsonschema.exceptions.best_match(validator.iter_errors(doc.data))
-    if error is None:
-        return
-    path = tuple(error.absolute_path)
-    message = error.message
-    allowed: list[str] = []
-    if error.validator == "additionalProperties":
-        known = sorted(error.schema.get("properties", {}))
-        extra = [k for k in error.instance if k not in known] if isinstance(error.instance, dict) else []
-        if extra:
-            path = path + (extra[0],)
-            close = nearest(extra[0], known)
-            message = f"unknown field '{extra[0]}'" + (f"; did you mean '{close[0]}'?" if close else "")
-            allowed = known
-    elif error.validator == "enum":
-        allowed = [json.dumps(v) for v in error.validator_value]
-    raise doc.error(RulePackError, message, path, allowed=allowed)
+    _validate(doc)
 
 
-def _get(data: Any, path: tuple) -> Any:
-    for part in path:
-        data = data[part]
-    return data
+def _stamps(files: Sequence[str]) -> tuple | None:
+    out = []
+    for f in files:
+        try:
+            st = os.stat(f)
+        except OSError:
+            return None
+        out.append((f, st.st_mtime_ns, st.st_size))
+    return tuple(out)
+
+
+#: merged, validated pack documents by (file, search path); kept while no file of the chain changes
+_DOCS: dict[tuple, tuple[tuple | None, PackDocument]] = {}
+#: built packs by (document, chosen options); packs are read-only once built
+_PACKS: dict[tuple, tuple[PackDocument, RulePack]] = {}
+
+
+def load_document(ref: str, base: Path | None = None, *,
+                  search: Sequence[str | Path] | Sequence[Root] = ()) -> PackDocument:
+    """The pack's document, merged with its bases and validated (schema, choices, units)."""
+    roots = _roots(search)
+    path = resolve(ref, base, roots)
+    try:
+        key: tuple | None = (str(path.resolve()), tuple(str(r.path.resolve()) for r in roots))
+    except OSError:
+        key = None
+    if key is not None and key in _DOCS:
+        stamps, doc = _DOCS[key]
+        if stamps is not None and stamps == _stamps(doc.files):
+            return doc
+    doc = layering.read(path, roots, expected_id=None if is_path(ref) else ref)
+    opts.check_choices(doc)
+    _check_declared_units(doc, doc.data)
+    if key is not None:
+        _DOCS[key] = (_stamps(doc.files), doc)
+    return doc
+
+
+def load_pack(ref: str, base: Path | None = None, *, options: Mapping[str, str] | None = None,
+              search: Sequence[str | Path] | Sequence[Root] = ()) -> RulePack:
+    """Load, validate and build the pack named by id or path, with its options chosen.
+
+    Raises :class:`~airgate.readers.options.OptionError` when the options do not fit the pack.
+    """
+    doc = load_document(ref, base, search=search)
+    declared = opts.declared(doc.data)
+    chosen = opts.choose(declared, options, doc.data["id"])
+    key = (id(doc), tuple(sorted(chosen.items())))
+    hit = _PACKS.get(key)
+    if hit is not None and hit[0] is doc:
+        return hit[1]
+    pack = build(doc.with_data(opts.resolve(doc.data, chosen)) if declared else doc)
+    pack.options, pack.chosen = declared, chosen
+    _PACKS[key] = (doc, pack)
+    return pack
 
 
 def _source(raw: dict[str, Any] | None, pack: dict[str, Any], fallback: Source | None = None) -> Source:
@@ -153,7 +143,7 @@ def _source(raw: dict[str, Any] | None, pack: dict[str, Any], fallback: Source |
     )
 
 
-def _unique(doc: Document, items: list[dict[str, Any]], path: tuple) -> None:
+def _unique(doc: Any, items: list[dict[str, Any]], path: tuple) -> None:
     seen: dict[str, int] = {}
     for i, item in enumerate(items):
         if item["id"] in seen:
@@ -164,23 +154,46 @@ def _unique(doc: Document, items: list[dict[str, Any]], path: tuple) -> None:
         seen[item["id"]] = i
 
 
-def _categories(doc: Document, data: dict[str, Any], system: str) -> dict[str, OccupancyCategory]:
+def _rate(value: float, kind: str, declared: str, system: str) -> float:
+    """A table rate in internal units; SI tables may be written in m³/h instead of L/s."""
+    if declared.startswith("m3/h"):
+        value = value / 3.6  # 1 L/s = 3.6 m³/h exactly
+    return units.to_internal(value, kind, system)
+
+
+def _cited(doc: Any, row: dict[str, Any], source: Source) -> dict[str, str]:
+    """Citations of the fields of a category that a layered pack amended."""
+    fields = getattr(doc, "amended", {}).get(("occupancy", row["id"]), {})
+    out = {}
+    for name, rec in fields.items():
+        s = rec["source"]
+        amend = Source(s["document"], s["edition"], s.get("table", ""), s.get("section", ""))
+        out[name] = (f"{amend.cite()} ({rec['provenance']}), amending {source.cite()}, "
+                     f"row '{row['label']}'")
+    return out
+
+
+def _categories(doc: Any, data: dict[str, Any], system: str) -> dict[str, OccupancyCategory]:
     occ = data["occupancy"]
     table_source = _source(occ["source"], data)
+    declared = occ["units"]
     _unique(doc, occ["categories"], ("occupancy", "categories"))
     out = {}
     for row in occ["categories"]:
         density = row["density"]
+        source = _source(row.get("source"), data, table_source)
         out[row["id"]] = OccupancyCategory(
             id=row["id"], label=row["label"], group=row["group"],
-            rp=units.to_internal(row["Rp"], "airflow_per_person", system),
-            ra=units.to_internal(row["Ra"], "airflow_per_area", system),
+            rp=_rate(row["Rp"], "airflow_per_person", declared["Rp"], system),
+            ra=_rate(row["Ra"], "airflow_per_area", declared["Ra"], system),
             density=None if density is None else units.to_internal(density, "density", system),
             air_class=row["air_class"],
             provenance=row.get("provenance", occ["provenance"]),
-            source=_source(row.get("source"), data, table_source),
+            source=source,
             notes=row.get("notes", ""),
             printed={"Rp": row["Rp"], "Ra": row["Ra"], "density": density},
+            default_occupants=row.get("default_occupants"),
+            cited=_cited(doc, row, source),
         )
     return out
 
@@ -192,7 +205,7 @@ _BOUND_KINDS = {
 }
 
 
-def _configurations(doc: Document, data: dict[str, Any], system: str) -> dict[str, AirDistributionRow]:
+def _configurations(doc: Any, data: dict[str, Any], system: str) -> dict[str, AirDistributionRow]:
     ad = data["air_distribution"]
     table_source = _source(ad["source"], data)
     _unique(doc, ad["configurations"], ("air_distribution", "configurations"))
@@ -217,7 +230,7 @@ def _configurations(doc: Document, data: dict[str, Any], system: str) -> dict[st
     return out
 
 
-def _methods(doc: Document, data: dict[str, Any]) -> dict[str, Any]:
+def _methods(doc: Any, data: dict[str, Any]) -> dict[str, Any]:
     ve = data["ventilation_efficiency"]
     out: dict[str, Any] = {}
     for name, m in ve["methods"].items():
@@ -245,35 +258,44 @@ def _methods(doc: Document, data: dict[str, Any]) -> dict[str, Any]:
 
 
 _DECLARED_UNITS = {
-    "IP": {"Rp": "cfm/person", "Ra": "cfm/ft2", "density": "people/1000 ft2",
-           "temperature_difference": "delta_degF", "jet_velocity": "fpm", "throw_velocity": "fpm"},
-    "SI": {"Rp": "L/s/person", "Ra": "L/s/m2", "density": "people/100 m2",
-           "temperature_difference": "K", "jet_velocity": "m/s", "throw_velocity": "m/s"},
+    "IP": {"Rp": ("cfm/person",), "Ra": ("cfm/ft2",), "density": ("people/1000 ft2",),
+           "temperature_difference": ("delta_degF",), "jet_velocity": ("fpm",),
+           "throw_velocity": ("fpm",)},
+    "SI": {"Rp": ("L/s/person", "m3/h/person"), "Ra": ("L/s/m2", "m3/h/m2"),
+           "density": ("people/100 m2",), "temperature_difference": ("K",),
+           "jet_velocity": ("m/s",), "throw_velocity": ("m/s",)},
 }
 
 
-def _check_declared_units(doc: Document, data: dict[str, Any]) -> None:
+def _check_declared_units(doc: Any, data: dict[str, Any]) -> None:
     """Table unit declarations must agree with the pack's unit system (no silent mixing)."""
     expected = _DECLARED_UNITS[data["units"]]
     for table in ("occupancy", "air_distribution"):
         for key, unit in data[table]["units"].items():
-            if unit != expected[key]:
+            if unit not in expected[key]:
                 raise doc.error(
                     RulePackError,
                     f"'{unit}' does not belong to a pack in {data['units']} units",
-                    (table, "units", key), allowed=[expected[key]],
+                    (table, "units", key), allowed=list(expected[key]),
                 )
 
 
-def build(doc: Document) -> RulePack:
-    """Build the typed pack from a schema-valid document, checking cross-references."""
+def _retired(doc: Any) -> dict[str, dict[str, Retired]]:
+    return {coll: {eid: Retired(coll, eid, r["reason"], r["pack"], r["where"])
+                   for eid, r in entries.items()}
+            for coll, entries in getattr(doc, "retired", {}).items()}
+
+
+def build(doc: Any) -> RulePack:
+    """Build the typed pack from a schema-valid document (options resolved), checking references."""
     data = doc.data
     system = data["units"]
     _check_declared_units(doc, data)
     _unique(doc, data["checks"], ("checks",))
     equations = {
         key: Equation(key=key, form=e["form"],
-                      source=Source(data["document"], data["edition"], section=e["section"]),
+                      source=Source(e.get("document", data["document"]),
+                                    e.get("edition", data["edition"]), section=e["section"]),
                       provenance=e.get("provenance", data["provenance"]))
         for key, e in data.get("equations", {}).items()
     }
@@ -282,6 +304,11 @@ def build(doc: Document) -> RulePack:
                        source=_source(c["source"], data))
         for c in data["checks"]
     }
+    categories = _categories(doc, data, system)
+    configurations = _configurations(doc, data, system)
+    retired = _retired(doc)
+    has_ev = "ventilation_efficiency" in data
+    lineage = getattr(doc, "lineage", (data["id"],))
     return RulePack(
         id=data["id"], title=data["title"], document=data["document"], edition=data["edition"],
         units=system, jurisdiction=data.get("jurisdiction"), effective=data.get("effective"),
@@ -289,11 +316,15 @@ def build(doc: Document) -> RulePack:
         cautions=tuple(data.get("cautions", [])), equations=equations,
         occupancy_source=_source(data["occupancy"]["source"], data),
         occupancy_provenance=data["occupancy"]["provenance"],
-        categories=_categories(doc, data, system),
+        categories=categories,
         air_distribution_source=_source(data["air_distribution"]["source"], data),
         air_distribution_provenance=data["air_distribution"]["provenance"],
-        configurations=_configurations(doc, data, system),
+        configurations=configurations,
         default_configuration=data["air_distribution"].get("default"),
-        default_method=data["ventilation_efficiency"]["default"],
-        methods=_methods(doc, data), checks=checks, file=doc.file, document_positions=doc,
+        default_method=data["ventilation_efficiency"]["default"] if has_ev else None,
+        methods=_methods(doc, data) if has_ev else {}, checks=checks, file=doc.file,
+        document_positions=doc, extends=lineage[1] if len(lineage) > 1 else None,
+        lineage=tuple(lineage), retired=retired,
+        requirements=build_requirements(doc, data, system, categories, configurations, checks,
+                                        retired),
     )

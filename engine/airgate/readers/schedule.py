@@ -15,6 +15,7 @@ from pydantic import BaseModel, ValidationError
 
 from airgate.errors import AirgateError, ScheduleError, nearest, raise_all
 from airgate.models.schedule import Project, Schedule, StatedDistribution, System, Zone
+from airgate.models.waivers import Waiver
 from airgate.readers.document import Document, Path_, load
 
 MAX_ERRORS = 25
@@ -22,7 +23,7 @@ MAX_ERRORS = 25
 #: The model that owns the fields found under a path ending in this name (for "did you mean").
 _OWNER: dict[str | None, type[BaseModel]] = {
     None: Schedule, "project": Project, "systems": System, "zones": Zone,
-    "air_distribution": StatedDistribution,
+    "air_distribution": StatedDistribution, "waivers": Waiver,
 }
 
 

@@ -5,6 +5,7 @@ from __future__ import annotations
 from airgate import formatting, units
 from airgate.evaluation.report import Report, SystemResult, ZoneResult
 from airgate.evaluation.trail import Step, Trail
+from airgate.writers import shared
 from airgate.writers.text import clean
 
 _ORIGIN = {
@@ -56,6 +57,8 @@ def _findings(report: Report, subject_prefix: str, exact: bool) -> list[str]:
         if mine:
             out.append(f"  {f.severity.upper()} [{f.rule}] {clean(f.subject)}: {clean(f.message)}")
             out.append(f"      {f.source} · at {clean(f.location)}")
+            if f.waiver is not None:
+                out.append(f"      {clean(shared.waived_line(f.waiver))}")
     return out or ["  none"]
 
 

@@ -14,6 +14,7 @@ from typing import Any
 from airgate import __version__, units
 from airgate.evaluation.findings import Amount, Finding
 from airgate.evaluation.report import Report, SystemResult, ZoneResult
+from airgate.evaluation.waivers import WaiverStatus
 from airgate.evaluation.trail import Step, Trail
 
 REPORT_VERSION = 1
@@ -112,7 +113,19 @@ def _finding(f: Finding, system: str) -> dict[str, Any]:
         "zone": f.zone, "message": f.message,
         "required": _amount(f.required, system), "provided": _amount(f.provided, system),
         "source": f.source, "location": _location(f.location),
+        "waiver": None if f.waiver is None else {
+            "reason": f.waiver.reason, "approved_by": f.waiver.approved_by,
+            "expires": f.waiver.expires, "origin": f.waiver.origin,
+            "location": _location(f.waiver.location)},
     }
+
+
+def waiver_status(s: WaiverStatus) -> dict[str, Any]:
+    """One waiver and what became of it (applied, expired, unmatched)."""
+    w, e = s.entry.waiver, s.entry
+    return {"rule": w.rule, "subject": w.subject, "state": s.state, "detail": s.detail,
+            "findings": s.count, "reason": w.reason, "approved_by": w.approved_by,
+            "expires": e.expires, "origin": e.origin, "location": _location(e.location)}
 
 
 def to_dict(report: Report, series_step: int = 0) -> dict[str, Any]:
@@ -127,9 +140,11 @@ def to_dict(report: Report, series_step: int = 0) -> dict[str, Any]:
         "rules": {"id": pack.id, "title": pack.title, "document": pack.document,
                   "edition": pack.edition, "units": pack.units, "provenance": pack.provenance,
                   "verify": pack.verify},
-        "summary": report.counts(),
+        "summary": {**report.counts(), "waived": report.waived_count()},
         "systems": [_system(s, system, series_step) for s in report.systems],
         "findings": [_finding(f, system) for f in report.findings],
+        "waivers": [waiver_status(s) for s in report.waivers],
+        "waivers_judged_on": report.waiver_date,
         "notes": list(report.notes),
         "cautions": list(report.cautions),
     }
@@ -138,3 +153,22 @@ def to_dict(report: Report, series_step: int = 0) -> dict[str, Any]:
 def render(report: Report, series_step: int = 0) -> str:
     """The JSON report; ``series_step`` > 0 adds each zone's design-day CO2 series [minutes]."""
     return json.dumps(to_dict(report, series_step), indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+
+
+BATCH_VERSION = 1
+
+
+def render_batch(batch, series_step: int = 0) -> str:
+    """Several schedules: a wrapper with the run's summary around one report object each."""
+    out = {
+        "batch_version": BATCH_VERSION,
+        "generator": f"airgate {__version__}",
+        "verdict": batch.verdict,
+        "summary": {"schedules": len(batch.reports),
+                    "failing_schedules": sum(r.verdict == "fail" for r in batch.reports),
+                    **batch.counts()},
+        "reports": [to_dict(r, series_step) for r in batch.reports],
+        "waivers": [waiver_status(s) for s in batch.waivers],
+        "cautions": batch.cautions(),
+    }
+    return json.dumps(out, indent=2, ensure_ascii=False, allow_nan=False) + "\n"

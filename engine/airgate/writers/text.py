@@ -7,6 +7,7 @@ import re
 
 from airgate import __version__, formatting, units
 from airgate.evaluation.report import Report, SystemResult, ZoneResult
+from airgate.writers import shared
 
 _CONTROL = re.compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f]")
 WIDTH = 100
@@ -119,13 +120,23 @@ def _dilution_rows(s: SystemResult, system: str) -> list[str]:
     rows = [head]
     for z in zones:
         t = z.dilution
-        excess = t.value("C_ss") - t.value("C_out")
-        rows.append([clean(z.id), _num(t, "Q_oa"), _num(t, "ACH"), _num(t, "C_ss"),
-                     formatting.number(excess, "concentration_ppm"), _num(t, "tau"),
+        excess = (formatting.number(t.value("C_ss") - t.value("C_out"), "concentration_ppm")
+                  if "C_ss" in t else "unbounded")
+        rows.append([clean(z.id), _num(t, "Q_oa"), _num(t, "ACH"), _num(t, "C_ss"), excess, _num(t, "tau"),
                      _num(t, "t99"), _num(t, "C_dcv"), _num(t, "P_max"), _num(t, "C_peak"),
                      _num(t, "C_twa")])
     out = ["", f"    CO2 from occupants (outdoor {formatting.number(zones[0].dilution.value('C_out'), 'concentration_ppm')} ppm; well-mixed steady state at design occupancy)"]
     return out + _table(rows, right=set(range(1, len(head))))
+
+
+def _waivers(report: Report) -> list[str]:
+    if not report.waivers:
+        return []
+    day = f" (expiry judged on {report.waiver_date})" if report.waiver_date else ""
+    out = [f"Waivers{day}"]
+    for s in report.waivers:
+        out.append(f"  {shared.STATE_LABEL[s.state]:<10}{clean(shared.status_line(s))}")
+    return out + [""]
 
 
 def render(report: Report) -> str:
@@ -153,14 +164,20 @@ def render(report: Report) -> str:
         out.append("    ◂ critical zone (lowest Evz; for the table method, largest Zpz)")
     out.append("")
     c = report.counts()
-    out.append(f"Findings — {c['fail']} fail, {c['warning']} warning, {c['info']} info")
+    waived = report.waived_count()
+    out.append(f"Findings — {c['fail']} fail, {c['warning']} warning, {c['info']} info"
+               + (f", {waived} waived" if waived else ""))
     if not report.findings:
         out.append("    none")
     for f in report.findings:
-        out.append(f"  {f.severity.upper():<8}{clean(f.subject)}  [{f.rule}]")
+        out.append(f"  {f.severity.upper():<8}{clean(f.subject)}  [{f.rule}]"
+                   + ("  WAIVED" if f.waived else ""))
         out.append(f"      {clean(f.message)}")
         out.append(f"      at {clean(f.location)} · {f.source}")
+        if f.waiver is not None:
+            out.append(f"      {clean(shared.waived_line(f.waiver))}")
     out.append("")
+    out += _waivers(report)
     failing = sum(1 for s in report.systems if s.verdict == "fail")
     out.append(f"Result: {report.verdict.upper()} — {failing} of {len(report.systems)} systems "
                f"fail; {c['fail']} failing, {c['warning']} warning, {c['info']} info findings.")

@@ -1,0 +1,48 @@
+"""``airgate import``: convert a table, gbXML or IFC file into a YAML schedule."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+from airgate.errors import EXIT_PASS
+
+
+def register(sub) -> None:
+    i = sub.add_parser(
+        "import", help="convert CSV/XLSX tables, gbXML or IFC into a YAML schedule",
+        description="Read a schedule from CSV tables (STEM.zones.csv …), an .xlsx workbook, a "
+                    "gbXML .xml file or an .ifc model and write it as a YAML schedule whose "
+                    "comments say where each value came from. Nothing is written when a room "
+                    "or value cannot be read.")
+    i.add_argument("file", help="source file (.csv, .xlsx, .xml, .ifc; .yaml/.json are "
+                                "rewritten in the same layout)")
+    i.add_argument("-o", "--output", help="YAML file to write (default: standard output)")
+    i.set_defaults(command="import_")  # the module name ('import' is a Python keyword)
+
+
+def run(args: argparse.Namespace) -> int:
+    from airgate.readers.sources import ImportedSchedule, read_any
+    from airgate.writers import output, schedule_yaml
+
+    loaded = read_any(args.file)
+    header = [f"Ventilation schedule imported by airgate from {Path(args.file).name}."]
+    origins = None
+    if isinstance(loaded, ImportedSchedule):
+        origins = loaded.doc.origins
+        header.append(loaded.summary.text() + ".")
+        header.append("Each value's comment says where it was read.")
+        if loaded.notes:
+            header.append("Not mapped:")
+            header += [f"  {n}" for n in loaded.notes]
+    text = schedule_yaml.render(loaded.doc.data, origins, header)
+    if args.output:
+        output.write_atomic(args.output, text)
+    else:
+        sys.stdout.write(text)
+    if isinstance(loaded, ImportedSchedule):
+        sys.stderr.write(loaded.summary.text() + "\n")
+        for note in loaded.notes:
+            sys.stderr.write(f"note: {note}\n")
+    return EXIT_PASS

@@ -1,0 +1,179 @@
+"""Which checks ran on which subject: the passes as well as the findings.
+
+Findings only say what went wrong. A test report (JUnit) and a reviewer's table need every check
+that applied to a system or zone, passed or not. Which checks apply follows from the pack's
+``checks:`` and from what the evaluation computed (a zone with a primary airflow Vpz was checked
+against its Voz; a zone with a Evz was checked against the Ev the intake needs; ...). A finding
+whose check this module does not derive still gets its own case, so no finding is ever left out.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable, Iterator
+from dataclasses import dataclass
+
+from airgate.evaluation.findings import SEVERITY_RANK, Amount, Finding, Location
+from airgate.evaluation.report import SystemResult, ZoneResult
+from airgate.models.rules import RulePack, SimplifiedEv
+from airgate.models.schedule import Schedule, System
+
+#: case status, worst first
+STATUS_ORDER = ("fail", "warning", "waived", "info", "pass")
+
+
+@dataclass(frozen=True)
+class CheckCase:
+    """One check on one subject, with the findings it produced (none: it passed)."""
+
+    rule: str
+    subject: str
+    system: str
+    zone: str | None
+    location: Location
+    required: Amount | None = None
+    provided: Amount | None = None
+    findings: tuple[Finding, ...] = ()
+
+    @property
+    def status(self) -> str:
+        """``fail``, ``warning`` (unwaived findings), ``waived``, ``info`` or ``pass``."""
+        live = [f.severity for f in self.findings if not f.waived]
+        for severity in ("fail", "warning"):
+            if severity in live:
+                return severity
+        if any(f.waived for f in self.findings):
+            return "waived"
+        return "info" if live else "pass"
+
+
+def _amount(value: float | None, kind: str) -> Amount | None:
+    return None if value is None else Amount(value, kind)
+
+
+def _value(trail, symbol: str) -> float | None:
+    return trail.value(symbol) if symbol in trail else None
+
+
+def _system_checks(system: System, result: SystemResult) -> Iterator[tuple]:
+    t = result.trail
+    yield ("system-intake", ("outdoor_air",), _amount(_value(t, "Vot"), "airflow"),
+           _amount(_value(t, "Vot_design"), "airflow"))
+    if system.kind == "multiple-zone":
+        yield "ventilation-efficiency-positive", (), None, None
+        yield "diversity-above-one", (), None, None
+    if system.kind == "outdoor-air":
+        yield "zone-air-sum", (), None, None
+    if system.is_recirculating:
+        yield "air-class-mixing", (), None, None
+
+
+def _ev_needed(result: SystemResult) -> float | None:
+    """The Ev the scheduled intake needs, Vou / Vot_design; None where zones cannot help."""
+    t = result.trail
+    if "Vou" not in t or not t.value("Vot_design") > 0:
+        return None
+    needed = t.value("Vou") / t.value("Vot_design")
+    return needed if needed <= 1.0 else None  # above 1 only more intake helps
+
+
+def _zone_checks(system: System, z: ZoneResult, result: SystemResult,
+                 pack: RulePack) -> Iterator[tuple]:
+    zt = z.trail
+    yield "space-without-rates", (), None, None
+    yield "air-distribution-assumed", (), None, None
+    yield "population-without-density", (), None, None
+    if system.kind == "outdoor-air" and "Voz_design" in zt:
+        yield ("zone-outdoor-air", ("outdoor_air",), Amount(zt.value("Voz"), "airflow"),
+               Amount(zt.value("Voz_design"), "airflow"))
+    if system.kind == "multiple-zone":
+        yield from _multiple_zone_checks(system, zt, result, pack)
+    if system.is_recirculating:
+        yield "air-class-recirculation", (), None, None
+    limits = [z.dilution] if z.dilution is not None else []
+    limits += list(z.contaminants.values())
+    if any("C_limit" in t for t in limits):
+        yield "concentration-limit", (), None, None
+    if z.dilution is not None and "T" in z.dilution:
+        yield "short-term-averaging", (), None, None
+
+
+def _multiple_zone_checks(system: System, zt, result: SystemResult,
+                          pack: RulePack) -> Iterator[tuple]:
+    if "Vpz" in zt:
+        yield ("zone-primary-airflow", ("primary_airflow",), Amount(zt.value("Voz"), "airflow"),
+               Amount(zt.value("Vpz"), "airflow"))
+    needed = _ev_needed(result)
+    if "Evz" in zt and needed is not None and not math.isinf(result.trail.value("Vot")):
+        yield ("zone-limits-ev", ("primary_airflow",), Amount(needed, "fraction"),
+               Amount(zt.value("Evz"), "fraction"))
+    method = pack.methods.get(result.method or "")
+    if (isinstance(method, SimplifiedEv) and method.vav_minimum_primary_ratio is not None
+            and system.variable_air_volume):
+        required = Amount(method.vav_minimum_primary_ratio * zt.value("Voz"), "airflow")
+        if "Vpz" in zt:
+            yield ("simplified-vav-minimum", ("primary_airflow",), required,
+                   Amount(zt.value("Vpz"), "airflow"))
+        else:
+            yield "simplified-vav-minimum", (), required, None
+
+
+def applicable(model: Schedule, pack: RulePack, results: list[SystemResult],
+               locate: Callable[[tuple], Location]) -> list[CheckCase]:
+    """Every check the pack runs that applies to each system and zone, in schedule order."""
+    out: list[CheckCase] = []
+    for i, (system, result) in enumerate(zip(model.systems, results)):
+        base = ("systems", i)
+        for rule, field, required, provided in _system_checks(system, result):
+            if rule in pack.checks:
+                out.append(CheckCase(rule, system.id, system.id, None, locate(base + field),
+                                     required, provided))
+        for j, z in enumerate(result.zones):
+            zbase = base + ("zones", j)
+            for rule, field, required, provided in _zone_checks(system, z, result, pack):
+                if rule in pack.checks:
+                    out.append(CheckCase(rule, f"{system.id}/{z.id}", system.id, z.id,
+                                         locate(zbase + field), required, provided))
+    return out
+
+
+def cases(model: Schedule, pack: RulePack, results: list[SystemResult],
+          findings: list[Finding], locate: Callable[[tuple], Location]) -> list[CheckCase]:
+    """The applicable checks with their findings attached, plus a case for any other finding.
+
+    A finding's own required and provided amounts (and location) take precedence over the
+    case's, so a failing case shows exactly what its finding says.
+    """
+    derived = applicable(model, pack, results, locate)
+    by_key: dict[tuple[str, str], list[Finding]] = {}
+    for f in findings:
+        by_key.setdefault((f.rule, f.subject), []).append(f)
+    out: list[CheckCase] = []
+    seen: set[tuple[str, str]] = set()
+    for case in derived:
+        key = (case.rule, case.subject)
+        seen.add(key)
+        out.append(_attach(case, by_key.get(key, [])))
+    order = {s: n for n, s in enumerate(c.subject for c in derived)}
+    extra = [_from_findings(fs) for key, fs in by_key.items() if key not in seen]
+    out += extra
+    rank = {rule: n for n, rule in enumerate(pack.checks)}
+    return sorted(out, key=lambda c: (order.get(c.subject, len(order)), c.subject,
+                                      rank.get(c.rule, len(rank)), c.rule))
+
+
+def _attach(case: CheckCase, found: list[Finding]) -> CheckCase:
+    if not found:
+        return case
+    first = min(found, key=lambda f: SEVERITY_RANK[f.severity])
+    own = first.required is not None or first.provided is not None
+    required, provided = ((first.required, first.provided) if own
+                          else (case.required, case.provided))
+    return CheckCase(case.rule, case.subject, case.system, case.zone, first.location,
+                     required, provided, tuple(found))
+
+
+def _from_findings(found: list[Finding]) -> CheckCase:
+    f = min(found, key=lambda f: SEVERITY_RANK[f.severity])
+    return CheckCase(f.rule, f.subject, f.system, f.zone, f.location, f.required, f.provided,
+                     tuple(found))

@@ -1,0 +1,157 @@
+"""Apply waivers (approved alternatives) to the findings of one evaluation.
+
+A waiver covers the findings of its rule on its subject. A waived finding stays in every report,
+marked with the waiver's reason, and no longer fails the gate. A waiver past its ``expires`` date
+no longer applies (the finding counts again) and says so; a waiver that matches no finding is
+reported with the reason, so a stale approval is never forgotten silently. Expiry is judged on
+one date for the whole run (``check --as-of``, default today) so a run can be reproduced.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import datetime as dt
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass
+
+from airgate.errors import AirgateError, ScheduleError, nearest
+from airgate.evaluation.findings import Finding, Location, WaiverMark
+from airgate.models.rules import RulePack
+from airgate.models.waivers import Waiver
+
+SCHEDULE = "schedule"
+FILE = "waivers file"
+
+APPLIED, EXPIRED, UNMATCHED = "applied", "expired", "unmatched"
+
+
+@dataclass(frozen=True)
+class WaiverEntry:
+    """A waiver and where it is written."""
+
+    waiver: Waiver
+    location: Location  #: the entry
+    rule_location: Location  #: its ``rule`` field
+    field: tuple  #: field path of the entry in its document
+    origin: str  #: SCHEDULE or FILE
+
+    @property
+    def expires(self) -> str | None:
+        return self.waiver.expires.isoformat() if self.waiver.expires else None
+
+    def mark(self) -> WaiverMark:
+        return WaiverMark(reason=self.waiver.reason, approved_by=self.waiver.approved_by,
+                          expires=self.expires, location=self.location, origin=self.origin)
+
+    def key(self) -> tuple:
+        """Identity across the schedules of a batch."""
+        return (self.origin, str(self.location), self.waiver.rule, self.waiver.subject)
+
+
+@dataclass(frozen=True)
+class WaiverStatus:
+    """What became of one waiver in one evaluation."""
+
+    entry: WaiverEntry
+    state: str  #: APPLIED, EXPIRED or UNMATCHED
+    detail: str  #: one sentence for people
+    count: int  #: findings it covers (applied) or would have covered (expired)
+
+    @property
+    def stale(self) -> bool:
+        """Expired or matching nothing: a reviewer should renew or withdraw it."""
+        return self.state != APPLIED
+
+
+def _entries(waivers: Sequence[Waiver], locate, file: str, origin: str,
+             base: tuple) -> list[WaiverEntry]:
+    out = []
+    for i, w in enumerate(waivers):
+        path = base + (i,)
+        out.append(WaiverEntry(waiver=w, location=Location(file, *locate(path)),
+                               rule_location=Location(file, *locate(path + ("rule",))),
+                               field=path, origin=origin))
+    return out
+
+
+def from_schedule(loaded) -> list[WaiverEntry]:
+    """The waivers written in a loaded schedule's ``waivers:``."""
+    return _entries(loaded.model.waivers, loaded.doc.locate, loaded.file, SCHEDULE, ("waivers",))
+
+
+def from_file(loaded) -> list[WaiverEntry]:
+    """The waivers of a file read by :func:`airgate.readers.waivers.read_waivers`."""
+    return _entries(loaded.waivers, loaded.doc.locate, loaded.doc.file, FILE, ("waivers",))
+
+
+def rule_errors(entries: Iterable[WaiverEntry], known: Iterable[str]) -> list[AirgateError]:
+    """A waiver naming a check id the engine does not know is a typo: an input error."""
+    known = sorted(known)
+    out: list[AirgateError] = []
+    for e in entries:
+        rule = e.waiver.rule
+        if rule in known:
+            continue
+        close = nearest(rule, known)
+        cls = ScheduleError if e.origin == SCHEDULE else AirgateError
+        at = e.rule_location
+        out.append(cls(f"unknown check id '{rule}'"
+                       + (f"; did you mean '{close[0]}'?" if close else ""),
+                       file=at.file, line=at.line, column=at.column, field=e.field + ("rule",),
+                       allowed=known, hint="name the check as the finding does "
+                                           "(airgate rules show PACK lists them)"))
+    return out
+
+
+def _unmatched(w: Waiver, pack: RulePack, subjects: Sequence[str]) -> str:
+    if w.rule not in pack.checks:
+        return f"rule pack {pack.id} does not run check '{w.rule}'"
+    if w.subject not in subjects:
+        close = nearest(w.subject, subjects)
+        return (f"no system or zone '{w.subject}' in the schedule"
+                + (f"; did you mean '{close[0]}'?" if close else ""))
+    return (f"no '{w.rule}' finding on {w.subject}: the check passes or does not apply; "
+            "withdraw the waiver if it is no longer needed")
+
+
+def apply(findings: list[Finding], entries: Sequence[WaiverEntry], *, pack: RulePack,
+          subjects: Sequence[str], as_of: dt.date) -> tuple[list[Finding], list[WaiverStatus]]:
+    """Mark the findings each live waiver covers; say what became of every waiver.
+
+    The first waiver that covers a finding marks it (schedule waivers come before file ones).
+    """
+    out = list(findings)
+    statuses: list[WaiverStatus] = []
+    for entry in entries:
+        w = entry.waiver
+        hits = [i for i, f in enumerate(out) if f.rule == w.rule and f.subject == w.subject]
+        plural = "s" if len(hits) != 1 else ""
+        if w.expires is not None and as_of > w.expires:
+            again = ("the finding it covered counts again" if len(hits) == 1 else
+                     f"the {len(hits)} findings it covered count again")
+            detail = (f"expired on {entry.expires}: {again}" if hits else
+                      f"expired on {entry.expires}; it would match nothing now either")
+            statuses.append(WaiverStatus(entry, EXPIRED, detail, len(hits)))
+            continue
+        if not hits:
+            statuses.append(WaiverStatus(entry, UNMATCHED, _unmatched(w, pack, subjects), 0))
+            continue
+        for i in hits:
+            if not out[i].waived:
+                out[i] = dataclasses.replace(out[i], waiver=entry.mark())
+        statuses.append(WaiverStatus(entry, APPLIED, f"covers {len(hits)} finding{plural}",
+                                     len(hits)))
+    return out, statuses
+
+
+def review(findings: list[Finding], entries: Sequence[WaiverEntry], pack: RulePack, results,
+           as_of: dt.date | None) -> tuple[list[Finding], list[WaiverStatus], str | None]:
+    """:func:`apply` for an evaluation: findings, statuses, and the date expiry was judged on.
+
+    The date is only returned (and so only shown in reports) when some waiver has an expiry.
+    """
+    day = as_of or dt.date.today()
+    subjects = [s.id for s in results] + [f"{s.id}/{z.id}" for s in results for z in s.zones]
+    findings, statuses = apply(findings, entries, pack=pack, subjects=subjects, as_of=day)
+    shown = day.isoformat() if any(e.waiver.expires for e in entries) else None
+    return findings, statuses, shown

@@ -1,0 +1,96 @@
+"""The published rule-pack JSON Schema and validation of a pack document against it.
+
+A pack that breaks the schema stops the run (exit 2) with the file, line and field path of the
+problem. For a layered pack the document is the merged one and every path is traced back to the
+file that wrote it (:class:`airgate.readers.layering.PackDocument`).
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from functools import lru_cache
+from importlib import resources
+from pathlib import Path
+from typing import Any
+
+import jsonschema
+
+from airgate.errors import RulePackError, nearest
+
+
+def builtin_rules_dir() -> Path:
+    """The built-in ``rules/`` folder: inside an installed wheel, else the source checkout's."""
+    packaged = resources.files("airgate").joinpath("_rules")
+    if packaged.is_dir():
+        return Path(str(packaged))
+    return Path(__file__).resolve().parents[3] / "rules"
+
+
+@lru_cache(maxsize=4)
+def schema(name: str = "rule-pack") -> dict[str, Any]:
+    """A published JSON Schema (draft 2020-12) of ``rules/schema/``: rule-pack or pack-test."""
+    path = builtin_rules_dir() / "schema" / f"{name}.schema.json"
+    return json.loads(path.read_text(encoding="utf-8"))
+
+
+def pack_schema() -> dict[str, Any]:
+    """The published rule-pack JSON Schema (draft 2020-12)."""
+    return schema("rule-pack")
+
+
+def non_finite(data: Any, path: tuple = ()) -> tuple | None:
+    """The path of the first NaN or infinite number (JSON Schema lets them pass), or None."""
+    if isinstance(data, float) and not math.isfinite(data):
+        return path
+    items = data.items() if isinstance(data, dict) else (
+        enumerate(data) if isinstance(data, list) else ())
+    for key, value in items:
+        found = non_finite(value, path + (key,))
+        if found is not None:
+            return found
+    return None
+
+
+def get(data: Any, path: tuple) -> Any:
+    for part in path:
+        data = data[part]
+    return data
+
+
+def validate(doc: Any, name: str = "rule-pack", error_cls: type = RulePackError) -> None:
+    """Check ``doc.data`` against a published schema; raise on the most relevant error.
+
+    ``doc`` is anything with ``data`` and ``error(cls, message, path, **kw)``.
+    """
+    bad = non_finite(doc.data)
+    if bad is not None:
+        raise doc.error(error_cls, "must be a finite number, got "
+                        f"{get(doc.data, bad)!r}", bad, hint="give the table value as a number")
+    validator = jsonschema.Draft202012Validator(schema(name))
+    error = jsonschema.exceptions.best_match(validator.iter_errors(doc.data))
+    if error is None:
+        return
+    while error.validator in ("anyOf", "oneOf") and error.context:
+        # a value or a choice on an option: report the branch that got furthest, the plain
+        # value's when none did (so 'five' is "not of type 'number'")
+        deepest = max(len(e.relative_path) for e in error.context)
+        error = next(e for e in error.context if len(e.relative_path) == deepest)
+    path = tuple(error.absolute_path)
+    message = error.message
+    allowed: list[str] = []
+    if error.validator == "additionalProperties":
+        known = sorted(error.schema.get("properties", {}))
+        extra = [k for k in error.instance if k not in known] if isinstance(error.instance, dict) else []
+        if extra:
+            path = path + (extra[0],)
+            close = nearest(extra[0], known)
+            message = f"unknown field '{extra[0]}'" + (f"; did you mean '{close[0]}'?" if close else "")
+            allowed = known
+    elif error.validator == "enum":
+        allowed = [json.dumps(v) for v in error.validator_value]
+    elif error.validator == "required" and isinstance(error.instance, dict):
+        missing = [k for k in error.validator_value if k not in error.instance]
+        if missing:
+            message = f"missing required field '{missing[0]}'"
+    raise doc.error(error_cls, message, path, allowed=allowed)

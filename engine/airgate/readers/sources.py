@@ -1,0 +1,285 @@
+"""Any supported input file → a validated schedule; the one place that dispatches by suffix.
+
+=====================  ==========================================================
+suffix                 reader
+=====================  ==========================================================
+``.yaml .yml .json``   :mod:`airgate.readers.schedule` (and any unknown suffix)
+``.csv``               :mod:`airgate.readers.tabular` (a set of CSV tables)
+``.xlsx``              :mod:`airgate.readers.tabular` (a workbook)
+``.xml .gbxml``        :mod:`airgate.readers.gbxml`
+``.ifc``               :mod:`airgate.readers.ifc` (optional extra ``[ifc]``)
+=====================  ==========================================================
+
+An importer builds the plain data a YAML schedule would hold, plus an :class:`Origin` for each
+field path: the file (for a workbook ``building.xlsx[Zones]``), the line (the row of a table, the
+line of an XML element or of an IFC entity), the column (the column number of a table, the column
+of an XML element) and a reference for messages and comments (``cell E4``, ``<Area>``, ``IfcSpace
+#45``). The schedule reader then validates that data with the same rules as a YAML file, and
+every message and finding points back at the cell, element or entity.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from airgate.errors import AirgateError, ErrorGroup, ScheduleError
+from airgate.readers.document import Document, Path_
+from airgate.readers.schedule import LoadedSchedule, read_schedule, validate
+
+MAX_ERRORS = 25
+
+
+@dataclass(frozen=True)
+class Origin:
+    """Where one value of an imported schedule came from.
+
+    ``file``, ``line`` and ``column`` become the finding's location (``line`` is the row of a
+    table; ``column`` is the column number of a table, ``None`` for an IFC entity). ``ref`` is
+    added to messages (``cell E4 (Area [ft2])``); ``source`` is the provenance written beside the
+    value in an imported YAML schedule (``building.xlsx[Zones]!E4``).
+    """
+
+    file: str
+    line: int | None
+    column: int | None
+    ref: str
+    source: str
+    note: str = ""
+
+    def with_note(self, note: str) -> Origin:
+        return Origin(self.file, self.line, self.column, self.ref, self.source, note)
+
+
+@dataclass
+class ImportedDocument(Document):
+    """A schedule document built by an importer: data plus an :class:`Origin` per field path."""
+
+    origins: dict[Path_, Origin] = field(default_factory=dict)
+
+    def origin(self, path: Path_) -> Origin | None:
+        """The origin of ``path`` or of its nearest ancestor."""
+        path = tuple(path)
+        while True:
+            if path in self.origins:
+                return self.origins[path]
+            if not path:
+                return None
+            path = path[:-1]
+
+    def locate(self, path: Path_) -> tuple[int | None, int | None]:
+        o = self.origin(path)
+        return (o.line, o.column) if o else (None, None)
+
+    def error(self, cls: type[AirgateError], message: str, path: Path_, **kw: Any) -> AirgateError:
+        o = self.origin(path)
+        if o is None:
+            return cls(message, file=self.file, field=path, **kw)
+        return cls(f"{message} ({o.ref})", file=o.file, line=o.line, column=o.column, field=path,
+                   **kw)
+
+
+@dataclass
+class Summary:
+    """Rooms read from the source, mapped into the schedule, and rejected (with an error)."""
+
+    source: str
+    read: int = 0
+    rejected: int = 0
+    systems: int = 0
+
+    @property
+    def mapped(self) -> int:
+        return self.read - self.rejected
+
+    def text(self) -> str:
+        return (f"{self.source}: {self.read} room{'s' if self.read != 1 else ''} read, "
+                f"{self.mapped} mapped to {self.systems} system{'s' if self.systems != 1 else ''}"
+                f", {self.rejected} rejected")
+
+
+@dataclass
+class ImportedSchedule(LoadedSchedule):
+    """A schedule read from a table, gbXML or IFC file; locations point into that source."""
+
+    summary: Summary = field(default_factory=lambda: Summary(""))
+    #: elements or values of the source that were not mapped, and why
+    notes: list[str] = field(default_factory=list)
+
+    def locate(self, path: Path_) -> tuple[str, int | None, int | None]:
+        o = self.doc.origin(path)
+        return (o.file, o.line, o.column) if o else (self.doc.file, None, None)
+
+
+class SummarisedError(AirgateError):
+    """The last error of a failed import, followed by the count of rooms read, mapped and
+    rejected (so the count stays with the errors however a command regroups them)."""
+
+    def __init__(self, inner: AirgateError, summary: str) -> None:
+        super().__init__(inner.message, file=inner.file, line=inner.line, column=inner.column,
+                         field=inner.field, allowed=inner.allowed, hint=inner.hint)
+        self.kind = inner.kind
+        self.exit_code = inner.exit_code
+        self.summary = summary
+
+    def render(self) -> str:
+        return super().render() + "\n" + self.summary
+
+
+class ImportFailed(ErrorGroup):
+    """The problems found while importing; the last one carries the room counts."""
+
+    def __init__(self, errors: list[AirgateError], summary: Summary) -> None:
+        ordered = sorted(errors, key=lambda e: (e.file or "", e.line or 0, e.column or 0))
+        shown = ordered[:MAX_ERRORS]
+        more = len(ordered) - len(shown)
+        text = summary.text() + "; nothing was checked or written"
+        if more:
+            text = f"… and {more} more errors\n" + text
+        shown[-1] = SummarisedError(shown[-1], text)
+        super().__init__(shown)
+        self.summary = summary
+
+
+@dataclass
+class Builder:
+    """Collects what an importer read: schedule data, origins, errors, notes and rooms."""
+
+    file: str
+    source: str
+    data: dict[str, Any] = field(default_factory=lambda: {"schedule": 1})
+    origins: dict[Path_, Origin] = field(default_factory=dict)
+    errors: list[AirgateError] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)
+    #: room key → field path of its zone once placed (None while not placed)
+    rooms: dict[Any, Path_ | None] = field(default_factory=dict)
+    rejected: set[Any] = field(default_factory=set)
+    #: fields whose whole column could not be read (already reported): no "missing" message
+    quiet: set[str] = field(default_factory=set)
+
+    def put(self, path: Path_, value: Any, origin: Origin | None) -> None:
+        """Set ``value`` at ``path`` (creating mappings and lists on the way), keep its origin."""
+        node: Any = self.data
+        for part, nxt in zip(path[:-1], path[1:]):
+            if isinstance(node, list):
+                while len(node) <= part:
+                    node.append({} if not isinstance(nxt, int) else [])
+                node = node[part]
+            else:
+                node = node.setdefault(part, [] if isinstance(nxt, int) else {})
+        if isinstance(node, list):
+            while len(node) <= path[-1]:
+                node.append(None)
+            node[path[-1]] = value
+        else:
+            node[path[-1]] = value
+        if origin is not None:
+            self.origins[tuple(path)] = origin
+
+    def at(self, path: Path_, origin: Origin) -> None:
+        """Record where ``path`` would be written, without a value (for 'missing' messages)."""
+        self.origins.setdefault(tuple(path), origin)
+
+    def error(self, origin: Origin | None, message: str, *, field: Path_ = (),
+              hint: str | None = None, allowed: list[str] | None = None,
+              room: Any = None) -> None:
+        if origin is None:
+            err = ScheduleError(message, file=self.file, field=field, hint=hint, allowed=allowed)
+        else:
+            err = ScheduleError(f"{message} ({origin.ref})", file=origin.file, line=origin.line,
+                                column=origin.column, field=field, hint=hint, allowed=allowed)
+        self.errors.append(err)
+        if room is not None:
+            self.rejected.add(room)
+
+    def note(self, origin: Origin | None, message: str) -> None:
+        where = "" if origin is None else (
+            f"{origin.file}:{origin.line}: " if origin.line is not None else f"{origin.file}: ")
+        self.notes.append(f"{where}{message}")
+
+    def room(self, key: Any) -> None:
+        """Count a room read from the source (every room read is mapped or rejected)."""
+        self.rooms.setdefault(key, None)
+
+    def place(self, key: Any, path: Path_) -> None:
+        self.rooms[key] = tuple(path)
+
+    def finish(self) -> ImportedSchedule:
+        """Validate the collected data; raise every problem together, with the room counts."""
+        doc = ImportedDocument(file=self.file, data=self.data, origins=self.origins,
+                               positions={p: (o.line, o.column) for p, o in self.origins.items()
+                                          if o.line is not None})
+        summary = Summary(self.source, read=len(self.rooms),
+                          systems=len(self.data.get("systems") or []))
+        errors = list(self.errors)
+        model = None
+        try:
+            model = validate(doc)
+        except AirgateError as exc:
+            # one message per place: a cell already reported is not reported again as missing
+            taken = {(e.file, e.line, e.column) for e in self.errors}
+            errors.extend(e for e in (exc.errors if isinstance(exc, ErrorGroup) else [exc])
+                          if (e.file, e.line, e.column) not in taken and not (
+                              e.field and e.field[-1] in self.quiet
+                              and e.message.startswith("missing required field")))
+        unplaced = {k for k, p in self.rooms.items() if p is None}
+        rejected = set(self.rejected) | unplaced
+        for err in errors:
+            rejected |= {k for k, p in self.rooms.items()
+                         if p is not None and _under(err.field, p)}
+        summary.rejected = len(rejected & set(self.rooms))
+        if errors or model is None:
+            raise ImportFailed(errors, summary)
+        return ImportedSchedule(model=model, doc=doc, summary=summary, notes=list(self.notes))
+
+
+def _under(error_path: Path_, zone_path: Path_) -> bool:
+    """Whether an error at ``error_path`` concerns the zone at ``zone_path`` (or its system)."""
+    if len(error_path) >= len(zone_path):
+        return tuple(error_path[: len(zone_path)]) == tuple(zone_path)
+    # an error on the system itself (not its zones list) rejects its rooms too
+    return len(error_path) >= 2 and tuple(error_path[:2]) == tuple(zone_path[:2]) and (
+        len(error_path) == 2 or error_path[2] != "zones")
+
+
+#: Suffixes of formats airgate cannot read, and what to do instead.
+_REFUSED = {
+    ".xls": "save the workbook as .xlsx (Excel Workbook)",
+    ".xlsm": "save the workbook as .xlsx; airgate does not read macro-enabled workbooks",
+    ".ods": "save the spreadsheet as .xlsx or as CSV tables",
+    ".ifczip": "unzip it to an .ifc file",
+    ".ifcxml": "save the model as .ifc (STEP physical file)",
+}
+
+#: What each suffix is read as (for help texts and docs).
+SUPPORTED = ".yaml, .yml, .json, .csv (STEM.zones.csv …), .xlsx, gbXML .xml, .ifc"
+
+
+def read_any(path: str | Path) -> LoadedSchedule:
+    """Read a schedule from any supported file: YAML/JSON, CSV tables, XLSX, gbXML or IFC."""
+    path = Path(path)
+    suffix = path.suffix.lower()
+    if suffix in _REFUSED:
+        raise ScheduleError(f"{suffix} files cannot be read", file=str(path),
+                            hint=_REFUSED[suffix])
+    if suffix == ".csv":
+        from airgate.readers import tabular
+        return tabular.read_csv_set(path)
+    if suffix == ".xlsx":
+        from airgate.readers import tabular
+        return tabular.read_xlsx(path)
+    if suffix in (".xml", ".gbxml"):
+        from airgate.readers import gbxml
+        return gbxml.read(path)
+    if suffix == ".ifc":
+        from airgate.readers import ifc
+        return ifc.read(path)
+    return read_schedule(path)
+
+
+def import_notes(loaded: LoadedSchedule) -> list[str]:
+    """The summary and the not-mapped notes of an imported schedule ([] for YAML/JSON)."""
+    if not isinstance(loaded, ImportedSchedule):
+        return []
+    return [f"imported from {loaded.summary.text()}", *loaded.notes]

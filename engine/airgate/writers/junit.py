@@ -1,0 +1,132 @@
+"""JUnit XML: one document for the run, one test suite per schedule, one test case per check.
+
+Every check that applied to a subject is a test case, passes included (evaluation/coverage.py).
+A case fails when it has a finding at or above the run's ``--fail-on`` severity that is not
+waived; its ``<failure>`` says required vs provided, the margin, the source and where in the
+schedule. A waived finding is a ``<skipped>`` case with the waiver's reason. Waivers themselves
+are cases too (a stale waiver fails under ``--fail-on warning``). The document uses only the
+elements and attributes common to JUnit consumers (testsuites, testsuite, properties, testcase,
+failure, skipped, system-out); it has no timestamps or durations, so it is deterministic.
+"""
+
+from __future__ import annotations
+
+import re
+import xml.etree.ElementTree as ET
+from pathlib import PurePath
+
+from airgate import __version__
+from airgate.evaluation.batch import Batch
+from airgate.evaluation.coverage import CheckCase
+from airgate.evaluation.report import Report
+from airgate.evaluation.waivers import WaiverStatus
+from airgate.writers import shared
+
+#: characters XML 1.0 cannot hold even escaped (and lone surrogates, which UTF-8 cannot encode)
+_NOT_XML = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ud800-\udfff\ufffe\uffff]")
+
+
+def xml_text(value: object) -> str:
+    """Text safe to put in an XML document (ElementTree escapes the markup characters)."""
+    return _NOT_XML.sub("\ufffd", str(value))
+
+
+def _el(parent: ET.Element, tag: str, text: str | None = None, **attrs: object) -> ET.Element:
+    e = ET.SubElement(parent, tag, {k: xml_text(v) for k, v in attrs.items()})
+    if text is not None:
+        e.text = xml_text(text)
+    return e
+
+
+def _failing(case: CheckCase, fail_on: str) -> bool:
+    return case.status == "fail" or (case.status == "warning" and fail_on == "warning")
+
+
+def _finding_lines(report: Report, case: CheckCase) -> list[str]:
+    u = report.units
+    out = [f"{case.subject} — {case.rule}: {shared.check_title(report, case.rule)}"]
+    for f in case.findings:
+        out.append(f"{f.severity}{' (waived)' if f.waived else ''}: {f.message}")
+        if f.waiver is not None:
+            out.append(shared.waived_line(f.waiver))
+    if case.required is not None or case.provided is not None:
+        out.append(f"required: {shared.amount(case.required, u)}")
+        out.append(f"provided: {shared.amount(case.provided, u)}")
+        out.append(f"margin: {shared.margin(case.required, case.provided, u)}")
+    out.append(f"source: {shared.check_source(report, case.rule)}")
+    out.append(f"at: {case.location}")
+    return out
+
+
+def _case(suite: ET.Element, report: Report, case: CheckCase, classname: str,
+          fail_on: str) -> str:
+    tc = _el(suite, "testcase", name=f"{case.subject} {case.rule}", classname=classname)
+    lines = _finding_lines(report, case)
+    if _failing(case, fail_on):
+        first = next(f for f in case.findings if not f.waived and f.severity in ("fail", "warning"))
+        _el(tc, "failure", "\n".join(lines), message=first.message, type=case.rule)
+        return "failure"
+    if case.status == "waived":
+        mark = next(f.waiver for f in case.findings if f.waiver is not None)
+        _el(tc, "skipped", message=shared.waived_line(mark))
+        _el(tc, "system-out", "\n".join(lines))
+        return "skipped"
+    _el(tc, "system-out", "\n".join(lines))
+    return "pass"
+
+
+def _waiver_case(suite: ET.Element, s: WaiverStatus, classname: str, fail_on: str) -> str:
+    w = s.entry.waiver
+    tc = _el(suite, "testcase", name=f"waiver {w.subject} {w.rule}", classname=classname)
+    line = shared.status_line(s)
+    if s.stale and fail_on == "warning":
+        _el(tc, "failure", line, message=f"waiver {s.state}: {s.detail}",
+            type=f"waiver-{s.state}")
+        return "failure"
+    _el(tc, "system-out", f"{shared.STATE_LABEL[s.state]}: {line}")
+    return "pass"
+
+
+def _properties(suite: ET.Element, items: list[tuple[str, str]]) -> None:
+    props = _el(suite, "properties")
+    for name, value in items:
+        _el(props, "property", name=name, value=value)
+
+
+def _finish(suite: ET.Element, outcomes: list[str]) -> tuple[int, int, int]:
+    tests, failures, skipped = len(outcomes), outcomes.count("failure"), outcomes.count("skipped")
+    suite.set("tests", str(tests))
+    suite.set("failures", str(failures))
+    suite.set("errors", "0")
+    suite.set("skipped", str(skipped))
+    return tests, failures, skipped
+
+
+def _suite(root: ET.Element, report: Report, fail_on: str) -> tuple[int, int, int]:
+    suite = _el(root, "testsuite", name=f"{report.schedule_file} — {report.project_name}")
+    _properties(suite, [("schedule", report.schedule_file), ("project", report.project_name),
+                        ("rule_pack", report.pack.id), ("units", report.units),
+                        ("verdict", report.verdict), ("fail_on", fail_on)]
+                + ([("waivers_judged_on", report.waiver_date)] if report.waiver_date else [])
+                + [("caution", c) for c in report.cautions])
+    stem = PurePath(report.schedule_file).stem
+    outcomes = [_case(suite, report, c, f"{stem}.{c.system}", fail_on) for c in report.cases]
+    outcomes += [_waiver_case(suite, s, f"{stem}.waivers", fail_on) for s in report.waivers]
+    return _finish(suite, outcomes)
+
+
+def render(batch: Batch) -> str:
+    """The JUnit XML document of the run (UTF-8, indented, final newline)."""
+    root = ET.Element("testsuites", {"name": f"airgate {__version__} ventilation checks"})
+    totals = [_suite(root, r, batch.fail_on) for r in batch.reports]
+    if batch.waivers:
+        suite = _el(root, "testsuite", name="waivers file")
+        _properties(suite, [("caution", c) for c in batch.cautions()[:1]])
+        outcomes = [_waiver_case(suite, s, "waivers", batch.fail_on) for s in batch.waivers]
+        totals.append(_finish(suite, outcomes))
+    for i, key in enumerate(("tests", "failures", "skipped")):
+        root.set(key, str(sum(t[i] for t in totals)))
+    root.set("errors", "0")
+    ET.indent(root, space="  ")
+    return ('<?xml version="1.0" encoding="UTF-8"?>\n'
+            + ET.tostring(root, encoding="unicode") + "\n")

@@ -1,0 +1,185 @@
+"""SARIF 2.1.0: the run's findings as code-scanning results on the lines of the schedules.
+
+One log with one run for all schedules of a ``check``. Rules are the checks the rule packs run,
+with help text and citation. Each finding is a result located by file, line and column; its
+``partialFingerprints`` come from rule and subject only, so a result keeps its identity when the
+schedule's lines move. A waived finding carries a suppression (``inSource`` for a schedule's own
+waiver, ``external`` for a waivers file) with the reason as justification. Stale waivers are
+tool notifications. No timestamps or random ids: the log is deterministic.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import re
+from pathlib import PurePath
+from typing import Any
+from urllib.parse import quote
+
+from airgate import __version__
+from airgate.evaluation.batch import Batch
+from airgate.evaluation.checks import KNOWN_CHECKS
+from airgate.evaluation.findings import Finding, Location
+from airgate.evaluation.report import SAFETY_CAUTION, Report
+from airgate.evaluation.waivers import SCHEDULE, WaiverStatus
+from airgate.writers import shared
+
+SCHEMA_URI = "https://docs.oasis-open.org/sarif/sarif/v2.1.0/errata01/os/schemas/sarif-schema-2.1.0.json"
+LEVEL = {"fail": "error", "warning": "warning", "info": "note"}
+FINGERPRINT = "airgateRuleSubject/v1"
+_LONE_SURROGATE = re.compile("[\ud800-\udfff]")
+
+NOTIFICATIONS = [
+    {"id": "waiver-expired", "name": "WaiverExpired",
+     "shortDescription": {"text": "A waiver is past its expiry date and no longer applies."},
+     "defaultConfiguration": {"level": "warning"}},
+    {"id": "waiver-unmatched", "name": "WaiverUnmatched",
+     "shortDescription": {"text": "A waiver matches no finding; withdraw or correct it."},
+     "defaultConfiguration": {"level": "warning"}},
+]
+
+
+def _s(text: object) -> str:
+    return _LONE_SURROGATE.sub("\ufffd", str(text))
+
+
+def uri(path: str) -> str:
+    """A schedule path as a URI reference: relative paths stay relative, with '/' separators."""
+    p = PurePath(path)
+    if p.is_absolute():
+        return "file://" + quote(p.as_posix())
+    return quote(p.as_posix())
+
+
+def fingerprint(rule: str, subject: str) -> str:
+    return hashlib.sha256(f"{rule}\x1f{subject}".encode("utf-8", "replace")).hexdigest()[:32]
+
+
+def _physical(loc: Location, artifacts: dict[str, int]) -> dict[str, Any]:
+    out: dict[str, Any] = {"artifactLocation": {"uri": uri(loc.file),
+                                                "index": artifacts[loc.file]}}
+    if loc.line is not None and loc.line >= 1:
+        region: dict[str, Any] = {"startLine": loc.line}
+        if loc.column is not None and loc.column >= 1:
+            region["startColumn"] = loc.column
+        out["region"] = region
+    return out
+
+
+def _rules(batch: Batch) -> list[dict[str, Any]]:
+    """Every check any pack of the run enables, in pack order, citations of all packs."""
+    seen: dict[str, dict[str, Any]] = {}
+    for r in batch.reports:
+        for check in r.pack.checks.values():
+            rule = seen.get(check.id)
+            cite = f"{r.pack.id}: {check.source.cite()}"
+            if rule is None:
+                seen[check.id] = rule = {
+                    "id": check.id, "title": check.title, "level": LEVEL[check.severity],
+                    "citations": [], "verifies": KNOWN_CHECKS.get(check.id, check.title)}
+            if cite not in rule["citations"]:
+                rule["citations"].append(cite)
+    return [_rule(r) for r in seen.values()]
+
+
+def _rule(r: dict[str, Any]) -> dict[str, Any]:
+    cites = "; ".join(r["citations"])
+    text = (f"{r['title']}. Verifies: {r['verifies']}. Source: {cites}. {SAFETY_CAUTION}")
+    md = (f"**{r['title']}**\n\nVerifies: {r['verifies']}.\n\nSource: {cites}.\n\n"
+          f"_{SAFETY_CAUTION}_")
+    return {
+        "id": r["id"],
+        "name": "".join(part.capitalize() for part in r["id"].split("-")),
+        "shortDescription": {"text": _s(r["title"])},
+        "fullDescription": {"text": _s(f"{r['verifies']} ({cites})")},
+        "help": {"text": _s(text), "markdown": _s(md)},
+        "defaultConfiguration": {"level": r["level"]},
+        "properties": {"citation": [_s(c) for c in r["citations"]],
+                       "tags": ["ventilation", "airgate"]},
+    }
+
+
+def _suppression(f: Finding, artifacts: dict[str, int]) -> dict[str, Any]:
+    w = f.waiver
+    return {"kind": "inSource" if w.origin == SCHEDULE else "external", "status": "accepted",
+            "justification": _s(f"{w.reason} ({shared.approval(w)})"),
+            "location": {"physicalLocation": _physical(w.location, artifacts)}}
+
+
+def _result(report: Report, f: Finding, rule_index: dict[str, int],
+            artifacts: dict[str, int]) -> dict[str, Any]:
+    u = report.units
+    text = f.message
+    if f.required is not None or f.provided is not None:
+        text += (f". Required {shared.amount(f.required, u)}, provided "
+                 f"{shared.amount(f.provided, u)}, margin "
+                 f"{shared.margin(f.required, f.provided, u)}")
+    text += f". Source: {f.source}."
+    logical = {"name": _s(f.zone or f.system or f.subject), "fullyQualifiedName": _s(f.subject),
+               "kind": "object"}
+    out: dict[str, Any] = {
+        "ruleId": f.rule, "ruleIndex": rule_index[f.rule], "level": LEVEL[f.severity],
+        "message": {"text": _s(text)},
+        "locations": [{"physicalLocation": _physical(f.location, artifacts),
+                       "logicalLocations": [logical]}],
+        "partialFingerprints": {FINGERPRINT: fingerprint(f.rule, f.subject)},
+        "suppressions": [_suppression(f, artifacts)] if f.waiver is not None else [],
+        "properties": {"subject": _s(f.subject), "severity": f.severity,
+                       "required": shared.amount(f.required, u),
+                       "provided": shared.amount(f.provided, u), "source": _s(f.source),
+                       "rulePack": report.pack.id},
+    }
+    return out
+
+
+def _notification(s: WaiverStatus, artifacts: dict[str, int]) -> dict[str, Any]:
+    w = s.entry.waiver
+    return {"descriptor": {"id": f"waiver-{s.state}"}, "level": "warning",
+            "message": {"text": _s(f"waiver for {w.rule} on {w.subject}: {s.detail}")},
+            "locations": [{"physicalLocation": _physical(s.entry.location, artifacts)}]}
+
+
+def _artifacts(batch: Batch) -> list[str]:
+    """Every file a location points at: the schedules, then waivers files, each once."""
+    files = [r.schedule_file for r in batch.reports]
+    for status in [s for r in batch.reports for s in r.waivers] + batch.waivers:
+        files.append(status.entry.location.file)
+    return list(dict.fromkeys(files))
+
+
+def to_dict(batch: Batch) -> dict[str, Any]:
+    rules = _rules(batch)
+    rule_index = {r["id"]: i for i, r in enumerate(rules)}
+    files = _artifacts(batch)
+    artifacts = {f: i for i, f in enumerate(files)}
+    results = [_result(r, f, rule_index, artifacts) for r in batch.reports for f in r.findings]
+    stale = batch.stale_waivers()
+    return {
+        "$schema": SCHEMA_URI,
+        "version": "2.1.0",
+        "runs": [{
+            "tool": {"driver": {
+                "name": "airgate", "version": __version__, "semanticVersion": __version__,
+                "fullName": f"airgate {__version__} ventilation schedule checker",
+                "rules": rules, "notifications": NOTIFICATIONS}},
+            "invocations": [{
+                "executionSuccessful": True,
+                "toolExecutionNotifications": [_notification(s, artifacts) for s in stale]}],
+            "artifacts": [{"location": {"uri": uri(f)}} for f in files],
+            "columnKind": "unicodeCodePoints",
+            "results": results,
+            "properties": {
+                "schedules": [{"file": _s(r.schedule_file), "project": _s(r.project_name),
+                               "rulePack": r.pack.id, "units": r.units, "verdict": r.verdict,
+                               "waiversJudgedOn": r.waiver_date}
+                              for r in batch.reports],
+                "verdict": batch.verdict,
+                "cautions": [_s(c) for c in batch.cautions()]},
+        }],
+    }
+
+
+def render(batch: Batch) -> str:
+    """The SARIF log (UTF-8 JSON, 2-space indent, final newline)."""
+    return json.dumps(to_dict(batch), indent=2, ensure_ascii=False, allow_nan=False) + "\n"

@@ -1,0 +1,73 @@
+"""Wording shared by the report writers: amounts with margins, waivers, check titles.
+
+Every writer says the same thing the same way; only the markup differs. Strings returned here are
+plain text: each writer escapes them for its own format.
+"""
+
+from __future__ import annotations
+
+import math
+
+from airgate import formatting
+from airgate.evaluation.checks import KNOWN_CHECKS
+from airgate.evaluation.findings import Amount, WaiverMark
+from airgate.evaluation.report import Report
+from airgate.evaluation.waivers import WaiverStatus
+
+#: how each waiver state is labelled for people
+STATE_LABEL = {"applied": "applied", "expired": "EXPIRED", "unmatched": "UNMATCHED"}
+
+
+def amount(a: Amount | None, units: str) -> str:
+    """``1,900 cfm``, or ``–`` when there is no amount."""
+    return "–" if a is None else formatting.amount(a.value, a.kind, units)
+
+
+def margin(required: Amount | None, provided: Amount | None, units: str) -> str:
+    """``-344 cfm (-15.3 %)``: provided − required, absolute and relative to required."""
+    if required is None or provided is None or math.isinf(required.value):
+        return "–"
+    diff = provided.value - required.value
+    text = formatting.amount(diff, required.kind, units)
+    if diff > 0:
+        text = "+" + text
+    if required.value > 0:
+        text += f" ({formatting.percent(diff / required.value)})"
+    return text
+
+
+def relative_margin(required: Amount | None, provided: Amount | None) -> float | None:
+    """(provided − required) / required, or None where it is not defined."""
+    if required is None or provided is None or not required.value > 0 \
+            or math.isinf(required.value):
+        return None
+    return (provided.value - required.value) / required.value
+
+
+def check_title(report: Report, rule: str) -> str:
+    """The pack's title of a check, or what the engine says it verifies."""
+    check = report.pack.checks.get(rule)
+    return check.title if check is not None else KNOWN_CHECKS.get(rule, rule)
+
+
+def check_source(report: Report, rule: str) -> str:
+    check = report.pack.checks.get(rule)
+    return check.source.cite() if check is not None else ""
+
+
+def approval(mark: WaiverMark) -> str:
+    """``approved by X; expires 2027-03-31`` (or ``no expiry``)."""
+    until = f"expires {mark.expires}" if mark.expires else "no expiry"
+    return f"approved by {mark.approved_by}; {until}"
+
+
+def waived_line(mark: WaiverMark) -> str:
+    """One line for a waived finding: reason, approval, where the waiver is written."""
+    return f"waived: {mark.reason} ({approval(mark)}; {mark.origin} {mark.location})"
+
+
+def status_line(s: WaiverStatus) -> str:
+    """One line for a waiver's outcome: rule, subject, what became of it, approval, where."""
+    w = s.entry.waiver
+    return (f"{w.rule} on {w.subject}: {s.detail} — {w.reason} "
+            f"({approval(s.entry.mark())}; {s.entry.origin} {s.entry.location})")

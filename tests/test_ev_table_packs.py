@@ -1,0 +1,54 @@
+"""The older Ev-versus-Zp tables as packs extending ashrae-62.1-2019.
+
+Sources (../shared/reference-values.md C): rows ≤ 0.15 → 1.0, ≤ 0.25 → 0.9, ≤ 0.35 → 0.8,
+≤ 0.45 → 0.7, ≤ 0.55 → 0.6 with linear interpolation permitted — published (a state mechanical
+code table). Above 0.55 the standard's editions say use the detailed calculation; a model-code
+table continues ≤ 0.65 → 0.5, ≤ 0.75 → 0.4, > 0.75 → 0.3 — as recorded there.
+"""
+
+from __future__ import annotations
+
+import pytest
+
+from airgate.procedures import efficiency as eff
+from airgate.readers.rulepack import load_pack
+
+from conftest import DEMO
+
+ROWS = [(0.15, 1.0), (0.25, 0.9), (0.35, 0.8), (0.45, 0.7), (0.55, 0.6)]
+
+
+def test_rows_of_both_variants():
+    a = load_pack("ashrae-62.1-2019-ev-table")
+    b = load_pack("ashrae-62.1-2019-ev-table-extended")
+    assert a.methods["table"].rows == tuple(ROWS) and a.methods["table"].above_last == "detailed"
+    assert b.methods["table"].rows == tuple(ROWS + [(0.65, 0.5), (0.75, 0.4)])
+    assert b.methods["table"].above_last == 0.3
+    assert a.default_method == b.default_method == "table"
+    assert a.methods["table"].provenance == "published"
+    # the rate tables are the base pack's
+    assert a.categories == load_pack("ashrae-62.1-2019").categories
+
+
+@pytest.mark.parametrize(("zp", "ev"), [(0.10, 1.0), (0.20, 0.95), (0.55, 0.6), (0.50, 0.65)])
+def test_interpolated_values(zp, ev):
+    # linear interpolation between published rows (permitted by the table's note)
+    table = load_pack("ashrae-62.1-2019-ev-table").methods["table"]
+    assert eff.system_ventilation_efficiency_table(zp, table.rows, table.interpolate) == \
+        pytest.approx(ev)
+
+
+def test_the_demo_under_both_variants(evaluate):
+    # The demo's AHU-3 (invented) by the table method: largest Zp 0.620 (zone 203). Variant A:
+    # above 0.55, so the detailed calculation, Ev 0.609. Variant B: between 0.55 → 0.6 and
+    # 0.65 → 0.5, Ev = 0.6 − 0.1 × (0.620 − 0.55) / 0.1 = 0.530 (derived).
+    import yaml
+
+    data = yaml.safe_load(DEMO.read_text(encoding="utf-8"))
+    data["systems"][2]["ventilation_efficiency"] = "table"
+    for pack, ev in (("ashrae-62.1-2019-ev-table", 0.609), ("ashrae-62.1-2019-ev-table-extended",
+                                                             0.530)):
+        report = evaluate(data, pack)
+        system = report.systems[2]
+        assert system.trail.value("max Zpz") == pytest.approx(0.620, abs=5e-4)
+        assert system.trail.value("Ev") == pytest.approx(ev, abs=5e-4)
