@@ -49,7 +49,9 @@ system_st = st.fixed_dictionaries({
     "method": st.sampled_from(["simplified", "detailed"]),
     "zones": st.lists(zone_st, min_size=1, max_size=6),
 })
-SETTINGS = settings(max_examples=60, deadline=None,
+#: CI generates thousands of schedules over the four invariant tests; locally a quicker sample.
+EXAMPLES = 400 if os.environ.get("CI") else 60
+SETTINGS = settings(max_examples=EXAMPLES, deadline=None,
                     suppress_health_check=[HealthCheck.function_scoped_fixture,
                                            HealthCheck.too_slow])
 
