@@ -33,9 +33,10 @@ def run(args: argparse.Namespace) -> int:
         origins = loaded.doc.origins
         header.append(loaded.summary.text() + ".")
         header.append("Each value's comment says where it was read.")
-        if loaded.notes:
+        if loaded.notes:  # named by file name, so the YAML does not depend on the folder
             header.append("Not mapped:")
-            header += [f"  {n}" for n in loaded.notes]
+            header += [f"  {n.replace(loaded.doc.file, Path(loaded.doc.file).name)}"
+                       for n in loaded.notes]
     text = schedule_yaml.render(loaded.doc.data, origins, header)
     if args.output:
         output.write_atomic(args.output, text)

@@ -71,12 +71,12 @@ def case_files(folder: Path) -> list[Path]:
 
 
 def _is_case(path: Path) -> bool:
+    """A test case has ``test:`` and ``schedule:`` at its top level."""
     try:
-        head = path.read_text(encoding="utf-8-sig")[:4000]
-    except (OSError, UnicodeDecodeError):
+        data = load(path, PackTestError).data
+    except AirgateError:
         return False
-    return any(line.strip().startswith(("test:", '"test"')) for line in head.splitlines()
-               if not line.startswith((" ", "\t", "#")))
+    return isinstance(data, dict) and "test" in data and "schedule" in data
 
 
 def plan(target: str | None, search: Sequence[str | Path] = ()) -> tuple[tuple[Root, ...], list]:
@@ -108,10 +108,10 @@ def plan(target: str | None, search: Sequence[str | Path] = ()) -> tuple[tuple[R
 
 
 def _sub_document(doc: Document, key: str) -> Document:
-    n = len((key,))
+    """The document under ``key``, its positions re-rooted (errors still name the case file)."""
     return Document(file=doc.file, data=doc.data[key],
-                    positions={p[n:]: v for p, v in doc.positions.items() if p[:n] == (key,)},
-                    texts={p[n:]: v for p, v in doc.texts.items() if p[:n] == (key,)})
+                    positions={p[1:]: v for p, v in doc.positions.items() if p[:1] == (key,)},
+                    texts={p[1:]: v for p, v in doc.texts.items() if p[:1] == (key,)})
 
 
 def _schedule(doc: Document) -> LoadedSchedule:

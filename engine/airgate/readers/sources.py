@@ -252,9 +252,6 @@ _REFUSED = {
     ".ifcxml": "save the model as .ifc (STEP physical file)",
 }
 
-#: What each suffix is read as (for help texts and docs).
-SUPPORTED = ".yaml, .yml, .json, .csv (STEM.zones.csv …), .xlsx, gbXML .xml, .ifc"
-
 
 def read_any(path: str | Path) -> LoadedSchedule:
     """Read a schedule from any supported file: YAML/JSON, CSV tables, XLSX, gbXML or IFC."""

@@ -348,6 +348,9 @@ def _put_row(b: Builder, base: tuple, row: _Row, skip: tuple[str, ...] = ()) -> 
 def _project(table: Table, b: Builder) -> None:
     rows = _rows(table, b)
     if not rows:
+        if table.rows:
+            b.error(table.row_origin(table.rows[0]), "the project table has no row under its "
+                    "header", hint="give the project's name, units and rules in row 2")
         return
     if len(rows) > 1:
         b.error(rows[1].origin, "the project table has one row (under its header); this is a "
@@ -367,7 +370,11 @@ def _systems(table: Table, b: Builder) -> dict[str, tuple[int, _Row]]:
     """System id → (index, row); a row with an unreadable cell rejects its rooms."""
     out: dict[str, tuple[int, _Row]] = {}
     b.data["systems"] = []
-    for row in _rows(table, b):
+    rows = _rows(table, b)
+    if not rows and table.rows:
+        b.error(table.row_origin(table.rows[0]), "the systems table has no row under its header",
+                field=("systems",), hint="give one row per air system")
+    for row in rows:
         if "id" not in row.values:
             b.error(row.blanks.get("id", row.origin), "the system has no id",
                     hint="fill the System column")

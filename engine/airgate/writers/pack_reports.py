@@ -7,6 +7,7 @@ from typing import Any
 
 from airgate.evaluation.packdiff import Change, PackDiff
 from airgate.evaluation.packtests import PackResult
+from airgate.writers.packs import GOVERN
 
 DIFF_VERSION = 1
 _KEY_FIELDS = ("label", "Rp", "Ra", "density", "air_class", "ez", "severity", "kind", "form")
@@ -53,7 +54,7 @@ def diff_text(d: PackDiff) -> str:
             out.append(f"  ~ {key}  " + "; ".join(_change(c) for c in changes))
     c = d.counts()
     out += ["", f"{c['added']} added, {c['removed']} removed, {c['changed']} changed"
-                if any(c.values()) else "no differences"]
+                if any(c.values()) else "no differences", "", GOVERN]
     return "\n".join(out) + "\n"
 
 

@@ -10,6 +10,11 @@ from airgate.models.rules import RulePack, SimplifiedEv, TableEv
 from airgate.readers.options import is_choice
 
 
+#: closing line of every listing of a pack's content
+GOVERN = ("A rule pack is a reading of the code, not the code: the adopted local code and the "
+          "licensed professional of record govern.")
+
+
 def choice_text(value: Any) -> str:
     """A value that depends on options, compactly: ``category: I 10 · II 7 · III 4``."""
     if not is_choice(value):
@@ -174,6 +179,7 @@ def pack_summary(pack: RulePack, doc: Any = None) -> str:
     for c in pack.checks.values():
         out.append(f"  {c.id:34} {c.severity:8} {c.title}")
     out += _requirements(pack, data.get("requirements", [])) + _retired(pack)
+    out += ["", GOVERN]
     return "\n".join(out) + "\n"
 
 

@@ -15,7 +15,6 @@ import tempfile
 from pathlib import Path
 from typing import Any
 
-from airgate import units
 from airgate.errors import UsageError
 from airgate.readers import fields as F
 
@@ -226,7 +225,8 @@ def xlsx_bytes(tables: Tables, pack=None) -> bytes:
 
 
 def write_files_atomic(files: dict[Path, bytes | str]) -> None:
-    """Write every file through a temporary file beside it; all appear, or none changes."""
+    """Write every file whole, through a temporary file beside it; every file is written before
+    any is renamed into place, so a failure while writing changes nothing."""
     temps: list[tuple[str, Path]] = []
     try:
         for path, content in files.items():
@@ -247,6 +247,3 @@ def write_files_atomic(files: dict[Path, bytes | str]) -> None:
         for tmp, _ in temps:
             Path(tmp).unlink(missing_ok=True)
 
-
-def default_units(pack) -> str:
-    return pack.units if pack is not None else units.IP
