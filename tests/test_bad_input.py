@@ -364,3 +364,17 @@ def test_limits_are_configurable_by_environment(tmp_path):
                          env=env, capture_output=True, text=True)
     assert run.returncode == 2
     assert "more than 50 values" in run.stderr and "Traceback" not in run.stderr
+
+
+def test_file_size_limit_is_an_input_error(tmp_path):
+    # docs/limits.md: a file over AIRGATE_MAX_BYTES is refused before it is parsed.
+    import os
+    import subprocess
+    import sys
+
+    from conftest import DEMO, ROOT
+
+    env = {**os.environ, "AIRGATE_MAX_BYTES": "1000"}
+    run = subprocess.run([sys.executable, "-m", "airgate", "check", str(DEMO)], cwd=ROOT,
+                         env=env, capture_output=True, text=True)
+    assert run.returncode == 2 and "larger than" in run.stderr and "Traceback" not in run.stderr

@@ -198,3 +198,22 @@ def test_explain_shows_the_waiver_of_a_finding(tmp_path, capsys):
     assert main(["explain", path, "--zone", "203"]) == 0
     out = capsys.readouterr().out
     assert "FAIL [zone-limits-ev]" in out and "waived: approved alternative (invented)" in out
+
+
+def test_waiver_may_name_a_pack_requirement(tmp_path, capsys):
+    # A requirement declared by a layered pack is waivable like an engine check (docs/ci.md).
+    import yaml
+
+    from airgate.cli import main
+    from conftest import DEMO
+
+    data = yaml.safe_load(DEMO.read_text(encoding="utf-8"))
+    data["rules"] = "ashrae-62.1-2019-quillby-bay"
+    data["waivers"] = [{"rule": "recirculating-filter-merv-13", "subject": "RTU-1",
+                        "reason": "filter rating on the submitted unit data sheet",
+                        "approved_by": "Plan reviewer (invented)"}]
+    path = tmp_path / "w.yaml"
+    path.write_text(yaml.safe_dump(data, sort_keys=False), encoding="utf-8")
+    code = main(["check", str(path)])
+    out = capsys.readouterr()
+    assert code in (0, 1) and "unknown check id" not in out.err

@@ -11,7 +11,7 @@ from airgate.errors import EXIT_PASS
 
 def register(sub) -> None:
     s = sub.add_parser("schema", help="print a published JSON Schema")
-    s.add_argument("which", choices=["schedule", "rules"])
+    s.add_argument("which", choices=["schedule", "rules", "pack-test"])
 
 
 def run(args: argparse.Namespace) -> int:
@@ -21,9 +21,14 @@ def run(args: argparse.Namespace) -> int:
         schema = Schedule.model_json_schema()
         schema["$schema"] = "https://json-schema.org/draft/2020-12/schema"
         schema["title"] = "airgate ventilation schedule, format version 1"
-    else:
+    elif args.which == "rules":
         from airgate.readers.rulepack import pack_schema
 
         schema = pack_schema()
+    else:
+        from airgate.readers.rulepack import builtin_rules_dir
+
+        path = builtin_rules_dir() / "schema" / "pack-test.schema.json"
+        schema = json.loads(path.read_text(encoding="utf-8"))
     sys.stdout.write(json.dumps(schema, indent=2, ensure_ascii=False, sort_keys=True) + "\n")
     return EXIT_PASS

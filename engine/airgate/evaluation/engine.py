@@ -88,7 +88,8 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack,
     """
     bind.check_pack_checks(pack, set(KNOWN_CHECKS))
     entries = [*waivers.from_schedule(loaded), *extra_waivers]
-    raise_all(waivers.rule_errors(entries, KNOWN_CHECKS))
+    # a waiver may name an engine check or one of the pack's declared requirements
+    raise_all(waivers.rule_errors(entries, [*KNOWN_CHECKS, *pack.requirements]))
     units = loaded.model.project.units
     run = RequirementRun(pack, loaded)
     bound = _bind_all(loaded, pack, run)

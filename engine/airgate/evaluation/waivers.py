@@ -104,7 +104,7 @@ def rule_errors(entries: Iterable[WaiverEntry], known: Iterable[str]) -> list[Ai
 
 
 def _unmatched(w: Waiver, pack: RulePack, subjects: Sequence[str]) -> str:
-    if w.rule not in pack.checks:
+    if w.rule not in pack.checks and w.rule not in pack.requirements:
         return f"rule pack {pack.id} does not run check '{w.rule}'"
     if w.subject not in subjects:
         close = nearest(w.subject, subjects)

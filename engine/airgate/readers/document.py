@@ -265,7 +265,10 @@ def read_text(path: Path, error_cls: type[AirgateError]) -> str:
     except OSError as exc:
         raise error_cls(f"cannot read file: {exc.strerror}", file=name) from None
     if len(raw) > MAX_BYTES:
-        raise error_cls(f"file is larger than {MAX_BYTES // (1024 * 1024)} MiB", file=name)
+        size = (f"{MAX_BYTES // (1024 * 1024)} MiB" if MAX_BYTES >= 1024 * 1024
+                else f"{MAX_BYTES} bytes")
+        raise error_cls(f"file is larger than the {size} limit", file=name,
+                        hint="split the file, or raise AIRGATE_MAX_BYTES (docs/limits.md)")
     if b"\x00" in raw:
         line, column = _line_column(raw, raw.index(b"\x00"))
         raise error_cls("file is binary (contains NUL bytes), expected YAML or JSON text",

@@ -148,6 +148,15 @@ def render(report: Report) -> str:
         f"schedule : {clean(report.schedule_file)} — {clean(report.project_name)} ({system} units)",
         f"rule pack: {pack.id} — {pack.title}",
     ]
+    if pack.lineage and len(pack.lineage) > 1:
+        out.append("           layers: " + " → ".join(pack.lineage))
+    if pack.jurisdiction or pack.effective:
+        out.append("           " + " · ".join(x for x in (
+            f"jurisdiction {clean(pack.jurisdiction)}" if pack.jurisdiction else "",
+            f"effective {clean(pack.effective)}" if pack.effective else "") if x))
+    if pack.chosen:
+        out.append("           options: " + ", ".join(f"{k} = {v}" for k, v in
+                                                      sorted(pack.chosen.items())))
     if pack.verify:
         out.append("           table values partly entered from memory: verify against the "
                    "adopted edition")
