@@ -253,11 +253,11 @@ def _line_column(raw: bytes, offset: int) -> tuple[int, int]:
     return line, offset - (raw.rfind(b"\n", 0, offset) + 1) + 1
 
 
-def read_text(path: Path, error_cls: type[AirgateError]) -> str:
-    """Read a UTF-8 file (a byte-order mark is allowed) or raise an error naming it."""
+def read_bytes(path: Path, error_cls: type[AirgateError]) -> bytes:
+    """Read a file within the size limit, or raise an error naming it (any reader's first step)."""
     name = str(path)
     try:
-        raw = path.read_bytes()
+        raw = Path(path).read_bytes()
     except FileNotFoundError:
         raise error_cls("file not found", file=name) from None
     except IsADirectoryError:
@@ -269,6 +269,13 @@ def read_text(path: Path, error_cls: type[AirgateError]) -> str:
                 else f"{MAX_BYTES} bytes")
         raise error_cls(f"file is larger than the {size} limit", file=name,
                         hint="split the file, or raise AIRGATE_MAX_BYTES (docs/limits.md)")
+    return raw
+
+
+def read_text(path: Path, error_cls: type[AirgateError]) -> str:
+    """Read a UTF-8 file (a byte-order mark is allowed) or raise an error naming it."""
+    name = str(path)
+    raw = read_bytes(path, error_cls)
     if b"\x00" in raw:
         line, column = _line_column(raw, raw.index(b"\x00"))
         raise error_cls("file is binary (contains NUL bytes), expected YAML or JSON text",

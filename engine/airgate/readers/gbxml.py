@@ -28,7 +28,7 @@ from typing import Any
 from airgate import units
 from airgate.errors import ScheduleError, nearest
 from airgate.readers import fields as F
-from airgate.readers.document import MAX_BYTES
+from airgate.readers.document import read_bytes
 from airgate.readers.sources import Builder, ImportedSchedule, Origin
 from airgate.readers.xmltree import Element, parse
 
@@ -486,16 +486,7 @@ def read(path: str | Path) -> ImportedSchedule:
     """Read a gbXML file into a validated schedule (errors name the element and its line)."""
     path = Path(path)
     name = str(path)
-    try:
-        data = path.read_bytes()
-    except FileNotFoundError:
-        raise ScheduleError("file not found", file=name) from None
-    except IsADirectoryError:
-        raise ScheduleError("is a directory, expected a file", file=name) from None
-    except OSError as exc:
-        raise ScheduleError(f"cannot read file: {exc.strerror}", file=name) from None
-    if len(data) > MAX_BYTES:
-        raise ScheduleError(f"file is larger than {MAX_BYTES // (1024 * 1024)} MiB", file=name)
+    data = read_bytes(path, ScheduleError)
     root = parse(data, name, "gbXML")
     if root.tag != "gbXML" or root.ns not in (NAMESPACE, ""):
         raise ScheduleError(f"not a gbXML document: the root element is <{root.tag}>"

@@ -30,7 +30,7 @@ from typing import Any
 from airgate import units
 from airgate.errors import ScheduleError
 from airgate.readers import fields as F
-from airgate.readers.document import MAX_BYTES
+from airgate.readers.document import read_bytes
 from airgate.readers.sources import Builder, ImportedSchedule, Origin
 
 #: IFC measure → (unit type of the project's units, airgate quantity kind, SI unit text)
@@ -387,16 +387,7 @@ def read(path: str | Path) -> ImportedSchedule:
     """Read an IFC model into a validated schedule (needs the optional ifcopenshell)."""
     path = Path(path)
     name = str(path)
-    try:
-        data = path.read_bytes()
-    except FileNotFoundError:
-        raise ScheduleError("file not found", file=name) from None
-    except IsADirectoryError:
-        raise ScheduleError("is a directory, expected a file", file=name) from None
-    except OSError as exc:
-        raise ScheduleError(f"cannot read file: {exc.strerror}", file=name) from None
-    if len(data) > MAX_BYTES:
-        raise ScheduleError(f"file is larger than {MAX_BYTES // (1024 * 1024)} MiB", file=name)
+    data = read_bytes(path, ScheduleError)
     if not data.lstrip().startswith(b"ISO-10303-21"):
         raise ScheduleError("not an IFC file: it does not start with ISO-10303-21", file=name,
                             line=1, column=1, hint="export the model as IFC (.ifc, STEP)")
