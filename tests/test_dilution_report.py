@@ -147,3 +147,17 @@ def test_multiple_zone_capacity_reaches_the_intake_exactly(evaluate):
     data["systems"][0]["zones"][1]["occupants"] = p_max
     r2 = evaluate(data)
     assert r2.systems[0].trail.value("Vot") == pytest.approx(600 * CFM, rel=1e-6)
+
+
+def test_weekend_variant_has_its_own_peak(evaluate):
+    # A profile's weekend variant (issue contract): an empty weekend leaves the outdoor level;
+    # a half-occupied weekend morning gives about half the weekday excess (linear balance,
+    # domain.md §4; four hours ≫ the time constant here).
+    data = single({"profile": "p"}, outdoor_air="620 cfm")
+    data["profiles"] = {"p": {"weekday": {"08:00-12:00": 1.0}, "weekend": {"08:00-12:00": 0.5}}}
+    t = evaluate(data).systems[0].zones[0].dilution
+    assert t.value("C_peak_weekend") - 420 == pytest.approx((t.value("C_peak") - 420) / 2,
+                                                             rel=1e-9)
+    data["profiles"]["p"]["weekend"] = {}
+    t = evaluate(data).systems[0].zones[0].dilution
+    assert t.value("C_peak_weekend") == pytest.approx(420)

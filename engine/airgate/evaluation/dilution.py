@@ -171,6 +171,20 @@ def _sample_fractions(breaks: np.ndarray, fractions: np.ndarray, times: np.ndarr
     return fractions[idx]
 
 
+def _weekend_peak(t: Trail, profile) -> None:
+    """Peak CO2 on a weekend day, where the profile has its own weekend variant (exact)."""
+    if profile.weekend is None:
+        return
+    breaks, fractions = profile.pieces("weekend")
+    b2, f2 = _two_days(breaks, fractions)
+    sol = dilution.piecewise_solution(b2, PPM * LS * t.value("G") * f2, t.value("V"),
+                                      LS * t.value("Q_oa"), t.value("C_out"),
+                                      outdoor_concentration=t.value("C_out"))
+    t.add("C_peak_weekend", float(dilution.peak_concentration(sol, 24.0, 48.0)[0]),
+          "concentration_ppm", source=MB, note="peak over a weekend day (the profile's weekend "
+          "variant, exact piecewise solution)")
+
+
 def _day_series_single(t: Trail, breaks, fractions, name: str) -> Series:
     b2, f2 = _two_days(breaks, fractions)
     gen = PPM * LS * t.value("G") * f2
@@ -235,6 +249,7 @@ def _single_path(system, ctxs, result, schedule, emitter, out) -> None:
         if pieces is not None and t.value("Q_oa") > 0:
             z.series = _day_series_single(t, *pieces, ctx.zone.profile)
             _short_term(t, ctx, z, z.series.occupancy[:-1], emitter)
+            _weekend_peak(t, schedule.profiles[ctx.zone.profile])
         _limit(t, ctx, schedule, emitter)
         z.dilution = t
         out.append(z)
