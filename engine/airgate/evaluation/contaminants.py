@@ -14,7 +14,15 @@ import math
 import numpy as np
 
 from airgate.evaluation.checks import Emitter
-from airgate.evaluation.dilution import LS, MB, STEP_H, _profile_pieces, _two_days, volume_of
+from airgate.evaluation.dilution import (
+    LS,
+    MB,
+    STEP_H,
+    _profile_pieces,
+    _sample_fractions,
+    _two_days,
+    volume_of,
+)
 from airgate.evaluation.report import SystemResult, ZoneResult
 from airgate.evaluation.trail import Trail
 from airgate.evaluation.zones import ZoneContext
@@ -174,8 +182,7 @@ def _coupled_day(system, ctxs, result, c, schedule, trails, vol, vpz, kw) -> Non
     gen = np.empty((len(mids), len(ctxs)))
     for j, (ctx, z, p) in enumerate(zip(ctxs, result.zones, profiles)):
         people, rest = _generation(ctx, z, c)
-        frac = np.ones(len(mids)) if p is None else p[1][
-            np.clip(np.searchsorted(p[0], mids, side="right") - 1, 0, len(p[1]) - 1)]
+        frac = np.ones(len(mids)) if p is None else _sample_fractions(p[0], p[1], mids)
         gen[:, j] = people * frac + rest
     b2, g2 = _two_days(breaks, gen)
     times = 24.0 + np.arange(0, 24 * 60 + 1) * STEP_H
