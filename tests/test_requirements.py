@@ -302,3 +302,21 @@ def test_requirements_are_listed_by_rules_show(capsys):
     assert "zone: space in classrooms-age-9-plus, classrooms-ages-5-8, lecture-classroom" in out
     assert "Retired entries" in out and "gambling-casinos" in out
     assert "extends   ashrae-62.1-2019" in out and "(amended: Ra)" in out
+
+
+def test_passing_requirements_are_junit_cases(tmp_path, capsys):
+    # Every check that applied is a JUnit test case, passes included (JUnit XML, common
+    # practice): a pack requirement that passed appears as a case without a failure.
+    import xml.etree.ElementTree as ET
+
+    from airgate.cli import main
+    from conftest import DEMO
+
+    out = tmp_path / "r.xml"
+    main(["check", str(DEMO), "--rules", "ashrae-62.1-2019-quillby-bay",
+          "--format", f"junit:{out}"])
+    cases = ET.parse(out).getroot().iter("testcase")
+    names = [(c.get("name") or "") + " " + (c.get("classname") or "") for c in cases
+             if c.find("failure") is None and c.find("skipped") is None]
+    assert any("classroom-outdoor-air-floor" in n or "recirculating-filter-merv-13" in n
+               for n in names)

@@ -10,7 +10,7 @@ whose check this module does not derive still gets its own case, so no finding i
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Iterator
+from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass
 
 from airgate.evaluation.findings import SEVERITY_RANK, Amount, Finding, Location
@@ -137,9 +137,26 @@ def applicable(model: Schedule, pack: RulePack, results: list[SystemResult],
     return out
 
 
+def _requirement_cases(outcomes, results: list[SystemResult], seen) -> list[CheckCase]:
+    """A case for each requirement of the pack that passed on a subject (failures come as
+    findings)."""
+    where = {s.id: (s.id, None, s.location) for s in results}
+    where.update({f"{s.id}/{z.id}": (s.id, z.id, z.location) for s in results for z in s.zones})
+    out = []
+    for o in outcomes:
+        if o.verdict != "pass" or (o.rule, o.subject) in seen or o.subject not in where:
+            continue
+        system, zone, location = where[o.subject]
+        out.append(CheckCase(o.rule, o.subject, system, zone, location))
+        seen.add((o.rule, o.subject))
+    return out
+
+
 def cases(model: Schedule, pack: RulePack, results: list[SystemResult],
-          findings: list[Finding], locate: Callable[[tuple], Location]) -> list[CheckCase]:
-    """The applicable checks with their findings attached, plus a case for any other finding.
+          findings: list[Finding], locate: Callable[[tuple], Location],
+          outcomes: Sequence = ()) -> list[CheckCase]:
+    """The applicable checks with their findings attached, plus a case for any other finding
+    and for every pack requirement that passed (``outcomes``, airgate.evaluation.requirements).
 
     A finding's own required and provided amounts (and location) take precedence over the
     case's, so a failing case shows exactly what its finding says.
@@ -156,8 +173,9 @@ def cases(model: Schedule, pack: RulePack, results: list[SystemResult],
         out.append(_attach(case, by_key.get(key, [])))
     order = {s: n for n, s in enumerate(c.subject for c in derived)}
     extra = [_from_findings(fs) for key, fs in by_key.items() if key not in seen]
-    out += extra
-    rank = {rule: n for n, rule in enumerate(pack.checks)}
+    seen.update(by_key)
+    out += extra + _requirement_cases(outcomes, results, seen)
+    rank = {rule: n for n, rule in enumerate([*pack.checks, *pack.requirements])}
     return sorted(out, key=lambda c: (order.get(c.subject, len(order)), c.subject,
                                       rank.get(c.rule, len(rank)), c.rule))
 

@@ -125,7 +125,7 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack,
                      "separately; use that pack where one exists.")
     cautions = [SAFETY_CAUTION, *pack.cautions]
     cases = coverage.cases(loaded.model, pack, results, findings,
-                           lambda path: _location(loaded, path))
+                           lambda path: _location(loaded, path), run.outcomes)
     return Report(schedule_file=loaded.file, project_name=loaded.model.project.name, units=units,
                   pack=pack, systems=results, findings=findings, notes=notes, cautions=cautions,
                   waivers=statuses, waiver_date=waiver_date, cases=cases,
