@@ -4,9 +4,7 @@ from __future__ import annotations
 
 import json
 import re
-from pathlib import Path
 
-import pytest
 import yaml
 
 from airgate.cli import main

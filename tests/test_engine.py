@@ -16,7 +16,7 @@ from airgate.procedures import efficiency as eff
 from airgate.procedures import zone_rates
 from airgate.readers.rulepack import builtin_rules_dir
 
-from conftest import CFM, FT2, schedule
+from conftest import CFM, schedule
 
 REL = 1e-3
 

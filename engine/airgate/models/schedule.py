@@ -15,7 +15,6 @@ from pydantic import (
     BeforeValidator,
     ConfigDict,
     Field,
-    ValidationInfo,
     WithJsonSchema,
     field_validator,
     model_validator,

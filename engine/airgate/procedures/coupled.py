@@ -29,13 +29,13 @@ from typing import NamedTuple
 
 import numpy as np
 
-from airgate.procedures.dilution import (
-    _check_breaks,
-    _exp_and_integral,
-    _fraction,
-    _nonneg,
-    _phi,
-    _positive,
+from airgate.procedures.numeric import (
+    check_breaks as _check_breaks,
+    exp_and_integral as _exp_and_integral,
+    fraction as _fraction,
+    nonneg as _nonneg,
+    phi as _phi,
+    positive as _positive,
 )
 
 __all__ = [

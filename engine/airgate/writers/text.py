@@ -6,7 +6,7 @@ import math
 import re
 
 from airgate import __version__, formatting, units
-from airgate.evaluation.report import Report, SystemResult, ZoneResult
+from airgate.evaluation.report import Report, SystemResult
 from airgate.writers import shared
 
 _CONTROL = re.compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f]")

@@ -1,0 +1,64 @@
+"""Numerical helpers shared by the mass-balance procedures: input checks and the exponential
+kernels with their small-argument limits (plain floats and numpy arrays)."""
+
+from __future__ import annotations
+
+import numpy as np
+
+
+def nonneg(name, value, *, strict=False):
+    a = np.asarray(value, dtype=float)
+    if not np.all(np.isfinite(a)) or np.any(a <= 0 if strict else a < 0):
+        raise ValueError(f"{name} must be finite and {'>' if strict else '>='} 0, got {value!r}")
+    return a
+
+
+def positive(name, value):
+    return nonneg(name, value, strict=True)
+
+
+def fraction(name, value, *, open_top=False):
+    a = np.asarray(value, dtype=float)
+    top_ok = a < 1 if open_top else a <= 1
+    if not np.all((a >= 0) & top_ok):
+        allowed = "[0, 1)" if open_top else "[0, 1]"
+        raise ValueError(f"{name} must lie in {allowed}, got {value!r}")
+    return a
+
+
+def out(a):
+    """0-d arrays back to numpy scalars, so float inputs give float results."""
+    return np.asarray(a)[()]
+
+
+def phi(x):
+    """(1 − e^(−x)) / x, with its limit 1 at x = 0, accurate for small x >= 0."""
+    x = np.asarray(x, dtype=float)
+    small = x < 1e-8
+    safe = np.where(small, 1.0, x)
+    return np.where(small, 1.0 - 0.5 * x, -np.expm1(-safe) / safe)
+
+
+def psi(x):
+    """(x − 1 + e^(−x)) / x², with its limit 1/2 at x = 0 (series below x = 0.01)."""
+    x = np.asarray(x, dtype=float)
+    small = x < 1e-2
+    safe = np.where(small, 1.0, x)
+    series = 0.5 + x * (-1 / 6 + x * (1 / 24 + x * (-1 / 120 + x / 720)))
+    return np.where(small, series, (safe + np.expm1(-safe)) / safe**2)
+
+
+def exp_and_integral(rate, tau):
+    """e^(−rτ) and its integral over [0, τ], τ·φ(rτ): −expm1(−rτ)/r, or τ·(1 − rτ/2) where
+    rτ < 1e-8 (which also covers r = 0 and subnormal products)."""
+    y = rate * tau
+    small = y < 1e-8
+    tphi = np.where(small, tau * (1.0 - 0.5 * y), -np.expm1(-y) / np.where(small, 1.0, rate))
+    return np.exp(-y), tphi
+
+
+def check_breaks(times_breaks):
+    b = np.asarray(times_breaks, dtype=float)
+    if b.ndim != 1 or b.size < 2 or not np.all(np.isfinite(b)) or np.any(np.diff(b) <= 0):
+        raise ValueError("times_breaks must be a strictly increasing 1-D array of >= 2 times")
+    return b
