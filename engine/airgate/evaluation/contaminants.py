@@ -17,10 +17,10 @@ from airgate.evaluation.checks import Emitter
 from airgate.evaluation.dilution import (
     LS,
     MB,
-    STEP_H,
     _profile_pieces,
-    _sample_fractions,
     _two_days,
+    add_day_statistics,
+    coupled_design_day,
     volume_of,
 )
 from airgate.evaluation.report import SystemResult, ZoneResult
@@ -173,27 +173,14 @@ def _coupled(system: System, ctxs, result: SystemResult, c: Contaminant, schedul
 
 
 def _coupled_day(system, ctxs, result, c, schedule, trails, vol, vpz, kw) -> None:
-    profiles = [_profile_pieces(schedule, ctx) for ctx in ctxs]
-    if all(p is None for p in profiles):
+    parts = [_generation(ctx, z, c) for ctx, z in zip(ctxs, result.zones)]
+    day = coupled_design_day(schedule, system, ctxs, np.array([p for p, _ in parts]),
+                             np.array([r for _, r in parts]), vol, vpz, c.outdoor, **kw)
+    if day is None:
         return
-    edges = sorted({float(b) for p in profiles if p is not None for b in p[0]} | {0.0, 24.0})
-    breaks = np.asarray(edges)
-    mids = (breaks[:-1] + breaks[1:]) / 2
-    gen = np.empty((len(mids), len(ctxs)))
-    for j, (ctx, z, p) in enumerate(zip(ctxs, result.zones, profiles)):
-        people, rest = _generation(ctx, z, c)
-        frac = np.ones(len(mids)) if p is None else _sample_fractions(p[0], p[1], mids)
-        gen[:, j] = people * frac + rest
-    b2, g2 = _two_days(breaks, gen)
-    times = 24.0 + np.arange(0, 24 * 60 + 1) * STEP_H
-    run = coupled.coupled_piecewise_transient(
-        b2, g2, vol, vpz, LS * system.outdoor_air, np.full(len(ctxs), c.outdoor), times, **kw)
+    times, conc, _, _ = day
     for j, t in enumerate(trails):
-        series = run.zone[:, j]
-        t.add("C_peak", float(series.max()), "concentration", source=MB,
-              note="peak over the design day (exact coupled solution, sampled each minute)")
-        t.add("C_twa", float(np.trapezoid(series, times) / 24.0), "concentration", source=MB,
-              note="24-hour time-weighted average")
+        add_day_statistics(t, conc[:, j], times, "concentration", "")
 
 
 def _limit(t: Trail, ctx: ZoneContext, c: Contaminant, emitter: Emitter) -> None:

@@ -279,10 +279,19 @@ def _coupled_steady(system: System, ctxs, result: SystemResult, trails: list[Tra
     return True
 
 
-def _coupled_series(schedule: Schedule, system: System, ctxs, result, trails) -> None:
+def coupled_design_day(schedule: Schedule, system: System, ctxs, people: np.ndarray,
+                       constant: np.ndarray, volume: np.ndarray, primary_airflow: np.ndarray,
+                       c0: float, **losses):
+    """Exact coupled run over two design days (the second is reported, so it starts periodic).
+
+    Zone generation on each piece is ``people·fraction + constant`` [C·m³/h]; zones without a
+    profile stay at design occupancy. Returns ``(times, zone_concentrations, breaks,
+    fractions)`` for the second day (times in h after midnight, concentrations (n_t, n_zones),
+    the day's breaks and per-zone fractions), or None when no zone has a profile.
+    """
     profiles = [_profile_pieces(schedule, c) for c in ctxs]
     if all(p is None for p in profiles):
-        return
+        return None
     edges = sorted({float(b) for p in profiles if p is not None for b in p[0]} | {0.0, 24.0})
     breaks = np.asarray(edges)
     mids = (breaks[:-1] + breaks[1:]) / 2
@@ -290,25 +299,38 @@ def _coupled_series(schedule: Schedule, system: System, ctxs, result, trails) ->
     for j, p in enumerate(profiles):
         if p is not None:
             frac[:, j] = _sample_fractions(p[0], p[1], mids)
-    b2 = np.concatenate([breaks[:-1], breaks + 24.0])
-    f2 = np.concatenate([frac, frac])
-    gen = f2 * np.array([PPM * LS * t.value("G") for t in trails])[None, :]
+    b2, f2 = _two_days(breaks, frac)
     times = 24.0 + np.arange(0, 24 * 60 + 1) * STEP_H
-    vpz = np.array([LS * z.trail.value("Vpz") for z in result.zones])
-    c_out = trails[0].value("C_out")
     run = coupled.coupled_piecewise_transient(
-        b2, gen, np.array([t.value("V") for t in trails]), vpz, LS * system.outdoor_air,
-        np.full(len(ctxs), c_out), times, outdoor_concentration=c_out)
+        b2, f2 * people[None, :] + constant[None, :], volume, primary_airflow,
+        LS * system.outdoor_air, np.full(len(ctxs), c0), times, **losses)
+    return times - 24.0, run.zone, breaks, frac
+
+
+def add_day_statistics(t: Trail, series: np.ndarray, times: np.ndarray, kind: str,
+                       what: str) -> None:
+    """Peak and 24-hour average of a minute-sampled design-day series (trapezoid rule)."""
+    t.add("C_peak", float(series.max()), kind, source=MB,
+          note=f"peak over the design day{what} (exact coupled solution, sampled each minute)")
+    t.add("C_twa", float(np.trapezoid(series, times) / 24.0), kind, source=MB,
+          note="24-hour time-weighted average")
+
+
+def _coupled_series(schedule: Schedule, system: System, ctxs, result, trails) -> None:
+    c_out = trails[0].value("C_out")
+    day = coupled_design_day(
+        schedule, system, ctxs, np.array([PPM * LS * t.value("G") for t in trails]),
+        np.zeros(len(ctxs)), np.array([t.value("V") for t in trails]),
+        np.array([LS * z.trail.value("Vpz") for z in result.zones]), c_out,
+        outdoor_concentration=c_out)
+    if day is None:
+        return
+    times, conc, breaks, frac = day
     for j, (t, z, ctx) in enumerate(zip(trails, result.zones, ctxs)):
-        ppm = run.zone[:, j]
         name = ctx.zone.profile or "constant at design occupancy"
         occ = _sample_fractions(breaks, frac[:, j], times)
-        z.series = Series(times - 24.0, ppm, occ, name)
-        t.add("C_peak", float(ppm.max()), "concentration_ppm", source=MB,
-              note=f"peak over the design day, profile '{name}' (exact coupled solution, "
-                   "sampled each minute)")
-        t.add("C_twa", float(np.trapezoid(ppm, times) / 24.0), "concentration_ppm", source=MB,
-              note="24-hour time-weighted average")
+        z.series = Series(times, conc[:, j], occ, name)
+        add_day_statistics(t, conc[:, j], times, "concentration_ppm", f", profile '{name}'")
 
 
 def _multiple_zone(system, ctxs, result, schedule, emitter, out) -> None:
