@@ -18,18 +18,19 @@ def clean(text: object) -> str:
     return _CONTROL.sub("?", str(text))
 
 
-def _num(trail, symbol: str) -> str:
+def _num(trail, symbol: str, system: str) -> str:
     if symbol not in trail:
         return "–"
     s = trail[symbol]
-    return formatting.number(units.to_display(s.value, s.kind, _num.system), s.kind)
+    return formatting.number(units.to_display(s.value, s.kind, system), s.kind)
 
 
 def _table(rows: list[list[str]], right: set[int]) -> list[str]:
     widths = [max(len(r[i]) for r in rows) for i in range(len(rows[0]))]
     out = []
     for r in rows:
-        cells = [c.rjust(w) if i in right else c.ljust(w) for i, (c, w) in enumerate(zip(r, widths))]
+        cells = [c.rjust(w) if i in right else c.ljust(w)
+                 for i, (c, w) in enumerate(zip(r, widths))]
         out.append("    " + "  ".join(cells).rstrip())
     return out
 
@@ -46,14 +47,14 @@ def _zone_rows(s: SystemResult, system: str) -> list[str]:
     rows = [head]
     for z in s.zones:
         t = z.trail
-        pz = _num(t, "Pz") + ("*" if t["Pz"].origin != "schedule" else "")
-        row = [clean(z.id), clean(z.space), _num(t, "Az"), pz, _num(t, "Vbz"),
-               f"{t.value('Ez'):.2f}", _num(t, "Voz")]
+        pz = _num(t, "Pz", system) + ("*" if t["Pz"].origin != "schedule" else "")
+        row = [clean(z.id), clean(z.space), _num(t, "Az", system), pz, _num(t, "Vbz", system),
+               f"{t.value('Ez'):.2f}", _num(t, "Voz", system)]
         if multi:
             crit = "◂" if s.critical_zone == z.id else ""
-            row += [_num(t, "Vpz"), _num(t, "Zpz"), _num(t, "Evz") + crit]
+            row += [_num(t, "Vpz", system), _num(t, "Zpz", system), _num(t, "Evz", system) + crit]
         if s.kind == "outdoor-air":
-            row += [_num(t, "Voz_design")]
+            row += [_num(t, "Voz_design", system)]
         row += [z.verdict.upper() if z.verdict == "fail" else z.verdict]
         rows.append(row)
     return _table(rows, right=set(range(2, len(head) - 1)))
@@ -66,11 +67,12 @@ def _system(s: SystemResult, system: str) -> list[str]:
     lines = [f"■ {title} — {kind} — {s.verdict.upper()}"]
     if s.kind == "multiple-zone":
         q = units.label("airflow", system)
-        parts = [f"Ps {_num(t, 'Ps')}", f"ΣPz {_num(t, 'ΣPz')}", f"D {_num(t, 'D')}",
-                 f"Vou {_num(t, 'Vou')} {q}"]
+        parts = [f"Ps {_num(t, 'Ps', system)}", f"ΣPz {_num(t, 'ΣPz', system)}",
+                 f"D {_num(t, 'D', system)}",
+                 f"Vou {_num(t, 'Vou', system)} {q}"]
         if "Vps" in t:
-            parts += [f"Vps {_num(t, 'Vps')} {q}", f"Xs {_num(t, 'Xs')}"]
-        parts.append(f"Ev {_num(t, 'Ev')}" + (f" (critical zone {clean(s.critical_zone)})"
+            parts += [f"Vps {_num(t, 'Vps', system)} {q}", f"Xs {_num(t, 'Xs', system)}"]
+        parts.append(f"Ev {_num(t, 'Ev', system)}" + (f" (critical zone {clean(s.critical_zone)})"
                                                if s.critical_zone else ""))
         lines.append("    " + " · ".join(parts))
     required, provided = t.value("Vot"), t.value("Vot_design")
@@ -102,8 +104,8 @@ def _contaminant_rows(s: SystemResult, system: str) -> list[str]:
             t = z.contaminants.get(cid)
             if t is None:
                 continue
-            rows.append([clean(z.id), _num(t, "C_ss"), _num(t, "Qc"), _num(t, "Qc_pp"),
-                         _num(t, "ACHe"), _num(t, "C_peak"), _num(t, "C_twa")])
+            rows.append([clean(z.id)] + [_num(t, x, system) for x in
+                                         ("C_ss", "Qc", "Qc_pp", "ACHe", "C_peak", "C_twa")])
         out += ["", f"    {clean(cid)} (well-mixed steady state; clean air = outdoor air + "
                     "filtration + air cleaners + deposition + inactivation)"]
         out += _table(rows, right=set(range(1, len(head))))
@@ -122,10 +124,13 @@ def _dilution_rows(s: SystemResult, system: str) -> list[str]:
         t = z.dilution
         excess = (formatting.number(t.value("C_ss") - t.value("C_out"), "concentration_ppm")
                   if "C_ss" in t else "unbounded")
-        rows.append([clean(z.id), _num(t, "Q_oa"), _num(t, "ACH"), _num(t, "C_ss"), excess, _num(t, "tau"),
-                     _num(t, "t99"), _num(t, "C_dcv"), _num(t, "P_max"), _num(t, "C_peak"),
-                     _num(t, "C_twa")])
-    out = ["", f"    CO2 from occupants (outdoor {formatting.number(zones[0].dilution.value('C_out'), 'concentration_ppm')} ppm; well-mixed steady state at design occupancy)"]
+        rows.append([clean(z.id), _num(t, "Q_oa", system), _num(t, "ACH", system),
+                     _num(t, "C_ss", system), excess]
+                    + [_num(t, x, system) for x in
+                       ("tau", "t99", "C_dcv", "P_max", "C_peak", "C_twa")])
+    c_out = formatting.number(zones[0].dilution.value("C_out"), "concentration_ppm")
+    out = ["", f"    CO2 from occupants (outdoor {c_out} ppm; well-mixed steady state at design "
+               "occupancy)"]
     return out + _table(rows, right=set(range(1, len(head))))
 
 
@@ -141,7 +146,6 @@ def _waivers(report: Report) -> list[str]:
 
 def render(report: Report) -> str:
     system = report.units
-    _num.system = system
     pack = report.pack
     out = [
         f"airgate {__version__} — ventilation review",
