@@ -315,24 +315,17 @@ def test_tab_indented_json_still_gets_positions(capsys):
 
 # --- mutated demo schedules: whatever the damage, a clean exit -------------------------------
 
+from fuzzing import damage  # noqa: E402
+
 DEMO_TEXT = DEMO.read_text(encoding="utf-8")
 
 
 @st.composite
 def damaged_demo(draw) -> bytes:
     """The demo schedule with one kind of damage: a cut, a deleted line or a replaced byte."""
-    text = DEMO_TEXT.encode("utf-8")
-    how = draw(st.sampled_from(["cut", "delete-line", "replace"]))
-    if how == "cut":
-        return text[: draw(st.integers(0, len(text)))]
-    if how == "delete-line":
-        lines = text.split(b"\n")
-        i = draw(st.integers(0, len(lines) - 1))
-        return b"\n".join(lines[:i] + lines[i + 1:])
-    at = draw(st.integers(0, len(text) - 1))
-    byte = draw(st.sampled_from([b"\t", b":", b"-", b"{", b"[", b"'", b'"', b"&", b"*", b"#",
-                                 b"0", b" ", b"\n", b"\xff", b"\x00", b"x"]))
-    return text[:at] + byte + text[at + 1:]
+    return damage(draw, DEMO_TEXT.encode("utf-8"),
+                  [b"\t", b":", b"-", b"{", b"[", b"'", b'"', b"&", b"*", b"#", b"0", b" ",
+                   b"\n", b"\xff", b"\x00", b"x"])
 
 
 @settings(max_examples=80, deadline=None,

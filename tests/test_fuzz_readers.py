@@ -17,6 +17,7 @@ from hypothesis import strategies as st
 from airgate.cli import main
 
 from conftest import DEMO, ROOT
+from fuzzing import damage
 
 DEMO_DIR = DEMO.parent
 GBXML = DEMO_DIR / "fernhollow-civic-centre.xml"
@@ -24,18 +25,6 @@ CSV_TABLES = sorted(DEMO_DIR.glob("fernhollow-civic-centre.*.csv"))
 PACK = ROOT / "rules" / "ashrae-62.1-2019-quillby-bay.yaml"
 BYTES = [b"\t", b",", b";", b":", b"<", b">", b"&", b'"', b"'", b"=", b"0", b"-", b"\n", b" ",
          b"\xff", b"\x00", b"x"]
-
-
-def damage(draw, text: bytes) -> bytes:
-    how = draw(st.sampled_from(["cut", "delete-line", "replace"]))
-    if how == "cut":
-        return text[: draw(st.integers(0, len(text)))]
-    if how == "delete-line":
-        lines = text.split(b"\n")
-        i = draw(st.integers(0, len(lines) - 1))
-        return b"\n".join(lines[:i] + lines[i + 1:])
-    at = draw(st.integers(0, len(text) - 1))
-    return text[:at] + draw(st.sampled_from(BYTES)) + text[at + 1:]
 
 
 def _check(path: Path, capsys, *extra: str) -> None:
@@ -58,7 +47,7 @@ SETTINGS = settings(max_examples=40, deadline=None,
 def test_damaged_gbxml(data, capsys):
     with tempfile.TemporaryDirectory() as folder:
         path = Path(folder) / "damaged.xml"
-        path.write_bytes(damage(data.draw, GBXML.read_bytes()))
+        path.write_bytes(damage(data.draw, GBXML.read_bytes(), BYTES))
         _check(path, capsys)
 
 
@@ -68,7 +57,7 @@ def test_damaged_csv_table(data, which, capsys):
     with tempfile.TemporaryDirectory() as folder:
         for table in CSV_TABLES:
             shutil.copy(table, Path(folder) / table.name)
-        (Path(folder) / which.name).write_bytes(damage(data.draw, which.read_bytes()))
+        (Path(folder) / which.name).write_bytes(damage(data.draw, which.read_bytes(), BYTES))
         _check(Path(folder) / CSV_TABLES[0].name, capsys)
 
 
@@ -80,7 +69,7 @@ def test_damaged_rule_pack(data, capsys):
     text = PACK.read_bytes().replace(b"id: ashrae-62.1-2019-quillby-bay", b"id: fuzz-city", 1)
     assert b"id: fuzz-city" in text
     with tempfile.TemporaryDirectory() as folder:
-        (Path(folder) / "fuzz-city.yaml").write_bytes(damage(data.draw, text))
+        (Path(folder) / "fuzz-city.yaml").write_bytes(damage(data.draw, text, BYTES))
         schedule = Path(folder) / "s.yaml"
         shutil.copy(DEMO, schedule)
         _check(schedule, capsys, "--rules", "fuzz-city", "--rules-path", folder)

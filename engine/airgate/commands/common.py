@@ -30,3 +30,13 @@ def add_rules_path(parser) -> None:
     parser.add_argument("--rules-path", action="append", default=[], metavar="DIR",
                         help="a folder of rule packs, searched by id after the built-in packs "
                              "(repeatable; also AIRGATE_RULES_PATH)")
+
+
+def add_subject(parser, system_help: str = "system id") -> None:
+    """The schedule FILE, ``--zone ID`` or ``--system ID``, and the pack options (explain, plot)."""
+    parser.add_argument("file")
+    group = parser.add_mutually_exclusive_group(required=True)
+    group.add_argument("--zone", help="zone id")
+    group.add_argument("--system", help=system_help)
+    parser.add_argument("--rules", help="rule pack id or path")
+    add_rules_path(parser)

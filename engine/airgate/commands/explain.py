@@ -5,18 +5,13 @@ from __future__ import annotations
 import argparse
 import sys
 
-from airgate.commands.common import add_rules_path, pick
+from airgate.commands.common import add_subject, pick
 from airgate.errors import EXIT_PASS
 
 
 def register(sub) -> None:
     e = sub.add_parser("explain", help="print the calculation trail of a zone or system")
-    e.add_argument("file")
-    g = e.add_mutually_exclusive_group(required=True)
-    g.add_argument("--zone", help="zone id")
-    g.add_argument("--system", help="system id")
-    e.add_argument("--rules", help="rule pack id or path")
-    add_rules_path(e)
+    add_subject(e)
 
 
 def run(args: argparse.Namespace) -> int:

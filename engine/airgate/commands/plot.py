@@ -4,19 +4,14 @@ from __future__ import annotations
 
 import argparse
 
-from airgate.commands.common import add_rules_path, pick
+from airgate.commands.common import add_subject, pick
 from airgate.errors import EXIT_PASS
 
 
 def register(sub) -> None:
     pl = sub.add_parser("plot", help="draw a zone's (or system's) CO2 over the design day")
-    pl.add_argument("file")
-    g = pl.add_mutually_exclusive_group(required=True)
-    g.add_argument("--zone", help="zone id")
-    g.add_argument("--system", help="system id (all its zones)")
+    add_subject(pl, "system id (all its zones)")
     pl.add_argument("-o", "--output", required=True, help="picture file, .png or .svg")
-    pl.add_argument("--rules", help="rule pack id or path")
-    add_rules_path(pl)
 
 
 def run(args: argparse.Namespace) -> int:
