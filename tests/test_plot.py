@@ -1,4 +1,7 @@
-"""``airgate plot`` writes a readable, deterministic picture (matplotlib, optional extra)."""
+"""``airgate plot`` writes a readable, deterministic picture (matplotlib, optional extra).
+
+Expected values: the PNG signature (ISO/IEC 15948) and the project's own contract (README,
+docs/dilution.md): same input → byte-identical SVG; bad usage exits 2 with nothing written."""
 
 from __future__ import annotations
 
@@ -15,6 +18,7 @@ def test_png_of_a_zone(tmp_path, capsys):
     out = tmp_path / "zone.png"
     assert main(["plot", str(DEMO), "--zone", "203", "-o", str(out)]) == 0
     data = out.read_bytes()
+    # the 8-byte signature every PNG file starts with (PNG specification, ISO/IEC 15948 §5.2)
     assert data[:8] == b"\x89PNG\r\n\x1a\n" and len(data) > 20_000
 
 
