@@ -12,6 +12,7 @@ field being read when it happened.
 from __future__ import annotations
 
 import json
+import os
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -26,8 +27,6 @@ Path_ = tuple[str | int, ...]
 
 def _limit(name: str, default: int) -> int:
     """A limit from the environment (docs/limits.md), or its default; bad values are ignored."""
-    import os
-
     try:
         value = int(os.environ.get(name, default))
     except ValueError:
