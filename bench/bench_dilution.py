@@ -11,8 +11,12 @@ integrator steps across a jump in its inputs), with one-minute output over 24 h:
 1. 1,000 independent single zones (airgate.procedures.dilution.piecewise_transient);
 2. one air handler serving 1,000 zones coupled through return air
    (airgate.procedures.coupled.coupled_piecewise_transient), once with every zone different
-   (K = 1,000 distinct zone rates: the exact method's worst case, O(N + K²) per output time)
-   and once with the zones drawn from 10 room types (K = 10).
+   (K = 1,000 distinct zone rates) and once with the zones drawn from 10 room types (K = 10),
+   each by both evaluations of the exact solution (closed form: O(N + K²) per output time;
+   march: O(N + K) per step);
+3. scaling of the march with every zone different, N = K = 1,000 / 4,000 / 16,000: the
+   per-configuration part (secular roots, O(K²)) and the per-step part (O(N + K)) timed
+   apart, as ratios to the 1,000-zone run.
 
 CO2 in ppm from an hourly office occupancy profile; 0.0052 L/s of CO2 per person and 420 ppm
 outdoors (reference-values.md G). Prints wall times (best of a few runs for the exact side,
@@ -26,7 +30,12 @@ import time
 import numpy as np
 from scipy.integrate import solve_ivp
 
-from airgate.procedures.coupled import coupled_piecewise_transient, supply_coupling
+from airgate.procedures.coupled import (
+    _modes,
+    _system,
+    coupled_piecewise_transient,
+    supply_coupling,
+)
 from airgate.procedures.dilution import piecewise_transient
 
 N_ZONES = 1000
@@ -67,11 +76,10 @@ def _piecewise_ivp(rhs_for_piece, y0, breaks, times, method):
     return out
 
 
-def _report(title, compared, t_exact, t_ivp, exact, ref):
-    rel = np.max(np.abs(exact - ref) / np.abs(ref))
+def _report(title, compared, t_exact, t_ivp, exact, ref, label="exact procedure"):
     print(f"\n{title}")
     print(f"  compared: {compared}")
-    print(f"  exact procedure : {t_exact * 1e3:10.2f} ms (best of runs)")
+    print(f"  {label:16s}: {t_exact * 1e3:10.2f} ms (best of runs)")
     for method, (t, r) in t_ivp.items():
         rel = np.max(np.abs(exact - r) / np.abs(r))
         print(f"  solve_ivp {method:6s}: {t * 1e3:10.2f} ms  -> ratio {t / t_exact:8.1f}x, "
@@ -119,23 +127,31 @@ def single_zones(rng, breaks, times):
     return ivp
 
 
+def _air_handler(rng, n_zones, n_types=None):
+    """Zones of one air handler; n_types=None: every zone different (K = N)."""
+    kinds = rng.integers(0, n_types, n_zones) if n_types else np.arange(n_zones)
+    vol = rng.uniform(30.0, 500.0, n_zones)[kinds]
+    vpz = vol * rng.uniform(2.0, 8.0, n_zones)[kinds]  # m3/h primary airflow
+    exhaust = np.where(rng.random(n_zones) < 0.05, 0.5 * vpz, 0.0)  # a few exhausted rooms
+    cadr = np.where(rng.random(n_zones) < 0.2, rng.uniform(50, 300, n_zones), 0.0)[kinds]
+    vot = max(exhaust.sum(), 0.3 * vpz.sum())
+    people = rng.integers(1, 30, n_zones)
+    gen = CO2_PER_PERSON * PROFILE[:, None] * people[None, :]
+    return vol, vpz, exhaust, cadr, vot, gen
+
+
 def coupled_system(rng, breaks, times, n_types=None):
     """n_types=None: every zone different (K = N); else zones repeat n_types room types."""
-    kinds = rng.integers(0, n_types or N_ZONES, N_ZONES) if n_types else np.arange(N_ZONES)
-    vol = rng.uniform(30.0, 500.0, N_ZONES)[kinds]
-    vpz = vol * rng.uniform(2.0, 8.0, N_ZONES)[kinds]  # m3/h primary airflow
-    exhaust = np.where(rng.random(N_ZONES) < 0.05, 0.5 * vpz, 0.0)  # a few exhausted rooms
-    cadr = np.where(rng.random(N_ZONES) < 0.2, rng.uniform(50, 300, N_ZONES), 0.0)[kinds]
-    vot = max(exhaust.sum(), 0.3 * vpz.sum())
-    people = rng.integers(1, 30, N_ZONES)
-    gen = CO2_PER_PERSON * PROFILE[:, None] * people[None, :]
+    vol, vpz, exhaust, cadr, vot, gen = _air_handler(rng, N_ZONES, n_types)
     kw = dict(outdoor_concentration=C_OUT, recirc_filter_efficiency=0.0, zone_exhaust=exhaust,
               cadr=cadr)
 
-    def exact():
-        return coupled_piecewise_transient(breaks, gen, vol, vpz, vot, C_OUT, times, **kw).zone
+    def run(method):
+        return coupled_piecewise_transient(breaks, gen, vol, vpz, vot, C_OUT, times,
+                                           method=method, **kw).zone
 
-    t_exact, c_exact = _timed(exact, 3)
+    t_exact, c_exact = _timed(lambda: run("march"), 3)
+    t_closed, c_closed = _timed(lambda: run("closed"), 3)
     a, w = supply_coupling(vpz, vot, C_OUT, 0.0, 0.0, exhaust)
 
     def rhs_for_piece(j):
@@ -147,12 +163,41 @@ def coupled_system(rng, breaks, times, n_types=None):
         ref = _piecewise_ivp(rhs_for_piece, np.full(N_ZONES, C_OUT), breaks, times, method)
         ivp[method] = (time.perf_counter() - t0, ref)
     k = np.unique((vpz + cadr) / vol).size
-    _report(f"one air handler, {N_ZONES} coupled zones (distinct zone rates K = {k}), "
-            f"{HOURS} hourly pieces, {times.size} one-minute outputs",
-            "coupled.coupled_piecewise_transient vs solve_ivp(rtol="
-            f"{RTOL:g}) on the {N_ZONES}-zone system with the rank-one coupling in its "
-            "right-hand side", t_exact, ivp, c_exact, ref)
+    title = (f"one air handler, {N_ZONES} coupled zones (distinct zone rates K = {k}), "
+             f"{HOURS} hourly pieces, {times.size} one-minute outputs")
+    compared = (f"solve_ivp(rtol={RTOL:g}) on the {N_ZONES}-zone system with the rank-one "
+                "coupling in its right-hand side")
+    _report(title, "coupled_piecewise_transient(method='march') vs " + compared, t_exact,
+            ivp, c_exact, ref, label="march")
+    print(f"  closed form     : {t_closed * 1e3:10.2f} ms (best of runs), "
+          f"march / closed form time {t_exact / t_closed:.2f}, largest relative difference "
+          f"between them {np.max(np.abs(c_exact - c_closed) / c_closed):.2e}")
     return ivp
+
+
+def march_scaling(rng, breaks, times, sizes=(1000, 4000, 16000)):
+    """Every zone different (K = N): configuration (roots) and stepping timed apart."""
+    print(f"\nscaling of the march, every zone different (K = N), {HOURS} hourly pieces, "
+          f"{times.size} one-minute outputs (one run each)")
+    print(f"  {'N':>7s} {'roots s':>9s} {'march s':>9s} {'steps s':>9s} "
+          f"{'roots / N^2 ratio':>18s} {'steps / N ratio':>16s}")
+    base = None
+    for n in sizes:
+        vol, vpz, exhaust, cadr, vot, gen = _air_handler(rng, n)
+        sysm = _system(vpz, vot, exhaust, 0.0)
+        t0 = time.perf_counter()
+        _modes((vpz + cadr) / vol, vpz / vol, sysm.w)
+        t_roots = time.perf_counter() - t0
+        t0 = time.perf_counter()
+        coupled_piecewise_transient(breaks, gen, vol, vpz, vot, C_OUT, times,
+                                    outdoor_concentration=C_OUT, zone_exhaust=exhaust,
+                                    cadr=cadr, method="march")
+        t_all = time.perf_counter() - t0
+        steps = t_all - t_roots
+        per = (t_roots / n**2, steps / n)
+        base = base or per
+        print(f"  {n:7d} {t_roots:9.3f} {t_all:9.3f} {steps:9.3f} "
+              f"{per[0] / base[0]:18.2f} {per[1] / base[1]:16.2f}")
 
 
 def main():
@@ -165,6 +210,7 @@ def main():
     single_zones(rng, breaks, times)
     coupled_system(rng, breaks, times)
     coupled_system(rng, breaks, times, n_types=10)
+    march_scaling(rng, breaks, times)
 
 
 if __name__ == "__main__":

@@ -235,12 +235,17 @@ def _case(name, rng):
     return vol, vpz, vot, exh, loss
 
 
+METHODS = ("closed", "march", "auto")
+
+
+@pytest.mark.parametrize("method", METHODS)
 @pytest.mark.parametrize(("name", "seed"), [("random", 1), ("vav", 2),
                                             ("exhausted-and-identical", 3),
                                             ("outdoor-air-only", 4), ("forty-zones", 5)])
-def test_coupled_transient_matches_solve_ivp(name, seed):
-    # Exact secular-mode solution against scipy.integrate.solve_ivp (LSODA, rtol=1e-10) as
-    # outside reference, 1e-6 relative; generation per piece, filters, losses, exhaust.
+def test_coupled_transient_matches_solve_ivp(name, seed, method):
+    # Both exact evaluations (closed-form secular modes; modal coupling signal with
+    # quadrature steps) against scipy.integrate.solve_ivp (LSODA, rtol=1e-10) as outside
+    # reference, 1e-6 relative; generation per piece, filters, losses, exhaust.
     rng = np.random.default_rng(seed)
     vol, vpz, vot, exh, loss = _case(name, rng)
     n = vol.size
@@ -252,7 +257,7 @@ def test_coupled_transient_matches_solve_ivp(name, seed):
                                           outdoor_concentration=6.0,
                                           outdoor_filter_efficiency=0.4,
                                           recirc_filter_efficiency=0.55, zone_exhaust=exh,
-                                          cadr=loss)
+                                          cadr=loss, method=method)
     ref, ref_supply = _reference_transient(breaks, gen, vol, vpz, vot, exh, loss, c0, times,
                                            6.0, 0.4, 0.55)
     _assert_agrees(got.zone, ref)
@@ -278,8 +283,10 @@ coupled_zone = st.tuples(
        copies=st.integers(1, 3),
        oa_share=_zero_or(1e-3, 1.0),
        eta_rec=st.sampled_from([0.0, 0.3, 0.9]),
-       c0=_zero_or(1e-3, 100.0))
-def test_coupled_transient_random_systems_match_solve_ivp(zones, copies, oa_share, eta_rec, c0):
+       c0=_zero_or(1e-3, 100.0),
+       method=st.sampled_from(METHODS))
+def test_coupled_transient_random_systems_match_solve_ivp(zones, copies, oa_share, eta_rec, c0,
+                                                          method):
     # Random systems (some zones repeated, some fully exhausted) against
     # scipy.integrate.solve_ivp (LSODA, rtol=1e-10) as outside reference, 1e-6 relative.
     vol, vpz, exh_frac, cadr, gen = (np.tile(np.array(c, dtype=float), copies)
@@ -294,13 +301,14 @@ def test_coupled_transient_random_systems_match_solve_ivp(zones, copies, oa_shar
     got = cpl.coupled_piecewise_transient(breaks, gens, vol, vpz, vot, c0, times,
                                           outdoor_concentration=2.0,
                                           recirc_filter_efficiency=eta_rec, zone_exhaust=exh,
-                                          cadr=cadr)
+                                          cadr=cadr, method=method)
     ref, _ = _reference_transient(breaks, gens, vol, vpz, vot, exh, cadr, c0, times, 2.0,
                                   0.0, eta_rec)
     _assert_agrees(got.zone, ref)
 
 
-def test_coupled_transient_near_resonance_matches_solve_ivp():
+@pytest.mark.parametrize("method", METHODS)
+def test_coupled_transient_near_resonance_matches_solve_ivp(method):
     # A fully exhausted room identical to a room that returns a millionth of its air: a zone
     # rate almost equal to a mode rate (the near-resonant branch). scipy.integrate.solve_ivp
     # (LSODA, rtol=1e-10) as outside reference, 1e-6 relative.
@@ -312,13 +320,15 @@ def test_coupled_transient_near_resonance_matches_solve_ivp():
     c0 = np.array([5.0, 1.0, 0.0, 2.0])
     got = cpl.coupled_piecewise_transient(breaks, gen, vol, vpz, vot, c0, times,
                                           outdoor_concentration=3.0,
-                                          recirc_filter_efficiency=0.2, zone_exhaust=exh)
+                                          recirc_filter_efficiency=0.2, zone_exhaust=exh,
+                                          method=method)
     ref, _ = _reference_transient(breaks, gen, vol, vpz, vot, exh, 0.0, c0, times, 3.0, 0.0,
                                   0.2)
     _assert_agrees(got.zone, ref)
 
 
-def test_closed_system_conserves_mass():
+@pytest.mark.parametrize("method", METHODS)
+def test_closed_system_conserves_mass(method):
     # domain.md §4 "mass is conserved": with no outdoor air, filter, exhaust or loss,
     # d/dt Σ V_z·C_z = Σ G_z, so Σ V_z·C_z(t) = Σ V_z·C_z(0) + Σ G_z·t exactly (no steady
     # state exists; the exact transient needs none).
@@ -326,7 +336,8 @@ def test_closed_system_conserves_mass():
     vol, vpz, gen = rng.uniform(20, 300, 8), rng.uniform(100, 900, 8), rng.uniform(0, 500, 8)
     c0 = rng.uniform(0, 10, 8)
     times = np.array([0.0, 0.1, 1.0, 6.0])
-    res = cpl.coupled_piecewise_transient([0.0, 6.0], gen, vol, vpz, 0.0, c0, times)
+    res = cpl.coupled_piecewise_transient([0.0, 6.0], gen, vol, vpz, 0.0, c0, times,
+                                          method=method)
     np.testing.assert_allclose(res.zone @ vol, vol @ c0 + gen.sum() * times, rtol=1e-12)
 
 
@@ -370,3 +381,99 @@ def test_shared_and_explicit_zone_inputs_agree():
                                                cadr=[30.0, 30.0])
     np.testing.assert_array_equal(shared.zone, explicit.zone)
     np.testing.assert_array_equal(shared.supply, explicit.supply)
+
+
+def _distinct_system(rng, n, n_types=None):
+    """One air handler, zones of n_types kinds (every zone its own kind by default)."""
+    kinds = rng.integers(0, n_types, n) if n_types else np.arange(n)
+    m = int(kinds.max()) + 1
+    vol = rng.uniform(30.0, 500.0, m)[kinds]
+    vpz = vol * rng.uniform(2.0, 8.0, m)[kinds]
+    exh = np.where(rng.random(n) < 0.05, 0.5 * vpz, 0.0)
+    cadr = np.where(rng.random(m) < 0.2, rng.uniform(50, 300, m), 0.0)[kinds]
+    vot = max(exh.sum(), 0.3 * vpz.sum())
+    return vol, vpz, exh, cadr, vot
+
+
+def test_march_equals_closed_form_to_rounding_with_every_zone_different():
+    # Two evaluations of the same exact solution (domain.md §4 coupled balance): the
+    # closed-form secular modes and the modal coupling signal with Gauss–Legendre steps
+    # (error bound < 1e-17 per step, Abramowitz & Stegun 25.4.30) agree to 1e-12 relative on
+    # 300 zones with 300 distinct rates, one-minute output over an 8-hour day.
+    rng = np.random.default_rng(31)
+    vol, vpz, exh, cadr, vot = _distinct_system(rng, 300)
+    breaks = np.arange(9.0)
+    gen = rng.uniform(0, 2e4, (8, 300)) * (rng.random((8, 1)) < 0.7)
+    times = np.linspace(0.0, 8.0, 8 * 60 + 1)
+    kw = dict(outdoor_concentration=420.0, recirc_filter_efficiency=0.3, zone_exhaust=exh,
+              cadr=cadr)
+    closed = cpl.coupled_piecewise_transient(breaks, gen, vol, vpz, vot, 420.0, times,
+                                             method="closed", **kw)
+    march = cpl.coupled_piecewise_transient(breaks, gen, vol, vpz, vot, 420.0, times,
+                                            method="march", **kw)
+    np.testing.assert_allclose(march.zone, closed.zone, rtol=1e-12)
+    np.testing.assert_allclose(march.supply, closed.supply, rtol=1e-12)
+
+
+def test_march_with_unsorted_uneven_output_times_and_a_fast_zone():
+    # Output times in any order and of uneven spacing, and one zone 2,000 times faster than
+    # the rest (its steps are cut so that rate·h <= 2): the march against the closed form,
+    # 1e-12 relative (domain.md §4; two evaluations of one exact solution).
+    rng = np.random.default_rng(5)
+    vol, vpz, exh, cadr, vot = _distinct_system(rng, 12)
+    vol[3] = 0.05  # a tiny plenum-like zone: Vpz/V of order 10^4 per hour
+    breaks = np.array([0.0, 0.3, 2.0, 5.0])
+    gen = rng.uniform(0, 2e3, (3, 12))
+    times = rng.permutation(np.concatenate((rng.uniform(0, 5, 25), [0.0, 0.3, 5.0])))
+    kw = dict(outdoor_concentration=2.0, zone_exhaust=exh, cadr=cadr)
+    closed = cpl.coupled_piecewise_transient(breaks, gen, vol, vpz, vot, 1.0, times,
+                                             method="closed", **kw)
+    march = cpl.coupled_piecewise_transient(breaks, gen, vol, vpz, vot, 1.0, times,
+                                            method="march", **kw)
+    np.testing.assert_allclose(march.zone, closed.zone, rtol=1e-12)
+
+
+def test_large_system_with_many_distinct_rates_equals_its_aggregate():
+    # Complexity claim of coupled_piecewise_transient: 100,000 zones of 2,000 kinds (K =
+    # 2,000 distinct rates) march in O(N + K) per step and O(N + K) memory apart from the
+    # outputs. Check (domain.md §4 zone balance and mixing): the n zones of one kind share
+    # one concentration, so each kind is one zone of n times the volume, airflow and
+    # generation; the 2,000-zone aggregate, solved in closed form, must give the same values.
+    rng = np.random.default_rng(8)
+    n, m = 100_000, 2000
+    kinds = rng.integers(0, m, n)
+    count = np.bincount(kinds, minlength=m).astype(float)
+    vol_k = rng.uniform(30.0, 500.0, m)
+    vpz_k = vol_k * rng.uniform(2.0, 8.0, m)
+    gen_k = rng.uniform(0, 2e3, (2, m))
+    breaks, times = [0.0, 1.0, 3.0], np.linspace(0.0, 3.0, 13)
+    big = cpl.coupled_piecewise_transient(breaks, gen_k[:, kinds], vol_k[kinds], vpz_k[kinds],
+                                          0.25 * vpz_k[kinds].sum(), 420.0, times,
+                                          outdoor_concentration=420.0, method="march")
+    keep = count > 0
+    agg = cpl.coupled_piecewise_transient(breaks, (gen_k * count)[:, keep],
+                                          (vol_k * count)[keep], (vpz_k * count)[keep],
+                                          0.25 * vpz_k[kinds].sum(), 420.0, times,
+                                          outdoor_concentration=420.0, method="closed")
+    full = np.zeros((times.size, m))
+    full[:, keep] = agg.zone
+    np.testing.assert_allclose(big.zone, full[:, kinds], rtol=1e-11)
+    np.testing.assert_allclose(big.supply, agg.supply, rtol=1e-11)
+
+
+def test_unknown_method_is_refused():
+    with pytest.raises(ValueError, match="method must be"):
+        cpl.coupled_piecewise_transient([0.0, 1.0], [1.0], 10.0, [100.0], 50.0, 0.0, [0.5],
+                                        method="rk4")
+
+
+@pytest.mark.parametrize("ch", [-2.0, -0.5, 1e-9, 0.7, 2.0])
+def test_march_quadrature_rule_integrates_exponentials_to_rounding(ch):
+    # Abramowitz & Stegun (1964) 25.4.30: n-point Gauss–Legendre on e^(cσ) over [0, h] errs
+    # by at most (ch)^(2n)(n!)^4/((2n+1)((2n)!)^3)·e^|ch|, < 1e-17 for n = 8 and |ch| <= 2
+    # (the march's step rule). The rule as the march uses it, against expm1(ch)/c.
+    h = 0.25
+    c = ch / h
+    got = h * np.sum(cpl._GL_W * np.exp(c * h * cpl._GL_X))
+    assert got == pytest.approx(np.expm1(ch) / c, rel=4e-16)
+    assert cpl._STEP_RATE <= 2.0 and cpl._GL_X.size == 8

@@ -242,12 +242,82 @@ class _Modes(NamedTuple):
     u: np.ndarray  # (n,)
     w: np.ndarray  # (n,)
     group: np.ndarray  # (n,) pole index of a returning zone, -1 for the others
-    inv_delta: np.ndarray  # (K, K) 1/(p_k − ν_i)
-    fprime: np.ndarray  # (K,)
+    poles: np.ndarray  # (K,) distinct decay rates p_k of the returning zones [1/h]
+    anchor: np.ndarray  # (K,) pole index nearest to each root
+    offset: np.ndarray  # (K,) ν_i − p_anchor(i), kept apart for accurate differences
+    fprime: np.ndarray  # (K,) Σ_k c_k/(p_k − ν_i)²
     others: np.ndarray  # indices of zones that return no air
+    closed: dict  # the closed form's (K, K) and (n_o, K) matrices, built on first use
+
+
+class _Closed(NamedTuple):
+    inv_delta: np.ndarray  # (K, K) 1/(p_k − ν_i)
     inv_delta_o: np.ndarray  # (n_o, K) 1/(d_z − ν_i), zeroed where near-resonant
     delta_o: np.ndarray  # (n_o, K) d_z − ν_i
     resonant: np.ndarray  # (n_o,) bool
+
+
+def _delta(poles, anchor, offset, rows, cols):
+    """p_k − ν_i for pole indices rows and root indices cols: (len(rows), len(cols))."""
+    return (poles[rows][:, None] - poles[anchor[cols]][None, :]) - offset[cols][None, :]
+
+
+def _column_blocks(n_rows, n_cols):
+    """Slices over columns so that one (n_rows, block) array stays within _CHUNK values."""
+    step = max(1, _CHUNK // max(n_rows, 1))
+    return [slice(lo, min(n_cols, lo + step)) for lo in range(0, n_cols, step)]
+
+
+def _cauchy_t(m, x):
+    """y_i = Σ_k x_k/(p_k − ν_i) for x (K, n_vec), in column blocks: O(K²) work, O(K) memory."""
+    k = m.poles.size
+    out = np.empty((k, x.shape[1]))
+    rows = np.arange(k)
+    for blk in _column_blocks(k, k):
+        out[blk] = (1.0 / _delta(m.poles, m.anchor, m.offset, rows, np.arange(k)[blk])).T @ x
+    return out
+
+
+def _secular_start(poles, c, anchor, lower, mid, f_mid, far):
+    """Starting offsets for :func:`_secular_roots`: the root of the model that keeps the two
+    poles bounding each root exactly and freezes the rest at their value at the interval's
+    midpoint (the usual start for secular equations; Golub, "Some modified matrix eigenvalue
+    problems", SIAM Review 15 (1973), and LAPACK's dlaed4), O(K) given the midpoint sums.
+    Falls back to half the bracket where the model has no root inside it."""
+    k = poles.size
+    i = np.arange(k)
+    other = np.where(anchor == i, i - 1, i)  # the second pole bounding root i (-1: none)
+    has_other = other >= 0
+    o = np.where(has_other, other, 0)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        rest = (f_mid - c[anchor] / (poles[anchor] - mid)
+                - np.where(has_other, c[o] / (poles[o] - mid), 0.0))
+        g = 1.0 - rest
+        e = np.where(has_other, poles[o] - poles[anchor], 0.0)
+        cx, cy = c[anchor], np.where(has_other, c[o], 0.0)
+        bq = cx + cy - g * e
+        disc = bq * bq + 4.0 * g * cx * e
+        sgn = np.where(bq >= 0, 1.0, -1.0)
+        two_pole = 2.0 * cx * e / (bq + sgn * np.sqrt(disc))
+        t = np.where(has_other, two_pole, -cx / g)
+    inside = np.isfinite(t) & (t * far > 0) & (np.abs(t) < np.abs(far))
+    return np.where(inside, t, 0.5 * far)
+
+
+def _pole_sums(poles, c, anchor, t):
+    """Σ_k c_k/δ_k and Σ_k c_k/δ_k² over the poles other than each root's anchor, with
+    δ_k = p_k − p_anchor − t, in column blocks (O(K) memory)."""
+    psi, dpsi = np.empty(t.size), np.empty(t.size)
+    for blk in _column_blocks(poles.size, t.size):
+        a = anchor[blk]
+        den = poles[:, None] - poles[a][None, :]
+        den -= t[blk][None, :]
+        den[a, np.arange(a.size)] = np.inf  # the anchor's own pole is taken out
+        terms = c[:, None] / den
+        psi[blk] = terms.sum(axis=0)
+        terms /= den
+        dpsi[blk] = terms.sum(axis=0)
+    return psi, dpsi
 
 
 def _secular_roots(poles, c):
@@ -256,8 +326,9 @@ def _secular_roots(poles, c):
     Root 0 lies in [0, p_0) (at 0 when Σ c/p = 1: the system removes nothing), root i >= 1
     in (p_(i−1), p_i). Returned as ``anchor`` (pole
     index) and ``t`` with ν = p[anchor] + t, the anchor being the nearer pole. Safeguarded
-    Newton on F(t) = t·(f − 1) (the anchor's pole removed), vectorised over all roots:
-    O(K²) per iteration.
+    Newton on F(t)·(1 − t/e), F(t) = t·(f − 1), which takes out both poles bounding the root
+    (the anchor's at t = 0, the other's at t = e), vectorised over all roots: O(K²) per
+    iteration in O(K) memory.
     """
     k = poles.size
     i = np.arange(k)
@@ -265,29 +336,35 @@ def _secular_roots(poles, c):
         return i, np.zeros(0)
     lower = np.concatenate(([0.0], poles[:-1]))
     mid = 0.5 * (lower + poles)
-    f_mid = np.sum(c[:, None] / (poles[:, None] - mid[None, :]), axis=0)
+    f_mid = np.concatenate([np.sum(c[:, None] / (poles[:, None] - mid[None, blk]), axis=0)
+                            for blk in _column_blocks(k, k)])
     low = (i > 0) & (f_mid > 1)
     anchor = np.where(low, i - 1, i)
     half = 0.5 * (poles - lower)
     far = np.where(low, half, np.where(i == 0, -poles[0], -half))  # end where F > 0
     near = np.zeros(k)  # end t = 0 where F = −c_anchor < 0
     ca = c[anchor]
-    t = 0.5 * far
+    t = _secular_start(poles, c, anchor, lower, mid, f_mid, far)
+    other = np.where(anchor == i, i - 1, i)  # the second pole bounding each root (-1: none)
+    gap = np.where(other >= 0, poles[np.maximum(other, 0)] - poles[anchor], 1.0)
+    inv_other = np.where(other >= 0, 1.0 / gap, 0.0)
     active = i
     for _ in range(200):  # only unconverged roots are iterated
         ta, aa = t[active], anchor[active]
-        den = (poles[:, None] - poles[aa][None, :]) - ta[None, :]
-        mask = i[:, None] == aa[None, :]
-        den = np.where(mask, 1.0, den)
-        terms = np.where(mask, 0.0, c[:, None] / den)
-        psi = terms.sum(axis=0)
+        psi, dpsi = _pole_sums(poles, c, aa, ta)
         f_val = -ca[active] + ta * (psi - 1)
-        df = psi - 1 + ta * np.sum(terms / den, axis=0)
+        df = psi - 1 + ta * dpsi
         neg = f_val < 0
         near[active] = np.where(neg, ta, near[active])
         far[active] = np.where(neg, far[active], ta)
+        # Newton on G = F·(1 − t/e): the factor (in [1/2, 1] on the half interval) cancels
+        # the second bounding pole, so G is smooth across the interval and Newton converges
+        # in a few steps from the two-pole start.
+        inv_e = inv_other[active]
+        g_val = f_val * (1 - ta * inv_e)
+        dg = df * (1 - ta * inv_e) - f_val * inv_e
         with np.errstate(divide="ignore", invalid="ignore"):
-            step = f_val / df
+            step = g_val / dg
         t_new = ta - step
         ok = np.isfinite(t_new) & ((t_new - near[active]) * (t_new - far[active]) < 0)
         t_new = np.where(f_val == 0, ta,
@@ -302,8 +379,8 @@ def _secular_roots(poles, c):
 
 
 def _modes(d, u, w):
-    """Mode data for one airflow configuration: O(N + K² + n_o·K) memory and work per root
-    iteration, n_o being the number of zones that return no air."""
+    """Mode data for one airflow configuration: O(K²) work per root iteration, O(N + K)
+    memory (the (K, K) products run in column blocks)."""
     coupled = w * u > 1e-290  # subnormal couplings would overflow 1/(p − ν); they are nil
     idx = np.flatnonzero(coupled)
     order = idx[np.argsort(d[idx], kind="stable")]
@@ -318,29 +395,47 @@ def _modes(d, u, w):
     c = np.bincount(group[idx], weights=(w * u)[idx], minlength=poles.size)
     anchor, t = _secular_roots(poles, c)
     nu = poles[anchor] + t
-    delta = (poles[:, None] - poles[anchor][None, :]) - t[None, :]
-    fprime = np.sum(c[:, None] / delta**2, axis=0)
-    others = np.flatnonzero(~coupled)
-    delta_o = (d[others][:, None] - poles[anchor][None, :]) - t[None, :]
-    resonant = np.any(np.abs(delta_o) < 1e-6 * np.maximum(d[others][:, None], nu[None, :]),
-                      axis=1)
-    with np.errstate(divide="ignore"):
-        inv_o = np.where(resonant[:, None], 0.0, 1.0 / delta_o)
-    return _Modes(nu, d_eff, u, w, group, 1.0 / delta, fprime, others, inv_o, delta_o,
-                  resonant)
+    fprime = np.empty(poles.size)
+    rows = np.arange(poles.size)
+    for blk in _column_blocks(poles.size, poles.size):
+        fprime[blk] = np.sum(c[:, None] / _delta(poles, anchor, t, rows, rows[blk])**2, axis=0)
+    return _Modes(nu, d_eff, u, w, group, poles, anchor, t, fprime,
+                  np.flatnonzero(~coupled), {})
 
 
-def _project(m, x):
-    """β (K, n_vec) and γ (n, n_vec) of zone vectors x (n, n_vec) (see the comment above)."""
+def _closed(m):
+    """The closed form's matrices (O(K² + n_o·K) memory), built once per configuration."""
+    if "data" not in m.closed:
+        k = m.poles.size
+        rows = np.arange(k)
+        d_o = m.d[m.others]
+        delta_o = (d_o[:, None] - m.poles[m.anchor][None, :]) - m.offset[None, :]
+        resonant = np.any(np.abs(delta_o) < 1e-6 * np.maximum(d_o[:, None], m.nu[None, :]),
+                          axis=1)
+        with np.errstate(divide="ignore"):
+            inv_o = np.where(resonant[:, None], 0.0, 1.0 / delta_o)
+        m.closed["data"] = _Closed(1.0 / _delta(m.poles, m.anchor, m.offset, rows, rows),
+                                   inv_o, delta_o, resonant)
+    return m.closed["data"]
+
+
+def _project(m, x, with_gamma=True, beta=None):
+    """β (K, n_vec) and γ (n, n_vec) of zone vectors x (n, n_vec) (see the comment above);
+    γ is None unless asked for (the march needs β only, in O(N + K) memory); β may be
+    passed in when already known."""
     g = m.group
     ret = g >= 0
     x = np.asarray(x, dtype=float)
-    wx = np.column_stack([np.bincount(g[ret], weights=m.w[ret] * col[ret], minlength=m.nu.size)
-                          for col in x.T])
-    beta = (m.inv_delta.T @ wx) / m.fprime[:, None]
+    if beta is None:
+        wx = np.column_stack([np.bincount(g[ret], weights=m.w[ret] * col[ret],
+                                          minlength=m.nu.size) for col in x.T])
+        beta = _cauchy_t(m, wx) / m.fprime[:, None]
+    if not with_gamma:
+        return beta, None
+    cl = _closed(m)
     gamma = x.copy()
-    gamma[ret] -= m.u[ret, None] * (m.inv_delta @ beta)[g[ret]]
-    gamma[m.others] -= m.u[m.others, None] * (m.inv_delta_o @ beta)
+    gamma[ret] -= m.u[ret, None] * (cl.inv_delta @ beta)[g[ret]]
+    gamma[m.others] -= m.u[m.others, None] * (cl.inv_delta_o @ beta)
     return beta, gamma
 
 
@@ -354,22 +449,23 @@ def _state(m, beta, gamma, tau):
     e_d, i_d = _exp_and_integral(m.d[None, :], tau)
     out = gamma[None, :, 0] * e_d + gamma[None, :, 1] * i_d
     ret = m.group >= 0
-    out[:, ret] += m.u[ret] * (modes @ m.inv_delta.T)[:, m.group[ret]]
-    out[:, m.others] += m.u[m.others] * (modes @ m.inv_delta_o.T)
-    if np.any(m.resonant):
-        zr = m.others[m.resonant]
-        conv = sum(np.sum(_resonant_convolution(m, zr, tau[:, :, None], integrated)
+    cl = _closed(m)
+    out[:, ret] += m.u[ret] * (modes @ cl.inv_delta.T)[:, m.group[ret]]
+    out[:, m.others] += m.u[m.others] * (modes @ cl.inv_delta_o.T)
+    if np.any(cl.resonant):
+        zr = m.others[cl.resonant]
+        conv = sum(np.sum(_resonant_convolution(m, cl, zr, tau[:, :, None], integrated)
                           * beta[None, None, :, col], axis=2)
                    for col, integrated in ((0, False), (1, True)))
         out[:, zr] += m.u[zr] * conv
     return out
 
 
-def _resonant_convolution(m, zr, tau, integrated):
+def _resonant_convolution(m, cl, zr, tau, integrated):
     """E = ∫₀^τ e^(−d(τ−s))·e^(−νs) ds = e^(−min(d,ν)τ)·τ·φ(|d − ν|τ) for zones zr whose rate
     nearly equals a mode rate; integrated: (τφ(ντ) − τφ(dτ))/(d − ν), or τ²·χ at the mean
     rate where d ≈ ν (relative error about ((d − ν)/d)², below 1e-12 here)."""
-    dl = m.delta_o[m.resonant][None, :, :]
+    dl = cl.delta_o[cl.resonant][None, :, :]
     dz = m.d[zr][None, :, None]
     nu = m.nu[None, None, :]
     if not integrated:
@@ -379,6 +475,111 @@ def _resonant_convolution(m, zr, tau, integrated):
         far = ((_exp_and_integral(nu, tau)[1] - _exp_and_integral(dz, tau)[1])
                / np.where(near, 1.0, dl))
     return np.where(near, tau**2 * _chi(0.5 * (dz + nu) * tau), far)
+
+
+# --------------------------------------------------------------------------- O(N) marching
+#
+# The closed form above spends O(K²) per output time on the zone sums Σ_i β_i e^(−ν_i τ)/(d_z −
+# ν_i). The march below needs only the scalar coupling signal s(τ) = wᵀC(τ), which the modes
+# give in O(K) at any time,
+#     s(τ) = Σ_i β0_i e^(−ν_i τ) + Σ_i β1_i τφ(ν_i τ)
+# (the e^(−d_z τ) parts of the zones cancel in wᵀ: Σ_(z in pole group k) w_z γ_z = 0), and then
+# steps every zone as the scalar equation dC_z/dτ = −d_z C_z + u_z s(τ) + b_z:
+#     C_z(τ+h) = e^(−d_z h)C_z(τ) + b_z hφ(d_z h) + u_z ∫₀^h e^(−d_z(h−σ)) s(τ+σ) dσ.
+# The integrand is a sum of exponentials e^(cσ) with |c| <= max(d, ν) = r. Gauss–Legendre
+# quadrature with n nodes integrates e^(cσ) over [0, h] with relative error below
+# (ch)^(2n)·(n!)^4/((2n+1)·((2n)!)^3)·e^(|c|h) (Abramowitz & Stegun 25.4.30 with the
+# derivative bound for e^(cσ)); steps are cut so that r·h <= 2, where n = 8 gives < 1e-17
+# (relative to the sum of the absolute terms), far below rounding. Every output time is a step end. Cost O(N + K) per step and O(K²) per piece
+# (the projections), against O(N + K²) per output time for the closed form.
+
+_GL_X, _GL_W = np.polynomial.legendre.leggauss(8)
+_GL_X, _GL_W = 0.5 * (_GL_X + 1.0), 0.5 * _GL_W  # nodes and weights on [0, 1]
+_STEP_RATE = 2.0  # largest r·h on one quadrature step
+_CHUNK = 1 << 21  # values per block of the vectorised signal and forcing arrays
+
+
+def _step_lengths(h, tol):
+    """Distinct step lengths, lengths closer than ``tol`` taken as one (output times known to
+    a few ulps, e.g. from ``linspace``, give steps differing in the last bits; each such step
+    then errs by at most tol·|dC/dt|): (lengths, index of each step's length)."""
+    order = np.argsort(h, kind="stable")
+    hs = h[order]
+    new = np.ones(hs.size, dtype=bool)
+    new[1:] = np.diff(hs) > tol
+    index = np.empty(h.size, dtype=np.int64)
+    index[order] = np.cumsum(new) - 1
+    return hs[new], index
+
+
+class _Plan(NamedTuple):
+    knots: np.ndarray  # (n_k,) distinct step-end times of a piece, from 0 to τ_end [h]
+    where_out: np.ndarray  # (n_out + 2,) knot of 0, of each output time and of τ_end
+    parts: np.ndarray  # (n_k − 1,) quadrature steps between consecutive knots
+
+
+def _march_plan(m, tau_out, tau_end):
+    """Knots (0, the output times, τ_end) and the steps between them, cut so that r·h <= 2."""
+    knots, where_out = np.unique(np.concatenate(([0.0], tau_out, [tau_end])),
+                                 return_inverse=True)
+    rate = max(float(m.d.max(initial=0.0)), float(m.nu.max(initial=0.0)))
+    parts = np.maximum(1, np.ceil(np.diff(knots) * rate / _STEP_RATE)).astype(np.int64)
+    return _Plan(knots, where_out, parts)
+
+
+def _march(m, beta, c0, b, plan):
+    """Zone concentrations at the plan's output times and at its end, by the exact modal
+    coupling signal and Gauss–Legendre steps (see the comment above): ((n_out, n), (n,))."""
+    knots, parts = plan.knots, plan.parts
+    h = np.repeat(np.diff(knots) / parts, parts)  # step lengths
+    first = np.cumsum(parts) - parts
+    start = np.repeat(knots[:-1], parts) + (np.arange(h.size) - np.repeat(first, parts)) * h
+    ends_at_knot = np.cumsum(parts)  # the state after this many steps is at knot k + 1
+    n = c0.size
+    state_at = np.empty((knots.size, n))
+    state_at[0] = c0
+    c = np.array(c0, dtype=float)
+    lengths, h_index = _step_lengths(h, 16 * _EPS * knots[-1])
+    b0, b1 = beta[:, 0], beta[:, 1]
+    rows = max(1, _CHUNK // max(m.nu.size, n, 1))
+    knot = 0
+    for lo in range(0, h.size, rows):
+        hi = min(h.size, lo + rows)
+        e_m, i_m = _exp_and_integral(m.nu[None, :], start[lo:hi, None])
+        base = i_m @ b1  # the generation part of s at each step start
+        force = np.empty((hi - lo, n))
+        step_data = {}
+        for k in np.unique(h_index[lo:hi]):
+            hl = lengths[k]
+            sig = hl * _GL_X
+            e_s, j_s = _exp_and_integral(m.nu[:, None], sig[None, :])
+            sel = np.flatnonzero(h_index[lo:hi] == k)
+            signal = e_m[sel] @ (b0[:, None] * e_s + b1[:, None] * j_s) + base[sel, None]
+            weights = ((hl * _GL_W)[:, None] * m.u[None, :]
+                       * np.exp(-m.d[None, :] * (hl - sig)[:, None]))  # (q, n)
+            force[sel] = signal @ weights
+            dec, tphi = _exp_and_integral(m.d, hl)
+            step_data[k] = (dec, b * tphi)
+        for step in range(lo, hi):
+            dec, const = step_data[h_index[step]]
+            c *= dec
+            c += const
+            c += force[step - lo]
+            if step + 1 == ends_at_knot[knot]:
+                knot += 1
+                state_at[knot] = c
+    values = state_at[plan.where_out]
+    return values[1:-1], values[-1]
+
+
+def _prefer_march(m, n_zones, n_eval, plan):
+    """Whether the march costs less than the closed form on this piece, by rough per-value
+    costs (ns, measured on the benchmark): the closed form ~36·N + 0.2·(K² + n_o·K) per output
+    time, the march ~22·N + 12·K per quadrature step."""
+    k, n_o = m.nu.size, m.others.size
+    closed = n_eval * (36.0 * n_zones + 0.2 * (k * k + n_o * k))
+    march = float(plan.parts.sum()) * (22.0 * n_zones + 12.0 * k)
+    return march < closed
 
 
 class CoupledTransient(NamedTuple):
@@ -420,7 +621,7 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
                                 outdoor_intake, c0, output_times, *, outdoor_concentration=0.0,
                                 outdoor_filter_efficiency=0.0, recirc_filter_efficiency=0.0,
                                 zone_exhaust=0.0, cadr=0.0, k_deposition=0.0,
-                                k_inactivation=0.0):
+                                k_inactivation=0.0, method="auto"):
     """Exact transient of a coupled system for inputs constant on each piece.
 
     Solves ``V_z·dC_z/dt = G_z + Vpz·C_s − (Vpz + L_z)·C_z``, ``C_s = a + Σ w_z C_z`` (module
@@ -429,14 +630,24 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
     comment above :func:`_chi`). No ODE solver and no N×N matrix; no steady state is needed,
     so a system that removes nothing is solved exactly too.
 
-    Complexity, honestly: with K the number of distinct decay rates (V_pz + L_z)/V_z among
-    the zones that return air (K = N when every zone differs, K = 1 for identical zones) and
-    n_o the zones that return none, each airflow configuration costs O(K² + n_o·K) per root
-    iteration (most roots converge in under ten Newton steps, the few that fall back to
-    bisection are iterated alone; computed once and reused while airflows and losses stay
-    the same); each piece and each output time then cost O(N + K² + n_o·K),
-    the K² part being one matrix product. That is O(N) per step only when K is small; for
-    K = N it is O(N²) per step — exact, but not linear.
+    Two evaluations of the same exact solution, chosen by ``method``:
+
+    - ``"closed"``: every output time from the closed form above, O(N + K² + n_o·K) per
+      output time and O(K² + n_o·K) memory;
+    - ``"march"``: the coupling signal wᵀC(τ) from the modes in closed form (O(K) per time),
+      each zone stepped from output time to output time against it by Gauss–Legendre
+      quadrature whose error bound is below 1e-17 per step (see the comment above
+      :func:`_march`): O(N + K) per step and O(N + K) memory; steps are cut so that
+      rate·h <= 2, so a very fast zone over a long piece needs many steps;
+    - ``"auto"`` (default): per piece, whichever of the two costs less by a rough count.
+
+    K is the number of distinct decay rates (Vpz + L_z)/V_z among the zones that return air
+    (K = N when every zone differs) and n_o the number of zones that return none. Both share
+    the per-configuration work (computed once and reused while airflows and losses stay the
+    same): the K secular roots by safeguarded Newton, O(K²) per iteration in O(K) memory
+    (the roots interlace with the zone rates, so each needs every pole), and per piece the
+    projection of the start state, O(K²). The two agree to about 1e-13 relative in the
+    tests (tests/test_coupled.py).
 
     Layout: zone inputs are ``(n_zones,)`` (constant) or ``(n_pieces, n_zones)`` (per piece;
     ``(n_pieces, 1)`` for all zones alike); system inputs (``outdoor_intake``,
@@ -467,6 +678,8 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
         Zone exhaust E_z and in-room CADR. [m3/h]
     k_deposition, k_inactivation : float or array_like, shape (n_zones,) or (n_pieces, n_zones)
         In-room first-order losses. [1/h]
+    method : {"auto", "closed", "march"}
+        Evaluation of the exact solution (above).
 
     Returns
     -------
@@ -494,19 +707,45 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
         raise ValueError(f"output_times must be 1-D within [{b[0]}, {b[-1]}] h")
     piece_of = np.clip(np.searchsorted(b, t, side="right") - 1, 0, n - 1)
     out_zone, out_supply = np.empty((t.size, vol.size)), np.empty(t.size)
-    key, m = None, None
+    if method not in ("auto", "closed", "march"):
+        raise ValueError(f"method must be 'auto', 'closed' or 'march', got {method!r}")
+    pieces = []  # (system, configuration key, right-hand side b, outdoor part a)
     for j in range(n):
         vpz = zone["primary_airflow"][j]
         sysm = _system(vpz, system["outdoor_intake"][j], zone["zone_exhaust"][j],
                        system["recirc_filter_efficiency"][j])
-        new_key = (vpz.tobytes(), loss[j].tobytes(), sysm.w.tobytes())
-        if new_key != key:  # modes depend on airflows and losses only, not on generation
-            key, m = new_key, _modes((vpz + loss[j]) / vol, vpz / vol, sysm.w)
         a = sysm.x * outdoor[j]
-        beta, gamma = _project(m, np.column_stack((c, (gen[j] + vpz * a) / vol)))
-        sel = np.flatnonzero(piece_of == j)
-        values = _state(m, beta, gamma, np.append(t[sel] - b[j], b[j + 1] - b[j]))
-        out_zone[sel] = values[:-1]
-        out_supply[sel] = a + values[:-1] @ sysm.w
-        c = values[-1]
+        pieces.append((sysm, (vpz.tobytes(), loss[j].tobytes(), sysm.w.tobytes()),
+                       (gen[j] + vpz * a) / vol, a))
+    j = 0
+    while j < n:  # runs of pieces sharing airflows and losses share their modes
+        stop = j + 1
+        while stop < n and pieces[stop][1] == pieces[j][1]:
+            stop += 1
+        vpz = zone["primary_airflow"][j]
+        m = _modes((vpz + loss[j]) / vol, vpz / vol, pieces[j][0].w)
+        # modal coordinates of every piece's b at once (one blocked Cauchy product), and of
+        # the start state; within the run they are carried forward in O(K) per piece:
+        # β(C(τ)) = e^(−ντ)·β(C(0)) + τφ(ντ)·β(b), the β being left-eigenvector coordinates.
+        beta_b = _project(m, np.column_stack([p[2] for p in pieces[j:stop]]),
+                          with_gamma=False)[0]
+        beta_c = _project(m, c[:, None], with_gamma=False)[0][:, 0]
+        for i in range(j, stop):
+            sysm, _, rhs, a = pieces[i]
+            sel = np.flatnonzero(piece_of == i)
+            span = b[i + 1] - b[i]
+            plan = None if method == "closed" else _march_plan(m, t[sel] - b[i], span)
+            march = method == "march" or (method == "auto"
+                                          and _prefer_march(m, vol.size, sel.size + 1, plan))
+            beta = np.column_stack((beta_c, beta_b[:, i - j]))
+            if march:
+                out_zone[sel], c = _march(m, beta, c, rhs, plan)
+            else:
+                gamma = _project(m, np.column_stack((c, rhs)), beta=beta)[1]
+                values = _state(m, beta, gamma, np.append(t[sel] - b[i], span))
+                out_zone[sel], c = values[:-1], values[-1]
+            out_supply[sel] = a + out_zone[sel] @ sysm.w
+            e_end, i_end = _exp_and_integral(m.nu, span)
+            beta_c = e_end * beta[:, 0] + i_end * beta[:, 1]
+        j = stop
     return CoupledTransient(out_zone, out_supply)

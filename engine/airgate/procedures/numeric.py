@@ -49,11 +49,18 @@ def psi(x):
 
 
 def exp_and_integral(rate, tau):
-    """e^(−rτ) and its integral over [0, τ], τ·φ(rτ): −expm1(−rτ)/r, or τ·(1 − rτ/2) where
-    rτ < 1e-8 (which also covers r = 0 and subnormal products)."""
+    """e^(−rτ) and its integral over [0, τ], τ·φ(rτ) = −expm1(−rτ)/r (accurate for every
+    rτ >= 0: expm1 keeps small products exact), or τ where r < 1e-300 (r = 0 and rates whose
+    reciprocal would overflow; the relative error r·τ/2 is then below 1e-300·τ)."""
+    rate = np.asarray(rate, dtype=float)
     y = rate * tau
-    small = y < 1e-8
-    tphi = np.where(small, tau * (1.0 - 0.5 * y), -np.expm1(-y) / np.where(small, 1.0, rate))
+    tiny = rate < 1e-300
+    if np.any(tiny):
+        inv = np.where(tiny, 0.0, 1.0 / np.where(tiny, 1.0, rate))
+        tphi = -np.expm1(-y) * inv + np.where(tiny, tau, 0.0)
+    else:
+        tphi = np.expm1(-y)
+        tphi *= -1.0 / rate
     return np.exp(-y), tphi
 
 
