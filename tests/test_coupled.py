@@ -477,3 +477,28 @@ def test_march_quadrature_rule_integrates_exponentials_to_rounding(ch):
     got = h * np.sum(cpl._GL_W * np.exp(c * h * cpl._GL_X))
     assert got == pytest.approx(np.expm1(ch) / c, rel=4e-16)
     assert cpl._STEP_RATE <= 2.0 and cpl._GL_X.size == 8
+
+
+def test_auto_avoids_marching_a_very_fast_zone_across_a_long_piece(monkeypatch):
+    # Cost rule of coupled_piecewise_transient(method="auto"): a zone of rate ~7e4 per hour
+    # over a 24-hour piece would need ~8e5 quadrature steps (rate·h <= 2), so the closed form
+    # (three output times) is chosen; without the fast zone, at one-minute output, the march
+    # is. The first settles to the coupled steady state (domain.md §4); the second equals the
+    # closed form (two evaluations of one exact solution).
+    vol, vpz = np.array([0.01, 100.0, 80.0]), np.array([700.0, 600.0, 400.0])
+    gen = np.array([10.0, 500.0, 300.0])
+    calls = []
+    original = cpl._march
+    monkeypatch.setattr(cpl, "_march", lambda *a: calls.append(1) or original(*a))
+    few = cpl.coupled_piecewise_transient([0.0, 24.0], gen, vol, vpz, 500.0, 0.0,
+                                          [0.0, 12.0, 24.0])
+    assert calls == []
+    ss = cpl.coupled_steady_state(gen, vol, vpz, 500.0)
+    np.testing.assert_allclose(few.zone[-1], ss.zone, rtol=1e-12)
+    vol[0] = 50.0
+    many = cpl.coupled_piecewise_transient([0.0, 1.0], gen, vol, vpz, 500.0, 0.0,
+                                           np.linspace(0.0, 1.0, 61))
+    assert calls == [1]
+    closed = cpl.coupled_piecewise_transient([0.0, 1.0], gen, vol, vpz, 500.0, 0.0,
+                                             np.linspace(0.0, 1.0, 61), method="closed")
+    np.testing.assert_allclose(many.zone, closed.zone, rtol=1e-12)

@@ -727,9 +727,9 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
         # modal coordinates of every piece's b at once (one blocked Cauchy product), and of
         # the start state; within the run they are carried forward in O(K) per piece:
         # β(C(τ)) = e^(−ντ)·β(C(0)) + τφ(ντ)·β(b), the β being left-eigenvector coordinates.
-        beta_b = _project(m, np.column_stack([p[2] for p in pieces[j:stop]]),
-                          with_gamma=False)[0]
-        beta_c = _project(m, c[:, None], with_gamma=False)[0][:, 0]
+        projected = _project(m, np.column_stack([c] + [p[2] for p in pieces[j:stop]]),
+                             with_gamma=False)[0]
+        beta_c, beta_b = projected[:, 0], projected[:, 1:]
         for i in range(j, stop):
             sysm, _, rhs, a = pieces[i]
             sel = np.flatnonzero(piece_of == i)
