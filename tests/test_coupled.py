@@ -482,9 +482,9 @@ def test_march_quadrature_rule_integrates_exponentials_to_rounding(ch):
 def test_auto_avoids_marching_a_very_fast_zone_across_a_long_piece(monkeypatch):
     # Cost rule of coupled_piecewise_transient(method="auto"): a zone of rate ~7e4 per hour
     # over a 24-hour piece would need ~8e5 quadrature steps (rate·h <= 2), so the closed form
-    # (three output times) is chosen; without the fast zone, at one-minute output, the march
-    # is. The first settles to the coupled steady state (domain.md §4); the second equals the
-    # closed form (two evaluations of one exact solution).
+    # (three output times) is chosen; for 2,000 ordinary zones at one-minute output the
+    # march is. The first settles to the coupled steady state (domain.md §4); the second
+    # equals the closed form (two evaluations of one exact solution).
     vol, vpz = np.array([0.01, 100.0, 80.0]), np.array([700.0, 600.0, 400.0])
     gen = np.array([10.0, 500.0, 300.0])
     calls = []
@@ -495,10 +495,10 @@ def test_auto_avoids_marching_a_very_fast_zone_across_a_long_piece(monkeypatch):
     assert calls == []
     ss = cpl.coupled_steady_state(gen, vol, vpz, 500.0)
     np.testing.assert_allclose(few.zone[-1], ss.zone, rtol=1e-12)
-    vol[0] = 50.0
-    many = cpl.coupled_piecewise_transient([0.0, 1.0], gen, vol, vpz, 500.0, 0.0,
+    vol, vpz, gen = np.full(2000, 50.0), np.full(2000, 300.0), np.linspace(0.0, 900.0, 2000)
+    many = cpl.coupled_piecewise_transient([0.0, 1.0], gen, vol, vpz, 1.8e5, 0.0,
                                            np.linspace(0.0, 1.0, 61))
     assert calls == [1]
-    closed = cpl.coupled_piecewise_transient([0.0, 1.0], gen, vol, vpz, 500.0, 0.0,
+    closed = cpl.coupled_piecewise_transient([0.0, 1.0], gen, vol, vpz, 1.8e5, 0.0,
                                              np.linspace(0.0, 1.0, 61), method="closed")
     np.testing.assert_allclose(many.zone, closed.zone, rtol=1e-12)

@@ -231,6 +231,12 @@ def parse(raw: object, kind: str, system: str) -> float:
     _finite(value, raw)
     if not unit:
         return to_internal(value, kind, system)
+    try:
+        factor = _unit_factor(unit, k.internal)
+    except Exception:  # noqa: BLE001 - the full conversion below says what is wrong
+        factor = None
+    if factor is not None:
+        return _finite(value * factor, raw)
     ureg = registry()
     try:
         q = ureg.Quantity(value, unit)
@@ -249,6 +255,17 @@ def parse(raw: object, kind: str, system: str) -> float:
             f"expected {_article(kind)} such as {k.example}"
         ) from exc
     return _finite(converted, raw)
+
+
+@lru_cache(maxsize=1024)
+def _unit_factor(unit: str, internal: str) -> float | None:
+    """Internal units per ``unit`` when the conversion is a pure factor (pint, once per unit
+    expression: schedules repeat a handful of units thousands of times), else None (an offset
+    unit such as degF, converted in full each time). Raises what pint raises for a bad unit."""
+    ureg = registry()
+    if float(ureg.Quantity(0.0, unit).to(internal).magnitude) != 0.0:
+        return None
+    return float(ureg.Quantity(1.0, unit).to(internal).magnitude)
 
 
 @lru_cache(maxsize=64)

@@ -573,12 +573,14 @@ def _march(m, beta, c0, b, plan):
 
 
 def _prefer_march(m, n_zones, n_eval, plan):
-    """Whether the march costs less than the closed form on this piece, by rough per-value
-    costs (ns, measured on the benchmark): the closed form ~36·N + 0.2·(K² + n_o·K) per output
-    time, the march ~22·N + 12·K per quadrature step."""
+    """Whether the march costs less than the closed form on this piece, by per-value costs
+    fitted to timings on the benchmark machine (ns; N zones, K modes, n_o zones returning no
+    air): the closed form ~3000 + 43·N + 0.08·(K² + n_o·K) per output time, the march
+    ~9000 + 9·N + 50·K per quadrature step (its fixed part is the step loop in Python). Small
+    systems therefore take the closed form, large ones the march."""
     k, n_o = m.nu.size, m.others.size
-    closed = n_eval * (36.0 * n_zones + 0.2 * (k * k + n_o * k))
-    march = float(plan.parts.sum()) * (22.0 * n_zones + 12.0 * k)
+    closed = n_eval * (3000.0 + 43.0 * n_zones + 0.08 * (k * k + n_o * k))
+    march = float(plan.parts.sum()) * (9000.0 + 9.0 * n_zones + 50.0 * k)
     return march < closed
 
 
@@ -710,10 +712,13 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
     if method not in ("auto", "closed", "march"):
         raise ValueError(f"method must be 'auto', 'closed' or 'march', got {method!r}")
     pieces = []  # (system, configuration key, right-hand side b, outdoor part a)
+    last, sysm = None, None
     for j in range(n):
         vpz = zone["primary_airflow"][j]
-        sysm = _system(vpz, system["outdoor_intake"][j], zone["zone_exhaust"][j],
-                       system["recirc_filter_efficiency"][j])
+        inputs = (vpz, system["outdoor_intake"][j], zone["zone_exhaust"][j],
+                  system["recirc_filter_efficiency"][j])
+        if last is None or not all(np.array_equal(x, y) for x, y in zip(inputs, last)):
+            last, sysm = inputs, _system(*inputs)  # most profiles change generation only
         a = sysm.x * outdoor[j]
         pieces.append((sysm, (vpz.tobytes(), loss[j].tobytes(), sysm.w.tobytes()),
                        (gen[j] + vpz * a) / vol, a))
@@ -734,8 +739,10 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
             sysm, _, rhs, a = pieces[i]
             sel = np.flatnonzero(piece_of == i)
             span = b[i + 1] - b[i]
-            plan = None if method == "closed" else _march_plan(m, t[sel] - b[i], span)
-            march = method == "march" or (method == "auto"
+            # a piece with no output time needs only its end: one closed-form evaluation
+            plan = (None if method == "closed" or method == "auto" and sel.size == 0
+                    else _march_plan(m, t[sel] - b[i], span))
+            march = method == "march" or (plan is not None and method == "auto"
                                           and _prefer_march(m, vol.size, sel.size + 1, plan))
             beta = np.column_stack((beta_c, beta_b[:, i - j]))
             if march:

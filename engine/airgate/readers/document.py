@@ -54,19 +54,13 @@ class _LimitReached(Exception):
         self.mark = mark
 
 
-class _Loader(yaml.SafeLoader):
-    """PyYAML's safe loader with YAML 1.2 core-schema resolution of plain scalars.
+class _Rules:
+    """What both loaders add to PyYAML's safe loading: YAML 1.2 core-schema resolution of plain
+    scalars, and counting of nodes and nesting while composing, so a huge or deep document is
+    refused before it is held in memory."""
 
-    It also counts nodes and nesting while composing, so a huge or deep document is refused
-    before it is held in memory.
-    """
-
-    yaml_implicit_resolvers: dict = {}
-
-    def __init__(self, stream: str) -> None:
-        super().__init__(stream)
-        self.composed = 0
-        self.depth = 0
+    composed: int
+    depth: int
 
     def compose_node(self, parent: yaml.Node | None, index: Any) -> yaml.Node:
         self.composed += 1
@@ -76,13 +70,13 @@ class _Loader(yaml.SafeLoader):
             raise _LimitReached("depth", self.peek_event().start_mark)
         self.depth += 1
         try:
-            return super().compose_node(parent, index)
+            return super().compose_node(parent, index)  # type: ignore[misc]
         finally:
             self.depth -= 1
 
     def construct_yaml_int(self, node: yaml.ScalarNode) -> int:
         """Decimal, ``0o`` octal or ``0x`` hexadecimal (YAML 1.2); never 1.1 octal or base 60."""
-        text = self.construct_scalar(node)
+        text = self.construct_scalar(node)  # type: ignore[attr-defined]
         sign = -1 if text.startswith("-") else 1
         digits = text.lstrip("+-")
         if digits.startswith("0o"):
@@ -92,20 +86,63 @@ class _Loader(yaml.SafeLoader):
         return sign * int(digits, 10)
 
 
-_Loader.add_implicit_resolver(
-    "tag:yaml.org,2002:null", re.compile(r"^(?:~|null|Null|NULL|)$"), ["~", "n", "N", ""])
-_Loader.add_implicit_resolver(
-    "tag:yaml.org,2002:bool", re.compile(r"^(?:true|True|TRUE|false|False|FALSE)$"), list("tTfF"))
-_Loader.add_implicit_resolver(
-    "tag:yaml.org,2002:int", re.compile(r"^(?:[-+]?[0-9]+|0o[0-7]+|0x[0-9a-fA-F]+)$"),
-    list("-+0123456789"))
-_Loader.add_implicit_resolver(
-    "tag:yaml.org,2002:float",
-    re.compile(r"^(?:[-+]?(?:\.[0-9]+|[0-9]+(?:\.[0-9]*)?)(?:[eE][-+]?[0-9]+)?"
-               r"|[-+]?\.(?:inf|Inf|INF)|\.(?:nan|NaN|NAN))$"),
-    list("-+.0123456789"))
-_Loader.add_implicit_resolver("tag:yaml.org,2002:merge", re.compile(r"^(?:<<)$"), ["<"])
-_Loader.add_constructor("tag:yaml.org,2002:int", _Loader.construct_yaml_int)
+class _Loader(_Rules, yaml.SafeLoader):
+    """PyYAML's pure-Python safe loader with :class:`_Rules`: the reference reading, and the one
+    whose error messages are reported."""
+
+    yaml_implicit_resolvers: dict = {}
+
+    def __init__(self, stream: str) -> None:
+        super().__init__(stream)
+        self.composed = 0
+        self.depth = 0
+
+
+try:  # libyaml's scanner and parser (C), with PyYAML's Python composer and constructor
+    from yaml._yaml import CParser as _CParser
+except ImportError:  # PyYAML built without libyaml: the pure-Python loader alone
+    _CParser = None
+
+if _CParser is not None:
+    class _FastLoader(_Rules, _CParser, yaml.composer.Composer,  # type: ignore[misc]
+                      yaml.constructor.SafeConstructor, yaml.resolver.Resolver):
+        """The same reading as :class:`_Loader` from libyaml's events (several times faster
+        on large schedules); composing stays in Python, so the limits above still apply. A
+        document it cannot read is read again by :class:`_Loader` for the error message."""
+
+        yaml_implicit_resolvers: dict = {}
+        get_single_node = yaml.composer.Composer.get_single_node
+        check_node = yaml.composer.Composer.check_node
+        get_node = yaml.composer.Composer.get_node
+
+        def __init__(self, stream: str) -> None:
+            _CParser.__init__(self, stream)
+            yaml.composer.Composer.__init__(self)
+            yaml.constructor.SafeConstructor.__init__(self)
+            yaml.resolver.Resolver.__init__(self)
+            self.composed = 0
+            self.depth = 0
+
+    _LOADERS: tuple[type, ...] = (_FastLoader, _Loader)
+else:
+    _LOADERS = (_Loader,)
+
+for _cls in _LOADERS:
+    _cls.add_implicit_resolver(
+        "tag:yaml.org,2002:null", re.compile(r"^(?:~|null|Null|NULL|)$"), ["~", "n", "N", ""])
+    _cls.add_implicit_resolver(
+        "tag:yaml.org,2002:bool", re.compile(r"^(?:true|True|TRUE|false|False|FALSE)$"),
+        list("tTfF"))
+    _cls.add_implicit_resolver(
+        "tag:yaml.org,2002:int", re.compile(r"^(?:[-+]?[0-9]+|0o[0-7]+|0x[0-9a-fA-F]+)$"),
+        list("-+0123456789"))
+    _cls.add_implicit_resolver(
+        "tag:yaml.org,2002:float",
+        re.compile(r"^(?:[-+]?(?:\.[0-9]+|[0-9]+(?:\.[0-9]*)?)(?:[eE][-+]?[0-9]+)?"
+                   r"|[-+]?\.(?:inf|Inf|INF)|\.(?:nan|NaN|NAN))$"),
+        list("-+.0123456789"))
+    _cls.add_implicit_resolver("tag:yaml.org,2002:merge", re.compile(r"^(?:<<)$"), ["<"])
+    _cls.add_constructor("tag:yaml.org,2002:int", _cls.construct_yaml_int)
 
 
 @dataclass
@@ -201,7 +238,7 @@ class _Builder:
             value = self.loader.construct_object(node, deep=True)
         except yaml.YAMLError as exc:
             raise self.fail(node, f"cannot read value: {exc}", path) from None
-        if isinstance(value, (bool, int, float)) and node.style is None:
+        if isinstance(value, (bool, int, float)) and not node.style:  # plain: None or ""
             self.doc.texts[path] = node.value
         return value
 
@@ -373,26 +410,52 @@ def _syntax_error(exc: yaml.MarkedYAMLError, text: str, file: str,
 
 
 def parse_yaml(text: str, file: str, error_cls: type[AirgateError]) -> Document:
-    """Parse YAML (or JSON, a near subset) text into a :class:`Document`."""
-    doc = Document(file=file, data=None)
-    loader = _Loader(text)
+    """Parse YAML (or JSON, a near subset) text into a :class:`Document`.
+
+    The fast loader reads first; if it meets a syntax error the pure-Python loader reads the
+    text again, so the message and position reported are always the reference loader's. Text
+    with a tab goes to the reference loader alone: libyaml accepts tabs as separators where
+    PyYAML's loader refuses them, and a schedule must read the same on every machine."""
+    if len(_LOADERS) > 1 and "\t" not in text:  # libyaml takes tabs PyYAML refuses
+        try:
+            return _parse_with(_LOADERS[0], text, file, error_cls)
+        except _SyntaxSeen:
+            pass
     try:
+        return _parse_with(_Loader, text, file, error_cls)
+    except _SyntaxSeen as seen:  # both readings fail: the reference loader's own report
+        raise seen.error from None
+
+
+class _SyntaxSeen(Exception):
+    def __init__(self, error: AirgateError) -> None:
+        super().__init__(error.message)
+        self.error = error
+
+
+def _parse_with(loader_cls: type, text: str, file: str,
+                error_cls: type[AirgateError]) -> Document:
+    doc = Document(file=file, data=None)
+    loader = None
+    try:
+        loader = loader_cls(text)
         node = loader.get_single_node()
         if node is None:
             raise error_cls("document is empty", file=file, line=1, column=1,
                             hint="a schedule starts with 'schedule: 1'")
         doc.data = _Builder(doc, loader, error_cls).build(node, (), 0)
     except yaml.MarkedYAMLError as exc:
-        raise _syntax_error(exc, text, file, error_cls) from None
+        raise _SyntaxSeen(_syntax_error(exc, text, file, error_cls)) from None
     except _LimitReached as exc:
         raise _limit_error(error_cls, exc.what, file, path_at_error(text, exc.mark.index),
                            exc.mark.line + 1, exc.mark.column + 1) from None
     except yaml.YAMLError as exc:
-        raise error_cls(f"not valid YAML: {exc}", file=file) from None
+        raise _SyntaxSeen(error_cls(f"not valid YAML: {exc}", file=file)) from None
     except RecursionError:
         raise _limit_error(error_cls, "depth", file, ()) from None
     finally:
-        loader.dispose()
+        if loader is not None:
+            loader.dispose()
     return doc
 
 
