@@ -94,7 +94,8 @@ def _list(args) -> int:
 def _show(args) -> int:
     from airgate.readers import options as opts
     from airgate.writers import pack_resolved
-    from airgate.writers.packs import json_text, pack_summary
+    from airgate.writers.output import json_text
+    from airgate.writers.packs import pack_summary
 
     chosen = _options(args.option)
     doc, pack, resolved = _load(args.pack, args, chosen)
@@ -158,7 +159,7 @@ def _diff(args) -> int:
     from airgate.evaluation.packdiff import diff
     from airgate.readers.rulepack import load_document
     from airgate.writers.pack_reports import diff_json, diff_text
-    from airgate.writers.packs import json_text
+    from airgate.writers.output import json_text
 
     old = load_document(args.old, search=args.rules_path)
     new = load_document(args.new, search=args.rules_path)

@@ -7,7 +7,6 @@ deterministic: keys in a fixed order, numbers rounded to 6 significant digits, n
 
 from __future__ import annotations
 
-import json
 import math
 from typing import Any
 
@@ -16,6 +15,7 @@ from airgate.evaluation.findings import Amount, Finding
 from airgate.evaluation.report import Report, SystemResult, ZoneResult
 from airgate.evaluation.waivers import WaiverStatus
 from airgate.evaluation.trail import Step, Trail
+from airgate.writers.output import json_text
 
 REPORT_VERSION = 1
 
@@ -152,7 +152,7 @@ def to_dict(report: Report, series_step: int = 0) -> dict[str, Any]:
 
 def render(report: Report, series_step: int = 0) -> str:
     """The JSON report; ``series_step`` > 0 adds each zone's design-day CO2 series [minutes]."""
-    return json.dumps(to_dict(report, series_step), indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+    return json_text(to_dict(report, series_step))
 
 
 BATCH_VERSION = 1
@@ -171,4 +171,4 @@ def render_batch(batch, series_step: int = 0) -> str:
         "waivers": [waiver_status(s) for s in batch.waivers],
         "cautions": batch.cautions(),
     }
-    return json.dumps(out, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+    return json_text(out)

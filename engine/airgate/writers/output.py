@@ -2,11 +2,24 @@
 
 from __future__ import annotations
 
+import io
+import json
 import os
 import tempfile
 from pathlib import Path
 
 from airgate.errors import UsageError
+
+
+def json_text(data: object) -> str:
+    """``json.dumps(data, indent=2, ensure_ascii=False, allow_nan=False)`` plus a newline, byte
+    for byte, without holding the encoder's millions of small chunks in a list at once (an
+    indented dump of a large portfolio would otherwise need several times its own size)."""
+    buf = io.StringIO()
+    buf.writelines(json.JSONEncoder(indent=2, ensure_ascii=False, allow_nan=False)
+                   .iterencode(data))
+    buf.write("\n")
+    return buf.getvalue()
 
 
 def write_atomic(path: str | Path, text: str) -> None:

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import json
 from typing import Any
 
 from airgate.models.requirements import Selector
@@ -190,7 +189,3 @@ def pack_list(rows: list[tuple[str, str, str, str, str]]) -> str:
         ext = f" (extends {extends})" if extends else ""
         out.append(f"{pack_id:36} {units}  {title}{ext}{where}")
     return "\n".join(out) + "\n"
-
-
-def json_text(data: Any) -> str:
-    return json.dumps(data, indent=2, ensure_ascii=False, allow_nan=False) + "\n"

@@ -11,7 +11,6 @@ tool notifications. No timestamps or random ids: the log is deterministic.
 from __future__ import annotations
 
 import hashlib
-import json
 import re
 from pathlib import PurePath
 from typing import Any
@@ -24,6 +23,7 @@ from airgate.evaluation.findings import Finding, Location
 from airgate.evaluation.report import SAFETY_CAUTION, Report
 from airgate.evaluation.waivers import SCHEDULE, WaiverStatus
 from airgate.writers import shared
+from airgate.writers.output import json_text
 
 SCHEMA_URI = "https://docs.oasis-open.org/sarif/sarif/v2.1.0/errata01/os/schemas/sarif-schema-2.1.0.json"
 LEVEL = {"fail": "error", "warning": "warning", "info": "note"}
@@ -182,4 +182,4 @@ def to_dict(batch: Batch) -> dict[str, Any]:
 
 def render(batch: Batch) -> str:
     """The SARIF log (UTF-8 JSON, 2-space indent, final newline)."""
-    return json.dumps(to_dict(batch), indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+    return json_text(to_dict(batch))

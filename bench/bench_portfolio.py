@@ -1,0 +1,96 @@
+"""Benchmark: the whole check (read, validate, evaluate, write) on a large invented portfolio.
+
+Not a test. Run from the repository root:
+
+    PYTHONPATH=engine python bench/bench_portfolio.py            # 1,000 and 10,000 zones
+    PYTHONPATH=engine python bench/bench_portfolio.py 100000     # add sizes as arguments
+
+The portfolio is the invented demo building (fixtures/demo/fernhollow-civic-centre.yaml: 14
+zones on 3 systems, with occupancy profiles, an aerosol contaminant, a filter and an air
+cleaner) repeated with renamed systems and zones until it holds at least N zones, written to
+one YAML schedule. Each size runs in a fresh process (``airgate check FILE --format text:…
+--format json:…``) so that start-up and peak memory are its own. Printed, all from this one
+run: wall time split into reading + validation, evaluation and writing, time per zone, peak
+resident memory, and each size's per-zone time and memory as a ratio to the smallest size
+(1.00 everywhere means linear).
+"""
+
+from __future__ import annotations
+
+import copy
+import json
+import subprocess
+import sys
+import tempfile
+from pathlib import Path
+
+import yaml
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = ROOT / "fixtures" / "demo" / "fernhollow-civic-centre.yaml"
+SIZES = (1000, 10000)
+
+# Runs in the child: one check, timed by stage, then the process's peak resident memory.
+CHILD = r"""
+import json, resource, sys, time
+from pathlib import Path
+t0 = time.perf_counter()
+from airgate.evaluation.engine import check_file
+from airgate.writers import json_report, text
+t1 = time.perf_counter()
+report = check_file(Path(sys.argv[1]))
+t2 = time.perf_counter()
+Path(sys.argv[2]).write_text(text.render(report), encoding="utf-8")
+Path(sys.argv[3]).write_text(json_report.render(report), encoding="utf-8")
+t3 = time.perf_counter()
+print(json.dumps({"import": t1 - t0, "check": t2 - t1, "write": t3 - t2,
+                  "maxrss_kib": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss}))
+"""
+
+
+def portfolio(n_zones: int) -> dict:
+    """The demo schedule repeated until it has at least n_zones zones (ids made unique)."""
+    doc = yaml.safe_load(DEMO.read_text(encoding="utf-8"))
+    base, systems, count, copy_no = doc["systems"], [], 0, 0
+    while count < n_zones:
+        for system in base:
+            s = copy.deepcopy(system)
+            s["id"] = f"{system['id']}-{copy_no}"
+            for zone in s["zones"]:
+                zone["id"] = f"{zone['id']}-{copy_no}"
+            count += len(s["zones"])
+            systems.append(s)
+        copy_no += 1
+    doc["systems"] = systems
+    doc["project"]["name"] = f"Quillby Bay civic portfolio, {count} zones (invented)"
+    return doc
+
+
+def main(argv: list[str]) -> None:
+    sizes = sorted(set(SIZES) | {int(a) for a in argv})
+    print("airgate portfolio benchmark: whole check of the demo building repeated "
+          "(invented data); one run, numbers from this run only")
+    print(f"  {'zones':>7s} {'read+eval s':>11s} {'write s':>8s} {'us/zone':>9s} "
+          f"{'peak MiB':>9s} {'time/zone ratio':>16s} {'memory/zone ratio':>18s}")
+    base = None
+    with tempfile.TemporaryDirectory() as tmp:
+        for n in sizes:
+            doc = portfolio(n)
+            zones = sum(len(s["zones"]) for s in doc["systems"])
+            path = Path(tmp) / f"portfolio-{n}.yaml"
+            path.write_text(yaml.safe_dump(doc, sort_keys=False), encoding="utf-8")
+            run = subprocess.run(
+                [sys.executable, "-c", CHILD, str(path), str(path.with_suffix(".txt")),
+                 str(path.with_suffix(".json"))],
+                check=True, capture_output=True, text=True)
+            got = json.loads(run.stdout.strip().splitlines()[-1])
+            per_zone = (got["check"] + got["write"]) / zones
+            mem = got["maxrss_kib"] / 1024
+            base = base or (per_zone, mem / zones)
+            print(f"  {zones:7d} {got['check']:11.2f} {got['write']:8.2f} "
+                  f"{per_zone * 1e6:9.0f} {mem:9.0f} {per_zone / base[0]:16.2f} "
+                  f"{mem / zones / base[1]:18.2f}")
+
+
+if __name__ == "__main__":
+    main(sys.argv[1:])
