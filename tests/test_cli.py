@@ -5,6 +5,7 @@ from __future__ import annotations
 import json
 import re
 
+import pytest
 import yaml
 
 from airgate.cli import main
@@ -89,3 +90,38 @@ def test_readme_example_schedule_evaluates(tmp_path, capsys):
     path.write_text(block, encoding="utf-8")
     assert main(["check", str(path)]) in (0, 1)
     assert "AHU-3" in capsys.readouterr().out
+
+
+def test_reports_of_one_run_are_written_together_or_not_at_all(tmp_path, monkeypatch):
+    # Atomic replacement of a set of files (common practice): every report of a run goes to a
+    # temporary file first; when one fails while it is produced, no target is touched and no
+    # temporary file is left.
+    from airgate.writers import output
+
+    old = tmp_path / "old.txt"
+    old.write_text("previous report\n", encoding="utf-8")
+
+    def failing():
+        yield "{\n"
+        raise RuntimeError("encoder broke")
+
+    with pytest.raises(RuntimeError):
+        output.write_all_atomic([(old, "new text\n"), (tmp_path / "new.json", failing())])
+    assert old.read_text(encoding="utf-8") == "previous report\n"
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["old.txt"]
+    output.write_all_atomic([(old, "new text\n"), (tmp_path / "new.json", iter(["{}", "\n"])),
+                             (tmp_path / "raw.bin", b"\x00\x01")])
+    assert old.read_text(encoding="utf-8") == "new text\n"
+    assert (tmp_path / "new.json").read_text(encoding="utf-8") == "{}\n"
+    assert (tmp_path / "raw.bin").read_bytes() == b"\x00\x01"
+
+
+def test_streamed_json_equals_the_standard_indented_dump():
+    # Python's json module (json.dumps, indent=2) as the outside reference for the streamed
+    # encoder used by the JSON, SARIF and pack writers: byte-identical text.
+    from airgate.writers import output
+
+    data = {"a": [1, 2.5, None, True], "b": {"ü": "Σ·²", "e": {}, "l": []}, "c": 1e-05}
+    ref = json.dumps(data, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+    assert output.json_text(data) == ref
+    assert "".join(output.json_chunks(data)) == ref

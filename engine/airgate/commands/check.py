@@ -170,13 +170,13 @@ def run(args: argparse.Namespace) -> int:
     entries = [e for w in args.waivers for e in waiver_rules.from_file(read_waivers(w))]
     reports = _evaluate(files, args, entries, as_of)
     batch = gather(reports, entries, args.fail_on)
-    rendered = [(d, formats.render(name, batch, args.series_step)) for name, d in targets]
-    for dest, body in rendered:
-        if dest is not None:
-            output.write_atomic(dest, body)
-    for dest, body in rendered:
+    # every file of the run appears together or not at all; then standard output
+    output.write_all_atomic([(d, formats.stream(name, batch, args.series_step))
+                             for name, d in targets if d is not None])
+    for name, dest in targets:
         if dest is None:
-            sys.stdout.write(body)
+            body = formats.stream(name, batch, args.series_step)
+            sys.stdout.write(body) if isinstance(body, str) else sys.stdout.writelines(body)
     if batch.gate_fails() and not args.exit_zero:
         return EXIT_FAIL
     return EXIT_PASS

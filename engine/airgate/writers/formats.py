@@ -9,12 +9,23 @@ from __future__ import annotations
 
 from airgate.evaluation.batch import Batch
 from airgate.writers import html, json_report, junit, markdown, sarif, shared, text
+from airgate.writers.output import Body
 from airgate.writers.text import clean
 
 FORMATS = ("text", "json", "junit", "sarif", "markdown", "html")
 #: the usual file extension of each format (docs and the pre-commit example)
 EXTENSIONS = {"text": ".txt", "json": ".json", "junit": ".xml", "sarif": ".sarif",
               "markdown": ".md", "html": ".html"}
+
+
+def stream(name: str, batch: Batch, series_step: int = 0) -> Body:
+    """:func:`render`, with JSON given piece by piece (a large portfolio's indented JSON is
+    then written without ever being one string)."""
+    if name == "json":
+        if batch.single:
+            return json_report.chunks(batch.reports[0], series_step)
+        return json_report.batch_chunks(batch, series_step)
+    return render(name, batch, series_step)
 
 
 def render(name: str, batch: Batch, series_step: int = 0) -> str:

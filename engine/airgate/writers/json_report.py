@@ -8,6 +8,7 @@ deterministic: keys in a fixed order, numbers rounded to 6 significant digits, n
 from __future__ import annotations
 
 import math
+from collections.abc import Iterator
 from typing import Any
 
 from airgate import __version__, units
@@ -15,7 +16,7 @@ from airgate.evaluation.findings import Amount, Finding
 from airgate.evaluation.report import Report, SystemResult, ZoneResult
 from airgate.evaluation.waivers import WaiverStatus
 from airgate.evaluation.trail import Step, Trail
-from airgate.writers.output import json_text
+from airgate.writers.output import json_chunks, json_text
 
 REPORT_VERSION = 1
 
@@ -150,6 +151,11 @@ def to_dict(report: Report, series_step: int = 0) -> dict[str, Any]:
     }
 
 
+def chunks(report: Report, series_step: int = 0) -> Iterator[str]:
+    """:func:`render` piece by piece (the report data is built at once, the text lazily)."""
+    return json_chunks(to_dict(report, series_step))
+
+
 def render(report: Report, series_step: int = 0) -> str:
     """The JSON report; ``series_step`` > 0 adds each zone's design-day CO2 series [minutes]."""
     return json_text(to_dict(report, series_step))
@@ -160,6 +166,15 @@ BATCH_VERSION = 1
 
 def render_batch(batch, series_step: int = 0) -> str:
     """Several schedules: a wrapper with the run's summary around one report object each."""
+    return json_text(_batch_dict(batch, series_step))
+
+
+def batch_chunks(batch, series_step: int = 0) -> Iterator[str]:
+    """:func:`render_batch` piece by piece."""
+    return json_chunks(_batch_dict(batch, series_step))
+
+
+def _batch_dict(batch, series_step: int) -> dict[str, Any]:
     out = {
         "batch_version": BATCH_VERSION,
         "generator": f"airgate {__version__}",
@@ -171,4 +186,4 @@ def render_batch(batch, series_step: int = 0) -> str:
         "waivers": [waiver_status(s) for s in batch.waivers],
         "cautions": batch.cautions(),
     }
-    return json_text(out)
+    return out

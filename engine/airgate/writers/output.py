@@ -1,4 +1,5 @@
-"""Write output files atomically: a report appears whole or not at all."""
+"""Write output files atomically: a report appears whole or not at all, and the reports of one
+run appear together or not at all."""
 
 from __future__ import annotations
 
@@ -6,33 +7,73 @@ import io
 import json
 import os
 import tempfile
+from collections.abc import Iterable, Iterator, Sequence
 from pathlib import Path
+from typing import Union
 
 from airgate.errors import UsageError
 
 
+#: A rendered output: text, its pieces in order (written without joining them), or bytes.
+Body = Union[str, bytes, Iterable[str]]
+
+
+def json_chunks(data: object) -> Iterator[str]:
+    """The pieces of ``json.dumps(data, indent=2, ensure_ascii=False, allow_nan=False)`` and a
+    final newline: the indented form, byte for byte, produced piece by piece."""
+    yield from json.JSONEncoder(indent=2, ensure_ascii=False, allow_nan=False).iterencode(data)
+    yield "\n"
+
+
 def json_text(data: object) -> str:
-    """``json.dumps(data, indent=2, ensure_ascii=False, allow_nan=False)`` plus a newline, byte
-    for byte, without holding the encoder's millions of small chunks in a list at once (an
-    indented dump of a large portfolio would otherwise need several times its own size)."""
+    """:func:`json_chunks` as one string, without holding the encoder's millions of small
+    pieces in a list at once (an indented dump of a large portfolio would otherwise need
+    several times its own size)."""
     buf = io.StringIO()
-    buf.writelines(json.JSONEncoder(indent=2, ensure_ascii=False, allow_nan=False)
-                   .iterencode(data))
-    buf.write("\n")
+    buf.writelines(json_chunks(data))
     return buf.getvalue()
 
 
-def write_atomic(path: str | Path, text: str) -> None:
-    """Write ``text`` (UTF-8) to ``path`` through a temporary file in the same folder."""
-    path = Path(path)
-    folder = path.parent if str(path.parent) else Path(".")
-    if not folder.is_dir():
-        raise UsageError(f"cannot write {path}: folder {folder} does not exist")
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
+def write_atomic(path: str | Path, text: Body) -> None:
+    """Write ``text`` (UTF-8; bytes as they are) to ``path`` through a temporary file in the
+    same folder."""
+    write_all_atomic([(path, text)])
+
+
+def write_all_atomic(items: Sequence[tuple[str | Path, Body]]) -> None:
+    """Write several files as a set: each body goes to a temporary file beside its target,
+    and only when every one is complete are they moved into place (os.replace, atomic per
+    file). If any fails — a full disk, a missing folder, an error while a body is produced —
+    every temporary file is removed and no target is touched."""
+    temps: list[tuple[str, Path]] = []
+    path = Path()
     try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as handle:
-            handle.write(text)
-        os.replace(tmp, path)
+        for target, body in items:
+            path = Path(target)
+            folder = path.parent if str(path.parent) else Path(".")
+            if not folder.is_dir():
+                raise UsageError(f"cannot write {path}: folder {folder} does not exist")
+            fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
+            temps.append((tmp, path))
+            if isinstance(body, bytes):
+                with os.fdopen(fd, "wb") as raw:
+                    raw.write(body)
+                continue
+            with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as handle:
+                if isinstance(body, str):
+                    handle.write(body)
+                else:
+                    handle.writelines(body)
+        for tmp, path in temps:
+            os.replace(tmp, path)
     except OSError as exc:
-        Path(tmp).unlink(missing_ok=True)
+        _remove(temps)
         raise UsageError(f"cannot write {path}: {exc.strerror}") from None
+    except BaseException:
+        _remove(temps)
+        raise
+
+
+def _remove(temps: list[tuple[str, Path]]) -> None:
+    for tmp, _ in temps:
+        Path(tmp).unlink(missing_ok=True)

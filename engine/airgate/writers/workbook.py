@@ -10,13 +10,12 @@ from __future__ import annotations
 
 import csv
 import io
-import os
-import tempfile
 from pathlib import Path
 from typing import Any
 
 from airgate.errors import UsageError
 from airgate.readers import fields as F
+from airgate.writers import output
 
 _LISTS = F.list_tables()
 SHEETS = {"project": "Project", "systems": "Systems", "zones": "Zones", "profiles": "Profiles",
@@ -225,25 +224,6 @@ def xlsx_bytes(tables: Tables, pack=None) -> bytes:
 
 
 def write_files_atomic(files: dict[Path, bytes | str]) -> None:
-    """Write every file whole, through a temporary file beside it; every file is written before
-    any is renamed into place, so a failure while writing changes nothing."""
-    temps: list[tuple[str, Path]] = []
-    try:
-        for path, content in files.items():
-            path = Path(path)
-            folder = path.parent if str(path.parent) else Path(".")
-            if not folder.is_dir():
-                raise UsageError(f"cannot write {path}: folder {folder} does not exist")
-            fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
-            temps.append((tmp, path))
-            data = content.encode("utf-8") if isinstance(content, str) else content
-            with os.fdopen(fd, "wb") as handle:
-                handle.write(data)
-        for tmp, path in temps:
-            os.replace(tmp, path)
-    except OSError as exc:
-        raise UsageError(f"cannot write {path}: {exc.strerror}") from None
-    finally:
-        for tmp, _ in temps:
-            Path(tmp).unlink(missing_ok=True)
+    """Write every file whole, all of them or none (:func:`output.write_all_atomic`)."""
+    output.write_all_atomic(list(files.items()))
 
