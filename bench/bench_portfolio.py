@@ -35,13 +35,15 @@ CHILD = r"""
 import json, resource, sys, time
 from pathlib import Path
 t0 = time.perf_counter()
+from airgate.evaluation.batch import gather
 from airgate.evaluation.engine import check_file
-from airgate.writers import json_report, text
+from airgate.writers import formats, output
 t1 = time.perf_counter()
 report = check_file(Path(sys.argv[1]))
 t2 = time.perf_counter()
-Path(sys.argv[2]).write_text(text.render(report), encoding="utf-8")
-Path(sys.argv[3]).write_text(json_report.render(report), encoding="utf-8")
+batch = gather([report], [], "fail")  # as airgate check writes its reports
+output.write_all_atomic([(sys.argv[2], formats.stream("text", batch)),
+                         (sys.argv[3], formats.stream("json", batch))])
 t3 = time.perf_counter()
 print(json.dumps({"import": t1 - t0, "check": t2 - t1, "write": t3 - t2,
                   "maxrss_kib": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss}))
