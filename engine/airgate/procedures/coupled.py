@@ -584,6 +584,72 @@ def _prefer_march(m, n_zones, n_eval, plan):
     return march < closed
 
 
+def _closed_for_run(m, method, n_zones, j, stop, piece_of, t, b):
+    """Whether a run of pieces sharing modes is evaluated by :func:`_closed_run`: for
+    "closed", and for "auto" when no piece of the run would rather march; never with a
+    near-resonant zone (that case goes piece by piece through :func:`_state`)."""
+    if method == "march" or np.any(_closed(m).resonant):
+        return False
+    if method == "closed":
+        return True
+    for i in range(j, stop):
+        sel = np.flatnonzero(piece_of == i)
+        if sel.size and _prefer_march(m, n_zones, sel.size + 1,
+                                      _march_plan(m, t[sel] - b[i], b[i + 1] - b[i])):
+            return False
+    return True
+
+
+def _zone_sums(m, beta):
+    """Σ_i β_i/(d_z − ν_i) for every zone z, columns of β (K, n_col) → (n, n_col)."""
+    cl = _closed(m)
+    out = np.zeros((m.d.size, beta.shape[1]))
+    ret = m.group >= 0
+    out[ret] = (cl.inv_delta @ beta)[m.group[ret]]
+    out[m.others] = cl.inv_delta_o @ beta
+    return out
+
+
+def _closed_run(m, c0, rhs, beta_c, beta_b, spans, tau, piece):
+    """The closed form for a run of pieces sharing their modes, all output times at once.
+
+    Per piece i the solution is ``C(τ) = γ0·e^(−dτ) + γ1·τφ(dτ) + u·Z(β0·e^(−ντ) + β1·τφ(ντ))``
+    with Z(β) = Σ β/(d − ν) (:func:`_zone_sums`), γ0 = C_i − u·Z(β0), γ1 = b_i − u·Z(β1)
+    (the comment above :func:`_chi`). The modal coordinates β0 of each piece's start follow
+    from the run's first in O(K) per piece, so the zone states at the piece starts need one
+    matrix product for the run and O(N) per piece: no per-piece evaluation. ``rhs`` (n, n_run)
+    holds each piece's b, ``tau`` and ``piece`` (n_out,) each output's time since its piece
+    started and its piece index in the run. Returns the outputs (n_out, n) and the end state.
+    """
+    n_run = spans.size
+    e_end, i_end = _exp_and_integral(m.nu[:, None], spans[None, :])  # (K, n_run)
+    b0 = np.empty((m.nu.size, n_run + 1))
+    b0[:, 0] = beta_c
+    for i in range(n_run):
+        b0[:, i + 1] = e_end[:, i] * b0[:, i] + i_end[:, i] * beta_b[:, i]
+    z0, z1 = _zone_sums(m, b0), _zone_sums(m, beta_b)  # (n, n_run + 1), (n, n_run)
+    e_d, i_d = _exp_and_integral(m.d[:, None], spans[None, :])  # (n, n_run)
+    u = m.u[:, None]
+    gamma1 = rhs - u * z1
+    starts = np.empty((m.d.size, n_run + 1))
+    starts[:, 0] = c0
+    for i in range(n_run):
+        starts[:, i + 1] = ((starts[:, i] - m.u * z0[:, i]) * e_d[:, i]
+                            + gamma1[:, i] * i_d[:, i] + m.u * z0[:, i + 1])
+    gamma0 = starts[:, :-1] - u * z0[:, :-1]
+    out = np.empty((tau.size, m.d.size))
+    rows = max(1, _CHUNK // max(m.d.size, m.nu.size, 1))
+    for lo in range(0, tau.size, rows):
+        sl = slice(lo, min(tau.size, lo + rows))
+        tt, pp = tau[sl, None], piece[sl]
+        e_nu, i_nu = _exp_and_integral(m.nu[None, :], tt)
+        modes = e_nu * b0[:, pp].T + i_nu * beta_b[:, pp].T  # (rows, K)
+        e_z, i_z = _exp_and_integral(m.d[None, :], tt)
+        out[sl] = (gamma0[:, pp].T * e_z + gamma1[:, pp].T * i_z
+                   + m.u * _zone_sums(m, modes.T).T)
+    return out, starts[:, -1]
+
+
 class CoupledTransient(NamedTuple):
     """Concentrations of a coupled system at the output times.
 
@@ -735,6 +801,16 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
         projected = _project(m, np.column_stack([c] + [p[2] for p in pieces[j:stop]]),
                              with_gamma=False)[0]
         beta_c, beta_b = projected[:, 0], projected[:, 1:]
+        if _closed_for_run(m, method, vol.size, j, stop, piece_of, t, b):
+            sel = np.flatnonzero((piece_of >= j) & (piece_of < stop))
+            out_zone[sel], c = _closed_run(
+                m, c, np.column_stack([p[2] for p in pieces[j:stop]]), beta_c, beta_b,
+                np.diff(b[j:stop + 1]), t[sel] - b[piece_of[sel]], piece_of[sel] - j)
+            for i in range(j, stop):
+                here = sel[piece_of[sel] == i]
+                out_supply[here] = pieces[i][3] + out_zone[here] @ pieces[i][0].w
+            j = stop
+            continue
         for i in range(j, stop):
             sysm, _, rhs, a = pieces[i]
             sel = np.flatnonzero(piece_of == i)
