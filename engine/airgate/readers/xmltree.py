@@ -107,6 +107,10 @@ def parse(data: bytes, file: str, what: str = "XML") -> Element:
         raise ScheduleError(str(exc), file=file, line=parser.CurrentLineNumber,
                             column=parser.CurrentColumnNumber + 1,
                             hint="remove the DOCTYPE declaration and any entities") from None
+    except LookupError as exc:  # the XML declaration names an encoding Python does not know
+        raise ScheduleError(f"not readable {what}: {exc}", file=file, line=1, column=1,
+                            hint="declare encoding=\"UTF-8\" in the <?xml …?> line, or save "
+                                 "the file as UTF-8") from None
     except expat.ExpatError as exc:
         ended = exc.code in {expat.errors.codes[m] for m in (
             expat.errors.XML_ERROR_NO_ELEMENTS, expat.errors.XML_ERROR_UNCLOSED_TOKEN,
