@@ -578,10 +578,15 @@ def _prefer_march(m, n_zones, n_eval, plan):
     air): the closed form ~3000 + 43·N + 0.08·(K² + n_o·K) per output time, the march
     ~9000 + 9·N + 50·K per quadrature step (its fixed part is the step loop in Python). Small
     systems therefore take the closed form, large ones the march."""
+    per_eval, per_step = _unit_costs(m, n_zones)
+    return float(plan.parts.sum()) * per_step < n_eval * per_eval
+
+
+def _unit_costs(m, n_zones):
+    """(closed form per output time, march per quadrature step) in ns (see _prefer_march)."""
     k, n_o = m.nu.size, m.others.size
-    closed = n_eval * (3000.0 + 43.0 * n_zones + 0.08 * (k * k + n_o * k))
-    march = float(plan.parts.sum()) * (9000.0 + 9.0 * n_zones + 50.0 * k)
-    return march < closed
+    return (3000.0 + 43.0 * n_zones + 0.08 * (k * k + n_o * k),
+            9000.0 + 9.0 * n_zones + 50.0 * k)
 
 
 def _closed_for_run(m, method, n_zones, j, stop, piece_of, t, b):
@@ -590,7 +595,8 @@ def _closed_for_run(m, method, n_zones, j, stop, piece_of, t, b):
     near-resonant zone (that case goes piece by piece through :func:`_state`)."""
     if method == "march" or np.any(_closed(m).resonant):
         return False
-    if method == "closed":
+    per_eval, per_step = _unit_costs(m, n_zones)
+    if method == "closed" or per_eval <= per_step:  # a march has at least one step per output
         return True
     for i in range(j, stop):
         sel = np.flatnonzero(piece_of == i)

@@ -3,12 +3,19 @@ kernels with their small-argument limits (plain floats and numpy arrays)."""
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 
 def nonneg(name, value, *, strict=False):
     a = np.asarray(value, dtype=float)
-    if not np.all(np.isfinite(a)) or np.any(a <= 0 if strict else a < 0):
+    if a.ndim == 0:  # the common scalar case, without numpy reductions
+        x = float(a)
+        ok = math.isfinite(x) and (x > 0 if strict else x >= 0)
+    else:
+        ok = bool(np.all(np.isfinite(a))) and not np.any(a <= 0 if strict else a < 0)
+    if not ok:
         raise ValueError(f"{name} must be finite and {'>' if strict else '>='} 0, got {value!r}")
     return a
 
@@ -19,8 +26,12 @@ def positive(name, value):
 
 def fraction(name, value, *, open_top=False):
     a = np.asarray(value, dtype=float)
-    top_ok = a < 1 if open_top else a <= 1
-    if not np.all((a >= 0) & top_ok):
+    if a.ndim == 0:
+        x = float(a)
+        ok = 0 <= x < 1 if open_top else 0 <= x <= 1
+    else:
+        ok = bool(np.all((a >= 0) & (a < 1 if open_top else a <= 1)))
+    if not ok:
         allowed = "[0, 1)" if open_top else "[0, 1]"
         raise ValueError(f"{name} must lie in {allowed}, got {value!r}")
     return a
