@@ -432,11 +432,7 @@ def _project(m, x, with_gamma=True, beta=None):
         beta = _cauchy_t(m, wx) / m.fprime[:, None]
     if not with_gamma:
         return beta, None
-    cl = _closed(m)
-    gamma = x.copy()
-    gamma[ret] -= m.u[ret, None] * (cl.inv_delta @ beta)[g[ret]]
-    gamma[m.others] -= m.u[m.others, None] * (cl.inv_delta_o @ beta)
-    return beta, gamma
+    return beta, x - m.u[:, None] * _zone_sums(m, beta)
 
 
 def _state(m, beta, gamma, tau):
@@ -447,11 +443,8 @@ def _state(m, beta, gamma, tau):
     e_nu, i_nu = _exp_and_integral(m.nu[None, :], tau)
     modes = e_nu * beta[None, :, 0] + i_nu * beta[None, :, 1]  # (n_t, K)
     e_d, i_d = _exp_and_integral(m.d[None, :], tau)
-    out = gamma[None, :, 0] * e_d + gamma[None, :, 1] * i_d
-    ret = m.group >= 0
+    out = gamma[None, :, 0] * e_d + gamma[None, :, 1] * i_d + m.u * _zone_sums(m, modes.T).T
     cl = _closed(m)
-    out[:, ret] += m.u[ret] * (modes @ cl.inv_delta.T)[:, m.group[ret]]
-    out[:, m.others] += m.u[m.others] * (modes @ cl.inv_delta_o.T)
     if np.any(cl.resonant):
         zr = m.others[cl.resonant]
         conv = sum(np.sum(_resonant_convolution(m, cl, zr, tau[:, :, None], integrated)
@@ -607,7 +600,8 @@ def _closed_for_run(m, method, n_zones, j, stop, piece_of, t, b):
 
 
 def _zone_sums(m, beta):
-    """Σ_i β_i/(d_z − ν_i) for every zone z, columns of β (K, n_col) → (n, n_col)."""
+    """Σ_i β_i/(d_z − ν_i) for every zone z, columns of β (K, n_col) → (n, n_col); zero for
+    a near-resonant zone, whose coupled part :func:`_state` adds by convolution."""
     cl = _closed(m)
     out = np.zeros((m.d.size, beta.shape[1]))
     ret = m.group >= 0
