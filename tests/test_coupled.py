@@ -502,3 +502,25 @@ def test_auto_avoids_marching_a_very_fast_zone_across_a_long_piece(monkeypatch):
     closed = cpl.coupled_piecewise_transient([0.0, 1.0], gen, vol, vpz, 1.8e5, 0.0,
                                              np.linspace(0.0, 1.0, 61), method="closed")
     np.testing.assert_allclose(many.zone, closed.zone, rtol=1e-12)
+
+
+def test_auto_never_builds_the_closed_form_matrices_of_a_very_large_system(monkeypatch):
+    # Memory claim of coupled_piecewise_transient (O(N + K) for the march): with the closed
+    # form's (K, K) matrices above the limit, "auto" marches every piece, including a piece
+    # with no output time, and the result still equals the closed form (domain.md §4; two
+    # evaluations of one exact solution).
+    rng = np.random.default_rng(12)
+    vol, vpz, exh, cadr, vot = _distinct_system(rng, 60)
+    gen = rng.uniform(0, 2e3, (3, 60))
+    breaks, times = [0.0, 1.0, 2.0, 3.0], np.linspace(2.0, 3.0, 11)
+    closed = cpl.coupled_piecewise_transient(breaks, gen, vol, vpz, vot, 5.0, times,
+                                             zone_exhaust=exh, cadr=cadr, method="closed")
+    monkeypatch.setattr(cpl, "_CLOSED_MAX_VALUES", 100)
+
+    def refuse(_m):
+        raise AssertionError("closed-form matrices built")
+
+    monkeypatch.setattr(cpl, "_closed", refuse)
+    auto = cpl.coupled_piecewise_transient(breaks, gen, vol, vpz, vot, 5.0, times,
+                                           zone_exhaust=exh, cadr=cadr)
+    np.testing.assert_allclose(auto.zone, closed.zone, rtol=1e-12)

@@ -490,6 +490,7 @@ _GL_X, _GL_W = np.polynomial.legendre.leggauss(8)
 _GL_X, _GL_W = 0.5 * (_GL_X + 1.0), 0.5 * _GL_W  # nodes and weights on [0, 1]
 _STEP_RATE = 2.0  # largest r·h on one quadrature step
 _CHUNK = 1 << 21  # values per block of the vectorised signal and forcing arrays
+_CLOSED_MAX_VALUES = 1 << 25  # "auto" uses the closed form only below this many matrix values
 
 
 def _step_lengths(h, tol):
@@ -576,27 +577,29 @@ def _prefer_march(m, n_zones, n_eval, plan):
 
 
 def _unit_costs(m, n_zones):
-    """(closed form per output time, march per quadrature step) in ns (see _prefer_march)."""
+    """(closed form per output time, march per quadrature step) in ns (see _prefer_march);
+    the closed form counts as infinitely dear when its (K, K + n_o) matrices would pass
+    _CLOSED_MAX_VALUES, so "auto" never builds them for a very large system."""
     k, n_o = m.nu.size, m.others.size
-    return (3000.0 + 43.0 * n_zones + 0.08 * (k * k + n_o * k),
-            9000.0 + 9.0 * n_zones + 50.0 * k)
+    closed = (3000.0 + 43.0 * n_zones + 0.08 * (k * k + n_o * k)
+              if k * (k + n_o) <= _CLOSED_MAX_VALUES else np.inf)
+    return closed, 9000.0 + 9.0 * n_zones + 50.0 * k
 
 
 def _closed_for_run(m, method, n_zones, j, stop, piece_of, t, b):
     """Whether a run of pieces sharing modes is evaluated by :func:`_closed_run`: for
     "closed", and for "auto" when no piece of the run would rather march; never with a
     near-resonant zone (that case goes piece by piece through :func:`_state`)."""
-    if method == "march" or np.any(_closed(m).resonant):
+    if method == "march":
         return False
     per_eval, per_step = _unit_costs(m, n_zones)
-    if method == "closed" or per_eval <= per_step:  # a march has at least one step per output
-        return True
-    for i in range(j, stop):
-        sel = np.flatnonzero(piece_of == i)
-        if sel.size and _prefer_march(m, n_zones, sel.size + 1,
-                                      _march_plan(m, t[sel] - b[i], b[i + 1] - b[i])):
-            return False
-    return True
+    if method == "auto" and per_eval > per_step:  # else a march, one step per output at
+        for i in range(j, stop):                  # least, cannot be cheaper
+            sel = np.flatnonzero(piece_of == i)
+            if sel.size and _prefer_march(m, n_zones, sel.size + 1,
+                                          _march_plan(m, t[sel] - b[i], b[i + 1] - b[i])):
+                return False
+    return not np.any(_closed(m).resonant)  # the closed form's matrices, built only now
 
 
 def _zone_sums(m, beta):
@@ -815,10 +818,8 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
             sysm, _, rhs, a = pieces[i]
             sel = np.flatnonzero(piece_of == i)
             span = b[i + 1] - b[i]
-            # a piece with no output time needs only its end: one closed-form evaluation
-            plan = (None if method == "closed" or method == "auto" and sel.size == 0
-                    else _march_plan(m, t[sel] - b[i], span))
-            march = method == "march" or (plan is not None and method == "auto"
+            plan = None if method == "closed" else _march_plan(m, t[sel] - b[i], span)
+            march = method == "march" or (method == "auto"
                                           and _prefer_march(m, vol.size, sel.size + 1, plan))
             beta = np.column_stack((beta_c, beta_b[:, i - j]))
             if march:
