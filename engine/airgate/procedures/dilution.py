@@ -226,7 +226,8 @@ def steady_state_concentration(generation, volume, outdoor_airflow, outdoor_conc
               + _nonneg("outdoor_airflow", outdoor_airflow)
               * (1 - _fraction("outdoor_filter_efficiency", outdoor_filter_efficiency))
               * _nonneg("outdoor_concentration", outdoor_concentration))
-    return _out(source / q_clean)
+    with np.errstate(over="ignore"):  # a removal too small for the float range gives inf
+        return _out(source / q_clean)
 
 
 def breathing_zone_concentration(c_supply, c_exhaust, ez):
@@ -346,7 +347,8 @@ def time_to_fraction_removed(lam, fraction):
         Time. [h]
     """
     f = _fraction("fraction", fraction, open_top=True)
-    return _out(-np.log1p(-f) / _positive("lam", lam))
+    with np.errstate(over="ignore"):  # a loss rate too small for the float range gives inf
+        return _out(-np.log1p(-f) / _positive("lam", lam))
 
 
 def time_to_fraction_of_steady_state(lam, fraction=0.95):
