@@ -801,35 +801,31 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
         # modal coordinates of every piece's b at once (one blocked Cauchy product), and of
         # the start state; within the run they are carried forward in O(K) per piece:
         # β(C(τ)) = e^(−ντ)·β(C(0)) + τφ(ντ)·β(b), the β being left-eigenvector coordinates.
-        projected = _project(m, np.column_stack([c] + [p[2] for p in pieces[j:stop]]),
-                             with_gamma=False)[0]
+        rhs_run = np.column_stack([p[2] for p in pieces[j:stop]])
+        projected = _project(m, np.column_stack((c, rhs_run)), with_gamma=False)[0]
         beta_c, beta_b = projected[:, 0], projected[:, 1:]
         if _closed_for_run(m, method, vol.size, j, stop, piece_of, t, b):
             sel = np.flatnonzero((piece_of >= j) & (piece_of < stop))
-            out_zone[sel], c = _closed_run(
-                m, c, np.column_stack([p[2] for p in pieces[j:stop]]), beta_c, beta_b,
-                np.diff(b[j:stop + 1]), t[sel] - b[piece_of[sel]], piece_of[sel] - j)
-            for i in range(j, stop):
-                here = sel[piece_of[sel] == i]
-                out_supply[here] = pieces[i][3] + out_zone[here] @ pieces[i][0].w
-            j = stop
-            continue
+            out_zone[sel], c = _closed_run(m, c, rhs_run, beta_c, beta_b, np.diff(b[j:stop + 1]),
+                                           t[sel] - b[piece_of[sel]], piece_of[sel] - j)
+        else:
+            for i in range(j, stop):  # piece by piece: the march, or the closed form's _state
+                sel = np.flatnonzero(piece_of == i)
+                span = b[i + 1] - b[i]
+                plan = None if method == "closed" else _march_plan(m, t[sel] - b[i], span)
+                march = method == "march" or (
+                    method == "auto" and _prefer_march(m, vol.size, sel.size + 1, plan))
+                beta = np.column_stack((beta_c, beta_b[:, i - j]))
+                if march:
+                    out_zone[sel], c = _march(m, beta, c, rhs_run[:, i - j], plan)
+                else:
+                    gamma = _project(m, np.column_stack((c, rhs_run[:, i - j])), beta=beta)[1]
+                    values = _state(m, beta, gamma, np.append(t[sel] - b[i], span))
+                    out_zone[sel], c = values[:-1], values[-1]
+                e_end, i_end = _exp_and_integral(m.nu, span)
+                beta_c = e_end * beta[:, 0] + i_end * beta[:, 1]
         for i in range(j, stop):
-            sysm, _, rhs, a = pieces[i]
             sel = np.flatnonzero(piece_of == i)
-            span = b[i + 1] - b[i]
-            plan = None if method == "closed" else _march_plan(m, t[sel] - b[i], span)
-            march = method == "march" or (method == "auto"
-                                          and _prefer_march(m, vol.size, sel.size + 1, plan))
-            beta = np.column_stack((beta_c, beta_b[:, i - j]))
-            if march:
-                out_zone[sel], c = _march(m, beta, c, rhs, plan)
-            else:
-                gamma = _project(m, np.column_stack((c, rhs)), beta=beta)[1]
-                values = _state(m, beta, gamma, np.append(t[sel] - b[i], span))
-                out_zone[sel], c = values[:-1], values[-1]
-            out_supply[sel] = a + out_zone[sel] @ sysm.w
-            e_end, i_end = _exp_and_integral(m.nu, span)
-            beta_c = e_end * beta[:, 0] + i_end * beta[:, 1]
+            out_supply[sel] = pieces[i][3] + out_zone[sel] @ pieces[i][0].w
         j = stop
     return CoupledTransient(out_zone, out_supply)
