@@ -781,13 +781,18 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
     if method not in ("auto", "closed", "march"):
         raise ValueError(f"method must be 'auto', 'closed' or 'march', got {method!r}")
     pieces = []  # (system, configuration key, right-hand side b, outdoor part a)
+    air = (zone["primary_airflow"], system["outdoor_intake"], zone["zone_exhaust"],
+           system["recirc_filter_efficiency"])
+    # most profiles change generation only: inputs given once (stride 0 along the pieces)
+    # share one air balance, the others are compared piece by piece
+    constant = all(x.strides[0] == 0 for x in air)
     last, sysm = None, None
     for j in range(n):
         vpz = zone["primary_airflow"][j]
-        inputs = (vpz, system["outdoor_intake"][j], zone["zone_exhaust"][j],
-                  system["recirc_filter_efficiency"][j])
-        if last is None or not all(np.array_equal(x, y) for x, y in zip(inputs, last)):
-            last, sysm = inputs, _system(*inputs)  # most profiles change generation only
+        inputs = tuple(x[j] for x in air)
+        if last is None or not constant and not all(
+                np.array_equal(x, y) for x, y in zip(inputs, last)):
+            last, sysm = inputs, _system(*inputs)
         a = sysm.x * outdoor[j]
         pieces.append((sysm, (vpz.tobytes(), loss[j].tobytes(), sysm.w.tobytes()),
                        (gen[j] + vpz * a) / vol, a))

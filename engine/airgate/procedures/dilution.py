@@ -137,6 +137,8 @@ def loss_breakdown(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficienc
         "deposition": _nonneg("k_deposition", k_deposition) * v,
         "inactivation": _nonneg("k_inactivation", k_inactivation) * v,
     }
+    if all(np.ndim(p) == 0 for p in parts.values()):  # one zone: numpy scalars, no copies
+        return {k: np.float64(p) for k, p in parts.items()}
     shape = np.broadcast_shapes(*(np.shape(p) for p in parts.values()))
     return {k: _out(np.broadcast_to(p, shape).copy()) for k, p in parts.items()}
 
