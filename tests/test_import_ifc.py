@@ -212,3 +212,56 @@ def test_without_a_net_area_the_gross_area_is_not_used(tmp_path, capsys):
     err = capsys.readouterr().err
     assert "systems[0].zones[0].area: missing required field 'area'" in err
     assert "(IfcSpace #" in err
+
+
+def test_an_ifc2x3_model_reads_as_the_ifc4_one(tmp_path, monkeypatch):
+    # IFC2X3 (ISO/PAS 16739:2005): IfcSystem instead of IfcDistributionSystem, the space's
+    # quantities in an IfcElementQuantity named BaseQuantities (the IFC2X3 convention), and
+    # an owner history on every rooted entity (mandatory in IFC2X3). Same values by hand as
+    # test_space_quantities_occupancy_and_units: 4500 mm = 4.5 m, 0.9 m³/s = 900 L/s.
+    import ifcopenshell.api.owner
+    import ifcopenshell.api.owner.settings
+
+    f = ifcopenshell.file(schema="IFC2X3")
+    org = f.createIfcOrganization(Name="Quillby Bay Civic Trust (fictional)")
+    user = f.createIfcPersonAndOrganization(f.createIfcPerson(FamilyName="Reviewer"), org)
+    app = f.createIfcApplication(org, "1", "airgate test model", "airgate-test")
+    monkeypatch.setattr(ifcopenshell.api.owner.settings, "get_user", lambda _f: user)
+    monkeypatch.setattr(ifcopenshell.api.owner.settings, "get_application", lambda _f: app)
+    api = ifcopenshell.api
+    project = api.root.create_entity(f, ifc_class="IfcProject", name="Tarnmoor annexe (invented)")
+    api.unit.assign_unit(f)
+    storey = api.root.create_entity(f, ifc_class="IfcBuildingStorey", name="L0")
+    api.aggregate.assign_object(f, products=[storey], relating_object=project)
+
+    def pset(product, name, props):
+        ps = api.pset.add_pset(f, product=product, name=name)
+        api.pset.edit_pset(f, pset=ps, properties=props)
+
+    pset(project, "Airgate_Project", {"rules": "ashrae-62.1-2019-si", "units": "SI"})
+    hall = api.root.create_entity(f, ifc_class="IfcSpace", name="G01")
+    hall.LongName = "Annexe hall"
+    api.aggregate.assign_object(f, products=[hall], relating_object=storey)
+    qto = api.pset.add_qto(f, product=hall, name="BaseQuantities")
+    api.pset.edit_qto(f, qto=qto, properties={"NetFloorArea": 120.0, "Height": 4500.0})
+    pset(hall, "Pset_SpaceOccupancyRequirements",
+         {"OccupancyType": "multi-use-assembly", "OccupancyNumber": f.createIfcCountMeasure(80.0)})
+    pset(hall, "Airgate_Zone", {"air_distribution": "ceiling-supply-cool"})
+    system = api.root.create_entity(f, ifc_class="IfcSystem", name="AHU-1")
+    pset(system, "Airgate_System",
+         {"kind": "single-zone", "outdoor_air": f.createIfcVolumetricFlowRateMeasure(0.9)})
+    f.create_entity("IfcRelServicesBuildings", GlobalId=ifcopenshell.guid.new(),
+                    OwnerHistory=api.owner.create_owner_history(f), RelatingSystem=system,
+                    RelatedBuildings=[hall])
+    path = tmp_path / "annexe.ifc"
+    f.write(str(path))
+    loaded = read_any(path)
+    s = loaded.model.systems[0]
+    z = s.zones[0]
+    assert (s.id, s.kind, s.outdoor_air) == ("AHU-1", "single-zone", pytest.approx(900.0))
+    assert (z.id, z.name, z.area, z.height, z.occupants) == (
+        "G01", "Annexe hall", pytest.approx(120.0), pytest.approx(4.5), 80)
+    assert loaded.summary.text() == "annexe.ifc: 1 room read, 1 mapped to 1 system, 0 rejected"
+    assert loaded.doc.origin(("systems", 0, "zones", 0, "area")).source.endswith(
+        "BaseQuantities.NetFloorArea")
+    assert main(["check", str(path), "--exit-zero"]) == 0
