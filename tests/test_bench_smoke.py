@@ -1,0 +1,47 @@
+"""The benchmarks in bench/ still run (common practice: a smoke run keeps a benchmark from
+rotting). Tiny sizes, no timing assertions: speed is only ever reported by the benchmarks
+themselves, as ratios measured in one run."""
+
+from __future__ import annotations
+
+import sys
+
+import numpy as np
+import pytest
+
+from conftest import ROOT
+
+sys.path.insert(0, str(ROOT / "bench"))
+
+import bench_dilution  # noqa: E402
+import bench_portfolio  # noqa: E402
+
+
+def test_march_scaling_table_runs_and_restores_the_procedure(capsys):
+    from airgate.procedures import coupled
+
+    inner = coupled._march
+    rng = np.random.default_rng(1)
+    bench_dilution.march_scaling(rng, np.arange(25.0), np.linspace(0.0, 24.0, 25), sizes=(8, 16))
+    rows = [line.split() for line in capsys.readouterr().out.splitlines()
+            if line.strip()[:1].isdigit()]
+    assert [int(r[0]) for r in rows] == [8, 16]
+    assert rows[0][-2:] == ["1.00", "1.00"]  # the first size is the base of the ratios
+    assert coupled._march is inner
+
+
+def test_portfolio_repeats_the_demo_with_unique_ids():
+    doc = bench_portfolio.portfolio(30)
+    zones = [z["id"] for s in doc["systems"] for z in s["zones"]]
+    assert len(zones) >= 30 and len(set(zones)) == len(zones)
+    assert len({s["id"] for s in doc["systems"]}) == len(doc["systems"])
+    assert "invented" in doc["project"]["name"]
+
+
+@pytest.mark.parametrize("n", [14])
+def test_portfolio_benchmark_runs_end_to_end(n, capsys, monkeypatch):
+    monkeypatch.setattr(bench_portfolio, "SIZES", ())
+    bench_portfolio.main([str(n)])
+    out = capsys.readouterr().out
+    row = [line.split() for line in out.splitlines() if line.strip()[:1].isdigit()]
+    assert len(row) == 1 and int(row[0][0]) >= n and row[0][-2:] == ["1.00", "1.00"]
