@@ -2,7 +2,8 @@
 the reference reading (PyYAML's pure-Python safe loader), airgate.readers.document.
 
 Outside reference: PyYAML's own pure-Python loader. For every YAML file the project ships
-(demo, broken-input corpus, rule packs and their tests) and for damaged copies of the demo,
+(demo, broken-input corpus, rule packs and their tests) and for damaged copies of the demo and
+of two rule packs,
 the two readings must give the same data, the same positions and the same source texts, or
 the fast one must give way (a syntax error it meets is read again by the reference loader,
 whose message is the one reported).
@@ -58,10 +59,16 @@ def test_every_shipped_yaml_file_reads_the_same():
         _same(text)
 
 
-@settings(max_examples=int(os.environ.get("AIRGATE_LOADER_EXAMPLES", 150)), deadline=None, suppress_health_check=[HealthCheck.too_slow])
+DAMAGED = [Path(DEMO), ROOT / "rules" / "ashrae-62.1-2019-quillby-bay.yaml",
+           ROOT / "rules" / "en-16798-1-2019.yaml"]  # a schedule; packs with anchors, tables
+
+
+@pytest.mark.parametrize("source", DAMAGED, ids=lambda p: p.name)
+@settings(max_examples=int(os.environ.get("AIRGATE_LOADER_EXAMPLES", 100)), deadline=None,
+          suppress_health_check=[HealthCheck.too_slow, HealthCheck.function_scoped_fixture])
 @given(data=st.data())
-def test_damaged_demo_reads_the_same(data):
-    raw = Path(DEMO).read_bytes()
+def test_damaged_files_read_the_same(source, data):
+    raw = source.read_bytes()
     broken = damage(data.draw, raw, [b":", b"-", b"[", b"{", b'"', b"\t", b" ", b"\n", b"&a",
                                      b"*a", b"<<", b"#", b"|", b"'"])
     _same(broken.decode("utf-8", errors="replace"))
