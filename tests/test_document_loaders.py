@@ -4,8 +4,8 @@ the reference reading (PyYAML's pure-Python safe loader), airgate.readers.docume
 Outside reference: PyYAML's own pure-Python loader. For every YAML file the project ships
 (demo, broken-input corpus, rule packs and their tests) and for damaged copies of the demo and
 of two rule packs, the two readings must give the same data, the same positions and the same
-source texts, or the fast one must give way (a syntax error it meets is read again by the reference loader,
-whose message is the one reported).
+source texts, or the fast one must give way (a syntax error it meets is read again by the
+reference loader, whose message is the one reported).
 """
 
 from __future__ import annotations

@@ -483,8 +483,10 @@ def _resonant_convolution(m, cl, zr, tau, integrated):
 # quadrature with n nodes integrates e^(cσ) over [0, h] with relative error below
 # (ch)^(2n)·(n!)^4/((2n+1)·((2n)!)^3)·e^(|c|h) (Abramowitz & Stegun 25.4.30 with the
 # derivative bound for e^(cσ)); steps are cut so that r·h <= 2, where n = 8 gives < 1e-17
-# (relative to the sum of the absolute terms), far below rounding. Every output time is a step end. Cost O(N + K) per step and O(K²) per piece
-# (the projections), against O(N + K²) per output time for the closed form.
+# (relative to the sum of the absolute terms), far below rounding. Every output time is a step
+# end. Cost O(N + K) per step and O(K) per piece (the modal coordinates are carried from piece
+# to piece), against O(N + K²) per output time for the closed form; the O(K²) projection is
+# done once per airflow configuration.
 
 _GL_X, _GL_W = np.polynomial.legendre.leggauss(8)
 _GL_X, _GL_W = 0.5 * (_GL_X + 1.0), 0.5 * _GL_W  # nodes and weights on [0, 1]
