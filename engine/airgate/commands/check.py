@@ -175,8 +175,7 @@ def run(args: argparse.Namespace) -> int:
                              for name, d in targets if d is not None])
     for name, dest in targets:
         if dest is None:
-            body = formats.stream(name, batch, args.series_step)
-            sys.stdout.write(body) if isinstance(body, str) else sys.stdout.writelines(body)
+            sys.stdout.writelines(output.pieces(formats.stream(name, batch, args.series_step)))
     if batch.gate_fails() and not args.exit_zero:
         return EXIT_FAIL
     return EXIT_PASS

@@ -8,7 +8,7 @@ sarif and html write one document for the whole run (docs/report-format.md).
 from __future__ import annotations
 
 from airgate.evaluation.batch import Batch
-from airgate.writers import html, json_report, junit, markdown, sarif, shared, text
+from airgate.writers import html, json_report, junit, markdown, output, sarif, shared, text
 from airgate.writers.output import Body
 from airgate.writers.text import clean
 
@@ -19,23 +19,14 @@ EXTENSIONS = {"text": ".txt", "json": ".json", "junit": ".xml", "sarif": ".sarif
 
 
 def stream(name: str, batch: Batch, series_step: int = 0) -> Body:
-    """:func:`render`, with JSON given piece by piece (a large portfolio's indented JSON is
-    then written without ever being one string)."""
-    if name == "json":
-        if batch.single:
-            return json_report.chunks(batch.reports[0], series_step)
-        return json_report.batch_chunks(batch, series_step)
-    return render(name, batch, series_step)
-
-
-def render(name: str, batch: Batch, series_step: int = 0) -> str:
-    """The whole run in format ``name`` (one of :data:`FORMATS`)."""
+    """The whole run in format ``name`` (one of :data:`FORMATS`): text, or for JSON its pieces
+    (a large portfolio's indented JSON is then written without ever being one string)."""
     if name == "text":
         return _text(batch)
     if name == "json":
         if batch.single:
-            return json_report.render(batch.reports[0], series_step)
-        return json_report.render_batch(batch, series_step)
+            return json_report.chunks(batch.reports[0], series_step)
+        return json_report.batch_chunks(batch, series_step)
     if name == "junit":
         return junit.render(batch)
     if name == "sarif":
@@ -45,6 +36,11 @@ def render(name: str, batch: Batch, series_step: int = 0) -> str:
     if name == "html":
         return html.render(batch)
     raise ValueError(f"unknown format {name!r}")
+
+
+def render(name: str, batch: Batch, series_step: int = 0) -> str:
+    """:func:`stream` as one string."""
+    return output.joined(stream(name, batch, series_step))
 
 
 def _text(batch: Batch) -> str:

@@ -26,11 +26,23 @@ def json_chunks(data: object) -> Iterator[str]:
 
 
 def json_text(data: object) -> str:
-    """:func:`json_chunks` as one string, without holding the encoder's millions of small
-    pieces in a list at once (an indented dump of a large portfolio would otherwise need
-    several times its own size)."""
+    """:func:`json_chunks` as one string."""
+    return joined(json_chunks(data))
+
+
+def pieces(body: str | Iterable[str]) -> Iterable[str]:
+    """A text body as pieces to write in order."""
+    return (body,) if isinstance(body, str) else body
+
+
+def joined(body: str | Iterable[str]) -> str:
+    """A text body as one string; pieces are gathered without holding them in a list at once
+    (an indented JSON dump of a large portfolio has millions of small pieces, which as a list
+    would need several times the size of the text)."""
+    if isinstance(body, str):
+        return body
     buf = io.StringIO()
-    buf.writelines(json_chunks(data))
+    buf.writelines(body)
     return buf.getvalue()
 
 
@@ -60,10 +72,7 @@ def write_all_atomic(items: Sequence[tuple[str | Path, Body]]) -> None:
                     raw.write(body)
                 continue
             with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as handle:
-                if isinstance(body, str):
-                    handle.write(body)
-                else:
-                    handle.writelines(body)
+                handle.writelines(pieces(body))
         for tmp, path in temps:
             os.replace(tmp, path)
     except OSError as exc:
