@@ -371,3 +371,31 @@ def test_invalid_inputs_are_refused():
         dil.piecewise_solution([0.0, 0.0], [1.0], 10.0, 5.0, 0.0)
     with pytest.raises(ValueError, match="n_pieces"):
         dil.piecewise_solution([0.0, 1.0, 2.0], [1.0, 2.0], 10.0, [[5.0]] * 3, 0.0)
+
+
+def _decimal_piece(c0, lam, s, t):
+    """C(t) = C0·e^(−λt) + s·t·(1 − e^(−λt))/(λt) (→ C0 + s·t at λ = 0) in 50-digit decimals."""
+    from decimal import Decimal, localcontext
+
+    with localcontext() as ctx:
+        ctx.prec = 50
+        c0, lam, s, t = (Decimal(float(x)) for x in (c0, lam, s, t))  # exact binary values
+        x = lam * t
+        decay = (-x).exp()
+        if x < Decimal("1e-20"):  # (1 − e^(−x))/x by its series, beyond 50 digits' reach
+            tphi = t * (1 - x / 2 + x * x / 6)
+        else:
+            tphi = (1 - decay) / lam
+        return float(c0 * decay + s * tphi)
+
+
+@pytest.mark.parametrize("lam", [0.0, 1e-200, 1e-9, 1e-3, 1.0, 50.0, 1e4])
+@pytest.mark.parametrize(("c0", "s"), [(420.0, 5.0), (0.0, 5.0), (420.0, 0.0), (1e-6, 1e3)])
+def test_exact_piece_keeps_full_precision_rising_and_falling(lam, c0, s):
+    # The exact piece solution (domain.md §4) evaluated in 50-digit decimal arithmetic (Python's
+    # decimal module) as outside reference: rising and falling zones, no removal at all, and
+    # decay far past the initial value (where a single formula would cancel), 1e-13 relative.
+    times = np.array([0.0, 1e-9, 1e-3, 0.5, 1.0, 24.0])
+    got = dil.piecewise_transient([0.0, 24.0], [s], 1.0, lam, c0, times)  # V = 1: λ = Q
+    ref = np.array([_decimal_piece(c0, lam, s, t) for t in times])
+    np.testing.assert_allclose(got, ref, rtol=1e-13, atol=1e-300)

@@ -26,7 +26,6 @@ import numpy as np
 
 from airgate.procedures.numeric import (
     check_breaks as _check_breaks,
-    exp_and_integral as _exp_and_integral,
     fraction as _fraction,
     nonneg as _nonneg,
     out as _out,
@@ -47,24 +46,21 @@ __all__ = [
 # --------------------------------------------------------------------------- helpers
 
 
-def _on_piece(c_start, lam, source_rate, tau):
-    """C(τ) = c_start·e^(−λτ) + s·τ·φ(λτ)."""
-    decay, tphi = _exp_and_integral(lam, tau)
-    return c_start * decay + source_rate * tphi
+def _on_piece(c_start, lam, source_rate, tau, out=None):
+    """C(τ) = C0·e^(−λτ) + s·τ·φ(λτ) on one piece (domain.md §4), at times τ (n_t values)
+    for every zone, into ``out`` (n_t, *zone shape; allocated when None).
 
-
-def _on_piece_many(c_start, lam, source_rate, tau, out):
-    """:func:`_on_piece` at many times τ (shape (n_t, 1, ...)) into ``out`` (n_t, *zone).
-
-    The same solution with one transcendental per value, in the form free of cancellation
-    for each zone: a zone falling towards its steady state ``C_ss = s/λ`` (C0 > C_ss) as
+    One transcendental per value, in the form free of cancellation for each zone: a zone falling towards its steady state ``C_ss = s/λ`` (C0 > C_ss) as
     ``C_ss + (C0 − C_ss)·e^(−λτ)`` (two terms of one sign), a rising one as
     ``C0 + (C_ss − C0)·(−expm1(−λτ))`` (likewise); either is accurate to a few ulps for every
     λτ. Where λ is so small that s/λ would overflow (λ = 0 included) the zone grows linearly,
     ``C0 + s·τ``, exact to a relative λτ that is then below 1e-300·τ."""
-    c0, lam, s = (a.ravel() for a in np.broadcast_arrays(c_start, lam, source_rate))
-    flat = out.reshape(out.shape[0], -1)
+    c0, lam, s = np.broadcast_arrays(c_start, lam, source_rate)
     tau = np.asarray(tau, dtype=float).reshape(-1, 1)
+    if out is None:
+        out = np.empty((tau.shape[0],) + c0.shape)
+    c0, lam, s = c0.ravel(), lam.ravel(), s.ravel()
+    flat = out.reshape(out.shape[0], -1)
     linear = ~(np.abs(s) < lam * 1e300)  # λ = 0 or s/λ out of range
     c_ss = np.where(linear, 0.0, s) / np.where(linear, 1.0, lam)
     falling = ~linear & (c0 > c_ss)
@@ -477,7 +473,7 @@ def piecewise_solution(times_breaks, generation_per_piece, volume, outdoor_airfl
     c = np.broadcast_to(c_init, shape[1:]).astype(float)
     for j, dt in enumerate(np.diff(b)):  # sequential in time, vectorised over zones
         c_start[j] = c
-        c = _on_piece(c, lam[j], s[j], dt)
+        c = _on_piece(c, lam[j], s[j], [dt])[0]
     return PiecewiseSolution(b, c_start, np.array(lam), np.array(s), c)
 
 
@@ -510,8 +506,8 @@ def evaluate_piecewise(solution, times):
         sel = slice(lo, hi) if in_order else order[lo:hi]
         tau = (t[sel] - solution.breaks[j]).reshape((-1,) + extra)
         block = out[sel] if in_order else np.empty((hi - lo,) + out.shape[1:])
-        _on_piece_many(solution.c_start[j], solution.loss_rate[j], solution.source_rate[j],
-                       tau, block)
+        _on_piece(solution.c_start[j], solution.loss_rate[j], solution.source_rate[j], tau,
+                  block)
         if not in_order:
             out[sel] = block
     return out
