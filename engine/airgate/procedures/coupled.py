@@ -568,19 +568,12 @@ def _march(m, beta, c0, b, plan):
     return values[1:-1], values[-1]
 
 
-def _prefer_march(m, n_zones, n_eval, plan):
-    """Whether the march costs less than the closed form on this piece, by per-value costs
-    fitted to timings on the benchmark machine (ns; N zones, K modes, n_o zones returning no
-    air): the closed form ~3000 + 43·N + 0.08·(K² + n_o·K) per output time, the march
-    ~9000 + 9·N + 50·K per quadrature step (its fixed part is the step loop in Python). Small
-    systems therefore take the closed form, large ones the march."""
-    per_eval, per_step = _unit_costs(m, n_zones)
-    return float(plan.parts.sum()) * per_step < n_eval * per_eval
-
-
 def _unit_costs(m, n_zones):
-    """(closed form per output time, march per quadrature step) in ns (see _prefer_march);
-    the closed form counts as infinitely dear when its (K, K + n_o) matrices would pass
+    """(closed form per output time, march per quadrature step): per-value costs fitted to
+    timings on the benchmark machine (ns; N zones, K modes, n_o zones returning no air), the
+    closed form ~3000 + 43·N + 0.08·(K² + n_o·K), the march ~9000 + 9·N + 50·K (its fixed part
+    is the step loop in Python); small systems therefore take the closed form, large ones the
+    march. The closed form counts as infinitely dear when its (K, K + n_o) matrices would pass
     _CLOSED_MAX_VALUES, so "auto" never builds them for a very large system."""
     k, n_o = m.nu.size, m.others.size
     closed = (3000.0 + 43.0 * n_zones + 0.08 * (k * k + n_o * k)
@@ -588,20 +581,18 @@ def _unit_costs(m, n_zones):
     return closed, 9000.0 + 9.0 * n_zones + 50.0 * k
 
 
-def _closed_for_run(m, method, n_zones, j, stop, piece_of, t, b):
-    """Whether a run of pieces sharing modes is evaluated by :func:`_closed_run`: for
-    "closed", and for "auto" when no piece of the run would rather march; never with a
-    near-resonant zone (that case goes piece by piece through :func:`_state`)."""
-    if method == "march":
-        return False
+def _choose(m, method, n_zones, n_eval, plan_of):
+    """Whether a piece marches (True) or takes the closed form; ``plan_of()`` makes its march
+    plan, which is only made when the choice needs it: for "march", and for "auto" unless the
+    closed form is cheaper per output time than the march is per step (a march has at least
+    one step per output)."""
+    if method == "closed":
+        return False, None
     per_eval, per_step = _unit_costs(m, n_zones)
-    if method == "auto" and per_eval > per_step:  # else a march, one step per output at
-        for i in range(j, stop):                  # least, cannot be cheaper
-            sel = np.flatnonzero(piece_of == i)
-            if sel.size and _prefer_march(m, n_zones, sel.size + 1,
-                                          _march_plan(m, t[sel] - b[i], b[i + 1] - b[i])):
-                return False
-    return not np.any(_closed(m).resonant)  # the closed form's matrices, built only now
+    if method == "auto" and per_eval <= per_step:
+        return False, None
+    plan = plan_of()
+    return method == "march" or float(plan.parts.sum()) * per_step < n_eval * per_eval, plan
 
 
 def _zone_sums(m, beta):
@@ -811,28 +802,28 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
         rhs_run = np.column_stack([p[2] for p in pieces[j:stop]])
         projected = _project(m, np.column_stack((c, rhs_run)), with_gamma=False)[0]
         beta_c, beta_b = projected[:, 0], projected[:, 1:]
-        if _closed_for_run(m, method, vol.size, j, stop, piece_of, t, b):
-            sel = np.flatnonzero((piece_of >= j) & (piece_of < stop))
-            out_zone[sel], c = _closed_run(m, c, rhs_run, beta_c, beta_b, np.diff(b[j:stop + 1]),
+        sels = [np.flatnonzero(piece_of == i) for i in range(j, stop)]
+        spans = np.diff(b[j:stop + 1])
+        choices = [_choose(m, method, vol.size, sel.size + 1,
+                           lambda sel=sel, i=i: _march_plan(m, t[sel] - b[i], spans[i - j]))
+                   for i, sel in zip(range(j, stop), sels)]
+        if not any(march for march, _ in choices) and not np.any(_closed(m).resonant):
+            # the whole run in closed form at once (its matrices are built only here)
+            sel = np.concatenate(sels)
+            out_zone[sel], c = _closed_run(m, c, rhs_run, beta_c, beta_b, spans,
                                            t[sel] - b[piece_of[sel]], piece_of[sel] - j)
-        else:
-            for i in range(j, stop):  # piece by piece: the march, or the closed form's _state
-                sel = np.flatnonzero(piece_of == i)
-                span = b[i + 1] - b[i]
-                plan = None if method == "closed" else _march_plan(m, t[sel] - b[i], span)
-                march = method == "march" or (
-                    method == "auto" and _prefer_march(m, vol.size, sel.size + 1, plan))
-                beta = np.column_stack((beta_c, beta_b[:, i - j]))
+        else:  # piece by piece: the march, or the closed form's _state near resonance
+            for k, (sel, (march, plan)) in enumerate(zip(sels, choices)):
+                beta = np.column_stack((beta_c, beta_b[:, k]))
                 if march:
-                    out_zone[sel], c = _march(m, beta, c, rhs_run[:, i - j], plan)
+                    out_zone[sel], c = _march(m, beta, c, rhs_run[:, k], plan)
                 else:
-                    gamma = _project(m, np.column_stack((c, rhs_run[:, i - j])), beta=beta)[1]
-                    values = _state(m, beta, gamma, np.append(t[sel] - b[i], span))
+                    gamma = _project(m, np.column_stack((c, rhs_run[:, k])), beta=beta)[1]
+                    values = _state(m, beta, gamma, np.append(t[sel] - b[j + k], spans[k]))
                     out_zone[sel], c = values[:-1], values[-1]
-                e_end, i_end = _exp_and_integral(m.nu, span)
+                e_end, i_end = _exp_and_integral(m.nu, spans[k])
                 beta_c = e_end * beta[:, 0] + i_end * beta[:, 1]
-        for i in range(j, stop):
-            sel = np.flatnonzero(piece_of == i)
-            out_supply[sel] = pieces[i][3] + out_zone[sel] @ pieces[i][0].w
+        for k, sel in enumerate(sels):
+            out_supply[sel] = pieces[j + k][3] + out_zone[sel] @ pieces[j + k][0].w
         j = stop
     return CoupledTransient(out_zone, out_supply)
