@@ -462,6 +462,7 @@ def test_large_system_with_many_distinct_rates_equals_its_aggregate():
 
 
 def test_unknown_method_is_refused():
+    # API contract of coupled_piecewise_transient (its docstring: "auto", "closed", "march").
     with pytest.raises(ValueError, match="method must be"):
         cpl.coupled_piecewise_transient([0.0, 1.0], [1.0], 10.0, [100.0], 50.0, 0.0, [0.5],
                                         method="rk4")
