@@ -36,10 +36,10 @@ import json, resource, sys, time
 from pathlib import Path
 t0 = time.perf_counter()
 from airgate.evaluation.batch import gather
-from airgate.evaluation.engine import check_file
+from airgate import check
 from airgate.writers import formats, output
 t1 = time.perf_counter()
-report = check_file(Path(sys.argv[1]))
+report = check(Path(sys.argv[1]))
 t2 = time.perf_counter()
 batch = gather([report], [], "fail")  # as airgate check writes its reports
 output.write_all_atomic([(sys.argv[2], formats.stream("text", batch)),

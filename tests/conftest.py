@@ -7,7 +7,7 @@ from pathlib import Path
 import pytest
 import yaml
 
-from airgate.evaluation.engine import check_file
+from airgate import check
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "fixtures" / "demo" / "fernhollow-civic-centre.yaml"
@@ -31,6 +31,6 @@ def evaluate(tmp_path: Path):
         counter["n"] += 1
         path = tmp_path / f"schedule-{counter['n']}.yaml"
         path.write_text(yaml.safe_dump(data, sort_keys=False), encoding="utf-8")
-        return check_file(path, rules)
+        return check(path, rules)
 
     return run

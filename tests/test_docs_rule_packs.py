@@ -12,7 +12,7 @@ import pytest
 import yaml
 
 from airgate.cli import main
-from airgate.evaluation import packtests
+from airgate.api import packtests
 from airgate.readers import layering
 from airgate.readers.rulepack import builtin_rules_dir
 

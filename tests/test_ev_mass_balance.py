@@ -14,7 +14,7 @@ import yaml
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
-from airgate.evaluation.engine import evaluate
+from airgate import evaluate
 from airgate.readers.rulepack import load_pack
 from airgate.readers.schedule import read_schedule
 

@@ -11,7 +11,7 @@ import inspect
 import pint
 import pytest
 
-from airgate.readers import formula as fx
+from airgate.models import formula as fx
 
 
 def _value(text: str, **env) -> float:

@@ -48,9 +48,9 @@ def test_demo_report_is_deterministic(capsys, monkeypatch):
 
 def test_demo_fails_exactly_at_the_deliberate_zone(capsys, monkeypatch):
     # The demo's one deliberately failing zone is 203 on AHU-3 (fixtures/demo, invented data).
-    from airgate.evaluation.engine import check_file
+    from airgate import check
 
-    report = check_file(DEMO)
+    report = check(DEMO)
     failing_zones = [(s.id, z.id) for s in report.systems for z in s.zones if z.verdict == "fail"]
     assert failing_zones == [("AHU-3", "203")]
     assert [s.verdict for s in report.systems] == ["pass", "pass", "fail"]

@@ -12,7 +12,7 @@ from __future__ import annotations
 import pytest
 
 from airgate.cli import main
-from airgate.evaluation.engine import check_file
+from airgate import check
 from airgate.readers.sources import read_any
 
 from importing import (DEMO_CSV, DEMO_GBXML, DEMO_YAML, comparable, demo_ifc, demo_xlsx,
@@ -21,7 +21,7 @@ from importing import (DEMO_CSV, DEMO_GBXML, DEMO_YAML, comparable, demo_ifc, de
 
 @pytest.fixture(scope="module")
 def yaml_report():
-    return check_file(DEMO_YAML)
+    return check(DEMO_YAML)
 
 
 @pytest.fixture(scope="module")
@@ -54,7 +54,7 @@ def test_committed_text_fixtures_are_what_the_generator_writes():
 
 @pytest.mark.parametrize("fmt", FORMATS)
 def test_demo_in_each_format_gives_the_yaml_findings(sources, yaml_report, fmt):
-    report = check_file(_source(sources, fmt))
+    report = check(_source(sources, fmt))
     assert findings(report) == findings(yaml_report)
     assert len(report.findings) == len(yaml_report.findings) == 7  # 2 fail, 5 info
     assert comparable(report, ignore_volume_origin=fmt == "gbxml") == comparable(
@@ -68,7 +68,7 @@ def test_import_then_check_gives_the_findings_of_the_source(sources, tmp_path, c
     assert main(["import", str(source), "-o", str(target)]) == 0
     err = capsys.readouterr().err
     assert "14 rooms read, 14 mapped to 3 systems, 0 rejected" in err
-    direct, via_yaml = check_file(source), check_file(target)
+    direct, via_yaml = check(source), check(target)
     assert findings(via_yaml) == findings(direct)
     assert comparable(via_yaml) == comparable(direct)
 
@@ -93,7 +93,7 @@ def test_written_yaml_is_stable_and_says_where_values_came_from(sources, tmp_pat
 
 def test_workbook_findings_point_at_sheet_row_and_column(sources):
     path = _source(sources, "xlsx")
-    report = check_file(path)
+    report = check(path)
     where = {f.subject: f.location for f in report.findings if f.rule == "zone-limits-ev"}
     loc = where["AHU-3/203"]
     # zone 203 is the 8th zone row (row 9); its primary airflow is column I of the Zones sheet
@@ -106,7 +106,7 @@ def test_csv_xml_and_ifc_findings_point_into_the_source(sources):
     for fmt in ("csv", "gbxml", "ifc"):
         if fmt == "ifc" and "ifc" not in sources:
             continue
-        report = check_file(sources[fmt])
+        report = check(sources[fmt])
         intake[fmt] = next(f.location for f in report.findings if f.rule == "system-intake")
     assert intake["csv"].file.endswith("fernhollow-civic-centre.systems.csv")
     assert (intake["csv"].line, intake["csv"].column) == (4, 4)  # AHU-3 row, Outdoor air
@@ -120,7 +120,7 @@ def test_csv_xml_and_ifc_findings_point_into_the_source(sources):
 
 @pytest.mark.parametrize("fmt", FORMATS)
 def test_report_counts_rooms_read_mapped_and_rejected(sources, fmt):
-    report = check_file(_source(sources, fmt))
+    report = check(_source(sources, fmt))
     assert any("14 rooms read, 14 mapped to 3 systems, 0 rejected" in n for n in report.notes)
 
 

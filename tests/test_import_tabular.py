@@ -11,7 +11,7 @@ import pytest
 
 from airgate import units
 from airgate.cli import main
-from airgate.evaluation.engine import check_file
+from airgate import check
 from airgate.readers import fields as F
 from airgate.readers.sources import read_any
 from airgate.writers import schedule_yaml, workbook
@@ -197,12 +197,12 @@ def test_xlsx_formula_in_a_text_field_is_its_text(tmp_path):
 def test_check_on_a_csv_set_reports_the_import(tmp_path, capsys):
     path = _write(tmp_path, ZONE_HEAD.format(area="Area [ft2]")
                   + "RTU-7,101,Reading,libraries,1000,10,ceiling-supply-cool\n")
-    report = check_file(path)
+    report = check(path)
     assert report.schedule_file == str(path)
     assert "imported from annex.zones.csv: 1 room read, 1 mapped to 1 system, 0 rejected" \
         in report.notes
     # any table of the set may be named
-    assert check_file(tmp_path / "annex.systems.csv").verdict == report.verdict
+    assert check(tmp_path / "annex.systems.csv").verdict == report.verdict
 
 
 def test_docs_csv_example_checks(tmp_path, capsys):

@@ -21,7 +21,7 @@ import yaml
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from airgate.evaluation.engine import evaluate
+from airgate import evaluate
 from airgate.readers.rulepack import load_pack
 from airgate.readers.schedule import read_schedule
 from airgate.writers import explain, json_report, text

@@ -12,7 +12,7 @@ from pathlib import Path
 import pytest
 
 from airgate.cli import main
-from airgate.evaluation import packtests
+from airgate.api import packtests
 from airgate.readers.rulepack import builtin_pack_ids, builtin_rules_dir, load_document
 
 from conftest import ROOT

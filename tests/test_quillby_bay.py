@@ -12,8 +12,8 @@ from __future__ import annotations
 
 import pytest
 
-from airgate.evaluation import packtests
-from airgate.evaluation.engine import check_file
+from airgate.api import packtests
+from airgate import check
 from airgate.readers import layering
 from airgate.readers.rulepack import builtin_rules_dir
 from airgate.readers.schedule import read_schedule
@@ -32,7 +32,7 @@ def test_the_pack_test_expectations_hold_for_the_demo_file():
 
 
 def test_verdicts_change_exactly_at_the_amended_rate():
-    base, city = check_file(DEMO), check_file(DEMO, QUILLBY)
+    base, city = check(DEMO), check(DEMO, QUILLBY)
     assert [s.verdict for s in base.systems] == ["pass", "pass", "fail"]
     assert [s.verdict for s in city.systems] == ["pass", "fail", "fail"]
     failing = sorted(f"{f.subject} {f.rule}" for f in city.findings if f.severity == "fail")
@@ -47,7 +47,7 @@ def test_verdicts_change_exactly_at_the_amended_rate():
 
 
 def test_the_report_names_the_city_and_keeps_every_caution():
-    report = check_file(DEMO, QUILLBY)
+    report = check(DEMO, QUILLBY)
     assert report.pack.jurisdiction == "City of Quillby Bay (fictional)"
     assert report.cautions[0].startswith("Ventilation affects health")
     assert "licensed professional of record govern" in report.cautions[0]

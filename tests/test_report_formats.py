@@ -158,10 +158,10 @@ def test_sarif_fingerprints_are_stable_when_lines_move(capsys, monkeypatch, tmp_
 
 
 def test_junit_parses_back_with_one_case_per_check(capsys, monkeypatch):
-    from airgate.evaluation.engine import check_file
+    from airgate import check
 
     monkeypatch.chdir(ROOT)
-    report = check_file(DEMO_ARG)
+    report = check(DEMO_ARG)
     _, out, _ = run(capsys, monkeypatch, "check", DEMO_ARG, "--format", "junit")
     root = ET.fromstring(out.encode("utf-8"))  # the Python standard library's XML parser
     assert root.tag == "testsuites"
@@ -212,10 +212,10 @@ def test_html_is_self_contained(capsys, monkeypatch):
 
 
 def test_html_shows_provenance_and_every_trail(capsys, monkeypatch):
-    from airgate.evaluation.engine import check_file
+    from airgate import check
 
     monkeypatch.chdir(ROOT)
-    report = check_file(DEMO_ARG)
+    report = check(DEMO_ARG)
     _, out, _ = run(capsys, monkeypatch, "check", DEMO_ARG, "--format", "html")
     zones = [z for s in report.systems for z in s.zones]
     assert out.count("Calculation trail — zone") == len(zones)

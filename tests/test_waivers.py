@@ -15,7 +15,7 @@ import pytest
 import yaml
 
 from airgate.cli import main
-from airgate.evaluation.engine import check_file
+from airgate import check
 from airgate.evaluation.waivers import from_file
 from airgate.readers.waivers import read_waivers
 
@@ -44,7 +44,7 @@ def both_demo_failures(**kw) -> list[dict]:
 
 def test_waived_findings_stay_marked_and_pass_the_gate(tmp_path, capsys):
     path = demo_with(tmp_path, both_demo_failures())
-    report = check_file(path)
+    report = check(path)
     assert report.verdict == "pass" and report.counts()["fail"] == 0
     assert report.waived_count() == 2
     waived = [f for f in report.findings if f.waived]
@@ -80,12 +80,12 @@ def test_json_marks_the_waiver(tmp_path, capsys):
 
 def test_expired_waiver_no_longer_applies(tmp_path, capsys):
     path = demo_with(tmp_path, both_demo_failures(expires="2026-06-30"))
-    report = check_file(path, as_of=dt.date(2026, 7, 1))
+    report = check(path, as_of=dt.date(2026, 7, 1))
     assert report.verdict == "fail" and report.waived_count() == 0
     assert [s.state for s in report.waivers] == ["expired", "expired"]
     assert "expired on 2026-06-30" in report.waivers[0].detail
     # the last day still applies (an expiry date is the last day the waiver applies)
-    assert check_file(path, as_of=dt.date(2026, 6, 30)).verdict == "pass"
+    assert check(path, as_of=dt.date(2026, 6, 30)).verdict == "pass"
     assert main(["check", path, "--as-of", "2026-07-01"]) == 1
 
 
@@ -93,7 +93,7 @@ def test_waiver_that_matches_nothing_is_reported(tmp_path):
     path = demo_with(tmp_path, [waiver("air-class-mixing", "AHU-3"),
                                 waiver("system-intake", "AHU-9"),
                                 waiver("system-intake", "RTU-1")])
-    report = check_file(path)
+    report = check(path)
     states = [(s.state, s.detail) for s in report.waivers]
     assert [s for s, _ in states] == ["unmatched"] * 3
     assert "check passes or does not apply" in states[0][1]
@@ -108,7 +108,7 @@ def test_waiver_for_a_check_the_pack_does_not_run(tmp_path):
     data["waivers"] = [waiver("zone-limits-ev", "RTU-1/101")]
     path = tmp_path / "sample.yaml"
     path.write_text(yaml.safe_dump(data, sort_keys=False), encoding="utf-8")
-    report = check_file(path)
+    report = check(path)
     assert report.waivers[0].state == "unmatched"
     assert "does not run check 'zone-limits-ev'" in report.waivers[0].detail
 
@@ -140,7 +140,7 @@ def test_bad_waiver_entries_in_a_schedule(tmp_path, capsys, entry, text):
 def test_waivers_file_is_applied_and_reported(capsys, monkeypatch):
     monkeypatch.chdir(ROOT)
     entries = from_file(read_waivers(APPROVALS.relative_to(ROOT)))
-    report = check_file(DEMO.relative_to(ROOT), extra_waivers=entries,
+    report = check(DEMO.relative_to(ROOT), waivers=entries,
                         as_of=dt.date(2026, 12, 1))
     assert [s.state for s in report.waivers] == ["applied", "expired", "unmatched"]
     assert all(s.entry.origin == "waivers file" for s in report.waivers)
@@ -174,7 +174,7 @@ def test_fail_on_warning_fails_on_warnings_and_stale_waivers(tmp_path, capsys):
     del zone["air_distribution"]  # an assumed Ez: a warning in the built-in pack
     path = tmp_path / "warn.yaml"
     path.write_text(yaml.safe_dump(data, sort_keys=False), encoding="utf-8")
-    assert check_file(path).counts()["warning"] == 1
+    assert check(path).counts()["warning"] == 1
     assert main(["check", str(path)]) == 0
     assert main(["check", str(path), "--fail-on", "warning"]) == 1
     assert main(["check", str(path), "--fail-on", "warning", "--exit-zero"]) == 0

@@ -17,6 +17,9 @@ EXIT_FAIL = 1
 #: Input, rule-pack or usage error: nothing was evaluated, nothing written.
 EXIT_INPUT = 2
 
+#: A field path into a document, e.g. ``("systems", 0, "zones", 2, "area")``.
+Path_ = tuple[str | int, ...]
+
 
 def format_path(path: Sequence[str | int]) -> str:
     """Render a field path like ``systems[1].zones[3].area``."""

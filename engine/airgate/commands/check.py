@@ -132,7 +132,7 @@ class _Progress:
 
 
 def _evaluate(files: list[str], args, entries, as_of):
-    from airgate.evaluation.engine import check_file
+    from airgate.api.core import check
 
     reports, errors = [], []
     progress = _Progress(len(files))
@@ -140,7 +140,7 @@ def _evaluate(files: list[str], args, entries, as_of):
         for i, f in enumerate(files):
             progress.step(i, f)
             try:
-                reports.append(check_file(f, args.rules, entries, as_of, search=args.rules_path))
+                reports.append(check(f, args.rules, waivers=entries, as_of=as_of, search=args.rules_path))
             except ErrorGroup as exc:
                 errors += exc.errors
             except AirgateError as exc:

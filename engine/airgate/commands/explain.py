@@ -15,10 +15,10 @@ def register(sub) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from airgate.evaluation.engine import check_file
+    from airgate.api.core import check
     from airgate.writers import explain
 
-    report = check_file(args.file, args.rules, search=args.rules_path)
+    report = check(args.file, args.rules, search=args.rules_path)
     system, zones = pick(report, args.zone, args.system)
     if args.zone is not None:
         sys.stdout.write(explain.zone(report, system, zones[0]))

@@ -15,10 +15,10 @@ def register(sub) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from airgate.evaluation.engine import check_file
+    from airgate.api.core import check
     from airgate.writers import plot
 
-    report = check_file(args.file, args.rules, search=args.rules_path)
+    report = check(args.file, args.rules, search=args.rules_path)
     system, zones = pick(report, args.zone, args.system)
     plot.plot(report, system, zones, args.output)
     return EXIT_PASS

@@ -147,7 +147,7 @@ def _validate(args) -> int:
 
 
 def _test(args) -> int:
-    from airgate.evaluation import packtests
+    from airgate.api import packtests
     from airgate.writers.pack_reports import tests_text
 
     results = packtests.run(args.path, args.rules_path)
@@ -156,7 +156,7 @@ def _test(args) -> int:
 
 
 def _diff(args) -> int:
-    from airgate.evaluation.packdiff import diff
+    from airgate.api.packdiff import diff
     from airgate.readers.rulepack import load_document
     from airgate.writers.pack_reports import diff_json, diff_text
     from airgate.writers.output import json_text

@@ -9,12 +9,11 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from airgate import formatting
-from airgate.errors import AirgateError, nearest
+from airgate.errors import AirgateError, Path_, nearest
+from airgate.models.datatables import Tables
+from airgate.models.loaded import LoadedSchedule
 from airgate.models.rules import AirDistributionRow, OccupancyCategory, RulePack
 from airgate.models.schedule import StatedDistribution, Zone
-from airgate.readers.schedule import LoadedSchedule
-
-Path_ = tuple[str | int, ...]
 
 
 @dataclass(frozen=True)
@@ -155,10 +154,8 @@ def collect(errors: list[AirgateError], fn, *args):
         return None
 
 
-def dilution_refs(loaded: LoadedSchedule, zone: Zone, path: Path_) -> None:
-    """The zone's occupancy profile and CO2 activity must exist."""
-    from airgate.readers.datatables import data_table
-
+def dilution_refs(loaded: LoadedSchedule, zone: Zone, path: Path_, tables: Tables) -> None:
+    """The zone's occupancy profile and CO2 activity (a row of ``tables``) must exist."""
     profiles = loaded.model.profiles
     if zone.profile is not None and zone.profile not in profiles:
         close = nearest(zone.profile, profiles)
@@ -166,7 +163,7 @@ def dilution_refs(loaded: LoadedSchedule, zone: Zone, path: Path_) -> None:
             f"unknown occupancy profile '{zone.profile}'"
             + (f"; did you mean '{close[0]}'?" if close else ""), path + ("profile",),
             allowed=sorted(profiles), hint="define it under 'profiles:' or remove the reference")
-    table = data_table("occupant-co2-generation")
+    table = tables["occupant-co2-generation"]
     if zone.activity is not None and zone.activity not in table.rows:
         close = nearest(zone.activity, table.rows)
         raise loaded.error(

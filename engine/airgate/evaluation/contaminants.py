@@ -26,11 +26,12 @@ from airgate.evaluation.dilution import (
 from airgate.evaluation.report import SystemResult, ZoneResult
 from airgate.evaluation.trail import Trail
 from airgate.evaluation.zones import ZoneContext
+from airgate.models.datatables import DataTable, Tables
 from airgate.models.equipment import Contaminant
 from airgate.models.schedule import Schedule, System
 from airgate.procedures import coupled, dilution
-from airgate.readers.datatables import data_table
 
+MERV_TABLE = "merv-efficiency"
 MECHANISMS = (("outdoor_air", "Qc_oa", "outdoor air"),
               ("recirculation_filter", "Qc_filter", "filtration of recirculated air"),
               ("air_cleaner", "Qc_cleaner", "in-room air cleaners"),
@@ -38,13 +39,15 @@ MECHANISMS = (("outdoor_air", "Qc_oa", "outdoor air"),
               ("inactivation", "Qc_inact", "inactivation"))
 
 
-def filter_efficiency(system: System, c: Contaminant) -> tuple[float, str]:
-    """Single-pass efficiency of the system filter for ``c`` and where it comes from."""
+def filter_efficiency(system: System, c: Contaminant, table: DataTable) -> tuple[float, str]:
+    """Single-pass efficiency of the system filter for ``c`` and where it comes from.
+
+    ``table``: efficiency by MERV and particle size range (``merv-efficiency``).
+    """
     if c.kind == "gas" or system.filter is None:
         return 0.0, "no filter" if system.filter is None else "a particle filter removes no gas"
     if system.filter.efficiency is not None:
         return system.filter.efficiency, "stated filter efficiency"
-    table = data_table("merv-efficiency")
     rated = sorted((int(k) for k in table.rows if int(k) <= system.filter.merv), reverse=True)
     if not rated:
         return 0.0, f"MERV {system.filter.merv}: below the table, no efficiency credited"
@@ -70,13 +73,13 @@ def _generation(ctx: ZoneContext, z: ZoneResult, c: Contaminant) -> tuple[float,
     return c.per_person * z.trail.value("Pz"), c.per_area * ctx.zone.area + c.per_zone
 
 
-def _start(ctx, z, c: Contaminant, system: System) -> Trail:
+def _start(ctx, z, c: Contaminant, filt: tuple[float, str]) -> Trail:
     t = Trail()
     t.add("V", volume_of(ctx), "volume")
     people, rest = _generation(ctx, z, c)
     t.add("E", people + rest, "emission", note=f"{c.unit}/h at design occupancy "
           f"(per person {c.per_person:g}, per m² {c.per_area:g}, per zone {c.per_zone:g})")
-    eff, why = filter_efficiency(system, c)
+    eff, why = filt
     t.add("eta", eff, "fraction", note=why)
     t.add("CADR", _cadr(ctx, c), "airflow", note="sum of the zone's air cleaners")
     t.add("k_dep", 0.0 if c.kind == "gas" else c.deposition, "rate", note="deposition")
@@ -85,11 +88,12 @@ def _start(ctx, z, c: Contaminant, system: System) -> Trail:
     return t
 
 
-def _single(ctx, z, c, system: System, schedule: Schedule, emitter: Emitter) -> Trail | None:
+def _single(ctx, z, c, system: System, schedule: Schedule, emitter: Emitter,
+            filt: tuple[float, str]) -> Trail | None:
     co2 = z.dilution
     if co2 is None or "C_ss" not in co2:
         return None
-    t = _start(ctx, z, c, system)
+    t = _start(ctx, z, c, filt)
     q_oa = co2.value("Q_oa")
     q_rec = 0.0
     if system.kind == "single-zone" and system.supply_airflow is not None:
@@ -133,11 +137,12 @@ def _totals(t: Trail, z: ZoneResult) -> None:
     t.add("ACHe", LS * total / t.value("V"), "rate", note="equivalent air changes per hour")
 
 
-def _coupled(system: System, ctxs, result: SystemResult, c: Contaminant, schedule: Schedule):
+def _coupled(system: System, ctxs, result: SystemResult, c: Contaminant, schedule: Schedule,
+             filt: tuple[float, str]):
     """Steady state (and design day) of one contaminant over a multiple-zone system."""
     if any(z.dilution is None for z in result.zones):
         return None
-    trails = [_start(ctx, z, c, system) for ctx, z in zip(ctxs, result.zones)]
+    trails = [_start(ctx, z, c, filt) for ctx, z in zip(ctxs, result.zones)]
     eta = trails[0].value("eta")
     vpz = np.array([LS * z.trail.value("Vpz") for z in result.zones])
     vol = np.array([t.value("V") for t in trails])
@@ -196,16 +201,20 @@ def _limit(t: Trail, ctx: ZoneContext, c: Contaminant, emitter: Emitter) -> None
 
 
 def analyse(system: System, ctxs: list[ZoneContext], result: SystemResult, schedule: Schedule,
-            emitter: Emitter) -> None:
-    """Attach one trail per declared contaminant to every zone the CO2 analysis covered."""
+            emitter: Emitter, tables: Tables) -> None:
+    """Attach one trail per declared contaminant to every zone the CO2 analysis covered.
+
+    ``tables``: the data tables (filter efficiency by MERV from ``merv-efficiency``).
+    """
     if math.isinf(result.trail.value("Vot")):
         return
     for c in schedule.contaminants:
+        filt = filter_efficiency(system, c, tables[MERV_TABLE])
         if system.kind == "multiple-zone":
-            trails = _coupled(system, ctxs, result, c, schedule)
+            trails = _coupled(system, ctxs, result, c, schedule, filt)
             pairs = zip(ctxs, result.zones, trails or [])
         else:
-            pairs = ((ctx, z, _single(ctx, z, c, system, schedule, emitter))
+            pairs = ((ctx, z, _single(ctx, z, c, system, schedule, emitter, filt))
                      for ctx, z in zip(ctxs, result.zones))
         for ctx, z, t in pairs:
             if t is None:

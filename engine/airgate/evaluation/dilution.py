@@ -21,9 +21,9 @@ from airgate.evaluation.checks import Emitter
 from airgate.evaluation.report import SystemResult, ZoneResult
 from airgate.evaluation.trail import Trail
 from airgate.evaluation.zones import ZoneContext
+from airgate.models.datatables import DataTable, Tables
 from airgate.models.schedule import Schedule, System
 from airgate.procedures import coupled, dilution
-from airgate.readers.datatables import data_table
 
 LS = 3.6  #: m³/h per L/s (exact)
 PPM = 1e6  #: ppm per unit volume fraction
@@ -52,7 +52,8 @@ def volume_of(ctx: ZoneContext) -> float | None:
     return None
 
 
-def _start(ctx: ZoneContext, z: ZoneResult, schedule: Schedule, volume: float) -> Trail:
+def _start(ctx: ZoneContext, z: ZoneResult, schedule: Schedule, volume: float,
+           table: DataTable) -> Trail:
     """Volume, outdoor level, generation per person and total generation."""
     t = Trail()
     t.add("V", volume, "volume", origin="schedule" if ctx.zone.volume else "computed",
@@ -60,7 +61,6 @@ def _start(ctx: ZoneContext, z: ZoneResult, schedule: Schedule, volume: float) -
     project = schedule.project
     t.add("C_out", project.outdoor_co2, "concentration_ppm", origin="schedule",
           note="outdoor CO2 (project.outdoor_co2; 420 ppm when not stated)")
-    table = data_table(CO2_TABLE)
     if ctx.zone.co2_generation is not None:
         t.add("N", ctx.zone.co2_generation, "gas_generation", origin="schedule",
               note="CO2 generation per occupant stated in the schedule")
@@ -224,12 +224,12 @@ def _outdoor_air_to_zone(system: System, ctx: ZoneContext, z: ZoneResult,
     return system.outdoor_air * share, "share of the intake in proportion to Voz (not scheduled)"
 
 
-def _single_path(system, ctxs, result, schedule, emitter, out) -> None:
+def _single_path(system, ctxs, result, schedule, emitter, out, table) -> None:
     for ctx, z in zip(ctxs, result.zones):
         volume = volume_of(ctx)
         if volume is None:
             continue
-        t = _start(ctx, z, schedule, volume)
+        t = _start(ctx, z, schedule, volume, table)
         q, note = _outdoor_air_to_zone(system, ctx, z, result)
         if q <= 0:
             t.add("Q_oa", 0.0, "airflow", note="no outdoor air reaches the zone: CO2 rises "
@@ -333,11 +333,11 @@ def _coupled_series(schedule: Schedule, system: System, ctxs, result, trails) ->
         add_day_statistics(t, conc[:, j], times, "concentration_ppm", f", profile '{name}'")
 
 
-def _multiple_zone(system, ctxs, result, schedule, emitter, out) -> None:
+def _multiple_zone(system, ctxs, result, schedule, emitter, out, table) -> None:
     volumes = [volume_of(c) for c in ctxs]
     if any(v is None for v in volumes) or any("Vpz" not in z.trail for z in result.zones):
         return  # the coupled balance needs every zone's volume and primary airflow
-    trails = [_start(c, z, schedule, v) for c, z, v in zip(ctxs, result.zones, volumes)]
+    trails = [_start(c, z, schedule, v, table) for c, z, v in zip(ctxs, result.zones, volumes)]
     if not _coupled_steady(system, ctxs, result, trails):
         return
     _coupled_series(schedule, system, ctxs, result, trails)
@@ -353,15 +353,19 @@ def _multiple_zone(system, ctxs, result, schedule, emitter, out) -> None:
 
 
 def analyse(system: System, ctxs: list[ZoneContext], result: SystemResult, schedule: Schedule,
-            emitter: Emitter) -> list[ZoneResult]:
-    """Attach a CO2 dilution trail (and design-day series) to every zone that can have one."""
+            emitter: Emitter, tables: Tables) -> list[ZoneResult]:
+    """Attach a CO2 dilution trail (and design-day series) to every zone that can have one.
+
+    ``tables``: the data tables; the CO2 generation per occupant comes from
+    ``occupant-co2-generation`` where the zone states none.
+    """
     out: list[ZoneResult] = []
     if math.isinf(result.trail.value("Vot")):
         return out
     if system.kind == "multiple-zone":
-        _multiple_zone(system, ctxs, result, schedule, emitter, out)
+        _multiple_zone(system, ctxs, result, schedule, emitter, out, tables[CO2_TABLE])
     else:
-        _single_path(system, ctxs, result, schedule, emitter, out)
+        _single_path(system, ctxs, result, schedule, emitter, out, tables[CO2_TABLE])
     return out
 
 

@@ -1,12 +1,15 @@
-"""Evaluate a loaded schedule against a rule pack: the orchestrating chain."""
+"""Evaluate a loaded schedule against a rule pack: the orchestrating chain.
+
+Nothing here reads a file: the schedule, the pack and the data tables arrive loaded
+(:mod:`airgate.api` reads them and calls :func:`evaluate`).
+"""
 
 from __future__ import annotations
 
 import datetime as dt
 from collections.abc import Sequence
-from pathlib import Path
 
-from airgate.errors import AirgateError, RulePackError, raise_all
+from airgate.errors import AirgateError, raise_all
 from airgate.evaluation import bind, contaminants, coverage, dilution, systems, waivers
 from airgate.evaluation.checks import KNOWN_CHECKS, Emitter
 from airgate.evaluation.findings import Location
@@ -15,18 +18,16 @@ from airgate.evaluation.report import SAFETY_CAUTION, Report, SystemResult
 from airgate.evaluation.trail import Trail
 from airgate.evaluation.unused import unused_fields
 from airgate.evaluation.zones import ZoneContext, evaluate_zone
+from airgate.models.datatables import Tables
+from airgate.models.loaded import LoadedSchedule
 from airgate.models.rules import RulePack
-from airgate.readers.options import OptionError, as_schedule_error
-from airgate.readers.rulepack import load_pack, resolve
-from airgate.readers.schedule import LoadedSchedule
-from airgate.readers.sources import import_notes, read_any
 
 
 def _location(loaded: LoadedSchedule, path: tuple) -> Location:
     return Location(*loaded.locate(path))
 
 
-def _bind_all(loaded: LoadedSchedule, pack: RulePack,
+def _bind_all(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
               run: RequirementRun | None = None) -> list[list[ZoneContext]]:
     errors: list[AirgateError] = []
     out = []
@@ -36,7 +37,7 @@ def _bind_all(loaded: LoadedSchedule, pack: RulePack,
             path = ("systems", i, "zones", j)
             cat = bind.collect(errors, bind.category, loaded, pack, zone, path)
             ez = bind.collect(errors, bind.air_distribution, loaded, pack, zone, path)
-            bind.collect(errors, bind.dilution_refs, loaded, zone, path)
+            bind.collect(errors, bind.dilution_refs, loaded, zone, path, tables)
             if cat is not None and ez is not None and run is not None:  # the pack's requirements
                 cat, ez = bind.collect(errors, run.adjust, i, j, cat, ez) or (None, None)
             if cat is not None and ez is not None:
@@ -78,10 +79,12 @@ def _method_errors(loaded: LoadedSchedule, pack: RulePack, i: int) -> list[Airga
     ]
 
 
-def evaluate(loaded: LoadedSchedule, pack: RulePack,
+def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
              extra_waivers: Sequence[waivers.WaiverEntry] = (),
              as_of: dt.date | None = None) -> Report:
     """Evaluate every system and zone of ``loaded`` under ``pack``.
+
+    ``tables``: the physical data tables by id (:data:`airgate.readers.datatables.BUILTIN`).
 
     The schedule's own waivers, then ``extra_waivers`` (a waivers file), are applied with expiry
     judged on ``as_of`` (default today).
@@ -92,7 +95,7 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack,
     raise_all(waivers.rule_errors(entries, [*KNOWN_CHECKS, *pack.requirements]))
     units = loaded.model.project.units
     run = RequirementRun(pack, loaded)
-    bound = _bind_all(loaded, pack, run)
+    bound = _bind_all(loaded, pack, tables, run)
     emitter = Emitter(pack, units)
     results = []
     for i, (system, ctxs) in enumerate(zip(loaded.model.systems, bound)):
@@ -110,8 +113,8 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack,
             systems.multiple_zone(system, ctxs, zones, result, pack, emitter, intake_at, locate,
                                   _method(pack, system))
         systems.air_classes(system, ctxs, emitter, where)
-        dilution.analyse(system, ctxs, result, loaded.model, emitter)
-        contaminants.analyse(system, ctxs, result, loaded.model, emitter)
+        dilution.analyse(system, ctxs, result, loaded.model, emitter, tables)
+        contaminants.analyse(system, ctxs, result, loaded.model, emitter, tables)
         run.evaluate(i, system, ctxs, result, emitter)
         results.append(result)
     findings = sorted(emitter.findings, key=lambda f: f.sort_key())
@@ -142,46 +145,3 @@ def _verdicts(results: list[SystemResult], findings) -> None:
             own = f"{s.id}/{z.id}" in failing
             shared = s.kind == "single-zone" and s.id in failing
             z.verdict = "fail" if own or shared else "pass"
-
-
-def _pack(loaded: LoadedSchedule, ref: str, from_option: bool,
-          search: Sequence[str | Path] = ()) -> RulePack:
-    """Load the rule pack ``ref``; a pack that cannot be found is reported where it was named.
-
-    A path in the schedule is relative to the schedule's folder, one given with ``--rules`` to
-    the working directory.
-    """
-    base = Path.cwd() if from_option else Path(loaded.file).parent
-    try:
-        path = resolve(ref, base, search)
-        if not path.is_file():
-            what = "is a folder, not a rule pack file" if path.is_dir() else "not found"
-            raise RulePackError(f"rule pack file {path} {what}",
-                                hint="give a built-in pack id (airgate rules list) or the path "
-                                "of a pack file")
-    except RulePackError as exc:
-        if from_option:
-            exc.field = ("--rules",)
-            raise
-        raise loaded.error(exc.message, ("rules",), allowed=exc.allowed, hint=exc.hint) from None
-    try:
-        return load_pack(str(path), options=loaded.model.project.options, search=search)
-    except OptionError as exc:
-        raise as_schedule_error(exc, loaded) from None
-
-
-def check_file(path: str | Path, rules: str | None = None,
-               extra_waivers: Sequence[waivers.WaiverEntry] = (),
-               as_of: dt.date | None = None, search: Sequence[str | Path] = ()) -> Report:
-    """Read ``path``, load its rule pack (or ``rules``), and evaluate. Raises AirgateError.
-
-    ``search``: folders of rule packs searched after the built-in ones (``--rules-path``).
-    """
-    loaded = read_any(path)  # YAML/JSON, or imported from CSV/XLSX, gbXML, IFC by suffix
-    ref = rules or loaded.model.rules
-    if ref is None:
-        raise loaded.error("no rule pack: give 'rules:' in the schedule or --rules", ("rules",),
-                           hint="e.g. rules: ashrae-62.1-2019")
-    report = evaluate(loaded, _pack(loaded, ref, from_option=bool(rules), search=search), extra_waivers, as_of)
-    report.notes.extend(import_notes(loaded))  # rooms read/mapped/rejected; what was not mapped
-    return report

@@ -32,11 +32,10 @@ from airgate.evaluation.checks import Emitter
 from airgate.evaluation.findings import Amount, Finding, Location
 from airgate.evaluation.report import SystemResult, ZoneResult
 from airgate.evaluation.zones import ZoneContext
-from airgate.models.requirements import Requirement, Subject
+from airgate.models.requirements import SYSTEM_SYMBOLS, ZONE_SYMBOLS, Requirement, Subject
 from airgate.models.rules import OccupancyCategory, RulePack
 from airgate.procedures import dwelling
-from airgate.readers import formula as fx
-from airgate.readers.requirements import SYSTEM_SYMBOLS, ZONE_SYMBOLS
+from airgate.models import formula as fx
 
 NOT_EVALUATED = "not evaluated: "
 #: checks whose failure on a zone (or its system's intake) means a raised figure is not provided

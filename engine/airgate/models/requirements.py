@@ -2,7 +2,7 @@
 
 A requirement is data: an id, a kind from a small fixed vocabulary, a severity, a message, a
 citation and a selector of the subjects it applies to. No code travels in a pack; where a kind
-needs arithmetic, it is the tiny grammar of :mod:`airgate.readers.formula`. Numbers are held in
+needs arithmetic, it is the tiny grammar of :mod:`airgate.models.formula`. Numbers are held in
 internal units (:mod:`airgate.units`); ``printed`` keeps them as the pack wrote them.
 """
 
@@ -12,6 +12,20 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from airgate.models.rules import Source
+
+#: names a formula may use, with their kind, for each subject (trail symbols, ASCII)
+SYSTEM_SYMBOLS: dict[str, str] = {
+    "Vot": "airflow", "Vot_design": "airflow", "Vou": "airflow", "Ev": "fraction",
+    "Xs": "fraction", "D": "fraction", "Ps": "people", "Vps": "airflow", "sum_Pz": "people",
+    "sum_Voz": "airflow",
+}
+ZONE_SYMBOLS: dict[str, str] = {
+    "Az": "area", "Pz": "people", "Rp": "airflow_per_person", "Ra": "airflow_per_area",
+    "density": "density", "Vbz": "airflow", "Ez": "fraction", "Voz": "airflow", "Vpz": "airflow",
+    "Zpz": "fraction", "Evz": "fraction", "Voz_design": "airflow", "Ep": "fraction",
+    "Er": "fraction", "Nbr": "count", "V": "volume", "Q_oa": "airflow",
+    "C_ss": "concentration_ppm", "C_out": "concentration_ppm", **SYSTEM_SYMBOLS,
+}
 
 #: kind → the subject it is evaluated on
 KINDS: dict[str, str] = {
@@ -90,7 +104,7 @@ class Selector:
 class Formula:
     """A ``formula`` requirement: ``provided`` compared with ``required``."""
 
-    required: Any  #: parsed tree (airgate.readers.formula)
+    required: Any  #: parsed tree (airgate.models.formula)
     provided: Any
     required_text: str
     provided_text: str

@@ -10,7 +10,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Any
 
-from airgate.readers.document import Path_
+from airgate.errors import Path_
 
 if TYPE_CHECKING:
     from airgate.models.requirements import Requirement

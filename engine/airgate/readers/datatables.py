@@ -1,40 +1,21 @@
-"""Physical data tables under ``rules/data/`` (e.g. occupant CO2 generation), schema-validated."""
+"""Physical data tables under ``rules/data/`` (e.g. occupant CO2 generation), schema-validated.
+
+:data:`BUILTIN` is the :data:`~airgate.models.datatables.Tables` mapping the evaluation is given:
+each table is read on first use and kept.
+"""
 
 from __future__ import annotations
 
 import json
-from dataclasses import dataclass
+from collections.abc import Iterator, Mapping
 from functools import lru_cache
 
 import jsonschema
 
 from airgate.errors import RulePackError
+from airgate.models.datatables import DataRow, DataTable
 from airgate.readers.document import load
 from airgate.readers.rulepack import builtin_rules_dir
-
-
-@dataclass(frozen=True)
-class DataRow:
-    id: str
-    label: str
-    value: float | None  #: in the table's units (single-valued tables)
-    provenance: str
-    notes: str = ""
-    values: dict[str, float] | None = None  #: several values per row (e.g. by size range)
-
-
-@dataclass(frozen=True)
-class DataTable:
-    id: str
-    title: str
-    units: str
-    citation: str
-    default: str
-    rows: dict[str, DataRow]
-
-    def cite(self, row_id: str) -> str:
-        row = self.rows[row_id]
-        return f"{self.citation}, '{row.label}' ({row.provenance})"
 
 
 @lru_cache(maxsize=8)
@@ -58,3 +39,21 @@ def data_table(table_id: str) -> DataTable:
     return DataTable(id=data["id"], title=data["title"], units=data["units"],
                      citation=f"{src['document']} ({src['edition']})", default=data["default"],
                      rows=rows)
+
+
+class _Builtin(Mapping[str, DataTable]):
+    """The built-in tables by id, each loaded (and validated) when first looked up."""
+
+    def __getitem__(self, table_id: str) -> DataTable:
+        if not (builtin_rules_dir() / "data" / f"{table_id}.yaml").is_file():
+            raise KeyError(table_id)
+        return data_table(table_id)
+
+    def __iter__(self) -> Iterator[str]:
+        return iter(sorted(p.stem for p in (builtin_rules_dir() / "data").glob("*.yaml")))
+
+    def __len__(self) -> int:
+        return sum(1 for _ in self)
+
+
+BUILTIN: Mapping[str, DataTable] = _Builtin()

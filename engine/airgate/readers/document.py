@@ -20,9 +20,7 @@ from typing import Any
 
 import yaml
 
-from airgate.errors import AirgateError
-
-Path_ = tuple[str | int, ...]
+from airgate.errors import AirgateError, Path_
 
 
 def _limit(name: str, default: int) -> int:

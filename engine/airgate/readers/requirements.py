@@ -11,25 +11,13 @@ from typing import Any
 
 from airgate import units
 from airgate.errors import RulePackError, nearest
-from airgate.models.requirements import KINDS, Formula, Requirement, Selector
+from airgate.models.requirements import (
+    KINDS, SYSTEM_SYMBOLS, ZONE_SYMBOLS, Formula, Requirement, Selector,
+)
 from airgate.models.rules import AirDistributionRow, OccupancyCategory, Source
-from airgate.readers import formula as fx
+from airgate.models import formula as fx
 
 Path_ = tuple[str | int, ...]
-
-#: names a formula may use, with their kind, for each subject (trail symbols, ASCII)
-SYSTEM_SYMBOLS: dict[str, str] = {
-    "Vot": "airflow", "Vot_design": "airflow", "Vou": "airflow", "Ev": "fraction",
-    "Xs": "fraction", "D": "fraction", "Ps": "people", "Vps": "airflow", "sum_Pz": "people",
-    "sum_Voz": "airflow",
-}
-ZONE_SYMBOLS: dict[str, str] = {
-    "Az": "area", "Pz": "people", "Rp": "airflow_per_person", "Ra": "airflow_per_area",
-    "density": "density", "Vbz": "airflow", "Ez": "fraction", "Voz": "airflow", "Vpz": "airflow",
-    "Zpz": "fraction", "Evz": "fraction", "Voz_design": "airflow", "Ep": "fraction",
-    "Er": "fraction", "Nbr": "count", "V": "volume", "Q_oa": "airflow",
-    "C_ss": "concentration_ppm", "C_out": "concentration_ppm", **SYSTEM_SYMBOLS,
-}
 
 #: parameters each kind takes (besides the common keys)
 _PARAMS: dict[str, frozenset[str]] = {

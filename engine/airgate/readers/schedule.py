@@ -7,7 +7,6 @@ wrong and what is allowed.
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
@@ -15,6 +14,7 @@ from pydantic import BaseModel, ValidationError
 
 from airgate.errors import AirgateError, ScheduleError, nearest, raise_all
 from airgate.models.schedule import Project, Schedule, StatedDistribution, System, Zone
+from airgate.models.loaded import LoadedSchedule
 from airgate.models.waivers import Waiver
 from airgate.readers.document import Document, Path_, load
 
@@ -25,25 +25,6 @@ _OWNER: dict[str | None, type[BaseModel]] = {
     None: Schedule, "project": Project, "systems": System, "zones": Zone,
     "air_distribution": StatedDistribution, "waivers": Waiver,
 }
-
-
-@dataclass
-class LoadedSchedule:
-    """A validated schedule together with the document it came from (for locations)."""
-
-    model: Schedule
-    doc: Document
-
-    @property
-    def file(self) -> str:
-        return self.doc.file
-
-    def locate(self, path: Path_) -> tuple[str, int | None, int | None]:
-        line, column = self.doc.locate(path)
-        return (self.doc.file, line, column)
-
-    def error(self, message: str, path: Path_, **kw: Any) -> AirgateError:
-        return self.doc.error(ScheduleError, message, path, **kw)
 
 
 def _field_names(model: type[BaseModel]) -> list[str]:

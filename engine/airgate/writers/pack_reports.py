@@ -5,8 +5,8 @@ from __future__ import annotations
 import json
 from typing import Any
 
-from airgate.evaluation.packdiff import Change, PackDiff
-from airgate.evaluation.packtests import PackResult
+from airgate.api.packdiff import Change, PackDiff
+from airgate.api.packtests import PackResult
 from airgate.writers.packs import GOVERN
 
 DIFF_VERSION = 1

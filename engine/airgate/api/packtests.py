@@ -22,13 +22,15 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+from airgate.api.core import evaluate
 from airgate.errors import AirgateError, ErrorGroup, nearest
+from airgate.models.loaded import LoadedSchedule
 from airgate.readers import layering, packschema
 from airgate.readers.document import Document, load
 from airgate.readers.layering import Root
 from airgate.readers.options import OptionError, as_schedule_error
 from airgate.readers.rulepack import is_path, load_document, load_pack
-from airgate.readers.schedule import LoadedSchedule, read_schedule, validate
+from airgate.readers.schedule import read_schedule, validate
 
 VERDICTS = ("pass", "fail", "not-evaluated", "not-applicable")
 
@@ -128,8 +130,6 @@ def _schedule(doc: Document) -> LoadedSchedule:
 
 
 def _run(loaded: LoadedSchedule, pack_ref: str, roots: tuple[Root, ...]):
-    from airgate.evaluation.engine import evaluate
-
     try:
         pack = load_pack(pack_ref, options=loaded.model.project.options, search=roots)
     except OptionError as exc:

@@ -1,0 +1,113 @@
+"""The public entry points: read a schedule, load a rule pack, evaluate, check in one call.
+
+This layer sits above the evaluation: it reads files (:mod:`airgate.readers`) and hands the
+loaded schedule, pack and data tables to :func:`airgate.evaluation.engine.evaluate`, which reads
+nothing itself. The command line calls these functions; so can any Python program
+(``docs/api.md``). Bad input raises :class:`~airgate.errors.AirgateError` (located: file, line,
+column, field) exactly as the command line reports it.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from collections.abc import Mapping, Sequence
+from pathlib import Path
+
+from airgate.errors import RulePackError
+from airgate.evaluation import engine
+from airgate.evaluation.report import Report
+from airgate.evaluation.waivers import WaiverEntry
+from airgate.models.loaded import LoadedSchedule
+from airgate.models.rules import RulePack
+from airgate.readers import datatables, rulepack
+from airgate.readers.options import OptionError, as_schedule_error, choose
+from airgate.readers.sources import import_notes, read_any
+
+Search = Sequence[str | Path] | None
+
+
+def load_schedule(path: str | Path) -> LoadedSchedule:
+    """Read and validate a schedule: YAML/JSON, or imported from CSV tables, XLSX, gbXML or IFC
+    (chosen by the file's suffix, ``docs/importing.md``)."""
+    return read_any(path)
+
+
+def load_pack(id_or_path: str | Path, search: Search = None, *,
+              options: Mapping[str, str] | None = None) -> RulePack:
+    """Load a rule pack by built-in id (``ashrae-62.1-2019``) or file path, validated and built.
+
+    ``search``: folders of rule packs looked in after the built-in ones (``--rules-path``).
+    ``options``: the pack's options (``project.options`` of a schedule); options left out take
+    their defaults. A relative path is taken from the working directory.
+    """
+    return rulepack.load_pack(str(id_or_path), options=options, search=tuple(search or ()))
+
+
+def evaluate(schedule: LoadedSchedule, pack: RulePack, *, waivers: Sequence[WaiverEntry] = (),
+             as_of: dt.date | None = None) -> Report:
+    """Evaluate ``schedule`` under ``pack``: findings, trails and verdicts.
+
+    A pack with options must have been loaded with the schedule's choices
+    (``load_pack(..., options=schedule.model.project.options)``); otherwise the difference is
+    reported at the schedule's ``project.options``. ``waivers``: entries of a waivers file applied
+    after the schedule's own; expiry is judged on ``as_of`` (default today).
+    """
+    _same_options(schedule, pack)
+    report = engine.evaluate(schedule, pack, datatables.BUILTIN, waivers, as_of)
+    report.notes.extend(import_notes(schedule))  # rooms read/mapped/rejected; what was not mapped
+    return report
+
+
+def check(path: str | Path, rules: str | None = None, *, search: Search = None,
+          waivers: Sequence[WaiverEntry] = (), as_of: dt.date | None = None) -> Report:
+    """Read the schedule at ``path``, load its rule pack (or ``rules``) and evaluate it.
+
+    The pack named in the schedule (``rules:``) is looked up relative to the schedule's folder;
+    ``rules`` (as ``--rules`` on the command line) relative to the working directory.
+    """
+    loaded = load_schedule(path)
+    ref = rules or loaded.model.rules
+    if ref is None:
+        raise loaded.error("no rule pack: give 'rules:' in the schedule or --rules", ("rules",),
+                           hint="e.g. rules: ashrae-62.1-2019")
+    pack = _pack(loaded, ref, from_option=bool(rules), search=tuple(search or ()))
+    return evaluate(loaded, pack, waivers=waivers, as_of=as_of)
+
+
+def _same_options(loaded: LoadedSchedule, pack: RulePack) -> None:
+    try:
+        chosen = choose(pack.options, loaded.model.project.options, pack.id)
+    except OptionError as exc:
+        raise as_schedule_error(exc, loaded) from None
+    if chosen != pack.chosen:
+        raise loaded.error(
+            f"rule pack {pack.id} was loaded with options {pack.chosen}; the schedule chooses "
+            f"{chosen}", ("project", "options"),
+            hint="load the pack with the schedule's options: "
+                 "load_pack(..., options=schedule.model.project.options)")
+
+
+def _pack(loaded: LoadedSchedule, ref: str, from_option: bool,
+          search: Sequence[str | Path] = ()) -> RulePack:
+    """Load the rule pack ``ref``; a pack that cannot be found is reported where it was named.
+
+    A path in the schedule is relative to the schedule's folder, one given with ``--rules`` to
+    the working directory.
+    """
+    base = Path.cwd() if from_option else Path(loaded.file).parent
+    try:
+        path = rulepack.resolve(ref, base, search)
+        if not path.is_file():
+            what = "is a folder, not a rule pack file" if path.is_dir() else "not found"
+            raise RulePackError(f"rule pack file {path} {what}",
+                                hint="give a built-in pack id (airgate rules list) or the path "
+                                "of a pack file")
+    except RulePackError as exc:
+        if from_option:
+            exc.field = ("--rules",)
+            raise
+        raise loaded.error(exc.message, ("rules",), allowed=exc.allowed, hint=exc.hint) from None
+    try:
+        return rulepack.load_pack(str(path), options=loaded.model.project.options, search=search)
+    except OptionError as exc:
+        raise as_schedule_error(exc, loaded) from None
