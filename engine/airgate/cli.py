@@ -1,4 +1,4 @@
-"""Command line: ``airgate check | explain | plot | rules | schema``.
+"""Command line: ``airgate check | explain | import | plot | rules | schema | template``.
 
 Each command lives in :mod:`airgate.commands` (``register`` adds its arguments, ``run`` does it).
 Exit codes: 0 all pass, 1 a failing finding, 2 input or usage error, 3 internal error.
@@ -31,10 +31,16 @@ def _parser(modules) -> argparse.ArgumentParser:
         epilog="Exit codes: 0 all pass, 1 failing findings, 2 input or usage error, "
                "3 internal error.")
     p.add_argument("--version", action="version", version=f"airgate {__version__}")
-    sub = p.add_subparsers(dest="command", metavar="COMMAND")
+    sub = p.add_subparsers(dest="command", metavar="COMMAND", help="what to do (airgate COMMAND "
+                                                                   "--help tells more)")
     for module in modules.values():
         module.register(sub)
     return p
+
+
+def parser() -> argparse.ArgumentParser:
+    """The whole argument parser (every command and its arguments)."""
+    return _parser(_modules())
 
 
 def run(argv: Sequence[str] | None = None) -> int:

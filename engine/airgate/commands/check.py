@@ -1,7 +1,7 @@
 """``airgate check``: evaluate one or more schedules, write reports, and gate on the result.
 
-Formats are chosen with ``--format NAME[:FILE]`` (repeatable); at most one goes to standard
-output. Every schedule is evaluated before anything is written: bad input anywhere stops the run
+One report is ``--format NAME [-o FILE]``; several reports of one run are ``--format NAME:FILE``
+(repeatable), at most one of them without a file (standard output, or ``-o``). Every schedule is evaluated before anything is written: bad input anywhere stops the run
 with exit 2 and writes nothing (each output file is written atomically).
 """
 
@@ -12,31 +12,37 @@ import datetime as dt
 import sys
 from pathlib import Path
 
-from airgate.commands.common import add_rules_path
+from airgate.commands.common import add_output, add_rules
 from airgate.errors import EXIT_FAIL, EXIT_PASS, AirgateError, ErrorGroup, UsageError, raise_all
 
 SCHEDULE_SUFFIXES = (".yaml", ".yml", ".json")
 
 
 def register(sub) -> None:
+    from airgate.evaluation.batch import FAIL_ON
+    from airgate.writers.formats import FORMATS
+
     c = sub.add_parser("check", help="evaluate schedules and report findings",
-                       description="Evaluate ventilation schedules against a rule pack.")
+                       description="Evaluate ventilation schedules against a rule pack. One "
+                                   "report: --format NAME [-o FILE]. Several reports of one "
+                                   "run: --format NAME:FILE, repeated (at most one format "
+                                   "without a file goes to standard output).")
     c.add_argument("paths", nargs="+", metavar="PATH",
                    help="schedule files (.yaml, .yml, .json; also CSV tables STEM.zones.csv, "
                         ".xlsx, gbXML .xml, .ifc — see docs/importing.md) or folders holding "
                         "YAML/JSON schedules")
-    c.add_argument("--rules", help="rule pack id or path (overrides the schedule's 'rules:')")
-    add_rules_path(c)
+    add_rules(c)
     c.add_argument("--format", action="append", metavar="NAME[:FILE]", dest="formats",
-                   help="report format, optionally with a file to write it to; repeatable. "
-                        "NAME: text (default), json, junit, sarif, markdown, html")
-    c.add_argument("-o", "--output", help="file for the one --format given without a file")
+                   help=f"report format: {', '.join(FORMATS)} (default: {FORMATS[0]}); "
+                        "NAME:FILE writes it to FILE; repeatable, one evaluation for all")
+    add_output(c, "file for the one --format given without a file (default: standard output)")
     c.add_argument("--waivers", action="append", default=[], metavar="FILE",
                    help="a waivers file applied to every schedule (repeatable)")
     c.add_argument("--as-of", metavar="YYYY-MM-DD",
                    help="judge waiver expiry on this date (default: today)")
-    c.add_argument("--fail-on", choices=["fail", "warning"], default="fail",
-                   help="lowest severity that fails the run (warning: also stale waivers)")
+    c.add_argument("--fail-on", choices=FAIL_ON, default=FAIL_ON[0],
+                   help=f"lowest severity that fails the run: {', '.join(FAIL_ON)} (default: "
+                        f"{FAIL_ON[0]}; warning also fails on stale waivers)")
     c.add_argument("--exit-zero", action="store_true",
                    help="exit 0 even when findings fail (input errors still exit 2)")
     c.add_argument("--series-step", type=int, default=0, metavar="MINUTES",
@@ -47,7 +53,7 @@ def _destinations(args: argparse.Namespace) -> list[tuple[str, str | None]]:
     """(format, file or None for stdout) pairs, checked before anything is evaluated."""
     from airgate.writers.formats import FORMATS
 
-    specs = args.formats or ["text"]
+    specs = args.formats or [FORMATS[0]]
     out: list[tuple[str, str | None]] = []
     for spec in specs:
         name, sep, dest = spec.partition(":")

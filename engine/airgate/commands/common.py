@@ -1,6 +1,15 @@
-"""Helpers shared by commands."""
+"""Helpers shared by commands: the options every command spells the same way.
+
+The conventions (README, Commands): ``--format`` is the output format and ``-o/--output`` the
+output file of every command that writes one; every command that reads rule packs takes
+``--rules`` (a pack id or path) and ``--rules-path`` (folders searched by id). A list of choices
+shown in help comes from where the list lives, never typed into the help text.
+"""
 
 from __future__ import annotations
+
+import sys
+from collections.abc import Sequence
 
 from airgate.errors import UsageError, nearest
 
@@ -32,11 +41,44 @@ def add_rules_path(parser) -> None:
                              "(repeatable; also AIRGATE_RULES_PATH)")
 
 
+def add_rules(parser, help: str = "rule pack id or path (overrides the schedule's 'rules:')",
+              default: str | None = None) -> None:
+    """``--rules ID|PATH`` and ``--rules-path DIR``: the options of every command that reads
+    rule packs for a schedule."""
+    parser.add_argument("--rules", default=default, metavar="ID|PATH", help=help)
+    add_rules_path(parser)
+
+
+def add_format(parser, choices: Sequence[str], default: str, what: str = "output format",
+               note: str = "") -> None:
+    """``--format NAME``, one of ``choices`` (listed in help from the sequence itself)."""
+    parser.add_argument("--format", choices=list(choices), default=default,
+                        help=f"{what}: {', '.join(choices)} (default: {default})"
+                             + (f"; {note}" if note else ""))
+
+
+def add_output(parser, what: str = "file to write (default: standard output)",
+               required: bool = False) -> None:
+    """``-o/--output FILE``: the output file."""
+    parser.add_argument("-o", "--output", metavar="FILE", required=required, help=what)
+
+
+def emit(output: str | None, text: str) -> None:
+    """``text`` to the ``-o`` file (written atomically) or to standard output."""
+    if output:
+        from airgate.writers.output import write_atomic
+
+        write_atomic(output, text)
+    else:
+        sys.stdout.write(text)
+
+
 def add_subject(parser, system_help: str = "system id") -> None:
     """The schedule FILE, ``--zone ID`` or ``--system ID``, and the pack options (explain, plot)."""
-    parser.add_argument("file")
+    parser.add_argument("file", metavar="SCHEDULE",
+                        help="schedule file (YAML/JSON, or a table, gbXML or IFC file as "
+                             "'check' reads it)")
     group = parser.add_mutually_exclusive_group(required=True)
-    group.add_argument("--zone", help="zone id")
-    group.add_argument("--system", help=system_help)
-    parser.add_argument("--rules", help="rule pack id or path")
-    add_rules_path(parser)
+    group.add_argument("--zone", metavar="ID", help="zone id")
+    group.add_argument("--system", metavar="ID", help=system_help)
+    add_rules(parser)

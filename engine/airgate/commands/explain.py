@@ -3,15 +3,18 @@
 from __future__ import annotations
 
 import argparse
-import sys
 
-from airgate.commands.common import add_subject, pick
+from airgate.commands.common import add_output, add_subject, emit, pick
 from airgate.errors import EXIT_PASS
 
 
 def register(sub) -> None:
-    e = sub.add_parser("explain", help="print the calculation trail of a zone or system")
+    e = sub.add_parser("explain", help="print the calculation trail of a zone or system",
+                       description="The calculation trail of one zone (--zone) or one system "
+                                   "(--system), step by step, with each equation, its values "
+                                   "and its source.")
     add_subject(e)
+    add_output(e)
 
 
 def run(args: argparse.Namespace) -> int:
@@ -21,7 +24,7 @@ def run(args: argparse.Namespace) -> int:
     report = check(args.file, args.rules, search=args.rules_path)
     system, zones = pick(report, args.zone, args.system)
     if args.zone is not None:
-        sys.stdout.write(explain.zone(report, system, zones[0]))
+        emit(args.output, explain.zone(report, system, zones[0]))
     else:
-        sys.stdout.write(explain.system_(report, system))
+        emit(args.output, explain.system_(report, system))
     return EXIT_PASS

@@ -6,6 +6,7 @@ import argparse
 import sys
 from pathlib import Path
 
+from airgate.commands.common import add_output, emit
 from airgate.errors import EXIT_PASS
 
 
@@ -16,15 +17,16 @@ def register(sub) -> None:
                     "gbXML .xml file or an .ifc model and write it as a YAML schedule whose "
                     "comments say where each value came from. Nothing is written when a room "
                     "or value cannot be read.")
-    i.add_argument("file", help="source file (.csv, .xlsx, .xml, .ifc; .yaml/.json are "
-                                "rewritten in the same layout)")
-    i.add_argument("-o", "--output", help="YAML file to write (default: standard output)")
+    i.add_argument("file", metavar="FILE",
+                   help="source file (.csv, .xlsx, .xml, .ifc; .yaml/.json are rewritten in the "
+                        "same layout)")
+    add_output(i, "YAML file to write (default: standard output)")
     i.set_defaults(command="import_")  # the module name ('import' is a Python keyword)
 
 
 def run(args: argparse.Namespace) -> int:
     from airgate.readers.sources import ImportedSchedule, read_any
-    from airgate.writers import output, schedule_yaml
+    from airgate.writers import schedule_yaml
 
     loaded = read_any(args.file)
     header = [f"Ventilation schedule imported by airgate from {Path(args.file).name}."]
@@ -38,10 +40,7 @@ def run(args: argparse.Namespace) -> int:
             header += [f"  {n.replace(loaded.doc.file, Path(loaded.doc.file).name)}"
                        for n in loaded.notes]
     text = schedule_yaml.render(loaded.doc.data, origins, header)
-    if args.output:
-        output.write_atomic(args.output, text)
-    else:
-        sys.stdout.write(text)
+    emit(args.output, text)
     if isinstance(loaded, ImportedSchedule):
         sys.stderr.write(loaded.summary.text() + "\n")
         for note in loaded.notes:

@@ -4,14 +4,22 @@ from __future__ import annotations
 
 import argparse
 
-from airgate.commands.common import add_subject, pick
+from airgate.commands.common import add_output, add_subject, pick
 from airgate.errors import EXIT_PASS
 
 
 def register(sub) -> None:
-    pl = sub.add_parser("plot", help="draw a zone's (or system's) CO2 over the design day")
+    from airgate.writers.plot import FORMATS
+
+    names = sorted(set(FORMATS.values()))
+    pl = sub.add_parser("plot", help="draw a zone's (or system's) CO2 over the design day",
+                        description="CO2 over the design day for one zone, or for every zone of "
+                                    "a system, with the limit and the occupancy profile.")
     add_subject(pl, "system id (all its zones)")
-    pl.add_argument("-o", "--output", required=True, help="picture file, .png or .svg")
+    pl.add_argument("--format", choices=names,
+                    help=f"picture format: {', '.join(names)} (default: from the -o file's "
+                         "extension)")
+    add_output(pl, f"picture file ({', '.join(sorted(FORMATS))})", required=True)
 
 
 def run(args: argparse.Namespace) -> int:
@@ -20,5 +28,5 @@ def run(args: argparse.Namespace) -> int:
 
     report = check(args.file, args.rules, search=args.rules_path)
     system, zones = pick(report, args.zone, args.system)
-    plot.plot(report, system, zones, args.output)
+    plot.plot(report, system, zones, args.output, args.format)
     return EXIT_PASS

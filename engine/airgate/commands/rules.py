@@ -5,36 +5,43 @@ from __future__ import annotations
 import argparse
 import sys
 
-from airgate.commands.common import add_rules_path
+from airgate.commands.common import add_format, add_output, add_rules_path, emit
 from airgate.errors import EXIT_FAIL, EXIT_PASS, UsageError
 
 ACTIONS = ["list", "show ID", "validate PATH", "test [PATH]", "diff A B"]
+#: output formats of ``rules show --resolved`` and ``rules diff``: text (YAML for --resolved), JSON
+FORMATS = ("text", "json")
 
 
 def register(sub) -> None:
-    r = sub.add_parser("rules", help="list, show, validate, test or diff rule packs")
-    rs = r.add_subparsers(dest="rules_command", metavar="ACTION")
+    r = sub.add_parser("rules", help="list, show, validate, test or diff rule packs",
+                       description="Work with rule packs: built-in ones, those in --rules-path "
+                                   "folders and AIRGATE_RULES_PATH, or pack files by path.")
+    rs = r.add_subparsers(dest="rules_command", metavar="ACTION", help="what to do")
     ls = rs.add_parser("list", help="list the rule packs on the search path")
     add_rules_path(ls)
     show = rs.add_parser("show", help="show a pack's tables, methods, checks and requirements")
-    show.add_argument("pack", help="pack id or path")
+    show.add_argument("pack", metavar="ID|PATH", help="pack id or path")
     show.add_argument("--resolved", action="store_true",
                       help="print the merged pack and, for every value, the pack it came from")
-    show.add_argument("--format", choices=["text", "json"], default="text",
-                      help="with --resolved: YAML with origins (text) or JSON")
+    add_format(show, FORMATS, FORMATS[0], note="json needs --resolved, where text is YAML "
+                                               "with the origin of each value")
     show.add_argument("--option", action="append", default=[], metavar="NAME=VALUE",
                       help="choose one of the pack's options (repeatable)")
+    add_output(show)
     add_rules_path(show)
     val = rs.add_parser("validate", help="validate a pack (every option combination) or a folder")
-    val.add_argument("pack", help="pack id, pack file or folder of packs")
+    val.add_argument("pack", metavar="PATH", help="pack id, pack file or folder of packs")
     add_rules_path(val)
     test = rs.add_parser("test", help="run the pack tests (no PATH: every built-in pack)")
-    test.add_argument("path", nargs="?", help="folder of packs, pack id or file, or a test case")
+    test.add_argument("path", nargs="?", metavar="PATH",
+                      help="folder of packs, pack id or file, or a test case")
     add_rules_path(test)
     diff = rs.add_parser("diff", help="entries added, removed and changed between two packs")
-    diff.add_argument("old", metavar="A", help="pack id or path")
-    diff.add_argument("new", metavar="B", help="pack id or path")
-    diff.add_argument("--format", choices=["text", "json"], default="text")
+    diff.add_argument("old", metavar="A", help="pack id or path (the earlier one)")
+    diff.add_argument("new", metavar="B", help="pack id or path (the later one)")
+    add_format(diff, FORMATS, FORMATS[0])
+    add_output(diff)
     add_rules_path(diff)
 
 
@@ -102,13 +109,13 @@ def _show(args) -> int:
     if args.resolved:
         data = opts.resolve(doc.data, pack.chosen) if chosen else doc.data
         if args.format == "json":
-            sys.stdout.write(json_text(pack_resolved.resolved_json(doc, data)))
+            emit(args.output, json_text(pack_resolved.resolved_json(doc, data)))
         else:
-            sys.stdout.write(pack_resolved.resolved_yaml(doc, data))
+            emit(args.output, pack_resolved.resolved_yaml(doc, data))
         return EXIT_PASS
     if args.format == "json":
         raise UsageError("--format json goes with --resolved", field=("--format",))
-    sys.stdout.write(pack_summary(pack, None if resolved else doc))
+    emit(args.output, pack_summary(pack, None if resolved else doc))
     return EXIT_PASS
 
 
@@ -164,7 +171,7 @@ def _diff(args) -> int:
     old = load_document(args.old, search=args.rules_path)
     new = load_document(args.new, search=args.rules_path)
     result = diff(old, new)
-    sys.stdout.write(json_text(diff_json(result)) if args.format == "json" else diff_text(result))
+    emit(args.output, json_text(diff_json(result)) if args.format == "json" else diff_text(result))
     return EXIT_PASS
 
 

@@ -4,14 +4,20 @@ from __future__ import annotations
 
 import argparse
 import json
-import sys
 
+from airgate.commands.common import add_output, emit
 from airgate.errors import EXIT_PASS
+
+#: the published schemas: the schedule, a rule pack, a pack test case
+SCHEMAS = ("schedule", "rules", "pack-test")
 
 
 def register(sub) -> None:
-    s = sub.add_parser("schema", help="print a published JSON Schema")
-    s.add_argument("which", choices=["schedule", "rules", "pack-test"])
+    s = sub.add_parser("schema", help="print a published JSON Schema",
+                       description="Print one of the published JSON Schemas (draft 2020-12).")
+    s.add_argument("which", choices=SCHEMAS, metavar="WHICH",
+                   help=f"which schema: {', '.join(SCHEMAS)}")
+    add_output(s)
 
 
 def run(args: argparse.Namespace) -> int:
@@ -30,5 +36,5 @@ def run(args: argparse.Namespace) -> int:
 
         path = builtin_rules_dir() / "schema" / "pack-test.schema.json"
         schema = json.loads(path.read_text(encoding="utf-8"))
-    sys.stdout.write(json.dumps(schema, indent=2, ensure_ascii=False, sort_keys=True) + "\n")
+    emit(args.output, json.dumps(schema, indent=2, ensure_ascii=False, sort_keys=True) + "\n")
     return EXIT_PASS

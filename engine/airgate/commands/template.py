@@ -6,29 +6,38 @@ import argparse
 import sys
 from pathlib import Path
 
+from airgate.commands.common import add_format, add_output, add_rules
 from airgate.errors import EXIT_PASS, UsageError
+
+#: what ``template`` writes: an .xlsx workbook, or a set of CSV tables
+FORMATS = ("xlsx", "csv")
+#: the pack whose space types the template offers unless ``--rules`` names another
+DEFAULT_RULES = "ashrae-62.1-2019"
 
 
 def register(sub) -> None:
+    from airgate.units import UNIT_SYSTEMS
+
     t = sub.add_parser(
         "template", help="write an empty schedule workbook or CSV tables to fill in",
         description="Write the Project, Systems, Zones and Profiles tables with their headers "
                     "and units. The workbook also lists the rule pack's space types and Ez rows "
                     "and offers them as drop-downs.")
-    t.add_argument("--format", choices=["xlsx", "csv"], default="xlsx", help="file format")
-    t.add_argument("-o", "--output", required=True,
-                   help="workbook file (.xlsx), or for csv the STEM of STEM.zones.csv …")
-    t.add_argument("--rules", default="ashrae-62.1-2019",
-                   help="rule pack id or path whose space types the drop-downs offer")
-    t.add_argument("--units", choices=["IP", "SI"],
-                   help="unit system of the headers (default: the pack's)")
+    add_format(t, FORMATS, FORMATS[0], "file format")
+    add_output(t, "workbook file (.xlsx), or for csv the STEM of STEM.zones.csv …",
+               required=True)
+    add_rules(t, f"rule pack id or path whose space types the drop-downs offer "
+                 f"(default: {DEFAULT_RULES})", default=DEFAULT_RULES)
+    t.add_argument("--units", choices=UNIT_SYSTEMS,
+                   help=f"unit system of the headers: {', '.join(UNIT_SYSTEMS)} (default: the "
+                        "pack's)")
 
 
 def run(args: argparse.Namespace) -> int:
     from airgate.readers.rulepack import load_pack
     from airgate.writers import workbook
 
-    pack = load_pack(args.rules)
+    pack = load_pack(args.rules, search=args.rules_path)
     system = args.units or pack.units
     tables = workbook.template_tables(system, args.rules)
     out = Path(args.output)

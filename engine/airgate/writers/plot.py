@@ -1,8 +1,9 @@
 """``airgate plot``: CO2 over the design day with the limit line and the occupancy profile.
 
 matplotlib is an optional extra (``pip install "airgate[plot]"``); without it the command says
-how to install it. The file extension picks the format (PNG or SVG). Output is deterministic:
-no timestamps or random ids in the file (SVG hash salt fixed, PNG metadata cleared).
+how to install it. ``--format``, or else the file extension, picks the format (PNG or SVG).
+Output is deterministic: no timestamps or random ids in the file (SVG hash salt fixed, PNG
+metadata cleared).
 """
 
 from __future__ import annotations
@@ -38,12 +39,17 @@ def _zones(report: Report, system: SystemResult, zones: list[ZoneResult]) -> lis
     return usable
 
 
-def plot(report: Report, system: SystemResult, zones: list[ZoneResult], output: str) -> None:
-    """Draw CO2 against time of day for ``zones``, with limit and occupancy, to ``output``."""
+def plot(report: Report, system: SystemResult, zones: list[ZoneResult], output: str,
+         fmt: str | None = None) -> None:
+    """Draw CO2 against time of day for ``zones``, with limit and occupancy, to ``output``
+    in picture format ``fmt`` (one of the values of :data:`FORMATS`; default: from the file's
+    extension)."""
     suffix = Path(output).suffix.lower()
-    if suffix not in FORMATS:
+    if fmt is None and suffix not in FORMATS:
         raise UsageError(f"cannot tell the picture format from '{output}'",
-                         allowed=sorted(FORMATS), hint="name the file .png or .svg")
+                         allowed=sorted(FORMATS), hint="name the file .png or .svg, or give "
+                                                        "--format")
+    fmt = fmt or FORMATS[suffix]
     zones = _zones(report, system, zones)
     plt = _pyplot()
     fig, (ax, occ) = plt.subplots(2, 1, figsize=(9, 6), sharex=True,
@@ -71,10 +77,10 @@ def plot(report: Report, system: SystemResult, zones: list[ZoneResult], output: 
     fig.text(0.01, 0.005, "Aid to review only: the adopted code and the licensed professional "
              "of record govern; results depend on the inputs given.", fontsize=7, color="0.4")
     fig.tight_layout(rect=(0, 0.02, 1, 1))
-    metadata = {"Software": None} if suffix == ".png" else {"Date": None}
+    metadata = {"Software": None} if fmt == "png" else {"Date": None}
     tmp = Path(output).with_name(f".{Path(output).name}.tmp")
     try:
-        fig.savefig(tmp, format=FORMATS[suffix], dpi=120, metadata=metadata)
+        fig.savefig(tmp, format=fmt, dpi=120, metadata=metadata)
         tmp.replace(output)
     except OSError as exc:
         tmp.unlink(missing_ok=True)
