@@ -71,9 +71,13 @@ def test_ci_example_runs_on_a_schedules_folder(tmp_path, capsys, monkeypatch):
     shutil.copy(ROOT / "fixtures/demo/approvals/fernhollow-approvals.yaml",
                 tmp_path / "approvals" / "waivers.yaml")
     monkeypatch.chdir(tmp_path)
-    argv = _example("ci.md", "airgate check schedules/")
+    argv = _example("ci.md", "airgate check schedules/ \\\n")
     assert main(argv[1:]) == 1  # zone 203 of the demo still fails: its waiver expired
     for name in ("airgate-junit.xml", "airgate.sarif", "airgate-comment.md",
                  "airgate-review.html"):
         assert (tmp_path / "reports" / name).stat().st_size > 0
     assert "Waivers" in capsys.readouterr().out
+    one = _example("ci.md", "airgate check schedules/ --format junit -o ")
+    (tmp_path / "reports" / "airgate-junit.xml").unlink()
+    assert main(one[1:]) == 1 and capsys.readouterr().out == ""
+    ET.fromstring((tmp_path / "reports" / "airgate-junit.xml").read_bytes())
