@@ -19,7 +19,7 @@ integrator steps across a jump in its inputs), with one-minute output over 24 h:
    configuration) timed apart, as ratios to the 1,000-zone run.
 
 CO2 in ppm from an hourly office occupancy profile; 0.0052 L/s of CO2 per person and 420 ppm
-outdoors (reference-values.md G). Prints wall times (best of a few runs for the exact side,
+outdoors (invented benchmark inputs of the usual magnitude; docs/references.md). Prints wall times (best of a few runs for the exact side,
 one run for solve_ivp), their ratio and the largest relative difference between the two.
 """
 

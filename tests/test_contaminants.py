@@ -1,4 +1,5 @@
-"""Declared contaminants through the engine: every removal mechanism (domain.md §4; reference H)."""
+"""Declared contaminants through the engine: every removal mechanism (well-mixed balance,
+Nazaroff & Alvarez-Cohen 2001; equivalent clean airflow, ASHRAE 241-2023; docs/references.md)."""
 
 from __future__ import annotations
 
@@ -32,15 +33,15 @@ def run(evaluate, system_extra=None, zone_extra=None, contaminant=None):
 
 
 def test_equivalent_clean_airflows_add(evaluate):
-    # Public-health ventilation guidance (reference-values.md H, published): equivalent air
+    # ASHRAE 241-2023 (equivalent clean airflow, from memory): equivalent air
     # changes add across outdoor air, filtration (airflow × efficiency) and air cleaners; with
-    # clean outdoor air C_ss = E / (sum of the equivalent clean airflows) (domain.md §4).
+    # clean outdoor air C_ss = E / (sum of the equivalent clean airflows) (Nazaroff & Alvarez-Cohen 2001, CMFR steady state).
     r = run(evaluate, {"filter": {"merv": 13}}, {"air_cleaners": [{"cadr": "300 cfm"}]})
     t = r.systems[0].zones[0].contaminants["aerosol"]
     volume = 900 * 9 * FT**3
     k = 0.3 + math.log(2) / 1.1
     q_oa, q_rec, cadr = 450 * CFM, (1800 - 450) * CFM, 300 * CFM
-    eta = 0.85  # MERV 13, E2 (1-3 µm): ASHRAE 52.2-2017 Table 12-1 as quoted (reference H)
+    eta = 0.85  # MERV 13, E2 (1-3 µm): ANSI/ASHRAE 52.2-2017 Table 12-1 (as quoted on secondary pages)
     expected = {"Qc_oa": q_oa, "Qc_filter": eta * q_rec, "Qc_cleaner": cadr,
                 "Qc_dep": 0.3 * volume / 3.6, "Qc_inact": math.log(2) / 1.1 * volume / 3.6}
     for symbol, value in expected.items():
@@ -51,7 +52,7 @@ def test_equivalent_clean_airflows_add(evaluate):
 
 
 def test_hepa_efficiency_removes_99_97_percent(evaluate):
-    # HEPA: at least 99.97 % at 0.3 µm (U.S. federal definition; reference-values.md H).
+    # HEPA: at least 99.97 % at 0.3 µm (DOE-STD-3020 HEPA definition; edition from memory).
     r = run(evaluate, {"filter": {"efficiency": 0.9997}},
             contaminant=aerosol(deposition=0.0, half_life=None))
     t = r.systems[0].zones[0].contaminants["aerosol"]
@@ -73,7 +74,8 @@ def test_limit_finding(evaluate):
 
 
 def test_multiple_zone_coupled_closed_form(evaluate):
-    # domain.md §4 closed form (no filter, no losses): C_s = (1 − x)·ΣG/Vot, C_z = C_s + G/Vpz.
+    # Closed form of the coupled well-mixed balance (Nazaroff & Alvarez-Cohen 2001 CMFR balance per
+    # zone, mixed through the return; no filter, no losses): C_s = (1 − x)·ΣG/Vot, C_z = C_s + G/Vpz.
     zones = [{"id": str(i), "space": "office-space", "area": f"{a} ft2", "occupants": p,
               "height": "9 ft", "air_distribution": "ceiling-supply-cool",
               "primary_airflow": f"{v} cfm"} for i, (a, p, v) in

@@ -1,4 +1,5 @@
-"""The CO2 dilution analysis through the engine (domain.md §4; reference-values.md F, G)."""
+"""The CO2 dilution analysis through the engine (well-mixed balance, Nazaroff & Alvarez-Cohen 2001;
+purge times, CDC 2003 Table B.1; CO2 generation, Persily & de Jonge 2017; docs/references.md)."""
 
 from __future__ import annotations
 
@@ -22,8 +23,8 @@ def single(zone_extra=None, outdoor_air="620 cfm", project_extra=None, **kw):
 
 
 def test_steady_co2_at_7_5_L_s_per_person_is_about_700_ppm(evaluate):
-    # reference-values.md G: 7.5 L/s (15 cfm) per person ↔ about 700 ppm above outdoor
-    # (ASHRAE technical FAQ, published); 0.0052 L/s / 7.5 L/s → 693 ppm (derived).
+    # ASHRAE CO2 FAQ (docs/references.md): 7.5 L/s (15 cfm) per person ↔ about 700 ppm above
+    # outdoor (published); 0.0052 L/s / 7.5 L/s → 693 ppm (derived).
     r = evaluate(single({"co2_generation": 0.0052}, outdoor_air="750 L/s"))
     t = r.systems[0].zones[0].dilution
     assert t.value("C_ss") - t.value("C_out") == pytest.approx(693.3, abs=0.1)
@@ -44,9 +45,10 @@ def test_purge_times_cdc_2003_table_b1(evaluate, ach, t99, t999):
 
 
 def test_dcv_setpoint_matches_required_airflow(evaluate):
-    # Derived from the steady balance (domain.md §2 DCV): C = C_out + 10⁶·N·Pz/Voz with
-    # Voz = 620 cfm (reference-values.md C worked example) and N = 0.0048 L/s (Persily & de Jonge
-    # 2017 as quoted, reference-values.md G).
+    # Derived from the steady balance (Nazaroff & Alvarez-Cohen 2001 CMFR steady state, CO2 as a
+    # tracer): C = C_out + 10⁶·N·Pz/Voz with Voz = 620 cfm (Vbz = 5·100 + 0.06·2000: ANSI/ASHRAE
+    # 62.1-2019 Section 6.2.2.1 with the Table 6-1 conference/meeting rates, derived) and
+    # N = 0.0048 L/s (Persily & de Jonge 2017 as quoted).
     r = evaluate(single())
     t = r.systems[0].zones[0].dilution
     expected = 420 + 1e6 * 0.0048 * 100 / (620 * CFM)
@@ -66,7 +68,7 @@ def test_capacity_at_delivered_air(evaluate):
 
 
 def test_tenfold_airflow_tenfold_lower_excess(evaluate):
-    # reference-values.md H (common practice): steady excess = generation / airflow.
+    # Common practice: steady excess = generation / airflow.
     a = evaluate(single(outdoor_air="100 L/s")).systems[0].zones[0].dilution
     b = evaluate(single(outdoor_air="1000 L/s")).systems[0].zones[0].dilution
     ratio = (a.value("C_ss") - 420) / (b.value("C_ss") - 420)
@@ -81,7 +83,7 @@ def test_declared_limit_is_a_finding(evaluate):
 
 
 def test_multiple_zone_steady_state_matches_closed_form(evaluate):
-    # domain.md §4: without filters or losses C_s = C_out + (1 − x)·ΣGz/Vot and
+    # Coupled well-mixed balance (Nazaroff & Alvarez-Cohen 2001 per zone): without filters or losses C_s = C_out + (1 − x)·ΣGz/Vot and
     # C_z = C_s + Gz/Vpz (x = Vot/Vps).
     zones = [{"id": str(i), "space": "office-space", "area": f"{a} ft2", "occupants": p,
               "height": "9 ft", "air_distribution": "ceiling-supply-cool",
@@ -152,7 +154,7 @@ def test_multiple_zone_capacity_reaches_the_intake_exactly(evaluate):
 def test_weekend_variant_has_its_own_peak(evaluate):
     # A profile's weekend variant (issue contract): an empty weekend leaves the outdoor level;
     # a half-occupied weekend morning gives about half the weekday excess (linear balance,
-    # domain.md §4; four hours ≫ the time constant here).
+    # Nazaroff & Alvarez-Cohen 2001 CMFR transient; four hours ≫ the time constant here).
     data = single({"profile": "p"}, outdoor_air="620 cfm")
     data["profiles"] = {"p": {"weekday": {"08:00-12:00": 1.0}, "weekend": {"08:00-12:00": 0.5}}}
     t = evaluate(data).systems[0].zones[0].dilution

@@ -1,7 +1,7 @@
 """Hand-computed cases through the whole engine, and engine results equal to direct procedure calls.
 
-Hand computations follow ANSI/ASHRAE 62.1-2019 Sections 6.2.2-6.2.5 and Appendix A as written in
-../shared/domain.md §2; rates are the pack's Table 6.2.2.1 values (reference-values.md A). Agreement
+Hand computations follow ANSI/ASHRAE 62.1-2019 Sections 6.2.2-6.2.5 and Normative Appendix A
+(docs/references.md); rates are the pack's Table 6-1 values (provenance per row in the pack). Agreement
 is required to 0.1 % (the issue's acceptance criterion); most agree to rounding error.
 """
 
@@ -30,7 +30,8 @@ def cfm(step_value):
 
 
 def test_single_zone_conference_620_cfm(evaluate):
-    # reference-values.md C worked example: 2000 ft2, 100 people, Ez 1.0 -> 620 cfm (derived).
+    # 2000 ft2, 100 people, Ez 1.0: Vbz = 5·100 + 0.06·2000 = 620 cfm (ANSI/ASHRAE 62.1-2019
+    # Section 6.2.2.1 with the Table 6-1 conference/meeting rates; derived).
     r = evaluate(schedule([{"id": "S1", "kind": "single-zone", "outdoor_air": "700 cfm",
                             "zones": [zone("1", "conference-meeting", "2000 ft2", occupants=100)]}]))
     s = r.systems[0]
@@ -139,7 +140,7 @@ def test_si_schedule_with_si_pack(evaluate):
 
 
 def test_unit_systems_differ_is_said(evaluate):
-    # domain.md §5: never silently mix an IP table with an SI schedule.
+    # Common practice: never silently mix an IP table with an SI schedule.
     r = evaluate(schedule([{"id": "S", "kind": "single-zone", "outdoor_air": "300 L/s", "zones": [
         zone("1", "conference-meeting", "185.8 m2", occupants=100)]}], units="SI"))
     assert r.notes and "converted exactly" in r.notes[0]
@@ -194,7 +195,7 @@ def test_engine_zone_equals_procedures(evaluate):
 
 @pytest.fixture
 def table_pack(tmp_path):
-    """The IP pack with the older editions' Ev table added (rows: reference-values.md C)."""
+    """The IP pack with the older editions' Ev table added (rows: ANSI/ASHRAE 62.1-2010 Table 6-3)."""
     data = yaml.safe_load((builtin_rules_dir() / "ashrae-62.1-2019.yaml").read_text("utf-8"))
     data["id"] = "test-ev-table"
     data["ventilation_efficiency"]["methods"]["table"] = {

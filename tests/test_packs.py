@@ -82,7 +82,7 @@ def test_ip_and_si_packs_have_the_same_rows():
     for key in ip.categories:
         a, b = ip.categories[key], si.categories[key]
         assert (a.air_class, a.group, a.label) == (b.air_class, b.group, b.label)
-        # separately rounded SI values stay near the exact conversion (domain.md §5:
+        # separately rounded SI values stay near the exact conversion (common practice:
         # 5 cfm/person -> 2.5 L/s, exact 2.36; 7.5 -> 3.8, exact 3.54)
         assert b.rp == pytest.approx(a.rp, rel=0.08, abs=1e-9)
         assert b.ra == pytest.approx(a.ra, rel=0.02, abs=1e-9)
@@ -91,7 +91,8 @@ def test_ip_and_si_packs_have_the_same_rows():
 
 
 def test_ez_table_values(tmp_path):
-    # reference-values.md B (from memory except the published warm-air rows).
+    # ANSI/ASHRAE 62.1-2019 Table 6-4 (Ez), from memory except the warm-air jet rows, which
+    # read as in the 2007 edition's Table 6-2 quoted in a public forum thread (published).
     ez = {k: c.ez for k, c in load_pack("ashrae-62.1-2019").configurations.items()}
     assert ez["ceiling-supply-cool"] == 1.0
     assert ez["ceiling-supply-warm-ceiling-return-stratified"] == 0.8

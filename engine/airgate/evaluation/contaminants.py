@@ -1,6 +1,7 @@
 """Declared contaminants (respiratory aerosol, user-defined sources) in each zone.
 
-The same well-mixed balance as the CO2 analysis (domain.md §4) with every removal term:
+The same well-mixed balance as the CO2 analysis (Nazaroff & Alvarez-Cohen 2001, the CMFR
+material balance; docs/references.md) with every removal term:
 outdoor air, the system filter on outdoor and recirculated air (MERV → efficiency by particle
 size range, ANSI/ASHRAE 52.2-2017 Table 12-1), in-room air cleaners (CADR), deposition and
 inactivation. Amounts are in the contaminant's own unit; concentrations per m³; generation

@@ -7,7 +7,8 @@ profile — the design day's peak and time-weighted average.
 
 Units: the engine's internal units (airflow L/s, volume m³, time h). The mass-balance procedures
 take m³/h, so airflows are multiplied by 3.6 at the call, and a CO2 generation G [L/s] enters as
-``10⁶·3.6·G`` ppm·m³/h so that ``C = C_out + 10⁶·G/Q`` in ppm (domain.md §4, CO2 as a tracer).
+``10⁶·3.6·G`` ppm·m³/h so that ``C = C_out + 10⁶·G/Q`` in ppm (CO2 as a tracer; the well-mixed balance of
+Nazaroff & Alvarez-Cohen 2001, docs/references.md).
 """
 
 from __future__ import annotations
@@ -27,8 +28,9 @@ from airgate.procedures import coupled, dilution
 
 LS = 3.6  #: m³/h per L/s (exact)
 PPM = 1e6  #: ppm per unit volume fraction
-MB = "well-mixed mass balance (domain.md §4)"
-PURGE = "t = ln(1/(1 − f))/λ; CDC 2003 Guidelines for Environmental Infection Control, App. B"
+MB = "well-mixed mass balance (Nazaroff & Alvarez-Cohen 2001, CMFR material balance)"
+PURGE = ("t = ln(1/(1 − f))/λ; CDC 2003 Guidelines for Environmental Infection Control in "
+         "Health-Care Facilities, Appendix B, Table B.1")
 CO2_TABLE = "occupant-co2-generation"
 STEP_H = 1.0 / 60.0  #: sampling step of the design-day series [h]
 
