@@ -9,13 +9,15 @@ column, field) exactly as the command line reports it.
 
 from __future__ import annotations
 
+import dataclasses
 import datetime as dt
 from collections.abc import Mapping, Sequence
 from pathlib import Path
+from typing import Any
 
 from airgate.errors import RulePackError
 from airgate.evaluation import engine
-from airgate.evaluation.report import Report
+from airgate.evaluation import report as results
 from airgate.evaluation.waivers import WaiverEntry
 from airgate.models.loaded import LoadedSchedule
 from airgate.models.rules import RulePack
@@ -24,6 +26,27 @@ from airgate.readers.options import OptionError, as_schedule_error, choose
 from airgate.readers.sources import import_notes, read_any
 
 Search = Sequence[str | Path] | None
+
+
+class Report(results.Report):
+    """The result of one evaluation: systems and zones with their trails, findings, verdicts.
+
+    ``verdict`` is ``"fail"`` when a finding of severity fail is not waived, else ``"pass"``;
+    :meth:`to_dict` is the JSON report (contract version 1, ``docs/report-format.md``).
+    """
+
+    def to_dict(self, series_step: int = 0) -> dict[str, Any]:
+        """The JSON report as Python data, exactly what ``airgate check --format json`` writes.
+
+        ``series_step`` > 0 adds each zone's design-day CO2 series at that step [minutes].
+        """
+        from airgate.writers import json_report
+
+        return json_report.to_dict(self, series_step)
+
+    @classmethod
+    def of(cls, report: results.Report) -> Report:
+        return cls(**{f.name: getattr(report, f.name) for f in dataclasses.fields(report)})
 
 
 def load_schedule(path: str | Path) -> LoadedSchedule:
@@ -53,7 +76,7 @@ def evaluate(schedule: LoadedSchedule, pack: RulePack, *, waivers: Sequence[Waiv
     after the schedule's own; expiry is judged on ``as_of`` (default today).
     """
     _same_options(schedule, pack)
-    report = engine.evaluate(schedule, pack, datatables.BUILTIN, waivers, as_of)
+    report = Report.of(engine.evaluate(schedule, pack, datatables.BUILTIN, waivers, as_of))
     report.notes.extend(import_notes(schedule))  # rooms read/mapped/rejected; what was not mapped
     return report
 
