@@ -70,7 +70,9 @@ def test_gas_is_not_filtered(evaluate):
 
 def test_limit_finding(evaluate):
     r = run(evaluate, contaminant=aerosol(limit=0.01))
-    assert [(f.rule, f.severity) for f in r.findings] == [("concentration-limit", "fail")]
+    assert [(f.rule, f.severity, f.basis) for f in r.findings] == [
+        ("concentration-limit", "fail", "declared")]
+    assert r.verdict == "pass"
 
 
 def test_multiple_zone_coupled_closed_form(evaluate):

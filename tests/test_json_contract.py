@@ -82,10 +82,53 @@ def test_ip_values_are_in_cfm(report):
 def test_findings(report):
     assert report["findings"]
     for f in report["findings"]:
-        assert {"rule", "severity", "subject", "message", "required", "provided", "source",
-                "location"} <= set(f)
+        assert {"rule", "severity", "basis", "subject", "message", "required", "provided",
+                "source", "location"} <= set(f)
         assert f["severity"] in ("fail", "warning", "info")
+        assert f["basis"] == "code"  # the demo declares no limit of its own
         assert {"file", "line", "column"} == set(f["location"]) and f["location"]["line"] >= 1
         assert f["subject"].count("/") <= 1
     intake = next(f for f in report["findings"] if f["rule"] == "system-intake")
     assert intake["required"]["value"] > intake["provided"]["value"]
+
+
+def test_summary_counts_code_findings_and_declared_apart(report):
+    # docs/report-format.md, "Top level" and "Basis": summary by severity counts the code
+    # findings not waived; "declared" counts the declared ones not waived.
+    assert list(report["summary"]) == ["fail", "warning", "info", "declared", "waived"]
+    live = [f for f in report["findings"] if f["waiver"] is None]
+    for severity in ("fail", "warning", "info"):
+        assert report["summary"][severity] == sum(
+            1 for f in live if f["basis"] == "code" and f["severity"] == severity)
+    assert report["summary"]["declared"] == sum(1 for f in live if f["basis"] == "declared")
+
+
+def test_declared_findings_follow_the_code_findings(tmp_path):
+    # docs/report-format.md, "Finding object": sorted by basis first; a declared limit is
+    # credited to the schedule and changes no verdict.
+    import contextlib
+    import io
+
+    import yaml
+
+    data = yaml.safe_load(DEMO.read_text(encoding="utf-8"))
+    data["project"]["co2_limit"] = 600  # ppm, the schedule's own (invented) limit
+    path = tmp_path / "demo-with-limit.yaml"
+    path.write_text(yaml.safe_dump(data, sort_keys=False), encoding="utf-8")
+    out = io.StringIO()
+    with contextlib.redirect_stdout(out):
+        main(["check", str(path), "--format", "json"])
+    doc = json.loads(out.getvalue())
+    bases = [f["basis"] for f in doc["findings"]]
+    assert set(bases) == {"code", "declared"}
+    assert bases == sorted(bases, key=["code", "declared"].index)
+    for f in doc["findings"]:
+        if f["basis"] == "declared":
+            assert f["rule"] == "concentration-limit" and "project.co2_limit" in f["source"]
+    assert doc["summary"]["declared"] == bases.count("declared")
+    failing = {f["subject"] for f in doc["findings"]
+               if f["basis"] == "code" and f["severity"] == "fail" and f["waiver"] is None}
+    for s in doc["systems"]:
+        for z in s["zones"]:
+            if z["verdict"] == "fail":
+                assert f"{s['id']}/{z['id']}" in failing or s["id"] in failing

@@ -40,9 +40,11 @@ def register(sub) -> None:
                    help="a waivers file applied to every schedule (repeatable)")
     c.add_argument("--as-of", metavar="YYYY-MM-DD",
                    help="judge waiver expiry on this date (default: today)")
-    c.add_argument("--fail-on", choices=FAIL_ON, default=FAIL_ON[0],
-                   help=f"lowest severity that fails the run: {', '.join(FAIL_ON)} (default: "
-                        f"{FAIL_ON[0]}; warning also fails on stale waivers)")
+    c.add_argument("--fail-on", choices=FAIL_ON, action="append",
+                   metavar="{" + ",".join(FAIL_ON) + "}",
+                   help="what fails the run besides a failing code finding (repeatable): "
+                        "warning (also warnings and stale waivers), declared (also limits the "
+                        "schedule declares for itself and misses); default: fail")
     c.add_argument("--exit-zero", action="store_true",
                    help="exit 0 even when findings fail (input errors still exit 2)")
     c.add_argument("--series-step", type=int, default=0, metavar="MINUTES",

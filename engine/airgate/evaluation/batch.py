@@ -14,7 +14,18 @@ from dataclasses import dataclass, field
 from airgate.evaluation.report import SAFETY_CAUTION, Report
 from airgate.evaluation.waivers import EXPIRED, FILE, UNMATCHED, WaiverEntry, WaiverStatus
 
-FAIL_ON = ("fail", "warning")
+#: what ``--fail-on`` may name: ``fail`` (always in force), ``warning`` (also live warnings and
+#: stale waivers), ``declared`` (also limits the schedule declares and misses)
+FAIL_ON = ("fail", "warning", "declared")
+
+
+def fail_on_levels(given: str | Sequence[str] | None) -> tuple[str, ...]:
+    """The ``--fail-on`` levels in force, in :data:`FAIL_ON` order; ``fail`` always is."""
+    names = {given} if isinstance(given, str) else set(given or ())
+    unknown = names - set(FAIL_ON)
+    if unknown:
+        raise ValueError(f"unknown --fail-on level(s): {', '.join(sorted(unknown))}")
+    return tuple(n for n in FAIL_ON if n == "fail" or n in names)
 
 
 @dataclass
@@ -24,7 +35,17 @@ class Batch:
     reports: list[Report]
     #: waivers of a waivers file that match nothing in any schedule of a run of several
     waivers: list[WaiverStatus] = field(default_factory=list)
-    fail_on: str = "fail"
+    #: the ``--fail-on`` levels in force (:func:`fail_on_levels`)
+    fail_on: tuple[str, ...] = ("fail",)
+
+    @property
+    def fail_on_label(self) -> str:
+        """``fail``, ``fail,warning``, ``fail,declared`` …: the gate as written in reports."""
+        return ",".join(self.fail_on)
+
+    def fails_on(self, level: str) -> bool:
+        """Whether ``--fail-on level`` is in force (``fail`` always is)."""
+        return level in self.fail_on
 
     @property
     def single(self) -> bool:
@@ -35,10 +56,12 @@ class Batch:
         return "fail" if any(r.verdict == "fail" for r in self.reports) else "pass"
 
     def counts(self) -> dict[str, int]:
-        out = {"fail": 0, "warning": 0, "info": 0, "waived": 0}
+        """Code findings not waived by severity, declared limits missed, waived findings."""
+        out = {"fail": 0, "warning": 0, "info": 0, "declared": 0, "waived": 0}
         for r in self.reports:
             for k, v in r.counts().items():
                 out[k] += v
+            out["declared"] += r.declared_count()
             out["waived"] += r.waived_count()
         return out
 
@@ -48,12 +71,15 @@ class Batch:
             [s for s in self.waivers if s.stale]
 
     def gate_fails(self) -> bool:
-        """Whether the run fails the gate: a live ``fail`` finding or, with ``--fail-on
-        warning``, also a live warning or a stale waiver."""
+        """Whether the run fails the gate: a live ``fail`` finding of basis code; with
+        ``--fail-on warning`` also a live warning or a stale waiver; with ``--fail-on declared``
+        also a declared limit missed."""
         c = self.counts()
         if c["fail"]:
             return True
-        return self.fail_on == "warning" and bool(c["warning"] or self.stale_waivers())
+        if self.fails_on("declared") and c["declared"]:
+            return True
+        return self.fails_on("warning") and bool(c["warning"] or self.stale_waivers())
 
     def cautions(self) -> list[str]:
         """The safety caution, then every pack caution of the run once, in order."""
@@ -64,10 +90,13 @@ class Batch:
 
 
 def gather(reports: Sequence[Report], file_entries: Sequence[WaiverEntry],
-           fail_on: str = "fail") -> Batch:
-    """Put reports together, moving file waivers that match nothing to the run's own list."""
+           fail_on: str | Sequence[str] | None = "fail") -> Batch:
+    """Put reports together, moving file waivers that match nothing to the run's own list.
+
+    ``fail_on``: the ``--fail-on`` level or levels given (:data:`FAIL_ON`).
+    """
     reports = list(reports)
-    batch = Batch(reports=reports, fail_on=fail_on)
+    batch = Batch(reports=reports, fail_on=fail_on_levels(fail_on))
     if len(reports) <= 1 or not file_entries:
         return batch
     keys = {e.key() for e in file_entries}

@@ -134,7 +134,16 @@ def check_pack_checks(pack: RulePack, known: set[str]) -> None:
     """Every check a pack lists must be one the engine implements (else the pack is wrong)."""
     from airgate.errors import RulePackError
 
+    from airgate.evaluation.checks import DECLARED_CHECKS
+
     for i, check_id in enumerate(pack.checks):
+        if check_id in DECLARED_CHECKS:
+            file, line, column, field = pack.where(("checks", i, "id"))
+            raise RulePackError(
+                f"'{check_id}' judges a limit the schedule declares for itself; it is not a "
+                "check of a rule pack", file=file, line=line, column=column, field=field,
+                hint="remove it from checks: airgate evaluates every limit a schedule "
+                "declares and reports it as a declared finding")
         if check_id not in known:
             file, line, column, field = pack.where(("checks", i, "id"))
             close = nearest(check_id, known)

@@ -1,9 +1,16 @@
-"""The checks the engine implements; the rule pack decides which run, their severity and citation."""
+"""The checks the engine implements; the rule pack decides which run, their severity and citation.
+
+Limits a schedule declares for itself (``project.co2_limit``, a contaminant's ``limit``) are not
+checks of a pack: they are :data:`DECLARED_CHECKS`, always evaluated where a limit is declared,
+reported with basis ``declared`` and credited to the schedule (evaluation/findings.py).
+"""
 
 from __future__ import annotations
 
 from airgate import formatting
-from airgate.evaluation.findings import Amount, Finding, Location
+from collections.abc import Callable
+
+from airgate.evaluation.findings import DECLARED, Amount, Finding, Location
 from airgate.models.rules import RulePack
 
 #: check id → what it verifies (the pack's ``checks`` must be a subset of these)
@@ -21,18 +28,32 @@ KNOWN_CHECKS: dict[str, str] = {
     "population-without-density": "no occupants stated and no default density",
     "diversity-above-one": "system population Ps above ΣPz",
     "zone-air-sum": "outdoor-air system: zone outdoor air sums above the intake",
-    "concentration-limit": "zone concentration (steady or peak over the profile) above a declared limit",
     "short-term-averaging": "population may be averaged over T = 3v/Vbz where the peak is brief",
 }
 
+#: check id → what it verifies, for limits the schedule declares (never listed in a pack)
+DECLARED_CHECKS: dict[str, str] = {
+    "concentration-limit": "zone concentration (steady, or the peak over the design day) at or "
+                           "below the limit the schedule declares",
+}
+
+
+def what_it_verifies(check_id: str) -> str:
+    """What an engine check or a declared check verifies (the id itself when unknown)."""
+    return KNOWN_CHECKS.get(check_id) or DECLARED_CHECKS.get(check_id, check_id)
+
 
 class Emitter:
-    """Collects findings for the checks the pack enables, with the pack's severity and source."""
+    """Collects findings for the checks the pack enables, with the pack's severity and source,
+    and findings of the limits the schedule declares (:meth:`declare`)."""
 
-    def __init__(self, pack: RulePack, units: str) -> None:
+    def __init__(self, pack: RulePack, units: str,
+                 locate: Callable[[tuple], Location] | None = None) -> None:
         self.pack = pack
         self.units = units
         self.findings: list[Finding] = []
+        #: schedule field path → its location (to credit a declared limit to where it is written)
+        self.locate = locate
 
     def enabled(self, check_id: str) -> bool:
         return check_id in self.pack.checks
@@ -47,6 +68,23 @@ class Emitter:
             rule=check_id, severity=severity or check.severity, subject=subject, message=message,
             source=check.source.cite(), location=location, required=required, provided=provided,
             system=system, zone=zone,
+        ))
+
+    def declare(self, check_id: str, subject: str, message: str, location: Location, *,
+                declared_at: tuple, system: str = "", zone: str | None = None,
+                required: Amount | None = None, provided: Amount | None = None) -> None:
+        """A declared limit the subject misses: basis ``declared``, severity ``fail`` (the limit
+        is not met), credited to the schedule field ``declared_at`` that sets it."""
+        field = ".".join(str(p) if not isinstance(p, int) else f"[{p}]" for p in declared_at)
+        field = field.replace(".[", "[")
+        where = self.locate(declared_at) if self.locate is not None else None
+        source = (f"limit declared by the schedule ({field}"
+                  + (f" at {where}" if where is not None else "")
+                  + f"); not a requirement of rule pack {self.pack.id}")
+        self.findings.append(Finding(
+            rule=check_id, severity="fail", subject=subject, message=message, source=source,
+            location=location, required=required, provided=provided, system=system, zone=zone,
+            basis=DECLARED,
         ))
 
     def compare(self, check_id: str, subject: str, what: str, required: float, provided: float,

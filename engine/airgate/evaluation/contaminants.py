@@ -189,16 +189,18 @@ def _coupled_day(system, ctxs, result, c, schedule, trails, vol, vpz, kw) -> Non
         add_day_statistics(t, conc[:, j], times, "concentration", "")
 
 
-def _limit(t: Trail, ctx: ZoneContext, c: Contaminant, emitter: Emitter) -> None:
+def _limit(t: Trail, ctx: ZoneContext, c: Contaminant, index: int, emitter: Emitter) -> None:
+    """The schedule's own limit for contaminant ``index`` (basis ``declared``)."""
     if c.limit is None:
         return
     t.add("C_limit", c.limit, "concentration", origin="schedule", note="declared limit")
     worst = t.value("C_peak") if "C_peak" in t else t.value("C_ss")
     if worst > c.limit * (1 + 1e-9):
-        emitter.emit("concentration-limit", ctx.subject,
-                     f"{c.label or c.id} {worst:.4g} {c.unit}/m³ is above the declared limit of "
-                     f"{c.limit:g} {c.unit}/m³", ctx.location, system=ctx.system_id,
-                     zone=ctx.zone.id)
+        emitter.declare("concentration-limit", ctx.subject,
+                        f"{c.label or c.id} {worst:.4g} {c.unit}/m³ is above the schedule's own "
+                        f"limit of {c.limit:g} {c.unit}/m³", ctx.location,
+                        declared_at=("contaminants", index, "limit"), system=ctx.system_id,
+                        zone=ctx.zone.id)
 
 
 def analyse(system: System, ctxs: list[ZoneContext], result: SystemResult, schedule: Schedule,
@@ -209,7 +211,7 @@ def analyse(system: System, ctxs: list[ZoneContext], result: SystemResult, sched
     """
     if math.isinf(result.trail.value("Vot")):
         return
-    for c in schedule.contaminants:
+    for index, c in enumerate(schedule.contaminants):
         filt = filter_efficiency(system, c, tables[MERV_TABLE])
         if system.kind == "multiple-zone":
             trails = _coupled(system, ctxs, result, c, schedule, filt)
@@ -220,5 +222,5 @@ def analyse(system: System, ctxs: list[ZoneContext], result: SystemResult, sched
         for ctx, z, t in pairs:
             if t is None:
                 continue
-            _limit(t, ctx, c, emitter)
+            _limit(t, ctx, c, index, emitter)
             z.contaminants[c.id] = t

@@ -13,7 +13,8 @@ import math
 from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass
 
-from airgate.evaluation.findings import SEVERITY_RANK, Amount, Finding, Location
+from airgate.evaluation.checks import DECLARED_CHECKS
+from airgate.evaluation.findings import CODE, DECLARED, SEVERITY_RANK, Amount, Finding, Location
 from airgate.evaluation.report import SystemResult, ZoneResult
 from airgate.models.rules import RulePack, SimplifiedEv
 from airgate.models.schedule import Schedule, System
@@ -34,6 +35,12 @@ class CheckCase:
     required: Amount | None = None
     provided: Amount | None = None
     findings: tuple[Finding, ...] = ()
+
+    @property
+    def basis(self) -> str:
+        """``declared`` for a limit the schedule declares itself, else ``code``."""
+        return DECLARED if self.rule in DECLARED_CHECKS or any(
+            f.declared for f in self.findings) else CODE
 
     @property
     def status(self) -> str:
@@ -120,7 +127,8 @@ def _multiple_zone_checks(system: System, zt, result: SystemResult,
 
 def applicable(model: Schedule, pack: RulePack, results: list[SystemResult],
                locate: Callable[[tuple], Location]) -> list[CheckCase]:
-    """Every check the pack runs that applies to each system and zone, in schedule order."""
+    """Every check the pack runs, and every limit the schedule declares, that applies to each
+    system and zone, in schedule order."""
     out: list[CheckCase] = []
     for i, (system, result) in enumerate(zip(model.systems, results)):
         base = ("systems", i)
@@ -131,7 +139,7 @@ def applicable(model: Schedule, pack: RulePack, results: list[SystemResult],
         for j, z in enumerate(result.zones):
             zbase = base + ("zones", j)
             for rule, field, required, provided in _zone_checks(system, z, result, pack):
-                if rule in pack.checks:
+                if rule in pack.checks or rule in DECLARED_CHECKS:
                     out.append(CheckCase(rule, f"{system.id}/{z.id}", system.id, z.id,
                                          locate(zbase + field), required, provided))
     return out

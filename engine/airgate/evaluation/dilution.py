@@ -32,6 +32,7 @@ MB = "well-mixed mass balance (Nazaroff & Alvarez-Cohen 2001, CMFR material bala
 PURGE = ("t = ln(1/(1 − f))/λ; CDC 2003 Guidelines for Environmental Infection Control in "
          "Health-Care Facilities, Appendix B, Table B.1")
 CO2_TABLE = "occupant-co2-generation"
+CO2_LIMIT = ("project", "co2_limit")  #: where the schedule declares its CO2 limit
 STEP_H = 1.0 / 60.0  #: sampling step of the design-day series [h]
 
 
@@ -203,6 +204,7 @@ def _day_series_single(t: Trail, breaks, fractions, name: str) -> Series:
 
 
 def _limit(t: Trail, ctx: ZoneContext, schedule: Schedule, emitter: Emitter) -> None:
+    """The schedule's own CO2 limit (basis ``declared``: it changes no code verdict)."""
     limit = schedule.project.co2_limit
     if limit is None:
         return
@@ -210,9 +212,10 @@ def _limit(t: Trail, ctx: ZoneContext, schedule: Schedule, emitter: Emitter) -> 
         t.value("C_ss"), "steady state at design occupancy")
     t.add("C_limit", limit, "concentration_ppm", origin="schedule", note="declared CO2 limit")
     if worst > limit * (1 + 1e-9):
-        emitter.emit("concentration-limit", ctx.subject,
-                     f"CO2 {worst:,.0f} ppm ({what}) is above the declared limit of "
-                     f"{limit:,.0f} ppm", ctx.location, system=ctx.system_id, zone=ctx.zone.id)
+        emitter.declare("concentration-limit", ctx.subject,
+                        f"CO2 {worst:,.0f} ppm ({what}) is above the schedule's own limit of "
+                        f"{limit:,.0f} ppm", ctx.location, declared_at=CO2_LIMIT,
+                        system=ctx.system_id, zone=ctx.zone.id)
 
 
 def _outdoor_air_to_zone(system: System, ctx: ZoneContext, z: ZoneResult,
@@ -237,9 +240,10 @@ def _single_path(system, ctxs, result, schedule, emitter, out, table) -> None:
             t.add("Q_oa", 0.0, "airflow", note="no outdoor air reaches the zone: CO2 rises "
                   "without bound while it is occupied (no steady state)")
             if schedule.project.co2_limit is not None and t.value("G") > 0:
-                emitter.emit("concentration-limit", ctx.subject, "no outdoor air reaches the "
-                             "occupied zone: CO2 rises without bound, above any limit",
-                             ctx.location, system=ctx.system_id, zone=z.id)
+                emitter.declare("concentration-limit", ctx.subject, "no outdoor air reaches "
+                                "the occupied zone: CO2 rises without bound, above the "
+                                "schedule's own limit", ctx.location, declared_at=CO2_LIMIT,
+                                system=ctx.system_id, zone=z.id)
             z.dilution = t
             out.append(z)
             continue

@@ -11,7 +11,7 @@ from collections.abc import Sequence
 
 from airgate.errors import AirgateError, raise_all
 from airgate.evaluation import bind, contaminants, coverage, dilution, systems, waivers
-from airgate.evaluation.checks import KNOWN_CHECKS, Emitter
+from airgate.evaluation.checks import DECLARED_CHECKS, KNOWN_CHECKS, Emitter
 from airgate.evaluation.findings import Location
 from airgate.evaluation.requirements import Run as RequirementRun
 from airgate.evaluation.report import SAFETY_CAUTION, Report, SystemResult
@@ -91,12 +91,12 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
     """
     bind.check_pack_checks(pack, set(KNOWN_CHECKS))
     entries = [*waivers.from_schedule(loaded), *extra_waivers]
-    # a waiver may name an engine check or one of the pack's declared requirements
-    raise_all(waivers.rule_errors(entries, [*KNOWN_CHECKS, *pack.requirements]))
+    # a waiver may name an engine check, a declared limit's check or a requirement of the pack
+    raise_all(waivers.rule_errors(entries, [*KNOWN_CHECKS, *DECLARED_CHECKS, *pack.requirements]))
     units = loaded.model.project.units
     run = RequirementRun(pack, loaded)
     bound = _bind_all(loaded, pack, tables, run)
-    emitter = Emitter(pack, units)
+    emitter = Emitter(pack, units, lambda path: _location(loaded, path))
     results = []
     for i, (system, ctxs) in enumerate(zip(loaded.model.systems, bound)):
         where = _location(loaded, ("systems", i))
@@ -136,7 +136,9 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
 
 
 def _verdicts(results: list[SystemResult], findings) -> None:
-    live = [f for f in findings if f.severity == "fail" and not f.waived]
+    """Zone and system verdicts: a live ``fail`` finding of basis ``code`` fails its subject;
+    a declared limit missed changes no verdict."""
+    live = [f for f in findings if f.severity == "fail" and not f.waived and not f.declared]
     failing = {f.subject for f in live}
     failing_systems = {f.system for f in live}
     for s in results:

@@ -1,10 +1,20 @@
-"""Findings: what a check concluded about a subject, with required vs provided and the source."""
+"""Findings: what a check concluded about a subject, with required vs provided and the source.
+
+Every finding has a basis. ``code``: a requirement of the rule pack (the standard or the
+jurisdiction's code, as the pack encodes it); only these set the zone, system and report
+verdicts and the exit status. ``declared``: a limit or target the schedule sets for itself (a CO2
+limit, a contaminant limit); it is reported in its own section, credited to the schedule, and
+gates the run only under ``--fail-on declared``.
+"""
 
 from __future__ import annotations
 
 from dataclasses import dataclass, field
 
 SEVERITY_RANK = {"fail": 0, "warning": 1, "info": 2}
+CODE = "code"
+DECLARED = "declared"
+BASES = (CODE, DECLARED)
 
 
 @dataclass(frozen=True)
@@ -56,11 +66,18 @@ class Finding:
     extra: dict[str, str] = field(default_factory=dict)
     #: set when an approved alternative covers the finding: it stays in every report, marked
     waiver: WaiverMark | None = None
+    #: ``code`` (a requirement of the pack) or ``declared`` (a limit the schedule sets itself)
+    basis: str = CODE
 
     @property
     def waived(self) -> bool:
         return self.waiver is not None
 
+    @property
+    def declared(self) -> bool:
+        return self.basis == DECLARED
+
     def sort_key(self) -> tuple:
-        return (SEVERITY_RANK[self.severity], self.location.file, self.location.line or 0,
-                self.location.column or 0, self.rule, self.subject)
+        """Code findings first, then declared ones; each by severity, position, rule, subject."""
+        return (BASES.index(self.basis), SEVERITY_RANK[self.severity], self.location.file,
+                self.location.line or 0, self.location.column or 0, self.rule, self.subject)

@@ -71,17 +71,31 @@ class Report:
 
     @property
     def verdict(self) -> str:
-        """``fail`` when a finding of severity fail is not waived."""
-        return "fail" if any(f.severity == "fail" and not f.waived for f in self.findings) \
-            else "pass"
+        """``fail`` when a finding of basis code and severity fail is not waived."""
+        return "fail" if any(f.severity == "fail" and not f.waived
+                             for f in self.code_findings) else "pass"
+
+    @property
+    def code_findings(self) -> list[Finding]:
+        """Findings on the requirements of the pack (basis ``code``), in report order."""
+        return [f for f in self.findings if not f.declared]
+
+    @property
+    def declared_findings(self) -> list[Finding]:
+        """Limits the schedule declares for itself and misses (basis ``declared``)."""
+        return [f for f in self.findings if f.declared]
 
     def counts(self) -> dict[str, int]:
-        """Findings that are not waived, by severity."""
+        """Code findings that are not waived, by severity."""
         out = {"fail": 0, "warning": 0, "info": 0}
-        for f in self.findings:
+        for f in self.code_findings:
             if not f.waived:
                 out[f.severity] += 1
         return out
+
+    def declared_count(self) -> int:
+        """Declared limits missed (findings of basis ``declared`` that are not waived)."""
+        return sum(1 for f in self.declared_findings if not f.waived)
 
     def waived_count(self) -> int:
         return sum(1 for f in self.findings if f.waived)

@@ -15,6 +15,7 @@ from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 
 from airgate.errors import AirgateError, ScheduleError, nearest
+from airgate.evaluation.checks import DECLARED_CHECKS
 from airgate.evaluation.findings import Finding, Location, WaiverMark
 from airgate.models.rules import RulePack
 from airgate.models.waivers import Waiver
@@ -104,7 +105,8 @@ def rule_errors(entries: Iterable[WaiverEntry], known: Iterable[str]) -> list[Ai
 
 
 def _unmatched(w: Waiver, pack: RulePack, subjects: Sequence[str]) -> str:
-    if w.rule not in pack.checks and w.rule not in pack.requirements:
+    if w.rule not in pack.checks and w.rule not in pack.requirements \
+            and w.rule not in DECLARED_CHECKS:
         return f"rule pack {pack.id} does not run check '{w.rule}'"
     if w.subject not in subjects:
         close = nearest(w.subject, subjects)

@@ -61,7 +61,9 @@ def _text_summary(batch: Batch) -> str:
         c = r.counts()
         out.append(f"  {r.verdict.upper():<5} {clean(r.schedule_file):<{width}}  "
                    f"{c['fail']} fail · {c['warning']} warning · {c['info']} info · "
-                   f"{r.waived_count()} waived")
+                   f"{r.waived_count()} waived"
+                   + (f" · {r.declared_count()} declared limits missed"
+                      if r.declared_count() else ""))
     if batch.waivers:
         out += ["", "Waivers of the waivers file"]
         out += [f"  {shared.STATE_LABEL[s.state]:<10}{clean(shared.status_line(s))}"
@@ -69,6 +71,8 @@ def _text_summary(batch: Batch) -> str:
     c = batch.counts()
     out += ["", f"Result: {batch.verdict.upper()} — {failing} of {len(batch.reports)} schedules "
                 f"fail; {c['fail']} failing, {c['warning']} warning, {c['info']} info, "
-                f"{c['waived']} waived findings.", "", "Cautions"]
+                f"{c['waived']} waived findings"
+                + (f"; {c['declared']} declared limits missed (not a verdict)"
+                   if c["declared"] else "") + ".", "", "Cautions"]
     out += [f"  - {x}" for x in batch.cautions()[:1]]
     return "\n".join(out) + "\n"

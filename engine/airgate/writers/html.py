@@ -17,7 +17,7 @@ from pathlib import PurePath
 
 from airgate import __version__, formatting, units
 from airgate.evaluation.batch import Batch
-from airgate.evaluation.findings import Amount, Finding
+from airgate.evaluation.findings import DECLARED, Amount, Finding
 from airgate.evaluation.report import Report, SystemResult, ZoneResult
 from airgate.evaluation.trail import Step, Trail
 from airgate.writers import html_svg, shared
@@ -99,10 +99,23 @@ _ITEMS_HEAD = ('<tr><th>subject</th><th>check</th><th class="n">required</th>'
 
 
 def _failing(report: Report, pid: str) -> str:
-    live = [f for f in report.findings if not f.waived and f.severity in ("fail", "warning")]
+    live = [f for f in report.code_findings
+            if not f.waived and f.severity in ("fail", "warning")]
     body = (f"<table>{_ITEMS_HEAD}{_items_rows(report, live)}</table>" if live else
             '<p class="none">Nothing fails: every check passes.</p>')
-    return f'<section id="{pid}-failing"><h2>What fails ({len(live)})</h2>{body}</section>'
+    return (f'<section id="{pid}-failing"><h2>What fails ({len(live)})</h2>{body}</section>'
+            + _declared(report, pid))
+
+
+def _declared(report: Report, pid: str) -> str:
+    """Limits the schedule declares for itself, after the code findings (no verdict)."""
+    if not any(c.basis == DECLARED for c in report.cases) and not report.declared_findings:
+        return ""
+    live = [f for f in report.declared_findings if not f.waived]
+    table = f"<table>{_ITEMS_HEAD}{_items_rows(report, live)}</table>" if live else ""
+    return (f'<section id="{pid}-declared"><h2>{esc(shared.DECLARED_HEADING)}: '
+            f"{esc(shared.declared_summary(report))}</h2><p class=\"small\">"
+            f"{esc(shared.DECLARED_NOTE)}</p>{table}</section>")
 
 
 # --- outdoor air per zone --------------------------------------------------------------------
@@ -173,7 +186,7 @@ def _chart(report: Report, pid: str) -> str:
 def _checks_table(report: Report, s: SystemResult) -> str:
     u = report.units
     rows = []
-    for c in [c for c in report.cases if c.system == s.id]:
+    for c in [c for c in report.cases if c.system == s.id and c.basis != DECLARED]:
         if c.required is None and c.provided is None and c.status == "pass":
             continue  # passing checks without quantities are counted below, not listed
         rel = shared.relative_margin(c.required, c.provided)
@@ -186,7 +199,7 @@ def _checks_table(report: Report, s: SystemResult) -> str:
                     f'<td class="n"><span{cls}>{esc(shared.margin(c.required, c.provided, u))}'
                     f"</span></td><td>{_badge(c.status)}</td></tr>")
     quiet = sum(1 for c in report.cases if c.system == s.id and c.status == "pass"
-                and c.required is None and c.provided is None)
+                and c.basis != DECLARED and c.required is None and c.provided is None)
     note = (f'<p class="small">{quiet} further checks without quantities pass (air classes, '
             "rates, stated distribution, populations).</p>" if quiet else "")
     return ('<table><tr><th>subject</th><th>check</th><th class="n">required</th>'
@@ -339,7 +352,7 @@ def _provenance(report: Report, pid: str) -> str:
                    for (sym, val, src), subs in values.items())
     eqs = "".join(f"<tr><td>{esc(', '.join(syms))}</td><td>{esc(src)}</td></tr>"
                   for src, syms in cited.items())
-    ran = sorted({c.rule for c in report.cases}, key=list(report.pack.checks).index)
+    ran = [r for r in report.pack.checks if r in {c.rule for c in report.cases}]
     checks = "".join(f"<tr><td><code>{esc(r)}</code></td><td>{esc(report.pack.checks[r].severity)}"
                      f"</td><td>{esc(shared.check_source(report, r))}</td></tr>"
                      for r in ran if r in report.pack.checks)
@@ -386,7 +399,7 @@ def _status_table(statuses) -> str:
 
 
 def _notes(report: Report, pid: str) -> str:
-    info = [f for f in report.findings if f.severity == "info" and not f.waived]
+    info = [f for f in report.code_findings if f.severity == "info" and not f.waived]
     parts = []
     if info:
         parts.append(f"<details><summary>{len(info)} notes from the checks</summary><table>"

@@ -110,7 +110,8 @@ def _amount(a: Amount | None, system: str) -> dict[str, Any] | None:
 
 def _finding(f: Finding, system: str) -> dict[str, Any]:
     return {
-        "rule": f.rule, "severity": f.severity, "subject": f.subject, "system": f.system,
+        "rule": f.rule, "severity": f.severity, "basis": f.basis, "subject": f.subject,
+        "system": f.system,
         "zone": f.zone, "message": f.message,
         "required": _amount(f.required, system), "provided": _amount(f.provided, system),
         "source": f.source, "location": _location(f.location),
@@ -141,7 +142,8 @@ def to_dict(report: Report, series_step: int = 0) -> dict[str, Any]:
         "rules": {"id": pack.id, "title": pack.title, "document": pack.document,
                   "edition": pack.edition, "units": pack.units, "provenance": pack.provenance,
                   "verify": pack.verify},
-        "summary": {**report.counts(), "waived": report.waived_count()},
+        "summary": {**report.counts(), "declared": report.declared_count(),
+                    "waived": report.waived_count()},
         "systems": [_system(s, system, series_step) for s in report.systems],
         "findings": [_finding(f, system) for f in report.findings],
         "waivers": [waiver_status(s) for s in report.waivers],

@@ -2,11 +2,13 @@
 
 Every check that applied to a subject is a test case, passes included (evaluation/coverage.py).
 A case fails when it has a finding at or above the run's ``--fail-on`` severity that is not
-waived; its ``<failure>`` says required vs provided, the margin, the source and where in the
-schedule. A waived finding is a ``<skipped>`` case with the waiver's reason. Waivers themselves
-are cases too (a stale waiver fails under ``--fail-on warning``). The document uses only the
-elements and attributes common to JUnit consumers (testsuites, testsuite, properties, testcase,
-failure, skipped, system-out); it has no timestamps or durations, so it is deterministic.
+waived (a limit the schedule declares for itself, classname ``STEM.declared``, only under
+``--fail-on declared``); its ``<failure>`` says required vs provided, the margin, the source and
+where in the schedule. A waived finding is a ``<skipped>`` case with the waiver's reason.
+Waivers themselves are cases too (a stale waiver fails under ``--fail-on warning``). The document
+uses only the elements and attributes common to JUnit consumers (testsuites, testsuite,
+properties, testcase, failure, skipped, system-out); it has no timestamps or durations, so it is
+deterministic.
 """
 
 from __future__ import annotations
@@ -18,6 +20,7 @@ from pathlib import PurePath
 from airgate import __version__
 from airgate.evaluation.batch import Batch
 from airgate.evaluation.coverage import CheckCase
+from airgate.evaluation.findings import DECLARED
 from airgate.evaluation.report import Report
 from airgate.evaluation.waivers import WaiverStatus
 from airgate.writers import shared
@@ -38,8 +41,12 @@ def _el(parent: ET.Element, tag: str, text: str | None = None, **attrs: object) 
     return e
 
 
-def _failing(case: CheckCase, fail_on: str) -> bool:
-    return case.status == "fail" or (case.status == "warning" and fail_on == "warning")
+def _failing(case: CheckCase, fail_on: tuple[str, ...]) -> bool:
+    """A live ``fail`` (of a declared limit only under ``--fail-on declared``), or a live
+    warning under ``--fail-on warning``."""
+    if case.basis == DECLARED:
+        return case.status == "fail" and "declared" in fail_on
+    return case.status == "fail" or (case.status == "warning" and "warning" in fail_on)
 
 
 def _finding_lines(report: Report, case: CheckCase) -> list[str]:
@@ -53,13 +60,14 @@ def _finding_lines(report: Report, case: CheckCase) -> list[str]:
         out.append(f"required: {shared.amount(case.required, u)}")
         out.append(f"provided: {shared.amount(case.provided, u)}")
         out.append(f"margin: {shared.margin(case.required, case.provided, u)}")
-    out.append(f"source: {shared.check_source(report, case.rule)}")
+    own = next((f.source for f in case.findings if f.declared), None)
+    out.append(f"source: {own or shared.check_source(report, case.rule)}")
     out.append(f"at: {case.location}")
     return out
 
 
 def _case(suite: ET.Element, report: Report, case: CheckCase, classname: str,
-          fail_on: str) -> str:
+          fail_on: tuple[str, ...]) -> str:
     tc = _el(suite, "testcase", name=f"{case.subject} {case.rule}", classname=classname)
     lines = _finding_lines(report, case)
     if _failing(case, fail_on):
@@ -75,11 +83,12 @@ def _case(suite: ET.Element, report: Report, case: CheckCase, classname: str,
     return "pass"
 
 
-def _waiver_case(suite: ET.Element, s: WaiverStatus, classname: str, fail_on: str) -> str:
+def _waiver_case(suite: ET.Element, s: WaiverStatus, classname: str,
+                 fail_on: tuple[str, ...]) -> str:
     w = s.entry.waiver
     tc = _el(suite, "testcase", name=f"waiver {w.subject} {w.rule}", classname=classname)
     line = shared.status_line(s)
-    if s.stale and fail_on == "warning":
+    if s.stale and "warning" in fail_on:
         _el(tc, "failure", line, message=f"waiver {s.state}: {s.detail}",
             type=f"waiver-{s.state}")
         return "failure"
@@ -102,15 +111,18 @@ def _finish(suite: ET.Element, outcomes: list[str]) -> tuple[int, int, int]:
     return tests, failures, skipped
 
 
-def _suite(root: ET.Element, report: Report, fail_on: str) -> tuple[int, int, int]:
+def _suite(root: ET.Element, report: Report, fail_on: tuple[str, ...]) -> tuple[int, int, int]:
     suite = _el(root, "testsuite", name=f"{report.schedule_file} — {report.project_name}")
     _properties(suite, [("schedule", report.schedule_file), ("project", report.project_name),
                         ("rule_pack", report.pack.id), ("units", report.units),
-                        ("verdict", report.verdict), ("fail_on", fail_on)]
+                        ("verdict", report.verdict), ("fail_on", ",".join(fail_on))]
                 + ([("waivers_judged_on", report.waiver_date)] if report.waiver_date else [])
                 + [("caution", c) for c in report.cautions])
     stem = PurePath(report.schedule_file).stem
-    outcomes = [_case(suite, report, c, f"{stem}.{c.system}", fail_on) for c in report.cases]
+    code = [c for c in report.cases if c.basis != DECLARED]
+    declared = [c for c in report.cases if c.basis == DECLARED]  # own class, after the code
+    outcomes = [_case(suite, report, c, f"{stem}.{c.system}", fail_on) for c in code]
+    outcomes += [_case(suite, report, c, f"{stem}.declared", fail_on) for c in declared]
     outcomes += [_waiver_case(suite, s, f"{stem}.waivers", fail_on) for s in report.waivers]
     return _finish(suite, outcomes)
 

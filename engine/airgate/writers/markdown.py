@@ -12,7 +12,7 @@ import re
 
 from airgate import __version__
 from airgate.evaluation.batch import Batch
-from airgate.evaluation.findings import Amount, Finding
+from airgate.evaluation.findings import DECLARED, Amount, Finding
 from airgate.evaluation.report import Report, SystemResult
 from airgate.writers import shared
 
@@ -77,7 +77,8 @@ def _items_table(report: Report, items: list[Finding]) -> list[str]:
 
 
 def _failing(report: Report) -> list[str]:
-    live = [f for f in report.findings if not f.waived and f.severity in ("fail", "warning")]
+    live = [f for f in report.code_findings
+            if not f.waived and f.severity in ("fail", "warning")]
     if not live:
         return ["No failing items."]
     shown = live[:MAX_ITEMS]
@@ -87,6 +88,21 @@ def _failing(report: Report) -> list[str]:
                    f" _({md(f.source)})_")
     if len(live) > len(shown):
         out.append(f"- … and {len(live) - len(shown)} more: see the full report")
+    return out
+
+
+def _declared(report: Report) -> list[str]:
+    """Limits the schedule declares for itself, after the code findings (no verdict)."""
+    if not any(c.basis == DECLARED for c in report.cases) and not report.declared_findings:
+        return []
+    live = [f for f in report.declared_findings if not f.waived]
+    out = ["", f"#### {shared.DECLARED_HEADING}: {md(shared.declared_summary(report))}", "",
+           f"_{md(shared.DECLARED_NOTE)}_"]
+    if live:
+        out += [""] + [f"- **MISSED {md(f.subject)}** `{f.rule}` — {md(f.message)} "
+                       f"_({md(f.source)})_" for f in live[:MAX_ITEMS]]
+        if len(live) > MAX_ITEMS:
+            out.append(f"- … and {len(live) - MAX_ITEMS} more: see the full report")
     return out
 
 
@@ -108,7 +124,7 @@ def _waived(report: Report) -> list[str]:
 
 
 def _notes(report: Report) -> list[str]:
-    info = [f for f in report.findings if not f.waived and f.severity == "info"]
+    info = [f for f in report.code_findings if not f.waived and f.severity == "info"]
     if not info:
         return []
     out = ["", f"<details><summary>{len(info)} notes</summary>", ""]
@@ -125,8 +141,11 @@ def _report(report: Report, level: str = "###") -> list[str]:
            f"{md(report.schedule_file, line_start=True)} · rule pack {md(report.pack.id)} · {report.units} units",
            "",
            f"{c['fail']} failing · {c['warning']} warnings · {c['info']} notes · "
-           f"{report.waived_count()} waived", ""]
-    out += _systems_table(report) + [""] + _failing(report) + _waived(report) + _notes(report)
+           f"{report.waived_count()} waived"
+           + (f" · {report.declared_count()} declared limits missed"
+              if report.declared_count() else ""), ""]
+    out += (_systems_table(report) + [""] + _failing(report) + _declared(report)
+            + _waived(report) + _notes(report))
     return out
 
 

@@ -5,7 +5,9 @@ with help text and citation. Each finding is a result located by file, line and 
 ``partialFingerprints`` come from rule and subject only, so a result keeps its identity when the
 schedule's lines move. A waived finding carries a suppression (``inSource`` for a schedule's own
 waiver, ``external`` for a waivers file) with the reason as justification. Stale waivers are
-tool notifications. No timestamps or random ids: the log is deterministic.
+tool notifications. A limit the schedule declares for itself is a result with
+``properties.basis`` ``declared``, after every code result, at level ``warning`` (``error`` under
+``--fail-on declared``). No timestamps or random ids: the log is deterministic.
 """
 
 from __future__ import annotations
@@ -18,7 +20,7 @@ from urllib.parse import quote
 
 from airgate import __version__
 from airgate.evaluation.batch import Batch
-from airgate.evaluation.checks import KNOWN_CHECKS
+from airgate.evaluation.checks import DECLARED_CHECKS, KNOWN_CHECKS
 from airgate.evaluation.findings import Finding, Location
 from airgate.evaluation.report import SAFETY_CAUTION, Report
 from airgate.evaluation.waivers import SCHEDULE, WaiverStatus
@@ -80,7 +82,20 @@ def _rules(batch: Batch) -> list[dict[str, Any]]:
                     "citations": [], "verifies": KNOWN_CHECKS.get(check.id, check.title)}
             if cite not in rule["citations"]:
                 rule["citations"].append(cite)
+    for check_id, verifies in DECLARED_CHECKS.items():  # limits the schedules declare, after
+        if any(c.rule == check_id for r in batch.reports for c in r.cases) or any(
+                f.rule == check_id for r in batch.reports for f in r.findings):
+            seen[check_id] = {"id": check_id, "title": f"Declared limit: {verifies}",
+                              "level": _declared_level(batch), "verifies": verifies,
+                              "citations": ["the limit the schedule declares (not a "
+                                            "requirement of any rule pack)"],
+                              "tags": ["declared"]}
     return [_rule(r) for r in seen.values()]
+
+
+def _declared_level(batch: Batch) -> str:
+    """A declared limit missed is an error only under ``--fail-on declared``."""
+    return "error" if batch.fails_on("declared") else "warning"
 
 
 def _rule(r: dict[str, Any]) -> dict[str, Any]:
@@ -96,7 +111,7 @@ def _rule(r: dict[str, Any]) -> dict[str, Any]:
         "help": {"text": _s(text), "markdown": _s(md)},
         "defaultConfiguration": {"level": r["level"]},
         "properties": {"citation": [_s(c) for c in r["citations"]],
-                       "tags": ["ventilation", "airgate"]},
+                       "tags": ["ventilation", "airgate", *r.get("tags", [])]},
     }
 
 
@@ -108,7 +123,7 @@ def _suppression(f: Finding, artifacts: dict[str, int]) -> dict[str, Any]:
 
 
 def _result(report: Report, f: Finding, rule_index: dict[str, int],
-            artifacts: dict[str, int]) -> dict[str, Any]:
+            artifacts: dict[str, int], declared_level: str) -> dict[str, Any]:
     u = report.units
     text = f.message
     if f.required is not None or f.provided is not None:
@@ -119,13 +134,14 @@ def _result(report: Report, f: Finding, rule_index: dict[str, int],
     logical = {"name": _s(f.zone or f.system or f.subject), "fullyQualifiedName": _s(f.subject),
                "kind": "object"}
     out: dict[str, Any] = {
-        "ruleId": f.rule, "ruleIndex": rule_index[f.rule], "level": LEVEL[f.severity],
+        "ruleId": f.rule, "ruleIndex": rule_index[f.rule],
+        "level": declared_level if f.declared else LEVEL[f.severity],
         "message": {"text": _s(text)},
         "locations": [{"physicalLocation": _physical(f.location, artifacts),
                        "logicalLocations": [logical]}],
         "partialFingerprints": {FINGERPRINT: fingerprint(f.rule, f.subject)},
         "suppressions": [_suppression(f, artifacts)] if f.waiver is not None else [],
-        "properties": {"subject": _s(f.subject), "severity": f.severity,
+        "properties": {"subject": _s(f.subject), "severity": f.severity, "basis": f.basis,
                        "required": shared.amount(f.required, u),
                        "provided": shared.amount(f.provided, u), "source": _s(f.source),
                        "rulePack": report.pack.id},
@@ -153,7 +169,11 @@ def to_dict(batch: Batch) -> dict[str, Any]:
     rule_index = {r["id"]: i for i, r in enumerate(rules)}
     files = _artifacts(batch)
     artifacts = {f: i for i, f in enumerate(files)}
-    results = [_result(r, f, rule_index, artifacts) for r in batch.reports for f in r.findings]
+    level = _declared_level(batch)
+    results = [_result(r, f, rule_index, artifacts, level) for r in batch.reports
+               for f in r.code_findings]
+    results += [_result(r, f, rule_index, artifacts, level) for r in batch.reports
+                for f in r.declared_findings]  # the declared limits after every code finding
     stale = batch.stale_waivers()
     return {
         "$schema": SCHEMA_URI,

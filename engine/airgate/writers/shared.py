@@ -9,8 +9,8 @@ from __future__ import annotations
 import math
 
 from airgate import formatting
-from airgate.evaluation.checks import KNOWN_CHECKS
-from airgate.evaluation.findings import Amount, WaiverMark
+from airgate.evaluation.checks import DECLARED_CHECKS, what_it_verifies
+from airgate.evaluation.findings import DECLARED, Amount, WaiverMark
 from airgate.evaluation.report import Report
 from airgate.evaluation.waivers import WaiverStatus
 
@@ -44,15 +44,36 @@ def relative_margin(required: Amount | None, provided: Amount | None) -> float |
     return (provided.value - required.value) / required.value
 
 
+#: heading of the section of declared findings, in every format
+DECLARED_HEADING = "Limits the schedule declares"
+#: what that section is, in every format
+DECLARED_NOTE = ("the schedule's own limits, not requirements of the rule pack: they change "
+                 "no verdict, and fail the run only with --fail-on declared")
+
+
 def check_title(report: Report, rule: str) -> str:
     """The pack's title of a check, or what the engine says it verifies."""
     check = report.pack.checks.get(rule)
-    return check.title if check is not None else KNOWN_CHECKS.get(rule, rule)
+    return check.title if check is not None else what_it_verifies(rule)
 
 
 def check_source(report: Report, rule: str) -> str:
+    """The pack's citation of a check; for a declared limit, the schedule that declares it."""
     check = report.pack.checks.get(rule)
-    return check.source.cite() if check is not None else ""
+    if check is not None:
+        return check.source.cite()
+    if rule in DECLARED_CHECKS:
+        return f"limit declared by the schedule {report.schedule_file}"
+    return ""
+
+
+def declared_summary(report: Report) -> str:
+    """``1 missed`` (or ``none missed``) of the declared limits checked, with what they are."""
+    checked = sum(1 for c in report.cases if c.basis == DECLARED)
+    missed = report.declared_count()
+    waived = sum(1 for f in report.declared_findings if f.waived)
+    return (f"{missed or 'none'} missed of {checked} checked"
+            + (f", {waived} waived" if waived else ""))
 
 
 def approval(mark: WaiverMark) -> str:

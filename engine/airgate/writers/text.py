@@ -6,6 +6,7 @@ import math
 import re
 
 from airgate import __version__, formatting, units
+from airgate.evaluation.findings import DECLARED
 from airgate.evaluation.report import Report, SystemResult
 from airgate.writers import shared
 
@@ -134,6 +135,29 @@ def _dilution_rows(s: SystemResult, system: str) -> list[str]:
     return out + _table(rows, right=set(range(1, len(head))))
 
 
+def _findings(findings: list, label: str | None = None) -> list[str]:
+    """Each finding: severity (or ``label``), subject, rule; message; where and source."""
+    out = []
+    for f in findings:
+        out.append(f"  {label or f.severity.upper():<8}{clean(f.subject)}  [{f.rule}]"
+                   + ("  WAIVED" if f.waived else ""))
+        out.append(f"      {clean(f.message)}")
+        out.append(f"      at {clean(f.location)} · {clean(f.source)}")
+        if f.waiver is not None:
+            out.append(f"      {clean(shared.waived_line(f.waiver))}")
+    return out
+
+
+def _declared(report: Report) -> list[str]:
+    """The limits the schedule declares for itself: after the code findings, never a verdict."""
+    if not any(c.basis == DECLARED for c in report.cases) and not report.declared_findings:
+        return []
+    out = [f"{shared.DECLARED_HEADING} — {shared.declared_summary(report)}",
+           f"    ({shared.DECLARED_NOTE})"]
+    out += _findings(report.declared_findings, "MISSED")
+    return out + [""]
+
+
 def _waivers(report: Report) -> list[str]:
     if not report.waivers:
         return []
@@ -180,16 +204,11 @@ def render(report: Report) -> str:
     waived = report.waived_count()
     out.append(f"Findings — {c['fail']} fail, {c['warning']} warning, {c['info']} info"
                + (f", {waived} waived" if waived else ""))
-    if not report.findings:
+    if not report.code_findings:
         out.append("    none")
-    for f in report.findings:
-        out.append(f"  {f.severity.upper():<8}{clean(f.subject)}  [{f.rule}]"
-                   + ("  WAIVED" if f.waived else ""))
-        out.append(f"      {clean(f.message)}")
-        out.append(f"      at {clean(f.location)} · {f.source}")
-        if f.waiver is not None:
-            out.append(f"      {clean(shared.waived_line(f.waiver))}")
+    out += _findings(report.code_findings)
     out.append("")
+    out += _declared(report)
     out += _waivers(report)
     failing = sum(1 for s in report.systems if s.verdict == "fail")
     out.append(f"Result: {report.verdict.upper()} — {failing} of {len(report.systems)} systems "
