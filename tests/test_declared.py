@@ -2,11 +2,11 @@
 
 The design below passes its code check: an office of 1,000 ft² with 5 people needs
 Vbz = 5 cfm/person × 5 + 0.06 cfm/ft² × 1,000 ft² = 85 cfm (ANSI/ASHRAE Standard 62.1-2019,
-Table 6.2.2.1, office space; Ez = 1.0 for ceiling supply of cool air, Table 6.2.2.2) and gets
-100 cfm. Its steady CO2 is C_out + 10⁶·G/Q (well-mixed steady-state mass balance; ASTM D6245-18,
-Section 5, from memory): G = 5 × 0.0052 L/s = 0.026 L/s (the generation the schedule states),
-Q = 100 cfm = 47.1947 L/s (1 cfm = 0.3048³ m³/min exactly, NIST SP 811), so C = 420 + 550.9 =
-970.9 ppm — above a declared limit of 900 ppm, below one of 1,000 ppm.
+Table 6-1, office space; Ez = 1.0 for ceiling supply of cool air, Table 6-2) and gets 100 cfm.
+Its steady CO2 is C_out + 10⁶·G/Q (the steady state of the completely mixed balance, Nazaroff &
+Alvarez-Cohen 2001, docs/references.md): G = 5 × 0.0052 L/s = 0.026 L/s (the generation the
+schedule states), Q = 100 cfm = 47.1947 L/s (1 ft = 0.3048 m exactly; common practice), so
+C = 420 + 550.9 = 970.9 ppm — above a declared limit of 900 ppm, below one of 1,000 ppm.
 """
 
 from __future__ import annotations

@@ -42,9 +42,10 @@ def register(sub) -> None:
                    help="judge waiver expiry on this date (default: today)")
     c.add_argument("--fail-on", choices=FAIL_ON, action="append",
                    metavar="{" + ",".join(FAIL_ON) + "}",
-                   help="what fails the run besides a failing code finding (repeatable): "
-                        "warning (also warnings and stale waivers), declared (also limits the "
-                        "schedule declares for itself and misses); default: fail")
+                   help=f"what fails the run, repeatable: {', '.join(FAIL_ON)} (default "
+                        f"{FAIL_ON[0]}: a failing code finding; warning: also warnings and "
+                        "stale waivers; declared: also limits the schedule declares for itself "
+                        "and misses)")
     c.add_argument("--exit-zero", action="store_true",
                    help="exit 0 even when findings fail (input errors still exit 2)")
     c.add_argument("--series-step", type=int, default=0, metavar="MINUTES",
