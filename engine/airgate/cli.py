@@ -14,7 +14,8 @@ from collections.abc import Sequence
 
 from airgate import __version__
 from airgate.commands import COMMANDS
-from airgate.errors import EXIT_INPUT, EXIT_PASS, AirgateError
+from airgate.writers.output import Interrupted
+from airgate.errors import EXIT_INPUT, AirgateError, OutputError
 
 EXIT_INTERNAL = 3
 
@@ -57,20 +58,45 @@ def main(argv: Sequence[str] | None = None) -> int:
     """Entry point of the ``airgate`` console script; never shows a traceback for bad input."""
     try:
         return run(argv)
+    except BrokenPipeError as exc:
+        # the reader of standard output left: the report is incomplete, so the run cannot pass
+        _quiet_stdout()
+        sys.stderr.write(_pipe_error(exc).render() + "\n")
+        return EXIT_INPUT
     except AirgateError as exc:
+        if isinstance(exc, OutputError) and getattr(exc, "path", None) == "-":
+            _quiet_stdout()
         sys.stderr.write(exc.render() + "\n")
         return exc.exit_code
     except KeyboardInterrupt:
         sys.stderr.write("airgate: interrupted\n")
         return EXIT_INPUT
-    except BrokenPipeError:
-        return EXIT_PASS
+    except Interrupted as exc:  # temporary files are already removed
+        sys.stderr.write(f"airgate: stopped by signal {exc.signum}; no file was replaced\n")
+        return exc.exit_code
     except Exception as exc:  # a bug: say so briefly; AIRGATE_DEBUG=1 shows the traceback
         if os.environ.get("AIRGATE_DEBUG"):
             raise
         sys.stderr.write(f"airgate: internal error: {type(exc).__name__}: {exc}\n"
                          "  this is a bug in airgate; rerun with AIRGATE_DEBUG=1 and report it\n")
         return EXIT_INTERNAL
+
+
+def _pipe_error(exc: OSError) -> OutputError:
+    from airgate.writers.output import STDOUT, write_error
+
+    return write_error(STDOUT, exc)
+
+
+def _quiet_stdout() -> None:
+    """Point standard output at /dev/null so the interpreter's final flush of a closed pipe
+    does not print a second error (Python docs, "Note on SIGPIPE")."""
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        os.close(devnull)
+    except (OSError, ValueError, AttributeError):
+        pass  # no file descriptor (a test's captured stdout): nothing to flush
 
 
 if __name__ == "__main__":  # pragma: no cover

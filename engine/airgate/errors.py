@@ -119,6 +119,12 @@ class UsageError(AirgateError):
     kind = "usage error"
 
 
+class OutputError(AirgateError):
+    """A report or file that cannot be written: a full disk, a closed pipe, no permission."""
+
+    kind = "output error"
+
+
 class ErrorGroup(AirgateError):
     """Several input errors found in one pass, reported together (sorted by position)."""
 

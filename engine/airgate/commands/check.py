@@ -2,7 +2,8 @@
 
 One report is ``--format NAME [-o FILE]``; several reports of one run are ``--format NAME:FILE``
 (repeatable), at most one of them without a file (standard output, or ``-o``). Every schedule is evaluated before anything is written: bad input anywhere stops the run
-with exit 2 and writes nothing (each output file is written atomically).
+with exit 2 and writes nothing (each regular output file is written atomically; standard
+output, devices and pipes are written in place: airgate.writers.output).
 """
 
 from __future__ import annotations
@@ -55,6 +56,7 @@ def register(sub) -> None:
 def _destinations(args: argparse.Namespace) -> list[tuple[str, str | None]]:
     """(format, file or None for stdout) pairs, checked before anything is evaluated."""
     from airgate.writers.formats import FORMATS
+    from airgate.writers.output import is_stream
 
     specs = args.formats or [FORMATS[0]]
     out: list[tuple[str, str | None]] = []
@@ -73,11 +75,13 @@ def _destinations(args: argparse.Namespace) -> list[tuple[str, str | None]]:
                              f"{len(bare)} are without one", field=("-o",),
                              hint="write each as --format NAME:FILE")
         out[bare[0]] = (out[bare[0]][0], args.output)
-    elif len(bare) > 1:
+    out = [(name, None if d == "-" else d) for name, d in out]  # '-': standard output
+    to_stdout = [name for name, d in out if d is None]
+    if len(to_stdout) > 1:
         raise UsageError("at most one format can go to standard output; "
-                         f"{', '.join(out[i][0] for i in bare)} have no file",
+                         f"{', '.join(to_stdout)} have no file (or '-')",
                          field=("--format",), hint="write the others as --format NAME:FILE")
-    files = [Path(d).resolve() for _, d in out if d is not None]
+    files = [Path(d).resolve() for _, d in out if d is not None and not is_stream(d)]
     if len(set(files)) != len(files):
         raise UsageError("two formats would write the same file", field=("--format",))
     for _, d in out:
@@ -179,12 +183,10 @@ def run(args: argparse.Namespace) -> int:
     entries = [e for w in args.waivers for e in waiver_rules.from_file(read_waivers(w))]
     reports = _evaluate(files, args, entries, as_of)
     batch = gather(reports, entries, args.fail_on)
-    # every file of the run appears together or not at all; then standard output
-    output.write_all_atomic([(d, formats.stream(name, batch, args.series_step))
-                             for name, d in targets if d is not None])
-    for name, dest in targets:
-        if dest is None:
-            sys.stdout.writelines(output.pieces(formats.stream(name, batch, args.series_step)))
+    # every regular file of the run appears together or not at all; streams (standard
+    # output, devices, pipes) are written in place before the files are moved into place
+    output.write_all([(output.STDOUT if d is None else d,
+                       formats.stream(name, batch, args.series_step)) for name, d in targets])
     if batch.gate_fails() and not args.exit_zero:
         return EXIT_FAIL
     return EXIT_PASS

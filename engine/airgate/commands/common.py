@@ -64,13 +64,11 @@ def add_output(parser, what: str = "file to write (default: standard output)",
 
 
 def emit(output: str | None, text: str) -> None:
-    """``text`` to the ``-o`` file (written atomically) or to standard output."""
-    if output:
-        from airgate.writers.output import write_atomic
+    """``text`` to the ``-o`` file, or to standard output without one (or with ``-``); a
+    regular file is written atomically, a device or pipe in place (airgate.writers.output)."""
+    from airgate.writers.output import STDOUT, write_atomic
 
-        write_atomic(output, text)
-    else:
-        sys.stdout.write(text)
+    write_atomic(output or STDOUT, text)
 
 
 def add_subject(parser, system_help: str = "system id") -> None:

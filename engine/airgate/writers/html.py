@@ -352,10 +352,11 @@ def _provenance(report: Report, pid: str) -> str:
                    for (sym, val, src), subs in values.items())
     eqs = "".join(f"<tr><td>{esc(', '.join(syms))}</td><td>{esc(src)}</td></tr>"
                   for src, syms in cited.items())
-    ran = [r for r in report.pack.checks if r in {c.rule for c in report.cases}]
-    checks = "".join(f"<tr><td><code>{esc(r)}</code></td><td>{esc(report.pack.checks[r].severity)}"
-                     f"</td><td>{esc(shared.check_source(report, r))}</td></tr>"
-                     for r in ran if r in report.pack.checks)
+    rules = shared.pack_rules(report.pack)
+    ran = {c.rule for c in report.cases}
+    checks = "".join(f"<tr><td><code>{esc(r.id)}</code></td><td>{esc(r.severity)}"
+                     f"</td><td>{esc(r.source)}</td></tr>"
+                     for r in rules.values() if r.id in ran)
     pack = report.pack
     return (f'<section id="{pid}-provenance"><h2>Where every rule value comes from</h2>'
             f'<p class="meta">rule pack <b>{esc(pack.id)}</b>: {esc(pack.document)}, '

@@ -1,21 +1,64 @@
-"""Write output files atomically: a report appears whole or not at all, and the reports of one
-run appear together or not at all."""
+"""Write output files: a regular file appears whole or not at all, and the files of one run
+appear together or not at all; anything else (standard output, a pipe, a device) is written in
+place as a stream.
+
+A **regular file** (or a new name) is written to a temporary file in the same folder and moved
+into place with ``os.replace`` once every file of the run is complete. A symbolic link to a
+regular file is followed: the file it points at is replaced and the link stays. The new file
+gets the mode of the file it replaces, or for a new file the mode the umask leaves of 0666 (as
+``open`` would give it), never the temporary file's 0600.
+
+A **stream** — ``-`` (standard output), a character device such as ``/dev/null``, a FIFO, a
+socket, or any path under ``/dev/`` or ``/proc/`` such as ``/dev/stdout`` — is opened and
+written in place; it is never replaced, so writing to ``/dev/null`` leaves ``/dev/null`` as it
+was. Streams are written after every regular file of the run is complete and before any is
+moved into place, so a failing stream still leaves no regular file changed.
+
+Every failure to write (a full disk or ``/dev/full``, a closed pipe, a folder without write
+permission) is an :class:`~airgate.errors.OutputError` (exit 2) naming the path and the reason,
+and no temporary file is left. SIGTERM or SIGINT while files are being written removes the
+temporary files before the process ends (SIGTERM: :class:`Interrupted`, exit 143; SIGINT:
+KeyboardInterrupt, exit 2).
+"""
 
 from __future__ import annotations
 
+import errno
 import io
 import json
 import os
+import signal
+import stat
+import sys
 import tempfile
+import threading
 from collections.abc import Iterable, Iterator, Sequence
+from contextlib import contextmanager
 from pathlib import Path
 from typing import Union
 
-from airgate.errors import UsageError
-
+from airgate.errors import OutputError
 
 #: A rendered output: text, its pieces in order (written without joining them), or bytes.
 Body = Union[str, bytes, Iterable[str]]
+
+#: the name that means standard output
+STDOUT = "-"
+#: folders whose entries are never replaced by a rename (devices, process files)
+_SPECIAL_FOLDERS = ("/dev/", "/proc/")
+
+
+class Interrupted(BaseException):
+    """SIGTERM arrived while files were written; the temporary files are removed.
+    A BaseException, like KeyboardInterrupt, so no ``except Exception`` swallows it."""
+
+    def __init__(self, signum: int) -> None:
+        super().__init__(signum)
+        self.signum = signum
+
+    @property
+    def exit_code(self) -> int:
+        return 128 + self.signum
 
 
 def json_chunks(data: object) -> Iterator[str]:
@@ -46,43 +89,179 @@ def joined(body: str | Iterable[str]) -> str:
     return buf.getvalue()
 
 
+def is_stream(target: str | Path) -> bool:
+    """True when ``target`` is written in place rather than replaced: ``-``, anything that
+    exists and is not a regular file (devices, FIFOs, sockets; links followed), and any path
+    under /dev/ or /proc/."""
+    name = str(target)
+    if name == STDOUT:
+        return True
+    absolute = os.path.abspath(name)
+    if any(absolute.startswith(folder) for folder in _SPECIAL_FOLDERS):
+        return True
+    try:
+        mode = os.stat(name).st_mode
+    except OSError:
+        return False  # a new file (a missing folder is reported when it is written)
+    return not stat.S_ISREG(mode) and not stat.S_ISDIR(mode)
+
+
 def write_atomic(path: str | Path, text: Body) -> None:
-    """Write ``text`` (UTF-8; bytes as they are) to ``path`` through a temporary file in the
-    same folder."""
-    write_all_atomic([(path, text)])
+    """Write one file (:func:`write_all`)."""
+    write_all([(path, text)])
 
 
 def write_all_atomic(items: Sequence[tuple[str | Path, Body]]) -> None:
-    """Write several files as a set: each body goes to a temporary file beside its target,
-    and only when every one is complete are they moved into place (os.replace, atomic per
-    file). If any fails — a full disk, a missing folder, an error while a body is produced —
-    every temporary file is removed and no target is touched."""
+    """The former name of :func:`write_all`."""
+    write_all(items)
+
+
+def write_all(items: Sequence[tuple[str | Path, Body]]) -> None:
+    """Write several outputs as a set: each regular file's body goes to a temporary file beside
+    its target; then the streams are written; only when everything is complete are the
+    temporary files moved into place (os.replace, atomic per file). If anything fails — a full
+    disk, a missing folder, an error while a body is produced, a signal — every temporary file
+    is removed and no regular file is touched."""
     temps: list[tuple[str, Path]] = []
-    path = Path()
+    streams = [(t, b) for t, b in items if is_stream(t)]
+    regular = [(t, b) for t, b in items if not is_stream(t)]
+    with _cleanup_on_signal():
+        try:
+            for target, body in regular:
+                _write_temp(Path(target), body, temps)
+            for target, body in streams:
+                _write_stream(str(target), body)
+            for tmp, final in temps:
+                try:
+                    os.replace(tmp, final)
+                except OSError as exc:
+                    raise write_error(final, exc) from None
+            temps.clear()
+        finally:
+            _remove(temps)
+
+
+def write_error(path: str | Path, exc: OSError) -> OutputError:
+    """The error of a failed write to ``path`` (``-``: standard output), with a hint."""
+    name = "standard output" if str(path) == STDOUT else str(path)
+    reason = exc.strerror or str(exc)
+    code = errno.errorcode.get(exc.errno or 0)
+    hint = {
+        errno.ENOSPC: "free space on the device, or write the report elsewhere",
+        errno.EPIPE: "the program reading the output stopped before the end; let it read "
+                     "everything, or write the report to a file",
+        errno.EACCES: "write it to a folder you may write to",
+        errno.EROFS: "write it to a folder on a writable file system",
+        errno.ENOENT: "create the folder first, or give an existing one",
+    }.get(exc.errno or 0)
+    err = OutputError(f"cannot write {name}: {reason}" + (f" ({code})" if code else ""),
+                      hint=hint)
+    err.path = str(path)
+    return err
+
+
+def _write_temp(path: Path, body: Body, temps: list[tuple[str, Path]]) -> None:
+    """The body written to a temporary file beside ``path`` (the file a link points at), with
+    the final mode; (temporary name, final path) is added to ``temps`` as soon as it exists."""
+    final = Path(os.path.realpath(path)) if path.is_symlink() else path
+    folder = final.parent if str(final.parent) else Path(".")
+    if not folder.is_dir():
+        raise OutputError(f"cannot write {path}: folder {folder} does not exist",
+                          hint="create the folder first, or give an existing one")
+    if final.is_dir():
+        raise OutputError(f"cannot write {path}: it is a folder")
     try:
-        for target, body in items:
-            path = Path(target)
-            folder = path.parent if str(path.parent) else Path(".")
-            if not folder.is_dir():
-                raise UsageError(f"cannot write {path}: folder {folder} does not exist")
-            fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
-            temps.append((tmp, path))
-            if isinstance(body, bytes):
-                with os.fdopen(fd, "wb") as raw:
-                    raw.write(body)
-                continue
-            with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as handle:
-                handle.writelines(pieces(body))
-        for tmp, path in temps:
-            os.replace(tmp, path)
+        fd, tmp = tempfile.mkstemp(prefix=f".{final.name}.", suffix=".tmp", dir=folder)
+        temps.append((tmp, final))
+        os.fchmod(fd, _mode_for(final))
+        with os.fdopen(fd, "wb") as raw:
+            _write_body(raw, body)
     except OSError as exc:
-        _remove(temps)
-        raise UsageError(f"cannot write {path}: {exc.strerror}") from None
-    except BaseException:
-        _remove(temps)
-        raise
+        raise write_error(path, exc) from None
+
+
+def _write_stream(name: str, body: Body) -> None:
+    """Write in place: standard output, or the device, FIFO or special file ``name``."""
+    try:
+        if name == STDOUT:
+            if isinstance(body, bytes):
+                sys.stdout.flush()
+                sys.stdout.buffer.write(body)
+            else:
+                sys.stdout.writelines(pieces(body))
+            sys.stdout.flush()
+            return
+        # no O_CREAT: a special path that does not exist is not made a regular file
+        fd = os.open(name, os.O_WRONLY | getattr(os, "O_CLOEXEC", 0))
+        with os.fdopen(fd, "wb") as raw:
+            _write_body(raw, body)
+    except OSError as exc:
+        raise write_error(name, exc) from None
+
+
+def _write_body(raw, body: Body) -> None:
+    if isinstance(body, bytes):
+        raw.write(body)
+        return
+    text = io.TextIOWrapper(raw, encoding="utf-8", newline="\n", write_through=False)
+    try:
+        text.writelines(pieces(body))
+        text.flush()
+    finally:
+        text.detach()
+
+
+def _mode_for(path: Path) -> int:
+    """The mode of the file being replaced, else 0666 less the umask."""
+    try:
+        st = os.stat(path)
+        if stat.S_ISREG(st.st_mode):
+            return stat.S_IMODE(st.st_mode)
+    except OSError:
+        pass
+    return 0o666 & ~_umask()
+
+
+_UMASK_LOCK = threading.Lock()
+
+
+def _umask() -> int:
+    with _UMASK_LOCK:  # reading the umask means setting it: briefly, under a lock
+        mask = os.umask(0o077)
+        os.umask(mask)
+    return mask
+
+
+@contextmanager
+def _cleanup_on_signal():
+    """While files are written, SIGTERM raises :class:`Interrupted`, as SIGINT raises
+    KeyboardInterrupt, so the caller's ``finally`` removes the temporary files; the previous
+    handler comes back after. Only the main thread can set handlers; elsewhere nothing
+    changes."""
+    if threading.current_thread() is not threading.main_thread():
+        yield
+        return
+
+    def handler(signum, _frame):
+        raise Interrupted(signum)
+
+    previous = {}
+    for sig in (signal.SIGTERM,):  # SIGINT already raises KeyboardInterrupt
+        old = signal.getsignal(sig)
+        if old is signal.SIG_IGN or old is None:
+            continue  # ignored by the caller, or a handler not set from Python: left alone
+        previous[sig] = old
+        signal.signal(sig, handler)
+    try:
+        yield
+    finally:
+        for sig, old in previous.items():
+            signal.signal(sig, old)
 
 
 def _remove(temps: list[tuple[str, Path]]) -> None:
     for tmp, _ in temps:
-        Path(tmp).unlink(missing_ok=True)
+        try:
+            Path(tmp).unlink(missing_ok=True)
+        except OSError:
+            pass

@@ -8,10 +8,12 @@ metadata cleared).
 
 from __future__ import annotations
 
+import io
 from pathlib import Path
 
 from airgate.errors import UsageError
 from airgate.evaluation.report import Report, SystemResult, ZoneResult
+from airgate.writers.output import write_atomic
 from airgate.writers.text import clean
 
 FORMATS = {".png": "png", ".svg": "svg"}
@@ -78,12 +80,9 @@ def plot(report: Report, system: SystemResult, zones: list[ZoneResult], output: 
              "of record govern; results depend on the inputs given.", fontsize=7, color="0.4")
     fig.tight_layout(rect=(0, 0.02, 1, 1))
     metadata = {"Software": None} if fmt == "png" else {"Date": None}
-    tmp = Path(output).with_name(f".{Path(output).name}.tmp")
+    picture = io.BytesIO()
     try:
-        fig.savefig(tmp, format=fmt, dpi=120, metadata=metadata)
-        tmp.replace(output)
-    except OSError as exc:
-        tmp.unlink(missing_ok=True)
-        raise UsageError(f"cannot write {output}: {exc.strerror}") from None
+        fig.savefig(picture, format=fmt, dpi=120, metadata=metadata)
     finally:
         plt.close(fig)
+    write_atomic(output, picture.getvalue())

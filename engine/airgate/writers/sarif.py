@@ -20,7 +20,7 @@ from urllib.parse import quote
 
 from airgate import __version__
 from airgate.evaluation.batch import Batch
-from airgate.evaluation.checks import DECLARED_CHECKS, KNOWN_CHECKS
+from airgate.evaluation.checks import DECLARED_CHECKS
 from airgate.evaluation.findings import Finding, Location
 from airgate.evaluation.report import SAFETY_CAUTION, Report
 from airgate.evaluation.waivers import SCHEDULE, WaiverStatus
@@ -70,16 +70,19 @@ def _physical(loc: Location, artifacts: dict[str, int]) -> dict[str, Any]:
 
 
 def _rules(batch: Batch) -> list[dict[str, Any]]:
-    """Every check any pack of the run enables, in pack order, citations of all packs."""
+    """Every check and requirement of the packs of the run, in pack order (packs in the order
+    of first use), citations of all packs; each pack is read once however many schedules
+    use it."""
     seen: dict[str, dict[str, Any]] = {}
-    for r in batch.reports:
-        for check in r.pack.checks.values():
+    packs = {id(r.pack): r.pack for r in batch.reports}
+    for pack in packs.values():
+        for check in shared.pack_rules(pack).values():
             rule = seen.get(check.id)
-            cite = f"{r.pack.id}: {check.source.cite()}"
+            cite = f"{pack.id}: {check.source}"
             if rule is None:
                 seen[check.id] = rule = {
                     "id": check.id, "title": check.title, "level": LEVEL[check.severity],
-                    "citations": [], "verifies": KNOWN_CHECKS.get(check.id, check.title)}
+                    "citations": [], "verifies": check.verifies}
             if cite not in rule["citations"]:
                 rule["citations"].append(cite)
     for check_id, verifies in DECLARED_CHECKS.items():  # limits the schedules declare, after

@@ -7,12 +7,14 @@ plain text: each writer escapes them for its own format.
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 
 from airgate import formatting
 from airgate.evaluation.checks import DECLARED_CHECKS, what_it_verifies
 from airgate.evaluation.findings import DECLARED, Amount, WaiverMark
 from airgate.evaluation.report import Report
 from airgate.evaluation.waivers import WaiverStatus
+from airgate.models.rules import RulePack
 
 #: how each waiver state is labelled for people
 STATE_LABEL = {"applied": "applied", "expired": "EXPIRED", "unmatched": "UNMATCHED"}
@@ -51,17 +53,42 @@ DECLARED_NOTE = ("the schedule's own limits, not requirements of the rule pack: 
                  "no verdict, and fail the run only with --fail-on declared")
 
 
+@dataclass(frozen=True)
+class PackRule:
+    """A rule of a pack as the writers list it: one of its checks or one of its requirements
+    (both give findings, under their id)."""
+
+    id: str
+    severity: str
+    title: str
+    verifies: str
+    source: str
+
+
+def pack_rules(pack: RulePack) -> dict[str, PackRule]:
+    """Every rule a pack's findings can name, in pack order: its checks, then its
+    requirements."""
+    out = {c.id: PackRule(c.id, c.severity, c.title, what_it_verifies(c.id),
+                          c.source.cite()) for c in pack.checks.values()}
+    for r in pack.requirements.values():
+        out.setdefault(r.id, PackRule(r.id, r.severity, r.message,
+                                      f"{r.message} (a {r.kind} requirement of the pack)",
+                                      r.source.cite()))
+    return out
+
+
 def check_title(report: Report, rule: str) -> str:
-    """The pack's title of a check, or what the engine says it verifies."""
-    check = report.pack.checks.get(rule)
-    return check.title if check is not None else what_it_verifies(rule)
+    """The pack's title of a check or requirement, or what the engine says it verifies."""
+    found = pack_rules(report.pack).get(rule)
+    return found.title if found is not None else what_it_verifies(rule)
 
 
 def check_source(report: Report, rule: str) -> str:
-    """The pack's citation of a check; for a declared limit, the schedule that declares it."""
-    check = report.pack.checks.get(rule)
-    if check is not None:
-        return check.source.cite()
+    """The pack's citation of a check or requirement; for a declared limit, the schedule that
+    declares it."""
+    found = pack_rules(report.pack).get(rule)
+    if found is not None:
+        return found.source
     if rule in DECLARED_CHECKS:
         return f"limit declared by the schedule {report.schedule_file}"
     return ""

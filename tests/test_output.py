@@ -1,0 +1,207 @@
+"""Where reports go: regular files replaced atomically with ordinary modes, everything else
+written in place, failures to write reported as output errors (exit 2), no temporary file left
+behind by an error or a signal.
+
+The expectations are the POSIX semantics of the calls involved (common practice): ``rename``
+replaces a directory entry, so a device or FIFO must be opened and written, never renamed over;
+``open(…, O_CREAT)`` gives mode 0666 less the umask; a write to /dev/full fails with ENOSPC
+(Linux null(4)/full(4) man page); a write to a pipe whose reader has gone fails with EPIPE.
+The real /dev/null is only ever written to here, never replaced or changed otherwise.
+"""
+
+from __future__ import annotations
+
+import os
+import shutil
+import stat
+import subprocess
+import sys
+import threading
+from pathlib import Path
+
+import pytest
+
+from airgate.cli import main
+from airgate.writers import output
+
+from conftest import DEMO, ROOT
+
+ENGINE = str(ROOT / "engine")
+
+
+def _env() -> dict[str, str]:
+    env = dict(os.environ)
+    env["PYTHONPATH"] = ENGINE + os.pathsep + env.get("PYTHONPATH", "")
+    env.pop("AIRGATE_DEBUG", None)
+    return env
+
+
+def _leftovers(folder: Path) -> list[str]:
+    return sorted(p.name for p in folder.iterdir() if p.name.endswith(".tmp"))
+
+
+def test_dev_null_is_written_not_replaced(capsys):
+    before = os.stat("/dev/null")
+    assert stat.S_ISCHR(before.st_mode)
+    assert main(["check", str(DEMO), "--format", "json:/dev/null", "--format", "sarif"]) == 1
+    out = capsys.readouterr()
+    assert out.err == "" and '"version": "2.1.0"' in out.out
+    after = os.stat("/dev/null")
+    assert stat.S_ISCHR(after.st_mode) and after.st_rdev == before.st_rdev
+    assert stat.S_IMODE(after.st_mode) == stat.S_IMODE(before.st_mode)
+    assert (after.st_ino, after.st_dev) == (before.st_ino, before.st_dev)
+
+
+@pytest.mark.skipif(not os.path.exists("/dev/full"), reason="no /dev/full on this system")
+def test_dev_full_is_an_output_error(tmp_path, capsys, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    code = main(["check", str(DEMO), "--format", "json:/dev/full", "--format", "text:r.txt"])
+    err = capsys.readouterr().err
+    assert code == 2
+    assert "output error: cannot write /dev/full: No space left on device (ENOSPC)" in err
+    assert "Traceback" not in err
+    assert list(tmp_path.iterdir()) == []  # the regular file of the run is not written either
+    assert stat.S_ISCHR(os.stat("/dev/full").st_mode)
+
+
+def test_fifo_is_written_in_place(tmp_path, capsys):
+    fifo = tmp_path / "report.fifo"
+    os.mkfifo(fifo)
+    received: list[bytes] = []
+    reader = threading.Thread(target=lambda: received.append(fifo.read_bytes()))
+    reader.start()
+    try:
+        code = main(["check", str(DEMO), "--format", f"json:{fifo}"])
+    finally:
+        if reader.is_alive():  # a failed open: unblock the reader
+            with open(fifo, "wb"):
+                pass
+        reader.join(30)
+    assert code == 1 and capsys.readouterr().err == ""
+    assert stat.S_ISFIFO(os.stat(fifo).st_mode)
+    assert received[0].startswith(b"{\n") and received[0].endswith(b"}\n")
+    assert main(["check", str(DEMO), "--format", "json"]) == 1
+    assert capsys.readouterr().out.encode("utf-8") == received[0]
+
+
+def test_dash_is_standard_output(capsys):
+    assert main(["check", str(DEMO), "--format", "junit:-"]) == 1
+    via_dash = capsys.readouterr().out
+    assert main(["check", str(DEMO), "--format", "junit"]) == 1
+    assert capsys.readouterr().out == via_dash and via_dash.startswith("<?xml")
+    assert main(["check", str(DEMO), "--format", "junit:-", "--format", "json:-"]) == 2
+    assert "at most one format can go to standard output" in capsys.readouterr().err
+
+
+def test_modes_follow_the_umask_and_a_replaced_file_keeps_its_mode(tmp_path, capsys):
+    old = os.umask(0o027)
+    try:
+        assert main(["check", str(DEMO), "--format", f"json:{tmp_path / 'new.json'}"]) == 1
+        assert main(["import", str(DEMO), "-o", str(tmp_path / "imported.yaml")]) == 0
+        assert main(["template", "--format", "csv", "-o", str(tmp_path / "blank")]) == 0
+        kept = tmp_path / "kept.json"
+        kept.write_text("old\n", encoding="utf-8")
+        kept.chmod(0o604)
+        assert main(["check", str(DEMO), "--format", f"json:{kept}"]) == 1
+    finally:
+        os.umask(old)
+    capsys.readouterr()
+    modes = {p.name: stat.S_IMODE(p.stat().st_mode) for p in tmp_path.iterdir()}
+    assert modes.pop("kept.json") == 0o604
+    assert modes and set(modes.values()) == {0o640}, modes  # 0666 & ~0027
+    assert _leftovers(tmp_path) == []
+
+
+def test_a_link_to_a_file_is_followed_and_kept(tmp_path, capsys):
+    real = tmp_path / "real.txt"
+    real.write_text("old\n", encoding="utf-8")
+    link = tmp_path / "link.txt"
+    link.symlink_to(real)
+    assert main(["check", str(DEMO), "--format", f"text:{link}"]) == 1
+    capsys.readouterr()
+    assert link.is_symlink() and "Fernhollow" in real.read_text(encoding="utf-8")
+
+
+def test_a_read_only_folder_is_an_output_error(tmp_path):
+    folder = tmp_path / "locked"
+    folder.mkdir()
+    folder.chmod(0o555)
+    cmd = [sys.executable, "-m", "airgate", "check", str(DEMO),
+           "--format", f"json:{folder / 'r.json'}"]
+    if os.geteuid() == 0:  # root may write anywhere: drop its capabilities for this run
+        if shutil.which("setpriv") is None:
+            pytest.skip("running as root without setpriv to drop the capabilities")
+        cmd = ["setpriv", "--inh-caps=-all", "--bounding-set=-all", *cmd]
+    try:
+        done = subprocess.run(cmd, capture_output=True, text=True, env=_env(), timeout=120)
+    finally:
+        folder.chmod(0o755)
+    assert done.returncode == 2, done.stderr
+    assert "output error: cannot write" in done.stderr and "Permission denied" in done.stderr
+    assert "Traceback" not in done.stderr
+    assert list(folder.iterdir()) == []
+
+
+def test_a_closed_pipe_is_an_output_error_not_a_pass():
+    # a gate piped into a reader that stops early must not pass: exit 2, said on stderr
+    proc = subprocess.Popen([sys.executable, "-m", "airgate", "check", str(DEMO), "--format",
+                             "json", "--series-step", "1"], stdout=subprocess.PIPE,
+                            stderr=subprocess.PIPE, env=_env())
+    proc.stdout.read(10)
+    proc.stdout.close()
+    err = proc.stderr.read().decode("utf-8")
+    assert proc.wait(120) == 2, err
+    assert "cannot write standard output: Broken pipe (EPIPE)" in err
+    assert "Traceback" not in err and "Exception ignored" not in err
+
+
+_SLOW_WRITER = """
+import sys, time
+from airgate.cli import main
+from airgate.writers import formats
+
+def slow(name, batch, series_step=0):
+    yield "{" + " " * 100000
+    print("writing", flush=True)
+    time.sleep(120)
+    yield "}"
+
+formats.stream = slow
+sys.exit(main(["check", sys.argv[1], "--format", "json:" + sys.argv[2],
+               "--format", "text:" + sys.argv[3]]))
+"""
+
+
+@pytest.mark.parametrize("signame", ["SIGTERM", "SIGINT"])
+def test_a_signal_while_writing_leaves_no_temporary_file(tmp_path, signame):
+    import signal
+
+    out = tmp_path / "out"
+    out.mkdir()
+    (out / "old.txt").write_text("previous\n", encoding="utf-8")
+    proc = subprocess.Popen([sys.executable, "-c", _SLOW_WRITER, str(DEMO),
+                             str(out / "r.json"), str(out / "old.txt")],
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, env=_env())
+    try:
+        assert proc.stdout.readline() == b"writing\n"
+        assert _leftovers(out)  # the writer is mid-write: its temporary file exists
+        proc.send_signal(getattr(signal, signame))
+        code = proc.wait(60)
+    finally:
+        proc.kill()
+    err = proc.stderr.read().decode("utf-8")
+    # SIGTERM: 128 + 15 (the shells' convention); SIGINT: KeyboardInterrupt, exit 2
+    assert code == (143 if signame == "SIGTERM" else 2), err
+    assert "Traceback" not in err
+    assert sorted(p.name for p in out.iterdir()) == ["old.txt"]
+    assert (out / "old.txt").read_text(encoding="utf-8") == "previous\n"
+
+
+def test_write_all_keeps_regular_files_when_a_stream_fails(tmp_path):
+    if not os.path.exists("/dev/full"):
+        pytest.skip("no /dev/full on this system")
+    with pytest.raises(output.OutputError, match="ENOSPC"):
+        output.write_all([(tmp_path / "a.txt", "a\n"), ("/dev/full", "b\n")])
+    assert list(tmp_path.iterdir()) == []
+    assert output.is_stream("-") and output.is_stream("/dev/stdout")
+    assert not output.is_stream(tmp_path / "new.json")
