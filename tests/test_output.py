@@ -24,14 +24,11 @@ import pytest
 from airgate.cli import main
 from airgate.writers import output
 
-from conftest import DEMO, ROOT
-
-ENGINE = str(ROOT / "engine")
+from conftest import DEMO, subprocess_env
 
 
 def _env() -> dict[str, str]:
-    env = dict(os.environ)
-    env["PYTHONPATH"] = ENGINE + os.pathsep + env.get("PYTHONPATH", "")
+    env = subprocess_env()
     env.pop("AIRGATE_DEBUG", None)
     return env
 
