@@ -92,8 +92,8 @@ def test_tables_may_be_written_in_cubic_metres_per_hour(tmp_path, evaluate):
     zone = {"id": "M1", "space": "conference-room", "area": "40 m2", "occupants": 15,
             "air_distribution": "mixing"}
     data = schedule([{"id": "AHU-1", "kind": "single-zone", "outdoor_air": "479 m3/h",
-                      "zones": [zone]}], units="SI", rules=str(pack))
-    report = evaluate(data)
+                      "zones": [zone]}], units="SI", rules="unused")
+    report = evaluate(data, rules=str(pack))  # a path outside the schedule's folder: --rules
     assert report.systems[0].zones[0].trail.value("Voz") == pytest.approx(133.0)
     assert report.verdict == "pass"
 

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import datetime as dt
 import json
+import shutil
 
 import pytest
 import yaml
@@ -104,7 +105,8 @@ def test_waiver_that_matches_nothing_is_reported(tmp_path):
 def test_waiver_for_a_check_the_pack_does_not_run(tmp_path):
     # fixtures/edge/packs/sample-pack.yaml runs system-intake only
     data = yaml.safe_load((ROOT / "fixtures" / "edge" / "uses-sample-pack.yaml").read_text("utf-8"))
-    data["rules"] = str(ROOT / "fixtures" / "edge" / "packs" / "sample-pack.yaml")
+    shutil.copy(ROOT / "fixtures" / "edge" / "packs" / "sample-pack.yaml", tmp_path)
+    data["rules"] = "./sample-pack.yaml"  # a pack path in a schedule: in the schedule's folder
     data["waivers"] = [waiver("zone-limits-ev", "RTU-1/101")]
     path = tmp_path / "sample.yaml"
     path.write_text(yaml.safe_dump(data, sort_keys=False), encoding="utf-8")

@@ -10,12 +10,17 @@ from __future__ import annotations
 import difflib
 from collections.abc import Iterable, Sequence
 
+from airgate.escaping import terminal
+
 #: All checks passed (or only warnings / information).
 EXIT_PASS = 0
 #: At least one finding of severity ``fail``.
 EXIT_FAIL = 1
 #: Input, rule-pack or usage error: nothing was evaluated, nothing written.
 EXIT_INPUT = 2
+#: The longest message or hint printed [characters]: a backstop, so no message
+#: can carry a whole file even if some part of it quoted one.
+MAX_MESSAGE = 600
 
 #: A field path into a document, e.g. ``("systems", 0, "zones", 2, "area")``.
 Path_ = tuple[str | int, ...]
@@ -30,6 +35,12 @@ def format_path(path: Sequence[str | int]) -> str:
         else:
             out += ("." if out else "") + str(part)
     return out
+
+
+def _shown(text: str) -> str:
+    """Message text as printed: controls escaped (errors reach a terminal), length capped."""
+    text = terminal(text)
+    return text if len(text) <= MAX_MESSAGE else text[:MAX_MESSAGE] + " …(cut)"
 
 
 def nearest(word: str, choices: Iterable[str], n: int = 3) -> list[str]:
@@ -78,7 +89,7 @@ class AirgateError(ValueError):
         self.hint = hint
 
     def where(self) -> str:
-        parts = [self.file or "airgate"]
+        parts = [_shown(self.file) if self.file else "airgate"]
         if self.line is not None:
             parts.append(str(self.line))
             if self.column is not None:
@@ -86,15 +97,19 @@ class AirgateError(ValueError):
         return ":".join(parts)
 
     def render(self) -> str:
-        """The message as printed by the CLI: ``file:line:col: kind: field: message``."""
+        """The message as printed by the CLI: ``file:line:col: kind: field: message``.
+
+        Every part is escaped for a terminal (a control character from the input is shown as
+        ``\\x1b``, never sent raw) and capped at :data:`MAX_MESSAGE` characters.
+        """
         head = f"{self.where()}: {self.kind}: "
         if self.field:
-            head += f"{format_path(self.field)}: "
-        lines = [head + self.message]
+            head += f"{_shown(format_path(self.field))}: "
+        lines = [head + _shown(self.message)]
         if self.allowed:
-            lines.append("  allowed: " + ", ".join(self.allowed))
+            lines.append("  allowed: " + terminal(", ".join(self.allowed)))
         if self.hint:
-            lines.append("  fix: " + self.hint)
+            lines.append("  fix: " + _shown(self.hint))
         return "\n".join(lines)
 
     def __str__(self) -> str:

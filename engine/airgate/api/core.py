@@ -114,12 +114,13 @@ def _pack(loaded: LoadedSchedule, ref: str, from_option: bool,
           search: Sequence[str | Path] = ()) -> RulePack:
     """Load the rule pack ``ref``; a pack that cannot be found is reported where it was named.
 
-    A path in the schedule is relative to the schedule's folder, one given with ``--rules`` to
-    the working directory.
+    A path in the schedule is relative to the schedule's folder and confined to it and the pack
+    search path (:func:`~airgate.readers.rulepack.resolve`); one given with ``--rules`` is
+    relative to the working directory.
     """
     base = Path.cwd() if from_option else Path(loaded.file).parent
     try:
-        path = rulepack.resolve(ref, base, search)
+        path = rulepack.resolve(ref, base, search, confined=not from_option)
         if not path.is_file():
             what = "is a folder, not a rule pack file" if path.is_dir() else "not found"
             raise RulePackError(f"rule pack file {path} {what}",

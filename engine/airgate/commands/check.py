@@ -14,7 +14,9 @@ import sys
 from pathlib import Path
 
 from airgate.commands.common import add_output, add_rules
-from airgate.errors import EXIT_FAIL, EXIT_PASS, AirgateError, ErrorGroup, UsageError, raise_all
+from airgate.errors import (EXIT_FAIL, EXIT_PASS, AirgateError, ErrorGroup, ScheduleError,
+                            UsageError, raise_all)
+from airgate.readers import document
 
 SCHEDULE_SUFFIXES = (".yaml", ".yml", ".json")
 
@@ -107,6 +109,7 @@ def schedules(paths: list[str]) -> list[str]:
                                  field=("PATH",))
             out += found
         else:
+            document.followable(p, ScheduleError)  # a loop of links is refused here, located
             out.append(p)  # as given: reports copy the path
     seen: set[str] = set()
     return [f for f in out if not (f in seen or seen.add(f))]
@@ -177,7 +180,7 @@ def run(args: argparse.Namespace) -> int:
     as_of = _as_of(args.as_of)
     files = schedules(args.paths)
     written = {Path(d).resolve() for _, d in targets if d is not None}
-    if any(Path(f).resolve() in written for f in [*files, *args.waivers]):
+    if any(document.followable(f, ScheduleError) in written for f in [*files, *args.waivers]):
         raise UsageError("a report would overwrite one of the schedules or waivers files "
                          "read", field=("--format",))
     entries = [e for w in args.waivers for e in waiver_rules.from_file(read_waivers(w))]

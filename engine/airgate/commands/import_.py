@@ -29,6 +29,7 @@ def run(args: argparse.Namespace) -> int:
     from airgate.writers import schedule_yaml
 
     loaded = read_any(args.file)
+    _check_pack_path(loaded)
     header = [f"Ventilation schedule imported by airgate from {Path(args.file).name}."]
     origins = None
     if isinstance(loaded, ImportedSchedule):
@@ -46,3 +47,18 @@ def run(args: argparse.Namespace) -> int:
         for note in loaded.notes:
             sys.stderr.write(f"note: {note}\n")
     return EXIT_PASS
+
+
+def _check_pack_path(loaded) -> None:
+    """A pack path the source names is held to the read scope ``check`` applies to it, so the
+    schedule written is never one that ``check`` refuses for it."""
+    from airgate.errors import RulePackError
+    from airgate.readers.rulepack import is_path, resolve
+
+    ref = loaded.model.rules
+    if ref is None or not is_path(ref):
+        return
+    try:
+        resolve(ref, Path(loaded.file).parent, confined=True)
+    except RulePackError as exc:
+        raise loaded.error(exc.message, ("rules",), allowed=exc.allowed, hint=exc.hint) from None

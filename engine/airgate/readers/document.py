@@ -287,6 +287,15 @@ def _line_column(raw: bytes, offset: int) -> tuple[int, int]:
     return line, offset - (raw.rfind(b"\n", 0, offset) + 1) + 1
 
 
+def followable(path: Path | str, error_cls: type[AirgateError]) -> Path:
+    """``path`` with its symbolic links followed, or an error naming it (a loop of links)."""
+    try:
+        return Path(path).resolve()
+    except (OSError, RuntimeError):  # RuntimeError: Python before 3.13 on a symlink loop
+        raise error_cls("the path cannot be followed (a loop of symbolic links?)",
+                        file=str(path), hint="give the path of the file itself") from None
+
+
 def read_bytes(path: Path, error_cls: type[AirgateError]) -> bytes:
     """Read a file within the size limit, or raise an error naming it (any reader's first step)."""
     name = str(path)

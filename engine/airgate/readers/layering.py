@@ -222,6 +222,11 @@ def read(path: Path, roots: Sequence[Root], *, expected_id: str | None = None,
     """
     single = PackDocument.from_file(load(path, RulePackError))
     data = single.data
+    if not (isinstance(data, dict) and "pack" in data):
+        # nothing of a file that is not a pack is quoted: it may be any file a path led to
+        raise single.error(RulePackError, "this file is not a rule pack: a pack is a mapping "
+                           "with the format version 'pack: 1' at its top", (),
+                           hint="give the path of a rule pack file, or a pack id")
     if isinstance(data, dict):
         _no_restated_tables(single)
     packschema.validate(single)

@@ -17,6 +17,7 @@ from typing import Any
 import jsonschema
 
 from airgate.errors import RulePackError, nearest
+from airgate.escaping import EXCERPT, excerpt
 
 
 def builtin_rules_dir() -> Path:
@@ -58,6 +59,15 @@ def get(data: Any, path: tuple) -> Any:
     return data
 
 
+def _quoted_short(message: str, instance: Any) -> str:
+    """jsonschema's message with the value it quotes shortened to an excerpt (the value may be
+    a whole file's text)."""
+    whole = repr(instance)
+    if len(whole) <= EXCERPT:
+        return message
+    return message.replace(whole, excerpt(instance))
+
+
 def validate(doc: Any, name: str = "rule-pack", error_cls: type = RulePackError) -> None:
     """Check ``doc.data`` against a published schema; raise on the most relevant error.
 
@@ -77,7 +87,7 @@ def validate(doc: Any, name: str = "rule-pack", error_cls: type = RulePackError)
         deepest = max(len(e.relative_path) for e in error.context)
         error = next(e for e in error.context if len(e.relative_path) == deepest)
     path = tuple(error.absolute_path)
-    message = error.message
+    message = _quoted_short(error.message, error.instance)
     allowed: list[str] = []
     if error.validator == "additionalProperties":
         known = sorted(error.schema.get("properties", {}))

@@ -17,6 +17,7 @@ from typing import Any
 
 from airgate import units
 from airgate.errors import RulePackError
+from airgate.escaping import excerpt
 from airgate.models.rules import (
     AirDistributionRow,
     Bound,
@@ -52,14 +53,45 @@ def is_path(ref: str) -> bool:
 
 
 def resolve(ref: str, base: Path | None = None,
-            search: Sequence[str | Path] | Sequence[Root] = ()) -> Path:
-    """Turn a pack id (looked up on the search path) or a path (relative to ``base``) into a file."""
-    if is_path(ref):
-        candidate = Path(ref)
-        if not candidate.is_absolute() and base is not None:
-            candidate = base / candidate
-        return candidate
-    return layering.find(ref, _roots(search))
+            search: Sequence[str | Path] | Sequence[Root] = (), *,
+            confined: bool = False) -> Path:
+    """Turn a pack id (looked up on the search path) or a path (relative to ``base``) into a file.
+
+    ``confined``: ``ref`` was written inside a file (a schedule, an imported gbXML or IFC file)
+    rather than given on the command line. Its path must then end in a pack suffix and lead,
+    symbolic links followed, inside ``base`` (that file's folder, or below it) or a folder of
+    the search path; anything else is refused before the file is opened, so a schedule cannot
+    make airgate read (and quote) a file elsewhere on the machine.
+    """
+    if not is_path(ref):
+        return layering.find(ref, _roots(search))
+    candidate = Path(ref)
+    if not candidate.is_absolute() and base is not None:
+        candidate = base / candidate
+    if confined:
+        _confine(ref, candidate, base, _roots(search))
+    return candidate
+
+
+def _confine(ref: str, candidate: Path, base: Path | None, roots: Sequence[Root]) -> None:
+    """Refuse a pack path written in a file unless it is a pack file inside the read scope."""
+    if candidate.suffix.lower() not in PACK_SUFFIXES:
+        raise RulePackError(f"{excerpt(ref)} is not the name of a rule pack file",
+                            hint="name a pack by its id, or give the path of a .yaml, .yml or "
+                                 ".json pack file in the schedule's folder")
+    try:
+        target = candidate.resolve()
+        folders = [f.resolve() for f in ([base] if base is not None else [])]
+        folders += [r.path.resolve() for r in roots]
+    except (OSError, RuntimeError):  # a loop of symbolic links
+        raise RulePackError(f"the path {excerpt(ref)} cannot be followed (a loop of symbolic "
+                            "links?)", hint="give the path of a pack file") from None
+    if not any(target == f or f in target.parents for f in folders):
+        raise RulePackError(
+            f"the rule pack path {excerpt(ref)} leads outside the schedule's folder and the pack "
+            "search path", hint="a path written in a schedule is read only inside the "
+            "schedule's folder (and below it) and the folders of the pack search path; put the "
+            "pack there, add its folder with --rules-path, or give the pack with --rules")
 
 
 def _roots(search: Sequence[Any]) -> tuple[Root, ...]:
