@@ -27,18 +27,51 @@ ZONE_SYMBOLS: dict[str, str] = {
     "C_ss": "concentration_ppm", "C_out": "concentration_ppm", **SYSTEM_SYMBOLS,
 }
 
-#: kind → the subject it is evaluated on
-KINDS: dict[str, str] = {
-    "larger-of": "zone",        # Vbz (or Voz) is the larger of the procedure's and the pack's figures
-    "ez-cap": "zone",           # the Ez credit a zone may claim is at most max_ez
-    "density-limit": "zone",    # design occupants per floor area at most max_density
-    "air-class-limit": "zone",  # air class on a recirculating system at most max_class
-    "minimum-filter": "system",  # filter MERV at least merv
-    "formula": "",              # provided compared with required, both formulas; subject stated
-}
+@dataclass(frozen=True)
+class RequirementKind:
+    """What a pack may write for one requirement kind; its evaluation is registered apart
+    (:data:`airgate.evaluation.requirement_kinds.EVALUATORS`, the same names)."""
 
-#: kinds that change the calculation (the engine uses their figure) rather than check a result
-MODIFIERS = frozenset({"larger-of", "ez-cap"})
+    name: str
+    #: the subject it is evaluated on: "zone", "system", or "" (the requirement states it)
+    subject: str
+    #: numeric parameters → the quantity kind of the value (converted from the pack's units to
+    #: internal units), or None for a plain number
+    numbers: dict[str, str | None] = field(default_factory=dict)
+    #: other keys the kind takes (flags, the formula's sides)
+    options: frozenset[str] = frozenset()
+    #: True: it changes the figures the calculation uses (while zones are bound)
+    modifies: bool = False
+    #: True: its ``required`` and ``provided`` are formulas (:mod:`airgate.models.formula`)
+    formulas: bool = False
+    summary: str = ""
+
+    @property
+    def params(self) -> frozenset[str]:
+        """Every key the kind takes besides the keys all requirements have."""
+        return frozenset(self.numbers) | self.options
+
+
+#: the requirement kinds by name: the one registry (a new kind is one entry here, its
+#: evaluation in ``evaluation/requirement_kinds/``, and its keys in the pack schema)
+KINDS: dict[str, RequirementKind] = {k.name: k for k in (
+    RequirementKind("larger-of", "zone",
+                    {"per_person": "airflow_per_person", "per_area": "airflow_per_area"},
+                    frozenset({"at", "instead_of_sum"}), modifies=True,
+                    summary="Vbz (or Voz) is the larger of the procedure's and the pack's figures"),
+    RequirementKind("ez-cap", "zone", {"max_ez": None}, modifies=True,
+                    summary="the Ez credit a zone may claim is at most max_ez"),
+    RequirementKind("density-limit", "zone", {"max_density": "density"},
+                    summary="design occupants per floor area at most max_density"),
+    RequirementKind("air-class-limit", "zone", {"max_class": None},
+                    frozenset({"only_when_mixed"}),
+                    summary="air class on a recirculating system at most max_class"),
+    RequirementKind("minimum-filter", "system", {"merv": None},
+                    summary="filter MERV at least merv"),
+    RequirementKind("formula", "", {},
+                    frozenset({"subject", "required", "provided", "compare", "quantity", "params"}),
+                    formulas=True, summary="provided compared with required, both formulas"),
+)}
 
 
 @dataclass(frozen=True)

@@ -10,29 +10,15 @@ from __future__ import annotations
 from typing import Any
 
 from airgate import units
-from airgate.errors import RulePackError, nearest
+from airgate.errors import Path_, RulePackError, nearest
+from airgate.models import formula as fx
 from airgate.models.requirements import (
     KINDS, SYSTEM_SYMBOLS, ZONE_SYMBOLS, Formula, Requirement, Selector,
 )
 from airgate.models.rules import AirDistributionRow, OccupancyCategory, Source
-from airgate.models import formula as fx
 
-Path_ = tuple[str | int, ...]
-
-#: parameters each kind takes (besides the common keys)
-_PARAMS: dict[str, frozenset[str]] = {
-    "larger-of": frozenset({"per_person", "per_area", "at", "instead_of_sum"}),
-    "ez-cap": frozenset({"max_ez"}),
-    "density-limit": frozenset({"max_density"}),
-    "air-class-limit": frozenset({"max_class", "only_when_mixed"}),
-    "minimum-filter": frozenset({"merv"}),
-    "formula": frozenset({"subject", "required", "provided", "compare", "quantity", "params"}),
-}
 _COMMON = frozenset({"id", "kind", "severity", "message", "source", "provenance", "applies_to",
                      "missing"})
-#: parameter → the quantity kind of its value (pack units)
-_QUANTITY = {"per_person": "airflow_per_person", "per_area": "airflow_per_area",
-             "max_density": "density"}
 _ZONE_TERMS = ("space", "group", "zone", "air_class", "air_distribution")
 
 
@@ -131,19 +117,23 @@ def build_requirements(doc: Any, data: dict[str, Any], system: str,
             what = "another requirement" if rid in out else "a check of the pack"
             raise doc.error(RulePackError, f"requirement id '{rid}' is already used by {what}",
                             path + ("id",), hint="findings are named by rule id: give it its own")
+        spec = KINDS.get(kind)
+        if spec is None:  # the schema refuses it too; never fall through to another kind
+            raise doc.error(RulePackError, f"unknown requirement kind '{kind}'", path + ("kind",),
+                            allowed=sorted(KINDS))
         for key in r:
-            if key not in _COMMON and key not in _PARAMS[kind]:
+            if key not in _COMMON and key not in spec.params:
                 raise doc.error(RulePackError, f"'{key}' does not apply to a requirement of kind "
-                                f"'{kind}'", path + (key,), allowed=sorted(_PARAMS[kind]))
-        subject = KINDS[kind] or r["subject"]
+                                f"'{kind}'", path + (key,), allowed=sorted(spec.params))
+        subject = spec.subject or r["subject"]
         selector = _selector(doc, r.get("applies_to", {}), path + ("applies_to",), subject, refs)
         params: dict[str, float] = {}
         printed: dict[str, Any] = {}
-        for key in ("per_person", "per_area", "max_ez", "max_density", "merv", "max_class"):
+        for key, quantity in spec.numbers.items():
             if key in r:
                 printed[key] = r[key]
-                params[key] = (units.to_internal(float(r[key]), _QUANTITY[key], system)
-                               if key in _QUANTITY else float(r[key]))
+                params[key] = (units.to_internal(float(r[key]), quantity, system)
+                               if quantity else float(r[key]))
         src = r["source"]
         out[rid] = Requirement(
             id=rid, kind=kind, subject=subject, severity=r["severity"],
@@ -153,6 +143,6 @@ def build_requirements(doc: Any, data: dict[str, Any], system: str,
             provenance=r["provenance"], selector=selector, params=params, printed=printed,
             at=r.get("at", "Voz"), instead_of_sum=bool(r.get("instead_of_sum", False)),
             only_when_mixed=bool(r.get("only_when_mixed", False)),
-            formula=_formula(doc, r, path, system, subject) if kind == "formula" else None,
+            formula=_formula(doc, r, path, system, subject) if spec.formulas else None,
         )
     return out

@@ -1,0 +1,101 @@
+"""One registry per extension point, and an unknown name is a located error, never a fall-through.
+
+Structural tests of the engine (DEVELOPERS.md, "Extension points"); no external source applies.
+"""
+
+from __future__ import annotations
+
+import json
+import re
+import textwrap
+
+from airgate.cli import main
+from airgate.evaluation.requirement_kinds import EVALUATORS
+from airgate.models.requirements import KINDS
+
+from conftest import ROOT, schedule
+
+SCHEMA = json.loads((ROOT / "rules" / "schema" / "rule-pack.schema.json").read_text("utf-8"))
+
+
+# --- requirement kinds --------------------------------------------------------------------------
+
+def test_requirement_kinds_one_vocabulary():
+    """The pack schema, the model's kinds and the evaluation's kinds are the same names."""
+    assert list(EVALUATORS) and set(EVALUATORS) == set(KINDS)
+    assert set(SCHEMA["$defs"]["requirement"]["properties"]["kind"]["enum"]) == set(KINDS)
+    for name, spec in KINDS.items():
+        assert spec.name == name and spec.subject in ("zone", "system", "")
+        assert (EVALUATORS[name].adjust is not None) == spec.modifies, name
+
+
+def _amending_pack(tmp_path, kind: str, extra: str = "") -> str:
+    pack = tmp_path / "amended.yaml"
+    pack.write_text(textwrap.dedent(f"""\
+        pack: 1
+        id: amended
+        extends: ashrae-62.1-2019
+        title: "Test amendment (invented)"
+        document: "Test code (invented)"
+        edition: "2025"
+        provenance: invented
+        amend:
+          requirements:
+            add:
+              - id: new-rule
+                kind: {kind}
+                severity: fail
+                message: "a requirement of a kind the engine does not have"
+                source: {{section: "1.1"}}
+                provenance: invented
+        """) + extra, encoding="utf-8")
+    return str(pack)
+
+
+def _demo_like(tmp_path) -> str:
+    import yaml
+
+    path = tmp_path / "building.yaml"
+    path.write_text(yaml.safe_dump(schedule([{
+        "id": "RTU-1", "kind": "single-zone", "outdoor_air": 200,
+        "zones": [{"id": "101", "space": "office-space", "area": 1000, "occupants": 5,
+                   "air_distribution": "ceiling-supply-cool"}]}]), sort_keys=False),
+        encoding="utf-8")
+    return str(path)
+
+
+def test_an_unknown_requirement_kind_is_a_located_pack_error(tmp_path, capsys):
+    pack = _amending_pack(tmp_path, "exhaust-rate")
+    code = main(["check", _demo_like(tmp_path), "--rules", pack])
+    out, err = capsys.readouterr()
+    assert code == 2 and out == ""
+    assert "Traceback" not in err
+    # file:line:col of the kind (line 12 of the pack, column 15), what is wrong, what is allowed
+    assert re.match(re.escape(pack) + r":12:15: rule pack error: ", err), err
+    assert "exhaust-rate" in err
+    assert all(name in err for name in KINDS)
+
+
+def test_a_known_kind_in_the_same_place_loads(tmp_path, capsys):
+    """The same pack with a real kind and its parameter runs: the error above is the kind's."""
+    pack = _amending_pack(tmp_path, "density-limit", "        max_density: 1000\n")
+    assert main(["check", _demo_like(tmp_path), "--rules", pack]) in (0, 1)
+    assert "Traceback" not in capsys.readouterr().err
+
+
+def test_the_reader_refuses_a_kind_it_does_not_know_even_when_the_schema_allows_it(
+        tmp_path, capsys, monkeypatch):
+    monkeypatch.delitem(KINDS, "density-limit")
+    pack = _amending_pack(tmp_path, "density-limit", "        max_density: 1000\n")
+    assert main(["check", _demo_like(tmp_path), "--rules", pack]) == 2
+    err = capsys.readouterr().err
+    assert err.startswith(f"{pack}:12:15: rule pack error: unknown requirement kind "
+                          "'density-limit'"), err
+
+
+def test_a_kind_without_its_evaluation_is_an_internal_error_not_another_kind(
+        tmp_path, capsys, monkeypatch):
+    monkeypatch.delitem(EVALUATORS, "density-limit")
+    pack = _amending_pack(tmp_path, "density-limit", "        max_density: 1000\n")
+    assert main(["check", _demo_like(tmp_path), "--rules", pack]) == 3
+    assert "has no evaluation registered" in capsys.readouterr().err
