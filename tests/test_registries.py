@@ -89,8 +89,8 @@ def test_the_reader_refuses_a_kind_it_does_not_know_even_when_the_schema_allows_
     pack = _amending_pack(tmp_path, "density-limit", "        max_density: 1000\n")
     assert main(["check", _demo_like(tmp_path), "--rules", pack]) == 2
     err = capsys.readouterr().err
-    assert err.startswith(f"{pack}:12:15: rule pack error: unknown requirement kind "
-                          "'density-limit'"), err
+    assert err.startswith(f"{pack}:12:15: rule pack error: "), err
+    assert "unknown requirement kind 'density-limit'" in err
 
 
 def test_a_kind_without_its_evaluation_is_an_internal_error_not_another_kind(
