@@ -99,3 +99,40 @@ def test_a_kind_without_its_evaluation_is_an_internal_error_not_another_kind(
     pack = _amending_pack(tmp_path, "density-limit", "        max_density: 1000\n")
     assert main(["check", _demo_like(tmp_path), "--rules", pack]) == 3
     assert "has no evaluation registered" in capsys.readouterr().err
+
+
+# --- system kinds -------------------------------------------------------------------------------
+
+def test_system_kinds_one_vocabulary():
+    from airgate.evaluation.system_kinds import SYSTEM_KINDS
+    from airgate.models.schedule import SYSTEM_KINDS as SCHEDULE_KINDS
+    from airgate.models.schedule import System
+
+    assert list(SYSTEM_KINDS) == list(SCHEDULE_KINDS)
+    assert System.model_json_schema()["properties"]["kind"]["enum"] == list(SCHEDULE_KINDS)
+    for name, kind in SYSTEM_KINDS.items():
+        assert kind.name == name and callable(kind.evaluate)
+
+
+def test_an_unknown_system_kind_is_a_located_schedule_error(tmp_path, capsys):
+    import yaml
+
+    from airgate.models.schedule import SYSTEM_KINDS as SCHEDULE_KINDS
+
+    path = tmp_path / "building.yaml"
+    data = yaml.safe_load(open(_demo_like(tmp_path), encoding="utf-8"))
+    data["systems"][0]["kind"] = "exhaust-only"
+    path.write_text(yaml.safe_dump(data, sort_keys=False), encoding="utf-8")
+    assert main(["check", str(path)]) == 2
+    err = capsys.readouterr().err
+    assert re.match(re.escape(str(path)) + r":\d+:\d+: schedule error: systems\[0\]\.kind", err)
+    assert all(name in err for name in SCHEDULE_KINDS)
+
+
+def test_a_system_kind_without_its_evaluation_is_an_internal_error(tmp_path, capsys,
+                                                                   monkeypatch):
+    from airgate.evaluation.system_kinds import SYSTEM_KINDS
+
+    monkeypatch.delitem(SYSTEM_KINDS, "single-zone")
+    assert main(["check", _demo_like(tmp_path)]) == 3
+    assert "has no evaluation registered" in capsys.readouterr().err

@@ -25,6 +25,7 @@ from airgate.evaluation.dilution import (
     volume_of,
 )
 from airgate.evaluation.report import SystemResult, ZoneResult
+from airgate.evaluation.system_kinds import kind_of
 from airgate.evaluation.trail import Trail
 from airgate.evaluation.zones import ZoneContext
 from airgate.models.datatables import DataTable, Tables
@@ -97,7 +98,7 @@ def _single(ctx, z, c, system: System, schedule: Schedule, emitter: Emitter,
     t = _start(ctx, z, c, filt)
     q_oa = co2.value("Q_oa")
     q_rec = 0.0
-    if system.kind == "single-zone" and system.supply_airflow is not None:
+    if "supply_airflow" in kind_of(system).system_fields and system.supply_airflow is not None:
         q_rec = max(0.0, system.supply_airflow - q_oa)
     t.add("Q_oa", q_oa, "airflow", note=co2["Q_oa"].note)
     t.add("Q_rec", q_rec, "airflow", note="recirculated airflow through the filter (supply − "
@@ -213,7 +214,7 @@ def analyse(system: System, ctxs: list[ZoneContext], result: SystemResult, sched
         return
     for index, c in enumerate(schedule.contaminants):
         filt = filter_efficiency(system, c, tables[MERV_TABLE])
-        if system.kind == "multiple-zone":
+        if kind_of(system).coupled:
             trails = _coupled(system, ctxs, result, c, schedule, filt)
             pairs = zip(ctxs, result.zones, trails or [])
         else:

@@ -9,14 +9,14 @@ whose check this module does not derive still gets its own case, so no finding i
 
 from __future__ import annotations
 
-import math
 from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass
 
 from airgate.evaluation.checks import DECLARED_CHECKS
 from airgate.evaluation.findings import CODE, DECLARED, SEVERITY_RANK, Amount, Finding, Location
 from airgate.evaluation.report import SystemResult, ZoneResult
-from airgate.models.rules import RulePack, SimplifiedEv
+from airgate.evaluation.system_kinds import kind_of
+from airgate.models.rules import RulePack
 from airgate.models.schedule import Schedule, System
 
 #: case status, worst first
@@ -66,22 +66,9 @@ def _system_checks(system: System, result: SystemResult) -> Iterator[tuple]:
     t = result.trail
     yield ("system-intake", ("outdoor_air",), _amount(_value(t, "Vot"), "airflow"),
            _amount(_value(t, "Vot_design"), "airflow"))
-    if system.kind == "multiple-zone":
-        yield "ventilation-efficiency-positive", (), None, None
-        yield "diversity-above-one", (), None, None
-    if system.kind == "outdoor-air":
-        yield "zone-air-sum", (), None, None
+    yield from kind_of(system).system_checks(system, result)
     if system.is_recirculating:
         yield "air-class-mixing", (), None, None
-
-
-def _ev_needed(result: SystemResult) -> float | None:
-    """The Ev the scheduled intake needs, Vou / Vot_design; None where zones cannot help."""
-    t = result.trail
-    if "Vou" not in t or not t.value("Vot_design") > 0:
-        return None
-    needed = t.value("Vou") / t.value("Vot_design")
-    return needed if needed <= 1.0 else None  # above 1 only more intake helps
 
 
 def _zone_checks(system: System, z: ZoneResult, result: SystemResult,
@@ -90,11 +77,7 @@ def _zone_checks(system: System, z: ZoneResult, result: SystemResult,
     yield "space-without-rates", (), None, None
     yield "air-distribution-assumed", (), None, None
     yield "population-without-density", (), None, None
-    if system.kind == "outdoor-air" and "Voz_design" in zt:
-        yield ("zone-outdoor-air", ("outdoor_air",), Amount(zt.value("Voz"), "airflow"),
-               Amount(zt.value("Voz_design"), "airflow"))
-    if system.kind == "multiple-zone":
-        yield from _multiple_zone_checks(system, zt, result, pack)
+    yield from kind_of(system).zone_checks(system, z, result, pack)
     if system.is_recirculating:
         yield "air-class-recirculation", (), None, None
     limits = [z.dilution] if z.dilution is not None else []
@@ -103,26 +86,6 @@ def _zone_checks(system: System, z: ZoneResult, result: SystemResult,
         yield "concentration-limit", (), None, None
     if z.dilution is not None and "T" in z.dilution:
         yield "short-term-averaging", (), None, None
-
-
-def _multiple_zone_checks(system: System, zt, result: SystemResult,
-                          pack: RulePack) -> Iterator[tuple]:
-    if "Vpz" in zt:
-        yield ("zone-primary-airflow", ("primary_airflow",), Amount(zt.value("Voz"), "airflow"),
-               Amount(zt.value("Vpz"), "airflow"))
-    needed = _ev_needed(result)
-    if "Evz" in zt and needed is not None and not math.isinf(result.trail.value("Vot")):
-        yield ("zone-limits-ev", ("primary_airflow",), Amount(needed, "fraction"),
-               Amount(zt.value("Evz"), "fraction"))
-    method = pack.methods.get(result.method or "")
-    if (isinstance(method, SimplifiedEv) and method.vav_minimum_primary_ratio is not None
-            and system.variable_air_volume):
-        required = Amount(method.vav_minimum_primary_ratio * zt.value("Voz"), "airflow")
-        if "Vpz" in zt:
-            yield ("simplified-vav-minimum", ("primary_airflow",), required,
-                   Amount(zt.value("Vpz"), "airflow"))
-        else:
-            yield "simplified-vav-minimum", (), required, None
 
 
 def applicable(model: Schedule, pack: RulePack, results: list[SystemResult],

@@ -20,6 +20,7 @@ import numpy as np
 
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.report import SystemResult, ZoneResult
+from airgate.evaluation.system_kinds import kind_of
 from airgate.evaluation.trail import Trail
 from airgate.evaluation.zones import ZoneContext
 from airgate.models.datatables import DataTable, Tables
@@ -220,10 +221,9 @@ def _limit(t: Trail, ctx: ZoneContext, schedule: Schedule, emitter: Emitter) -> 
 
 def _outdoor_air_to_zone(system: System, ctx: ZoneContext, z: ZoneResult,
                          result: SystemResult) -> tuple[float, str]:
-    if system.kind == "single-zone":
-        return system.outdoor_air, "the system's scheduled outdoor-air intake"
-    if ctx.zone.outdoor_air is not None:
-        return ctx.zone.outdoor_air, "outdoor air scheduled to the zone"
+    scheduled = kind_of(system).zone_outdoor_air(system, ctx.zone)
+    if scheduled is not None:
+        return scheduled
     total = result.trail.value("ΣVoz")
     share = z.trail.value("Voz") / total if total > 0 else 0.0
     return system.outdoor_air * share, "share of the intake in proportion to Voz (not scheduled)"
@@ -368,7 +368,7 @@ def analyse(system: System, ctxs: list[ZoneContext], result: SystemResult, sched
     out: list[ZoneResult] = []
     if math.isinf(result.trail.value("Vot")):
         return out
-    if system.kind == "multiple-zone":
+    if kind_of(system).coupled:
         _multiple_zone(system, ctxs, result, schedule, emitter, out, tables[CO2_TABLE])
     else:
         _single_path(system, ctxs, result, schedule, emitter, out, tables[CO2_TABLE])

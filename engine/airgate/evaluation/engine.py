@@ -12,6 +12,7 @@ from collections.abc import Sequence
 from airgate.errors import AirgateError, raise_all
 from airgate.evaluation import bind, contaminants, coverage, dilution, systems, waivers
 from airgate.evaluation.checks import DECLARED_CHECKS, KNOWN_CHECKS, Emitter
+from airgate.evaluation.system_kinds import kind_of
 from airgate.evaluation.findings import Location
 from airgate.evaluation.requirements import Run as RequirementRun
 from airgate.evaluation.report import SAFETY_CAUTION, Report, SystemResult
@@ -21,6 +22,7 @@ from airgate.evaluation.zones import ZoneContext, evaluate_zone
 from airgate.models.datatables import Tables
 from airgate.models.loaded import LoadedSchedule
 from airgate.models.rules import RulePack
+from airgate.models.schedule import SYSTEM_KINDS
 
 
 def _location(loaded: LoadedSchedule, path: tuple) -> Location:
@@ -47,36 +49,9 @@ def _bind_all(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
                                         category=cat, ez=ez, subject=f"{system.id}/{zone.id}",
                                         system_id=system.id, fields=fields))
         out.append(ctxs)
-        errors.extend(_method_errors(loaded, pack, i))
+        errors.extend(kind_of(system).check_inputs(loaded, pack, i))
     raise_all(errors)
     return out
-
-
-def _method(pack: RulePack, system) -> str:
-    return system.ventilation_efficiency or pack.default_method
-
-
-def _method_errors(loaded: LoadedSchedule, pack: RulePack, i: int) -> list[AirgateError]:
-    system = loaded.model.systems[i]
-    if system.kind != "multiple-zone":
-        return []
-    method = _method(pack, system)
-    if method not in pack.methods:
-        gone = pack.retirement("ventilation_efficiency", method) if method else None
-        what = (f"rule pack {pack.id} has no procedure for multiple-zone systems" if not pack.methods
-                else f"rule pack {pack.id} does not allow the '{method}' ventilation efficiency "
-                "method" + (f"; it was {gone.text()}" if gone else ""))
-        at = "ventilation_efficiency" if system.ventilation_efficiency else "kind"
-        return [loaded.error(what, ("systems", i, at), allowed=sorted(pack.methods))]
-    if method == "simplified":
-        return []
-    return [
-        loaded.error(f"the {method} Ev method needs primary_airflow (Vpz) for every zone; "
-                     f"zone '{zone.id}' gives none", ("systems", i, "zones", j, "primary_airflow"),
-                     hint="add primary_airflow, or use ventilation_efficiency: simplified if "
-                     "the pack allows it")
-        for j, zone in enumerate(system.zones) if zone.primary_airflow is None
-    ]
 
 
 def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
@@ -105,13 +80,7 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
         result = SystemResult(id=system.id, name=system.name, kind=system.kind, location=where,
                               trail=Trail(), zones=zones)
         locate = lambda path: _location(loaded, path)  # noqa: E731
-        if system.kind == "single-zone":
-            systems.single_zone(system, ctxs, zones, result, pack, emitter, intake_at)
-        elif system.kind == "outdoor-air":
-            systems.outdoor_air(system, ctxs, zones, result, pack, emitter, intake_at, locate)
-        else:
-            systems.multiple_zone(system, ctxs, zones, result, pack, emitter, intake_at, locate,
-                                  _method(pack, system))
+        kind_of(system).evaluate(system, ctxs, zones, result, pack, emitter, intake_at, locate)
         systems.air_classes(system, ctxs, emitter, where)
         dilution.analyse(system, ctxs, result, loaded.model, emitter, tables)
         contaminants.analyse(system, ctxs, result, loaded.model, emitter, tables)
@@ -145,5 +114,5 @@ def _verdicts(results: list[SystemResult], findings) -> None:
         s.verdict = "fail" if s.id in failing_systems else "pass"
         for z in s.zones:
             own = f"{s.id}/{z.id}" in failing
-            shared = s.kind == "single-zone" and s.id in failing
+            shared = SYSTEM_KINDS[s.kind].one_zone and s.id in failing  # its one zone
             z.verdict = "fail" if own or shared else "pass"

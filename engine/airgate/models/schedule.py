@@ -8,6 +8,7 @@ The JSON Schema published by ``airgate schema schedule`` is generated from these
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from typing import Annotated, Any, Literal
 
 from pydantic import (
@@ -204,12 +205,29 @@ class Zone(_Model):
         return self
 
 
+@dataclass(frozen=True)
+class SystemKindRules:
+    """What the schedule contract says of a system kind."""
+
+    one_zone: bool  #: serves exactly one zone
+    recirculates: bool  #: recirculates return air unless the schedule says otherwise
+
+
+#: the system kinds a schedule may name; each has its evaluation registered under the same name
+#: in :data:`airgate.evaluation.system_kinds.SYSTEM_KINDS`
+SYSTEM_KINDS: dict[str, SystemKindRules] = {
+    "single-zone": SystemKindRules(one_zone=True, recirculates=True),
+    "outdoor-air": SystemKindRules(one_zone=False, recirculates=False),
+    "multiple-zone": SystemKindRules(one_zone=False, recirculates=True),
+}
+
+
 class System(_Model):
     """An air system and the zones it serves."""
 
     id: Id
     name: str | None = Field(None, description="Air system name. [–]")
-    kind: Literal["single-zone", "outdoor-air", "multiple-zone"] = Field(
+    kind: Literal[tuple(SYSTEM_KINDS)] = Field(
         description="single-zone, 100 % outdoor-air, or multiple-zone recirculating. [–]")
     outdoor_air: Q("airflow", "Scheduled minimum outdoor-air intake Vot. [cfm or L/s]")
     supply_airflow: Q(
@@ -229,14 +247,16 @@ class System(_Model):
 
     @model_validator(mode="after")
     def _kind_fits(self) -> System:
-        if self.kind == "single-zone" and len(self.zones) != 1:
+        if SYSTEM_KINDS[self.kind].one_zone and len(self.zones) != 1:
             raise cross_field("kind", f"a single-zone system serves exactly one zone, this one "
                                       f"lists {len(self.zones)}; use kind: multiple-zone")
         return self
 
     @property
     def is_recirculating(self) -> bool:
-        return self.recirculates if self.recirculates is not None else self.kind != "outdoor-air"
+        if self.recirculates is not None:
+            return self.recirculates
+        return SYSTEM_KINDS[self.kind].recirculates
 
 
 class Schedule(_Model):

@@ -9,6 +9,7 @@ from typing import TYPE_CHECKING, Any
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.findings import Amount, Finding, Location
 from airgate.evaluation.report import SystemResult, ZoneResult
+from airgate.evaluation.system_kinds import kind_of
 from airgate.evaluation.zones import ZoneContext
 from airgate.models.requirements import Requirement, Subject
 from airgate.models.rules import OccupancyCategory
@@ -104,11 +105,8 @@ def zone_subject(system: Any, zone: Any, cat: OccupancyCategory,
 
 def scheduled_zone_outdoor_air(system: Any, zone: Any) -> float | None:
     """The outdoor air the schedule delivers to ``zone`` itself, where it says [L/s]."""
-    if system.kind == "single-zone":
-        return system.outdoor_air
-    if system.kind == "outdoor-air" and zone.outdoor_air is not None:
-        return zone.outdoor_air
-    return None
+    scheduled = kind_of(system).zone_outdoor_air(system, zone)
+    return None if scheduled is None else scheduled[0]
 
 
 def modified(run: Run, req: Requirement, t: Target) -> None:
