@@ -11,10 +11,7 @@
 from __future__ import annotations
 
 import copy
-import os
 import random
-import subprocess
-import sys
 
 import pytest
 import yaml
@@ -26,7 +23,7 @@ from airgate.readers.rulepack import load_pack
 from airgate.readers.schedule import read_schedule
 from airgate.writers import explain, json_report, text
 
-from conftest import DEMO, ROOT, schedule
+from conftest import examples, schedule
 
 PACK = load_pack("ashrae-62.1-2019")
 SPACES = sorted(PACK.categories)
@@ -50,8 +47,7 @@ system_st = st.fixed_dictionaries({
     "zones": st.lists(zone_st, min_size=1, max_size=6),
 })
 #: CI generates thousands of schedules over the four invariant tests; locally a quicker sample.
-EXAMPLES = 400 if os.environ.get("CI") else 60
-SETTINGS = settings(max_examples=EXAMPLES, deadline=None,
+SETTINGS = settings(max_examples=examples(3),
                     suppress_health_check=[HealthCheck.function_scoped_fixture,
                                            HealthCheck.too_slow])
 
@@ -177,18 +173,3 @@ def test_reordering_changes_no_result(tmp_path_factory, systems, seed):
         assert a[key][0] == b[key][0] and a[key][2] == b[key][2]
         if a[key][1] != "inf":
             assert b[key][1] == pytest.approx(a[key][1], rel=1e-9)
-
-
-@pytest.mark.parametrize("fmt", ["text", "json"])
-def test_output_is_identical_across_hash_seed_locale_and_time_zone(fmt):
-    # Determinism (common practice): same input, byte-identical report, whatever the
-    # environment. Two subprocesses with different PYTHONHASHSEED, locale and TZ.
-    outs = []
-    for seed, tz, lang in (("1", "UTC", "C.UTF-8"), ("4242", "Pacific/Auckland", "de_DE.UTF-8")):
-        env = {**os.environ, "PYTHONHASHSEED": seed, "TZ": tz, "LC_ALL": lang, "LANG": lang}
-        run_ = subprocess.run([sys.executable, "-m", "airgate", "check", str(DEMO.relative_to(ROOT)),
-                               "--format", fmt, "--exit-zero"], cwd=ROOT, env=env,
-                              capture_output=True)
-        assert run_.returncode == 0, run_.stderr
-        outs.append(run_.stdout)
-    assert outs[0] == outs[1]

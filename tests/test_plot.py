@@ -22,13 +22,12 @@ def test_png_of_a_zone(tmp_path, capsys):
     assert data[:8] == b"\x89PNG\r\n\x1a\n" and len(data) > 20_000
 
 
-def test_svg_of_a_system_is_deterministic(tmp_path, capsys):
-    a, b = tmp_path / "a.svg", tmp_path / "b.svg"
+def test_svg_of_a_system(tmp_path, capsys):
+    # (byte-identical pictures across runs and environments: tests/test_determinism.py)
+    a = tmp_path / "a.svg"
     assert main(["plot", str(DEMO), "--system", "AHU-3", "-o", str(a)]) == 0
-    assert main(["plot", str(DEMO), "--system", "AHU-3", "-o", str(b)]) == 0
     text = a.read_text(encoding="utf-8")
     assert "<svg" in text and "CO2" in text
-    assert a.read_bytes() == b.read_bytes()
 
 
 def test_unknown_extension_and_missing_series(tmp_path, capsys):

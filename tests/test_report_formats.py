@@ -94,10 +94,9 @@ def test_bad_input_golden_per_format(capsys, monkeypatch, tmp_path, fmt):
 
 
 @pytest.mark.parametrize("fmt", FORMATS)
-def test_every_format_is_deterministic_and_cautions(capsys, monkeypatch, fmt):
+def test_every_format_states_the_caution_and_the_date(capsys, monkeypatch, fmt):
+    # (byte-identical output across runs and environments: tests/test_determinism.py)
     first = run(capsys, monkeypatch, "check", DEMO_ARG, "--format", fmt, *WAIVED)
-    second = run(capsys, monkeypatch, "check", DEMO_ARG, "--format", fmt, *WAIVED)
-    assert first == second
     assert CAUTION in first[1]  # every report states who governs (project rule)
     assert "2026-12-01" in first[1]  # the expiry date is reported, so the run can be redone
 
@@ -255,24 +254,6 @@ def test_several_formats_at_once(capsys, monkeypatch, tmp_path):
 def test_bad_options_are_usage_errors(capsys, monkeypatch, argv, text):
     code, out, err = run(capsys, monkeypatch, "check", DEMO_ARG, *argv)
     assert code == 2 and out == "" and text in err and "usage error" in err
-
-
-@pytest.mark.parametrize("fmt", ["junit", "sarif", "markdown", "html"])
-def test_output_is_identical_across_hash_seed_locale_and_time_zone(fmt):
-    # Determinism (common practice): byte-identical whatever the environment; two
-    # subprocesses with different PYTHONHASHSEED, locale and time zone.
-    import subprocess
-    import sys
-
-    outs = []
-    for seed, tz, lang in (("1", "UTC", "C.UTF-8"), ("4242", "Pacific/Auckland", "de_DE.UTF-8")):
-        env = {**os.environ, "PYTHONHASHSEED": seed, "TZ": tz, "LC_ALL": lang, "LANG": lang}
-        done = subprocess.run([sys.executable, "-m", "airgate", "check", DEMO_ARG, "--format",
-                               fmt, "--exit-zero", *WAIVED], cwd=ROOT, env=env,
-                              capture_output=True)
-        assert done.returncode == 0, done.stderr
-        outs.append(done.stdout)
-    assert outs[0] == outs[1] and outs[0]
 
 
 def test_html_with_waivers_shows_every_outcome(capsys, monkeypatch):

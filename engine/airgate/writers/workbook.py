@@ -218,9 +218,33 @@ def xlsx_bytes(tables: Tables, pack=None) -> bytes:
         # a stated configuration or a list of modes is typed: the drop-down only suggests rows
         choose("zones", "air_distribution", f"=Lists!$C$2:$C${len(rows_ez) + 1}", strict=False)
         choose("systems", "ventilation_efficiency", '"' + ",".join(sorted(pack.methods)) + '"')
-    buffer = io.BytesIO()
-    book.save(buffer)
-    return buffer.getvalue()
+    return _deterministic_xlsx(book)
+
+
+#: the one timestamp a written workbook carries (document properties and ZIP entries): the
+#: earliest date a ZIP entry can hold, so the same tables give the same bytes (no clock, no TZ)
+_FIXED_TIME = (1980, 1, 1, 0, 0, 0)
+
+
+def _deterministic_xlsx(book) -> bytes:
+    """``book`` as .xlsx bytes with fixed times: openpyxl stamps the document properties with
+    the clock and each ZIP entry with the local time."""
+    import datetime as dt
+    import zipfile
+
+    from openpyxl.writer.excel import ExcelWriter
+
+    book.properties.created = book.properties.modified = dt.datetime(*_FIXED_TIME)
+    raw = io.BytesIO()
+    with zipfile.ZipFile(raw, "w", zipfile.ZIP_DEFLATED) as archive:
+        ExcelWriter(book, archive).save()  # as Workbook.save, less its "modified = now"
+    out = io.BytesIO()
+    with zipfile.ZipFile(io.BytesIO(raw.getvalue())) as src, \
+            zipfile.ZipFile(out, "w", zipfile.ZIP_DEFLATED) as dst:
+        for info in src.infolist():
+            dst.writestr(zipfile.ZipInfo(info.filename, date_time=_FIXED_TIME),
+                         src.read(info.filename), compress_type=zipfile.ZIP_DEFLATED)
+    return out.getvalue()
 
 
 def write_files_atomic(files: dict[Path, bytes | str]) -> None:
