@@ -7,8 +7,26 @@ from pathlib import Path
 
 import pytest
 import yaml
+from hypothesis import HealthCheck, settings
 
 from airgate import check
+
+# Hypothesis profiles: few examples on a developer's machine, more under CI (.ci/run sets
+# CI=true); HYPOTHESIS_PROFILE=ci runs the CI amount locally. No deadline: the machines are
+# small and shared, and speed is measured in bench/, never asserted in tests.
+settings.register_profile("dev", max_examples=20, deadline=None,
+                          suppress_health_check=[HealthCheck.too_slow])
+settings.register_profile("ci", max_examples=100, deadline=None, print_blob=True,
+                          suppress_health_check=[HealthCheck.too_slow])
+settings.load_profile(os.environ.get("HYPOTHESIS_PROFILE")
+                      or ("ci" if os.environ.get("CI") else "dev"))
+
+
+def examples(weight: float = 1.0) -> int:
+    """A test's number of examples: ``weight`` times the profile's (at least 5), for tests whose
+    examples are much cheaper or dearer than the usual."""
+    return max(5, round(settings.default.max_examples * weight))
+
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "fixtures" / "demo" / "fernhollow-civic-centre.yaml"

@@ -36,7 +36,7 @@ from airgate.errors import EXIT_INPUT, ScheduleError
 from airgate.readers import document
 from airgate.readers.schedule import read_schedule
 
-from conftest import DEMO, ROOT
+from conftest import DEMO, ROOT, examples
 
 BAD = ROOT / "fixtures" / "bad"
 EDGE = ROOT / "fixtures" / "edge"
@@ -328,8 +328,8 @@ def damaged_demo(draw) -> bytes:
                    b"\n", b"\xff", b"\x00", b"x"])
 
 
-@settings(max_examples=80, deadline=None,
-          suppress_health_check=[HealthCheck.function_scoped_fixture])
+@settings(max_examples=examples(0.8),
+          suppress_health_check=[HealthCheck.function_scoped_fixture, HealthCheck.too_slow])
 @given(data=damaged_demo())
 def test_damaged_demo_never_gets_a_traceback(data: bytes, capsys):
     with tempfile.TemporaryDirectory() as folder:

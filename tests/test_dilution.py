@@ -14,6 +14,8 @@ from scipy.integrate import quad, solve_ivp
 
 from airgate.procedures import dilution as dil
 
+from conftest import examples
+
 # CDC, Guidelines for Environmental Infection Control in Health-Care Facilities (2003),
 # Appendix B, Table B.1 (reference-values.md F, published):
 # air changes per hour -> minutes to 99 % and to 99.9 % removal.
@@ -200,12 +202,12 @@ def test_transient_matches_solve_ivp_random_zones():
     _assert_agrees(got, ref)
 
 
-@settings(max_examples=40, deadline=None)
 def _flow(top):
     """Zero or a physical magnitude (no subnormal inputs that only stress the reference)."""
     return st.one_of(st.just(0.0), st.floats(1e-3, top))
 
 
+@settings(max_examples=examples(0.4))
 @given(volume=st.floats(1.0, 5000.0), q_oa=_flow(1e4), q_rec=_flow(1e4),
        eta_rec=st.floats(0.0, 1.0), gen=st.lists(_flow(1e5), min_size=1, max_size=5),
        c0=_flow(1e3), c_out=_flow(500.0))

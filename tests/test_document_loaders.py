@@ -10,7 +10,6 @@ reference loader, whose message is the one reported).
 
 from __future__ import annotations
 
-import os
 from pathlib import Path
 
 import pytest
@@ -20,7 +19,7 @@ from hypothesis import strategies as st
 from airgate.errors import AirgateError, ScheduleError
 from airgate.readers import document as docmod
 
-from conftest import DEMO, ROOT
+from conftest import DEMO, ROOT, examples
 from fuzzing import damage
 
 pytestmark = pytest.mark.skipif(len(docmod._LOADERS) < 2,
@@ -63,7 +62,7 @@ DAMAGED = [Path(DEMO), ROOT / "rules" / "ashrae-62.1-2019-quillby-bay.yaml",
 
 
 @pytest.mark.parametrize("source", DAMAGED, ids=lambda p: p.name)
-@settings(max_examples=int(os.environ.get("AIRGATE_LOADER_EXAMPLES", 100)), deadline=None,
+@settings(max_examples=examples(),
           suppress_health_check=[HealthCheck.too_slow, HealthCheck.function_scoped_fixture])
 @given(data=st.data())
 def test_damaged_files_read_the_same(source, data):

@@ -49,7 +49,7 @@ fractions = st.floats(min_value=0.0, max_value=1.0, allow_nan=False)
 def test_secondary_form_reduces_to_single_path_when_ep_is_one(xs, zpz, ez, er):
     # Check stated in reference-values.md C: with Ep = 1 the general form is 1 + Xs − Zpz.
     general = eff.zone_ventilation_efficiency(xs, zpz, ep=1.0, er=er, ez=ez)
-    assert general == pytest.approx(eff.zone_ventilation_efficiency_single_path(xs, zpz), abs=1e-12)
+    assert general == pytest.approx(1 + xs - zpz, abs=1e-12)
 
 
 @given(voz=st.floats(1, 5000), xs=st.floats(0.05, 1.0), target=st.floats(0.3, 1.0),
@@ -57,11 +57,14 @@ def test_secondary_form_reduces_to_single_path_when_ep_is_one(xs, zpz, ez, er):
 def test_minimum_primary_airflow_reaches_target_exactly(voz, xs, target, ep, er, ez):
     # Derived: Vpz_min solves Evz(Voz/Vpz) = target (Appendix A form rearranged; domain.md §2).
     vpz = eff.minimum_primary_airflow(voz, xs, target, ep, er, ez)
+    # the general form written out here (62.1-2019 Normative Appendix A, from memory):
+    # Fa = Ep + (1 − Ep)·Er, Fb = Ep, Fc = 1 − (1 − Ez)(1 − Er)(1 − Ep),
+    # Evz = (Fa + Xs·Fb − Zpz·Ep·Fc)/Fa
+    fa, fb, fc = ep + (1 - ep) * er, ep, 1 - (1 - ez) * (1 - er) * (1 - ep)
     if np.isinf(vpz):
-        fa, fb, _ = eff.secondary_recirculation_factors(ep, er, ez)
         assert fa * (1 - target) + xs * fb <= 0
         return
-    evz = eff.zone_ventilation_efficiency(xs, voz / vpz, ep, er, ez)
+    evz = (fa + xs * fb - voz / vpz * ep * fc) / fa
     assert evz == pytest.approx(target, rel=1e-9, abs=1e-12)
 
 
@@ -74,8 +77,7 @@ def test_array_and_float_agree():
     xs = np.array([0.2, 0.3])
     zpz = np.array([0.5, 0.1])
     out = eff.zone_ventilation_efficiency_single_path(xs, zpz)
-    assert out.tolist() == [eff.zone_ventilation_efficiency_single_path(a, b)
-                            for a, b in zip(xs, zpz)]
+    np.testing.assert_allclose(out, [1 + 0.2 - 0.5, 1 + 0.3 - 0.1], rtol=1e-15)  # 1 + Xs − Zpz
     assert eff.system_ventilation_efficiency_detailed(out) == pytest.approx(0.7)
     np.testing.assert_allclose(eff.system_ventilation_efficiency_simplified(np.array([0.5, 0.7])),
                                [0.66, 0.75])

@@ -19,7 +19,7 @@ from airgate import evaluate
 from airgate.readers.rulepack import load_pack
 from airgate.readers.schedule import read_schedule
 
-from conftest import schedule
+from conftest import examples, schedule
 
 PACK = load_pack("ashrae-62.1-2019")
 
@@ -55,7 +55,8 @@ zone_strategy = st.fixed_dictionaries({
 })
 
 
-@settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@settings(max_examples=examples(0.4),
+          suppress_health_check=[HealthCheck.function_scoped_fixture, HealthCheck.too_slow])
 @given(zones=st.lists(zone_strategy, min_size=2, max_size=8))
 def test_detailed_ev_sizes_critical_zone_to_single_zone_target(tmp_path_factory, zones):
     folder = tmp_path_factory.mktemp("mb")
@@ -93,8 +94,8 @@ def test_detailed_ev_sizes_critical_zone_to_single_zone_target(tmp_path_factory,
     assert np.all(conc <= k * (1 + 1e-9))
 
 
-@settings(max_examples=30, deadline=None,
-          suppress_health_check=[HealthCheck.function_scoped_fixture])
+@settings(max_examples=examples(0.3),
+          suppress_health_check=[HealthCheck.function_scoped_fixture, HealthCheck.too_slow])
 @given(zones=st.lists(st.fixed_dictionaries({
     "area": st.integers(200, 5000), "occupants": st.integers(1, 60),
     "vpz_factor": st.floats(1.05, 6.0)}), min_size=2, max_size=8))

@@ -16,7 +16,7 @@ from hypothesis import strategies as st
 
 from airgate.cli import main
 
-from conftest import DEMO, ROOT
+from conftest import DEMO, ROOT, examples
 from fuzzing import damage
 
 DEMO_DIR = DEMO.parent
@@ -38,8 +38,9 @@ def _check(path: Path, capsys, *extra: str) -> None:
         assert ":" in err.split("\n", 1)[0]  # the message starts with a location
 
 
-SETTINGS = settings(max_examples=40, deadline=None,
-                    suppress_health_check=[HealthCheck.function_scoped_fixture])
+SETTINGS = settings(max_examples=examples(),
+                    suppress_health_check=[HealthCheck.function_scoped_fixture,
+                                           HealthCheck.too_slow])
 
 
 @SETTINGS

@@ -14,18 +14,20 @@ from airgate.readers.document import parse_yaml
 from airgate.readers.sources import Origin
 from airgate.writers.schedule_yaml import flow, render, scalar
 
+from conftest import examples
+
 
 def _back(text: str):
     return parse_yaml(f"k: {text}\n", "t.yaml", ScheduleError).data["k"]
 
 
-@settings(max_examples=300, deadline=None)
+@settings(max_examples=examples(3))
 @given(st.text(alphabet=st.characters(blacklist_categories=("Cs", "Cc")), max_size=40))
 def test_any_text_reads_back_as_written(text):
     assert _back(scalar(text)) == text
 
 
-@settings(max_examples=100, deadline=None)
+@settings(max_examples=examples())
 @given(st.lists(st.text(max_size=12) | st.integers() | st.booleans(), max_size=4),
        st.dictionaries(st.from_regex(r"[a-z_]{1,8}", fullmatch=True),
                        st.text(max_size=12) | st.floats(allow_nan=False, allow_infinity=False),
