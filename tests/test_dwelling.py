@@ -54,12 +54,14 @@ def test_si_coefficients():
 
 
 def test_packs_carry_the_equation_coefficients():
-    # The packs' single row holds Equation 4-1's coefficients (published I-P; SI from memory).
+    # The packs' single row holds Equation 4-1's coefficients: 7.5 cfm per person and
+    # 0.03 cfm/ft² (ANSI/ASHRAE 62.2-2019 Eq. 4-1, published); 3.5 L/s and 0.15 L/s·m² in SI
+    # (from memory).
     ip = load_pack("ashrae-62.2-2019").categories["dwelling-unit"]
-    assert ip.printed["Rp"] == dwelling.IP_PER_PERSON and ip.printed["Ra"] == dwelling.IP_PER_AREA
+    assert ip.printed["Rp"] == 7.5 and ip.printed["Ra"] == 0.03
     assert ip.default_occupants == "bedrooms-plus-one" and ip.provenance == "published"
     si = load_pack("ashrae-62.2-2019-si").categories["dwelling-unit"]
-    assert si.printed["Rp"] == dwelling.SI_PER_PERSON and si.printed["Ra"] == dwelling.SI_PER_AREA
+    assert si.printed["Rp"] == 3.5 and si.printed["Ra"] == 0.15
     assert si.provenance == "from memory"
 
 
@@ -73,14 +75,14 @@ def _unit(area, bedrooms=None, occupants=None, intake="100 cfm"):
 
 
 @pytest.mark.parametrize(("area", "bedrooms"), [(450, 1), (1500, 3), (4800, 5), (2999, 0)])
-def test_engine_equals_the_procedure(evaluate, area, bedrooms):
-    # The dispatcher agrees with the direct function (style.md habit); Pz = Nbr + 1 in the trail.
+def test_engine_evaluates_equation_4_1(evaluate, area, bedrooms):
+    # Qtot = 0.03·Afloor + 7.5·(Nbr + 1) cfm (ANSI/ASHRAE 62.2-2019 Eq. 4-1, published), by hand;
+    # Pz = Nbr + 1 in the trail.
     report = evaluate(schedule(_unit(f"{area} ft2", bedrooms), rules="ashrae-62.2-2019"))
     zone = report.systems[0].zones[0]
     assert zone.trail.value("Pz") == bedrooms + 1
     assert zone.trail["Pz"].formula == "{Nbr} + 1"
-    assert zone.trail.value("Voz") / CFM == pytest.approx(
-        dwelling.whole_dwelling_airflow(area, bedrooms))
+    assert zone.trail.value("Voz") / CFM == pytest.approx(0.03 * area + 7.5 * (bedrooms + 1))
 
 
 def test_table_cells_through_the_engine(evaluate):
