@@ -36,6 +36,8 @@ import pint
 IP = "IP"
 SI = "SI"
 UNIT_SYSTEMS = (IP, SI)
+#: the base dimension of ``person`` in airgate's registry
+PEOPLE_DIMENSION = "[people]"
 
 
 @lru_cache(maxsize=1)
@@ -45,7 +47,10 @@ def registry() -> pint.UnitRegistry:
     # pint would otherwise read "cfm" as centi-fermi.
     ureg.define("cubic_foot_per_minute = foot ** 3 / minute = cfm")
     ureg.define("feet_per_minute = foot / minute = fpm")
-    ureg.define("person = [] = people = persons = occupant = occupants")
+    # People are a dimension of their own, so a per-person rate written without "/person"
+    # ('5 cfm'), a share written for a count ('30 percent') or a formula that forgets ·Pz is a
+    # dimension error rather than a silent change of meaning.
+    ureg.define(f"person = {PEOPLE_DIMENSION} = people = persons = occupant = occupants")
     return ureg
 
 
@@ -114,7 +119,8 @@ KINDS: dict[str, Kind] = {
 }
 
 #: pint unit strings for machine output (JSON), parseable by a stock pint registry once
-#: ``person = []`` is defined. ``cfm`` is written out, since stock pint reads it as centi-fermi.
+#: ``person`` is defined (``person = [people]``, as airgate does, or ``person = []``). ``cfm`` is
+#: written out, since stock pint reads it as centi-fermi.
 JSON_UNITS: dict[tuple[str, str], str] = {
     ("airflow", IP): "ft**3/min", ("airflow", SI): "L/s",
     ("area", IP): "ft**2", ("area", SI): "m**2",
@@ -153,9 +159,31 @@ def _normalise(text: str, kind: str) -> str:
     return text
 
 
+#: how an expected kind is named in a message, where its id does not read well
+_WORDS = {"people": "number of people", "airflow_per_person": "airflow per person",
+          "airflow_per_area": "airflow per area", "density": "occupant density (people per area)",
+          "gas_generation": "gas generation per person"}
+
+
 def _article(kind: str) -> str:
-    words = kind.replace("_", " ")
+    words = _WORDS.get(kind, kind.replace("_", " "))
     return ("an " if words[0] in "aeiou" else "a ") + words
+
+
+def _people_hint(q: pint.Quantity, kind: str, raw: str) -> str:
+    """What to write instead, when the given quantity misses (or adds) a factor of people."""
+    ureg = registry()
+    want = ureg.Quantity(1.0, KINDS[kind].internal).dimensionality
+    got = q.dimensionality
+    person = ureg.Quantity(1.0, "person").dimensionality
+    if kind == "people" and got == ureg.Quantity(1.0).dimensionality:
+        return ("; occupants are a count of people, not a share or a ratio: give the number "
+                "of people, e.g. '25' or '25 people'")
+    if got / person == want:
+        return f"; a rate per person needs '/person' in its unit, e.g. '{raw.strip()}/person'"
+    if got * person == want:
+        return "; this is a value per person, but a total is expected here"
+    return ""
 
 
 class QuantityError(ValueError):
@@ -252,7 +280,7 @@ def parse(raw: object, kind: str, system: str) -> float:
     except pint.DimensionalityError as exc:
         raise QuantityError(
             f"{raw!r} has units of {q.units:~} ({q.dimensionality}); "
-            f"expected {_article(kind)} such as {k.example}"
+            f"expected {_article(kind)} such as {k.example}{_people_hint(q, kind, raw)}"
         ) from exc
     return _finite(converted, raw)
 

@@ -265,12 +265,23 @@ def check_dimensions(node: Node, kinds: Mapping[str, str], result_kind: str) -> 
         result = evaluate(node, env)
     except pint.DimensionalityError as exc:
         raise FormulaError(f"mixes quantities of different dimensions ({exc.dim1} and "
-                           f"{exc.dim2}) in a sum, a difference or min/max") from None
+                           f"{exc.dim2}) in a sum, a difference or min/max"
+                           + _people_hint(str(exc.dim1), str(exc.dim2))) from None
     except ZeroDivisionError:
         raise FormulaError("divides by zero") from None
     try:
         value_in(result, result_kind)
     except pint.DimensionalityError:
         got = result.dimensionality if isinstance(result, pint.Quantity) else "dimensionless"
+        want = units.registry().Quantity(1.0, units.KINDS[result_kind].internal).dimensionality
         raise FormulaError(f"gives a value of dimension {got}, but the requirement compares "
-                           f"{result_kind.replace('_', ' ')} values") from None
+                           f"{result_kind.replace('_', ' ')} values ({want})"
+                           + _people_hint(str(got), str(want))) from None
+
+
+def _people_hint(a: str, b: str) -> str:
+    """A pointer when two dimensions differ by people: a rate per person times a count."""
+    if (units.PEOPLE_DIMENSION in a) != (units.PEOPLE_DIMENSION in b):
+        return ("; a value per person (Rp, a per-person rate or generation) gives a total only "
+                "when multiplied by a number of people (·Pz or ·Ps)")
+    return ""

@@ -43,6 +43,26 @@ def _finite_count(value: Any) -> Any:
     return value
 
 
+def _per_person_generation(value: Any) -> Any:
+    """Text with units (``'0.0052 L/s/person'``) → L/s per person; a unit that is not per
+    person (``'0.0052 L/s'``) is refused. Numbers pass on in L/s per person."""
+    if isinstance(value, str):
+        try:
+            return units.parse(value, "gas_generation", units.SI)
+        except units.QuantityError as exc:
+            raise ValueError(str(exc)) from None
+    return value
+
+
+PerPersonGeneration = Annotated[
+    float,
+    BeforeValidator(_per_person_generation),
+    WithJsonSchema({"anyOf": [{"type": "number", "exclusiveMinimum": 0, "maximum": 0.1},
+                              {"type": "string"}],
+                    "description": "Generation per person. [L/s per person]"}),
+]
+
+
 People = Annotated[
     float,
     BeforeValidator(_finite_count),
@@ -186,9 +206,11 @@ class Zone(_Model):
                                 description="Name of an occupancy profile under 'profiles'. [–]")
     activity: str | None = Field(None, min_length=1,
                                  description="Occupant activity id of the CO2 generation table. [–]")
-    co2_generation: float | None = Field(
+    co2_generation: PerPersonGeneration | None = Field(
         None, gt=0, le=0.1, allow_inf_nan=False,
-        description="CO2 generation per occupant, overriding the activity's. [L/s per person]")
+        description="CO2 generation per occupant, overriding the activity's: a number in L/s "
+                    "per person, or text with units per person such as '18.7 L/h/person'. "
+                    "[L/s per person]")
     air_class: Literal[1, 2, 3, 4] | None = Field(
         None, description="Air class, where it differs from the category's. [–]")
     notes: str | None = Field(None, description="Free text. [–]")

@@ -1,7 +1,7 @@
 """JSON report, contract version 1 (docs/report-format.md).
 
 Values are ``{"value": 425.0, "unit": "ft**3/min"}`` in the schedule's unit system; units are pint
-expressions (a stock pint registry parses them once ``person = []`` is defined). Output is
+expressions (a stock pint registry parses them once ``person = [people]`` is defined). Output is
 deterministic: keys in a fixed order, numbers rounded to 6 significant digits, no timestamps.
 """
 
