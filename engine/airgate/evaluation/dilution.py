@@ -21,7 +21,7 @@ import numpy as np
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.report import SystemResult, ZoneResult
 from airgate.evaluation.system_kinds import kind_of
-from airgate.evaluation.trail import Trail
+from airgate.evaluation.trail import Trail, unit_factor
 from airgate.evaluation.zones import ZoneContext
 from airgate.models.datatables import DataTable, Tables
 from airgate.models.schedule import Schedule, System
@@ -78,23 +78,38 @@ def _start(ctx: ZoneContext, z: ZoneResult, schedule: Schedule, volume: float,
     return t
 
 
-def _steady_single(t: Trail, q_oa: float, q_note: str) -> None:
+def _per_airflow(flow: str, u: str) -> str:
+    """``{Q}`` as L/s in a formula: ``(0.4719·{Q})`` when the report shows cfm."""
+    k = unit_factor(("airflow",), (), u)
+    return f"({k}·{{{flow}}})" if k else f"{{{flow}}}"
+
+
+def _steady_single(t: Trail, q_oa: float, q_note: str, u: str) -> None:
     t.add("Q_oa", q_oa, "airflow", note=q_note)
     c = dilution.steady_state_concentration(PPM * LS * t.value("G"), t.value("V"), LS * q_oa,
                                             t.value("C_out"))
-    t.add("C_ss", float(c), "concentration_ppm", formula="{C_out} + 10⁶·{G} / {Q_oa}", source=MB,
+    t.add("C_ss", float(c), "concentration_ppm",
+          formula="{C_out} + 10⁶·{G} / " + _per_airflow("Q_oa", u), source=MB,
           note="steady state at design occupancy")
+    _excess(t)
 
 
-def _rates(t: Trail) -> None:
+def _excess(t: Trail) -> None:
+    t.add("C_excess", t.value("C_ss") - t.value("C_out"), "concentration_ppm",
+          formula="{C_ss} − {C_out}", note="CO2 above outdoor at steady state")
+
+
+def _rates(t: Trail, u: str) -> None:
     """Change rate, time constant, time to 95 % of steady state, purge times."""
     q = t.value("Q_oa")
     lam = float(dilution.loss_rate(t.value("V"), LS * q))
-    t.add("ACH", lam, "rate", formula="3.6·{Q_oa} / {V}", source=MB,
+    ach = unit_factor(("airflow",), ("volume", "rate"), u, times=LS)
+    t.add("ACH", lam, "rate", formula=f"{ach}·{{Q_oa}} / {{V}}", source=MB,
           note="outdoor-air changes per hour (CO2 has no other removal)")
     if lam <= 0:
         return
-    t.add("tau", 1 / lam, "time", formula="1 / {ACH}", note="time constant")
+    per_hour = unit_factor((), ("rate", "time"), u) or "1"
+    t.add("tau", 1 / lam, "time", formula=f"{per_hour} / {{ACH}}", note="time constant")
     t.add("t95", float(dilution.time_to_fraction_of_steady_state(lam, 0.95)), "time",
           formula="3·{tau}", note="time to 95 % of steady state", source=MB)
     t.add("t99", float(dilution.time_to_fraction_removed(lam, 0.99)), "time",
@@ -103,7 +118,7 @@ def _rates(t: Trail) -> None:
           formula="6.91·{tau}", note="purge time to 99.9 % removal", source=PURGE)
 
 
-def _dcv(t: Trail, z: ZoneResult) -> None:
+def _dcv(t: Trail, z: ZoneResult, u: str) -> None:
     """CO2 set point that keeps the zone at its required Voz at design occupancy."""
     t.copy_from(z.trail, "Voz")
     if t.value("Pz") <= 0 or t.value("Voz") <= 0:
@@ -112,7 +127,7 @@ def _dcv(t: Trail, z: ZoneResult) -> None:
     if not math.isfinite(per_person) or t.value("N") <= 0:
         return
     setpoint = dilution.dcv_setpoint_ppm(t.value("C_out"), t.value("N"), per_person)
-    t.add("C_dcv", float(setpoint), "concentration_ppm", formula="{C_out} + 10⁶·{N}·{Pz} / {Voz}",
+    t.add("C_dcv", float(setpoint), "concentration_ppm", formula="{C_out} + 10⁶·{N}·{Pz} / " + _per_airflow("Voz", u),
           source=MB, note="DCV set point: steady CO2 when the zone gets exactly its Voz")
     t.copy_from(z.trail, "Rp")
     t.copy_from(z.trail, "Ra")
@@ -123,7 +138,7 @@ def _dcv(t: Trail, z: ZoneResult) -> None:
                                            "Rp/Ez per person present")
 
 
-def _capacity(t: Trail, z: ZoneResult, q_oa: float, note: str) -> None:
+def _capacity(t: Trail, z: ZoneResult, q_oa: float, notes: list[str]) -> None:
     """Occupants the delivered outdoor air supports under the pack's rates."""
     for symbol in ("Rp", "Ra", "Az", "Ez"):
         if symbol not in t:
@@ -131,19 +146,25 @@ def _capacity(t: Trail, z: ZoneResult, q_oa: float, note: str) -> None:
     rp, ra, az, ez = (t.value(s) for s in ("Rp", "Ra", "Az", "Ez"))
     if rp <= 0:
         return
-    t.add("P_max", max(0.0, (q_oa * ez - ra * az) / rp), "people",
+    if q_oa * ez < ra * az:
+        notes.append(f"P_max (the occupants a zone can hold at the outdoor air it receives) is "
+                     f"not given for zone {z.id}: that air is below the area component Ra·Az/Ez "
+                     "even with the zone empty")
+        return
+    t.add("P_max", (q_oa * ez - ra * az) / rp, "people",
           formula="({Q_oa}·{Ez} − {Ra}·{Az}) / {Rp}",
-          note=note or "occupants the delivered outdoor air supports (Rp·P + Ra·Az ≤ Q_oa·Ez)")
+          note="occupants the delivered outdoor air supports (Rp·P + Ra·Az ≤ Q_oa·Ez)")
 
 
 def _short_term(t: Trail, ctx: ZoneContext, z: ZoneResult, fractions: np.ndarray,
                 emitter: Emitter) -> None:
+    k = unit_factor(("volume",), ("airflow", "time"), emitter.units, times=3 / LS)
     """T = 3v/Vbz: whether the profile's peak may be averaged over it (Section 6.2.6.2)."""
     vbz = z.trail.value("Vbz")
     if vbz <= 0:
         return
     t.copy_from(z.trail, "Vbz")
-    t.add("T", 3 * t.value("V") / (LS * vbz), "time", formula="3·{V} / {Vbz}",
+    t.add("T", 3 * t.value("V") / (LS * vbz), "time", formula=f"{k}·{{V}} / {{Vbz}}",
           note="averaging time for short-term conditions (50·v/Vbz in SI, minutes)")
     window = max(1, int(round(t.value("T") / STEP_H)))
     kernel = np.ones(window) / window
@@ -219,23 +240,14 @@ def _limit(t: Trail, ctx: ZoneContext, schedule: Schedule, emitter: Emitter) -> 
                         system=ctx.system_id, zone=ctx.zone.id)
 
 
-def _outdoor_air_to_zone(system: System, ctx: ZoneContext, z: ZoneResult,
-                         result: SystemResult) -> tuple[float, str]:
-    scheduled = kind_of(system).zone_outdoor_air(system, ctx.zone)
-    if scheduled is not None:
-        return scheduled
-    total = result.trail.value("ΣVoz")
-    share = z.trail.value("Voz") / total if total > 0 else 0.0
-    return system.outdoor_air * share, "share of the intake in proportion to Voz (not scheduled)"
-
-
 def _single_path(system, ctxs, result, schedule, emitter, out, table) -> None:
     for ctx, z in zip(ctxs, result.zones):
         volume = volume_of(ctx)
         if volume is None:
             continue
         t = _start(ctx, z, schedule, volume, table)
-        q, note = _outdoor_air_to_zone(system, ctx, z, result)
+        t.copy_from(z.trail, "Voz_delivered")
+        q, note = t.value("Voz_delivered"), "= Voz_delivered, the outdoor air the zone receives"
         if q <= 0:
             t.add("Q_oa", 0.0, "airflow", note="no outdoor air reaches the zone: CO2 rises "
                   "without bound while it is occupied (no steady state)")
@@ -247,10 +259,10 @@ def _single_path(system, ctxs, result, schedule, emitter, out, table) -> None:
             z.dilution = t
             out.append(z)
             continue
-        _steady_single(t, q, note)
-        _rates(t)
-        _dcv(t, z)
-        _capacity(t, z, q, "")
+        _steady_single(t, q, note, emitter.units)
+        _rates(t, emitter.units)
+        _dcv(t, z, emitter.units)
+        _capacity(t, z, q, result.notes)
         pieces = _profile_pieces(schedule, ctx)
         if pieces is not None and t.value("Q_oa") > 0:
             z.series = _day_series_single(t, *pieces, ctx.zone.profile)
@@ -261,7 +273,8 @@ def _single_path(system, ctxs, result, schedule, emitter, out, table) -> None:
         out.append(z)
 
 
-def _coupled_steady(system: System, ctxs, result: SystemResult, trails: list[Trail]) -> bool:
+def _coupled_steady(system: System, ctxs, result: SystemResult, trails: list[Trail],
+                    units_: str) -> bool:
     """Steady CO2 of every zone of a multiple-zone system through the coupled balance."""
     vpz = np.array([LS * z.trail.value("Vpz") for z in result.zones])
     vot = LS * system.outdoor_air
@@ -277,11 +290,16 @@ def _coupled_steady(system: System, ctxs, result: SystemResult, trails: list[Tra
         t.add("x", x, "fraction", note="outdoor fraction of the supply at the scheduled intake")
         t.add("C_ss", float(c), "concentration_ppm", source=MB,
               note="steady state at design occupancy; zones coupled through the return air")
-        excess = float(c) - c_out
-        direct = z.trail.value("Vpz") * x
-        q_eq = PPM * t.value("G") / excess if excess > 0 and t.value("G") > 0 else direct
-        t.add("Q_oa", q_eq, "airflow", note="equivalent outdoor airflow, 10⁶·G/(C_ss − C_out): "
-              "the clean air the zone effectively receives")
+        _excess(t)
+        excess = t.value("C_excess")
+        if excess > 0 and t.value("G") > 0:
+            t.add("Q_oa", PPM * t.value("G") / excess, "airflow",
+                  formula="10⁶·{G} / " + _per_airflow("C_excess", units_), source=MB,
+                  note="CO2-equivalent outdoor airflow: the clean air that alone would hold the "
+                       "zone at C_ss (coupled balance; the procedure's measure is Voz_delivered)")
+        else:
+            t.add("Q_oa", z.trail.value("Vpz") * x, "airflow", formula="{Vpz}·{x}",
+                  note="outdoor air in the zone's primary air (no CO2 is generated in the zone)")
     return True
 
 
@@ -344,12 +362,12 @@ def _multiple_zone(system, ctxs, result, schedule, emitter, out, table) -> None:
     if any(v is None for v in volumes) or any("Vpz" not in z.trail for z in result.zones):
         return  # the coupled balance needs every zone's volume and primary airflow
     trails = [_start(c, z, schedule, v, table) for c, z, v in zip(ctxs, result.zones, volumes)]
-    if not _coupled_steady(system, ctxs, result, trails):
+    if not _coupled_steady(system, ctxs, result, trails, emitter.units):
         return
     _coupled_series(schedule, system, ctxs, result, trails)
     for ctx, z, t in zip(ctxs, result.zones, trails):
-        _rates(t)
-        _dcv(t, z)
+        _rates(t, emitter.units)
+        _dcv(t, z, emitter.units)
         if z.series is not None and ctx.zone.profile is not None:
             _short_term(t, ctx, z, z.series.occupancy[:-1], emitter)
         _limit(t, ctx, schedule, emitter)
@@ -398,12 +416,12 @@ def multiple_zone_capacity(system: System, result: SystemResult) -> None:
         return
     st = result.trail
     target = system.outdoor_air
+    short: list[str] = []
     for j, z in enumerate(result.zones):
         if z.dilution is None or z.trail.value("Rp") <= 0:
             continue
         if _vot_with(st, result.zones, j, 0.0) > target:
-            z.dilution.add("P_max", 0.0, "people", note="the intake falls short even with the "
-                           "zone empty")
+            short.append(z.id)  # no occupancy of this zone alone restores the intake
             continue
         lo, hi = 0.0, max(1.0, z.trail.value("Pz"))
         while _vot_with(st, result.zones, j, hi) <= target and hi < 1e7:
@@ -413,3 +431,10 @@ def multiple_zone_capacity(system: System, result: SystemResult) -> None:
             lo, hi = (mid, hi) if _vot_with(st, result.zones, j, mid) <= target else (lo, mid)
         z.dilution.add("P_max", lo, "people", note="occupants the zone can hold at the scheduled "
                        "intake, other zones unchanged and D held (detailed Ev, bisection)")
+    if short:
+        result.notes.append(
+            f"P_max (the occupants a zone can hold at the scheduled intake) is not given for "
+            f"zone{'s' if len(short) > 1 else ''} {', '.join(short)}: the scheduled intake is "
+            "short of the required Vot even with that zone empty, so no occupancy of the zone "
+            "alone brings the system within its intake; the system's intake finding says what "
+            "to change")

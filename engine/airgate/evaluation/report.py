@@ -48,6 +48,8 @@ class SystemResult:
     method: str | None = None
     critical_zone: str | None = None
     verdict: str = "pass"
+    #: what the evaluation of this system wants a reader to know (the report lists them)
+    notes: list[str] = field(default_factory=list)
 
 
 @dataclass

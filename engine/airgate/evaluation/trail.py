@@ -5,6 +5,8 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass
 
+from airgate import units
+
 _PLACEHOLDER = re.compile(r"\{([^{}]+)\}")
 
 
@@ -60,3 +62,22 @@ class Trail:
     def substituted(self, step: Step, render) -> str:
         """The formula with each placeholder replaced by ``render(step_of_placeholder)``."""
         return _PLACEHOLDER.sub(lambda m: render(self.steps[m.group(1)]), step.formula)
+
+
+def unit_factor(numerator: tuple[str, ...], denominator: tuple[str, ...], system: str,
+                times: float = 1.0) -> str:
+    """The number a formula needs when its inputs are shown in ``system``'s display units.
+
+    A trail's formula is read with each value in the report's display unit (cfm, ft³, people
+    per 1000 ft²), so a constant of the internal-unit equation changes with the unit system.
+    ``times·Π(internal per display of numerator kinds) / Π(… of denominator kinds)``, written
+    with four significant digits; ``""`` when it is 1 (nothing to show). E.g. the change rate
+    ``3.6·Q/V`` [1/h, Q in L/s, V in m³] is ``60·Q/V`` with Q in cfm and V in ft³.
+    """
+    value = times
+    for kind in numerator:
+        value *= units.to_internal(1.0, kind, system)
+    for kind in denominator:
+        value /= units.to_internal(1.0, kind, system)
+    text = f"{value:.4g}"
+    return "" if text == "1" else text

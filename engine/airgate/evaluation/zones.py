@@ -8,7 +8,7 @@ from airgate.evaluation.bind import EzChoice
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.findings import Location
 from airgate.evaluation.report import ZoneResult
-from airgate.evaluation.trail import Trail
+from airgate.evaluation.trail import Trail, unit_factor
 from airgate.models.rules import OccupancyCategory, RulePack
 from airgate.models.schedule import Zone
 from airgate.procedures import dwelling, zone_rates
@@ -59,8 +59,11 @@ def _population(trail: Trail, ctx: ZoneContext, pack: RulePack, emitter: Emitter
                          note="no occupants stated and no default density in the table")
     trail.add("density", cat.density, "density", origin="table", source=cat.cite("density"),
               note="default occupant density")
+    # the density is shown per 1000 ft² (per 100 m²): the formula says so
+    per = unit_factor(("people",), ("density", "area"), emitter.units)
     return trail.add("Pz", zone_rates.default_population(cat.density, trail.value("Az")),
-                     "people", formula="{density}·{Az}", origin="computed",
+                     "people", formula="{density}·{Az}" + (f" / {per}" if per else ""),
+                     origin="computed",
                      source=pack.cite("default_population"),
                      note="occupants not stated: default density × Az")
 

@@ -11,7 +11,6 @@ Every input string is escaped. Same input, same bytes.
 from __future__ import annotations
 
 import html as _html
-import math
 import re
 from pathlib import PurePath
 
@@ -120,46 +119,17 @@ def _declared(report: Report, pid: str) -> str:
 
 # --- outdoor air per zone --------------------------------------------------------------------
 
-def zone_air(s: SystemResult, z: ZoneResult) -> tuple[float, float | None, str]:
-    """(required Voz, outdoor air the zone gets by the procedure's measure, basis) [L/s].
-
-    Single-zone: the scheduled intake. Outdoor-air system: the air scheduled to the zone, or its
-    share of the intake by Voz. Multiple-zone: Voz × scheduled intake ÷ the intake this zone
-    needs (Vou/Evz, or Vot where Ev is one figure for the system); it is below Voz exactly
-    when the scheduled intake is short for the zone.
-    """
-    zt, st = z.trail, s.trail
-    voz = zt.value("Voz")
-    design = st.value("Vot_design")
-    if s.kind == "single-zone":
-        return voz, design, "scheduled system intake"
-    if s.kind == "outdoor-air":
-        if "Voz_design" in zt:
-            return voz, zt.value("Voz_design"), "outdoor air scheduled to the zone"
-        total = st.value("ΣVoz")
-        return voz, design * voz / total if total > 0 else 0.0, "share of the intake by Voz"
-    if math.isinf(st.value("Vot")):
-        return voz, None, "Ev ≤ 0: no intake suffices"
-    if "Evz" in zt:
-        evz = zt.value("Evz")
-        if evz <= 0:
-            return voz, 0.0, "Evz ≤ 0: no intake ventilates the zone"
-        need = st.value("Vou") / evz
-        return voz, (voz * design / need if need > 0 else voz), "Voz × intake ÷ (Vou/Evz)"
-    vot = st.value("Vot")
-    return voz, (voz * design / vot if vot > 0 else voz), "Voz × intake ÷ Vot"
-
-
 def _chart(report: Report, pid: str) -> str:
     u = report.units
     show = lambda v: units.to_display(v, "airflow", u)  # noqa: E731
     bars = []
     for s in report.systems:
         for z in s.zones:
-            req, got, _ = zone_air(s, z)
+            req = z.trail.value("Voz")
+            got = z.trail.value("Voz_delivered") if "Voz_delivered" in z.trail else None
             text = formatting.amount(req, "airflow", u) + " needed"
             if got is not None:
-                rel = (got - req) / req if req > 0 else None
+                rel = shared.relative_margin(Amount(req, "airflow"), Amount(got, "airflow"))
                 text = (f"{formatting.amount(got, 'airflow', u)} of "
                         f"{formatting.amount(req, 'airflow', u)}"
                         + (f" ({formatting.percent(rel)})" if rel is not None else ""))
@@ -173,12 +143,13 @@ def _chart(report: Report, pid: str) -> str:
     svg = html_svg.airflow_chart(bars, units.label("airflow", u), esc, title)
     return (f'<section id="{pid}-air"><h2>Outdoor air per zone</h2>{svg}'
             '<p class="legend"><i class="k-got"></i>gets<i class="k-short"></i>gets less than '
-            'it needs<i class="k-need"></i>needs (Voz)</p><p class="small">Single-zone: the '
-            "scheduled intake. 100 % outdoor-air systems: the air scheduled to the zone (or its "
-            "share of the intake by Voz). Multiple-zone systems: Voz × scheduled intake ÷ the "
-            "intake the zone needs (Vou/Evz, or Vot where Ev is one figure for the system), "
-            "which is below Voz exactly when the scheduled intake is short for that zone."
-            "</p></section>")
+            'it needs<i class="k-need"></i>needs (Voz)</p><p class="small">What the zone gets is '
+            "its trail's Voz_delivered: on a single-zone system the scheduled intake; on a "
+            "100 % outdoor-air system the air scheduled to the zone (or its share of the intake "
+            "by Voz); on a multiple-zone system Vpz·(1 + Xs − Vou/Vot_design), the zone "
+            "outdoor airflow the scheduled intake satisfies by Appendix A (Voz·Vot_design/Vot "
+            "where Ev is one figure for the system). It is below Voz exactly when the scheduled "
+            "intake is short for that zone.</p></section>")
 
 
 # --- per system ------------------------------------------------------------------------------
@@ -215,7 +186,7 @@ def _zone_table(report: Report, s: SystemResult) -> str:
     u = report.units
     extra = {"multiple-zone": [("Vpz", "airflow"), ("Zpz", "fraction"), ("Evz", "fraction")],
              "outdoor-air": [("Voz_design", "airflow")]}.get(s.kind, [])
-    cols = _ZONE_COLS + extra
+    cols = _ZONE_COLS + extra + [("Voz_delivered", "airflow")]
     head = "".join(f'<th class="n">{esc(sym)}'
                    f"{(' ' + esc(units.label(k, u))) if units.label(k, u) else ''}</th>"
                    for sym, k in cols)
@@ -261,10 +232,10 @@ def _co2(report: Report, s: SystemResult) -> str:
             label=f"{s.id}/{z.id} {z.name or ''}".strip(),
             hours=[float(v) for v in z.series.times], ppm=[float(v) for v in z.series.ppm],
             occupancy=[float(v) for v in z.series.occupancy], outdoor=d.value("C_out"),
-            limit=d.value("C_limit") if "C_limit" in d else None)
-        peak = max(curve.ppm)
+            limit=d.value("C_limit") if "C_limit" in d else None, peak=d.value("C_peak"))
+        peak = formatting.amount(d.value("C_peak"), "concentration_ppm", report.units)
         figs.append(f"<figure>{html_svg.co2_chart(curve, esc)}<figcaption><b>{esc(z.id)}</b> "
-                    f"{esc(z.name or '')} · peak {peak:,.0f} ppm · profile "
+                    f"{esc(z.name or '')} · peak {esc(peak)} · profile "
                     f"{esc(z.series.profile)}</figcaption></figure>")
     if not figs:
         return ""

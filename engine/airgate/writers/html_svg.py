@@ -102,6 +102,7 @@ class Curve:
     occupancy: Sequence[float]
     outdoor: float
     limit: float | None
+    peak: float  #: the design day's peak from the zone's trail (C_peak) [ppm]
 
 
 def _points(xs, ys, fx, fy, every: int) -> str:
@@ -115,8 +116,7 @@ def co2_chart(c: Curve, esc: Escape, every: int = 5) -> str:
     """CO2 against the hour of day, with outdoor level, declared limit and occupancy."""
     w, h, left, right, top_pad, bottom = 320, 170, 40, 8, 10, 22
     pw, ph = w - left - right, h - top_pad - bottom
-    peak = max(c.ppm)
-    hi = max(peak, c.limit or 0.0)
+    hi = max(max(c.ppm), c.peak, c.limit or 0.0)
     lo = min(min(c.ppm), c.outdoor)
     step = nice_step(hi - lo if hi > lo else 100.0, 4)
     y0 = step * math.floor(lo / step)
@@ -126,7 +126,7 @@ def co2_chart(c: Curve, esc: Escape, every: int = 5) -> str:
     fx = lambda t: left + pw * t / 24.0  # noqa: E731
     fy = lambda v: top_pad + ph * (1 - (v - y0) / (y1 - y0))  # noqa: E731
     occ_y = lambda f: top_pad + ph - 0.25 * ph * f  # noqa: E731
-    title = f"CO2 over the design day, {c.label}: peak {peak:,.0f} ppm"
+    title = f"CO2 over the design day, {c.label}: peak {c.peak:,.0f} ppm"
     out = [f'<svg class="chart co2" role="img" viewBox="0 0 {w} {h}" width="100%" '
            f'aria-label="{esc(title)}"><title>{esc(title)}</title>']
     v = y0

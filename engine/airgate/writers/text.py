@@ -6,7 +6,7 @@ import math
 import re
 
 from airgate import __version__, formatting, units
-from airgate.evaluation.findings import DECLARED
+from airgate.evaluation.findings import DECLARED, Amount
 from airgate.evaluation.report import Report, SystemResult
 from airgate.writers import shared
 
@@ -42,9 +42,7 @@ def _zone_rows(s: SystemResult, system: str) -> list[str]:
     multi = s.kind == "multiple-zone" and any("Vpz" in z.trail for z in s.zones)
     if multi:
         head += [f"Vpz {q}", "Zpz", "Evz"]
-    if s.kind == "outdoor-air":
-        head += [f"OA {q}"]
-    head += ["verdict"]
+    head += [f"gets {q}", "verdict"]
     rows = [head]
     for z in s.zones:
         t = z.trail
@@ -54,9 +52,7 @@ def _zone_rows(s: SystemResult, system: str) -> list[str]:
         if multi:
             crit = "◂" if s.critical_zone == z.id else ""
             row += [_num(t, "Vpz", system), _num(t, "Zpz", system), _num(t, "Evz", system) + crit]
-        if s.kind == "outdoor-air":
-            row += [_num(t, "Voz_design", system)]
-        row += [z.verdict.upper() if z.verdict == "fail" else z.verdict]
+        row += [_num(t, "Voz_delivered", system), z.verdict.upper() if z.verdict == "fail" else z.verdict]
         rows.append(row)
     return _table(rows, right=set(range(2, len(head) - 1)))
 
@@ -77,8 +73,6 @@ def _system(s: SystemResult, system: str) -> list[str]:
                                                if s.critical_zone else ""))
         lines.append("    " + " · ".join(parts))
     required, provided = t.value("Vot"), t.value("Vot_design")
-    margin = provided - required
-    rel = margin / required if required > 0 else float("inf")
     if math.isinf(required):
         lines.append("    outdoor-air intake: no intake suffices (Ev ≤ 0) · scheduled "
                      f"{formatting.amount(provided, 'airflow', system)}")
@@ -86,7 +80,7 @@ def _system(s: SystemResult, system: str) -> list[str]:
         lines.append(
             f"    outdoor-air intake: required Vot {formatting.amount(required, 'airflow', system)}"
             f" · scheduled {formatting.amount(provided, 'airflow', system)}"
-            f" · margin {formatting.amount(margin, 'airflow', system)} ({formatting.percent(rel)})")
+            f" · margin {shared.margin(Amount(required, 'airflow'), Amount(provided, 'airflow'), system)}")
     lines.append("")
     lines += _zone_rows(s, system)
     lines += _dilution_rows(s, system)
@@ -123,15 +117,16 @@ def _dilution_rows(s: SystemResult, system: str) -> list[str]:
     rows = [head]
     for z in zones:
         t = z.dilution
-        excess = (formatting.number(t.value("C_ss") - t.value("C_out"), "concentration_ppm")
-                  if "C_ss" in t else "unbounded")
+        excess = _num(t, "C_excess", system) if "C_excess" in t else "unbounded"
         rows.append([clean(z.id), _num(t, "Q_oa", system), _num(t, "ACH", system),
                      _num(t, "C_ss", system), excess]
                     + [_num(t, x, system) for x in
                        ("tau", "t99", "C_dcv", "P_max", "C_peak", "C_twa")])
     c_out = formatting.number(zones[0].dilution.value("C_out"), "concentration_ppm")
+    coupled = ("; zones coupled through the return air, so Q_oa is the CO2-equivalent "
+               "outdoor airflow" if s.kind == "multiple-zone" else "")
     out = ["", f"    CO2 from occupants (outdoor {c_out} ppm; well-mixed steady state at design "
-               "occupancy)"]
+               f"occupancy{coupled})"]
     return out + _table(rows, right=set(range(1, len(head))))
 
 
@@ -197,6 +192,8 @@ def render(report: Report) -> str:
     if any(z.trail["Pz"].origin != "schedule" for z in zones):
         out.append("    * Pz not stated in the schedule: default density × Az (or 0 where the "
                    "table gives no density)")
+    out.append(f"    gets: outdoor air the zone receives at the scheduled intake (Voz_delivered; "
+               "see the zone's trail for how)")
     if any(s.critical_zone for s in report.systems):
         out.append("    ◂ critical zone (lowest Evz; for the table method, largest Zpz)")
     out.append("")

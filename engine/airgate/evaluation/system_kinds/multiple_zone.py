@@ -10,6 +10,7 @@ import numpy as np
 
 from airgate import formatting
 from airgate.errors import AirgateError
+from airgate.evaluation import delivered
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.findings import Amount, Location
 from airgate.evaluation.report import SystemResult, ZoneResult
@@ -228,6 +229,7 @@ def multiple_zone(system: System, ctxs: list[ZoneContext], zones: list[ZoneResul
         trail.add("Vot", math.inf, "airflow", note="Ev ≤ 0: no intake suffices")
         trail.add("Vot_design", system.outdoor_air, "airflow", origin="schedule",
                   note="scheduled minimum outdoor-air intake", source=str(where))
+        delivered.multiple_zone(result, pack)
         return
     trail.add("Vot", eff.outdoor_air_intake(trail.value("Vou"), ev), "airflow",
               formula="{Vou} / {Ev}", source=pack.cite("multiple_zone_intake"))
@@ -241,6 +243,7 @@ def multiple_zone(system: System, ctxs: list[ZoneContext], zones: list[ZoneResul
     need = formatting.amount(trail.value("Vot"), "airflow", emitter.units)
     intake(trail, system, result, emitter, where,
             advice=f"raise the intake to at least {need}" + (f", {advice}" if advice else ""))
+    delivered.multiple_zone(result, pack)
 
 
 def ev_method(pack: RulePack, system: System) -> str:

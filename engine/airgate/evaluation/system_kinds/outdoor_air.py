@@ -7,6 +7,7 @@ from collections.abc import Iterator
 import numpy as np
 
 from airgate import formatting
+from airgate.evaluation import delivered
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.findings import Amount, Location
 from airgate.evaluation.report import SystemResult, ZoneResult
@@ -26,20 +27,21 @@ def outdoor_air(system: System, ctxs: list[ZoneContext], zones: list[ZoneResult]
     trail.add("ΣVoz", float(np.sum(voz)), "airflow", note=f"sum over {len(zones)} zones")
     trail.add("Vot", trail.value("ΣVoz"), "airflow", formula="{ΣVoz}",
               source=pack.cite("outdoor_air_system_intake"))
-    delivered = 0.0
+    scheduled = 0.0
     for ctx, z in zip(ctxs, zones):
         if ctx.zone.outdoor_air is None:
             continue
-        delivered += ctx.zone.outdoor_air
+        scheduled += ctx.zone.outdoor_air
         z.trail.add("Voz_design", ctx.zone.outdoor_air, "airflow", origin="schedule",
                     note="outdoor air scheduled to the zone")
         emitter.compare("zone-outdoor-air", ctx.subject, "zone outdoor air",
                         z.trail.value("Voz"), ctx.zone.outdoor_air, "airflow",
                         locate(ctx.path + ("outdoor_air",)), system=system.id, zone=z.id)
     intake(trail, system, result, emitter, where)
-    if delivered > system.outdoor_air * (1 + 1e-9):
+    delivered.outdoor_air(result, pack)
+    if scheduled > system.outdoor_air * (1 + 1e-9):
         emitter.emit("zone-air-sum", system.id,
-                     f"the zones are scheduled {formatting.amount(delivered, 'airflow', emitter.units)}"
+                     f"the zones are scheduled {formatting.amount(scheduled, 'airflow', emitter.units)}"
                      f" of outdoor air, more than the system intake of "
                      f"{formatting.amount(system.outdoor_air, 'airflow', emitter.units)}",
                      where, system=system.id)

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from airgate.evaluation import delivered
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.findings import Location
 from airgate.evaluation.report import SystemResult, ZoneResult
@@ -21,6 +22,7 @@ def single_zone(system: System, ctxs: list[ZoneContext], zones: list[ZoneResult]
     trail.add("Vot", trail.value("Voz"), "airflow", formula="{Voz}",
               source=pack.cite("single_zone_intake"))
     intake(trail, system, result, emitter, where)
+    delivered.single_zone(result, pack)
 
 
 
