@@ -55,7 +55,8 @@ def _findings(report: Report, subject_prefix: str, exact: bool) -> list[str]:
     for f in report.findings:
         mine = f.subject == subject_prefix or (not exact and f.subject.startswith(subject_prefix + "/"))
         if mine:
-            out.append(f"  {f.severity.upper()} [{f.rule}] {clean(f.subject)}: {clean(f.message)}")
+            label = "MISSED (declared limit)" if f.declared else f.severity.upper()
+            out.append(f"  {label} [{f.rule}] {clean(f.subject)}: {clean(f.message)}")
             out.append(f"      {f.source} · at {clean(f.location)}")
             if f.waiver is not None:
                 out.append(f"      {clean(shared.waived_line(f.waiver))}")
