@@ -156,3 +156,15 @@ def test_a_waiver_may_name_the_declared_check(tmp_path):
 def test_no_section_without_a_declared_limit(tmp_path, fmt):
     out = check(write(tmp_path, design(None)), "--format", fmt)[1]
     assert "Limits the schedule declares" not in out
+
+
+def test_explain_marks_the_declared_limit(tmp_path):
+    import contextlib
+    import io
+
+    out = io.StringIO()
+    with contextlib.redirect_stdout(out):
+        assert main(["explain", write(tmp_path, design(900)), "--zone", "101"]) == 0
+    text = out.getvalue()
+    assert "MISSED (declared limit) [concentration-limit] RTU-1/101" in text
+    assert "FAIL [" not in text
