@@ -100,3 +100,50 @@ def test_the_json_units_carry_the_people_dimension(ureg):
         assert ureg.Quantity(1, units.JSON_UNITS[("people", system)]).dimensionality == person
         density = ureg.Quantity(1, units.JSON_UNITS[("density", system)])
         assert density.dimensionality == person / ureg.Quantity(1, "m**2").dimensionality
+
+
+def _table_dir(tmp_path, unit_text):
+    """A copy of the built-in rules folder whose CO2 generation table declares ``unit_text``."""
+    import shutil
+
+    from airgate.readers.rulepack import builtin_rules_dir
+
+    root = tmp_path / "rules"
+    shutil.copytree(builtin_rules_dir() / "schema", root / "schema")
+    (root / "data").mkdir()
+    text = (builtin_rules_dir() / "data" / "occupant-co2-generation.yaml").read_text("utf-8")
+    (root / "data" / "occupant-co2-generation.yaml").write_text(
+        text.replace("units: L/s/person", f"units: {unit_text}"), encoding="utf-8")
+    return root
+
+
+@pytest.mark.parametrize(("unit_text", "factor"), [("L/s/person", 1.0),
+                                                    ("L/h/person", 1 / 3600)])
+def test_co2_generation_table_values_are_read_in_their_units(tmp_path, monkeypatch, unit_text,
+                                                             factor):
+    # 1 h = 3600 s (exact): a table in L/h per person is read as L/s per person (0.0048 is the
+    # row as the file writes it: the input, read in the declared units).
+    from airgate.readers import datatables
+
+    monkeypatch.setattr(datatables, "builtin_rules_dir", lambda: _table_dir(tmp_path, unit_text))
+    datatables.data_table.cache_clear()
+    try:
+        table = datatables.data_table("occupant-co2-generation")
+    finally:
+        datatables.data_table.cache_clear()
+    assert table.units == "L/s/person"
+    assert table.rows["adult-office"].value == pytest.approx(0.0048 * factor, rel=1e-12)
+
+
+def test_co2_generation_table_not_per_person_is_refused(tmp_path, monkeypatch):
+    from airgate.errors import RulePackError
+    from airgate.readers import datatables
+
+    monkeypatch.setattr(datatables, "builtin_rules_dir", lambda: _table_dir(tmp_path, "L/s"))
+    datatables.data_table.cache_clear()
+    try:
+        with pytest.raises(RulePackError, match="needs '/person'") as err:
+            datatables.data_table("occupant-co2-generation")
+    finally:
+        datatables.data_table.cache_clear()
+    assert err.value.field == ("units",) and err.value.line is not None

@@ -15,7 +15,7 @@ from dataclasses import dataclass
 class DataRow:
     id: str
     label: str
-    value: float | None  #: in the table's units (single-valued tables)
+    value: float | None  #: in the table's ``units`` (single-valued tables)
     provenance: str
     notes: str = ""
     values: dict[str, float] | None = None  #: several values per row (e.g. by size range)
@@ -25,6 +25,8 @@ class DataRow:
 class DataTable:
     id: str
     title: str
+    #: the unit of the values: for a table of a known kind (CO2 generation) the internal unit
+    #: it was converted to when read (``L/s/person``), else as the file declares it
     units: str
     citation: str
     default: str

@@ -12,6 +12,7 @@ from functools import lru_cache
 
 import jsonschema
 
+from airgate import units
 from airgate.errors import RulePackError
 from airgate.models.datatables import DataRow, DataTable
 from airgate.readers.document import load
@@ -29,16 +30,40 @@ def data_table(table_id: str) -> DataTable:
     if error is not None:
         raise doc.error(RulePackError, error.message, tuple(error.absolute_path))
     data = doc.data
+    factor, unit = _conversion(doc, table_id, data["units"])
     rows = {str(r["id"]): DataRow(str(r["id"]), r["label"],
-                                  float(r["value"]) if "value" in r else None, r["provenance"],
-                                  r.get("notes", ""), r.get("values")) for r in data["rows"]}
+                                  float(r["value"]) * factor if "value" in r else None,
+                                  r["provenance"], r.get("notes", ""), r.get("values"))
+            for r in data["rows"]}
     if data["default"] not in rows:
         raise doc.error(RulePackError, f"default row '{data['default']}' is not in the table",
                         ("default",), allowed=sorted(rows))
     src = data["source"]
-    return DataTable(id=data["id"], title=data["title"], units=data["units"],
+    return DataTable(id=data["id"], title=data["title"], units=unit,
                      citation=f"{src['document']} ({src['edition']})", default=data["default"],
                      rows=rows)
+
+
+#: table id → the quantity kind (airgate.units) its single values are: they are converted from
+#: the table's declared ``units`` to that kind's internal unit when the table is read
+KINDS = {"occupant-co2-generation": "gas_generation"}
+
+
+def _conversion(doc, table_id: str, declared: str) -> tuple[float, str]:
+    """(factor, unit): values × factor are in ``unit`` — the internal unit of the table's kind,
+    or the declared units as they are for a table without a kind. A declared unit of another
+    dimension (a CO2 generation in L/s, not per person) is a located error."""
+    kind = KINDS.get(table_id)
+    if kind is None:
+        return 1.0, declared
+    try:
+        factor = units.parse(f"1 {declared}", kind, units.SI)
+    except units.QuantityError as exc:
+        raise doc.error(RulePackError, f"the units '{declared}' do not fit table {table_id}: "
+                        f"{exc}", ("units",),
+                        hint=f"declare units of {units.KINDS[kind].si_label}, e.g. "
+                        f"{units.KINDS[kind].si}") from None
+    return factor, units.KINDS[kind].internal
 
 
 class _Builtin(Mapping[str, DataTable]):
