@@ -1,14 +1,15 @@
 """Deterministic output (project rule; common practice for reports that are committed and diffed):
 the same input gives byte-identical files whatever the environment.
 
-One subprocess per setting (two settings) runs every command that writes a file — every report format of
-``check`` (one schedule and a run of two), ``explain``, ``rules show`` and ``rules diff`` in each
-of their formats, every schema, ``import``, every ``template`` format and every ``plot`` format —
-and the files are compared byte for byte across the settings. The settings differ in everything
-that could leak into output: hash seed (set and dict order), time zone (clock-derived dates, ZIP
-entry times), locale (adopted with ``setlocale`` as a host program might: decimal comma, the
-preferred encoding of files opened without one) and working folder. The lists of formats are
-taken from where they live, so a new format is covered when it is added.
+One subprocess per setting (two settings) runs every command that writes a file: every report
+format of ``check`` (one schedule and a run of two), ``explain``, ``rules show`` and ``rules
+diff`` in each of their formats, every schema, ``import`` from every source format (CSV, gbXML,
+and XLSX and IFC built at test time), every ``template`` format and every ``plot`` format. The
+files are compared byte for byte across the settings, which differ in everything that could leak
+into output: hash seed (set and dict order), time zone (clock-derived dates, ZIP entry times),
+locale (adopted with ``setlocale`` as a host program might: decimal comma, the preferred encoding
+of files opened without one) and working folder. The lists of formats are taken from where they
+live, so a new format is covered when it is added.
 """
 
 from __future__ import annotations
@@ -23,6 +24,7 @@ from pathlib import Path
 import pytest
 
 from conftest import DEMO, ROOT, subprocess_env
+from importing import demo_ifc, demo_xlsx
 
 APPROVALS = ROOT / "fixtures" / "demo" / "approvals" / "fernhollow-approvals.yaml"
 SECOND = ROOT / "fixtures" / "edge" / "bom.yaml"
@@ -46,7 +48,8 @@ print(json.dumps(runs))
 """
 
 
-def _commands() -> list[list[str]]:
+def _commands(built: dict[str, Path]) -> list[list[str]]:
+    """Every command writing into ``out/``; ``built`` holds the demo as XLSX and IFC."""
     from airgate.commands import rules, schema, template
     from airgate.writers import formats, plot
 
@@ -66,7 +69,7 @@ def _commands() -> list[list[str]]:
                     "-o", f"out/diff.{f}"])
     out += [["schema", s, "-o", f"out/schema-{s}.json"] for s in schema.SCHEMAS]
     out += [["import", str(src), "-o", f"out/import-{src.suffix[1:]}.yaml"]
-            for src in (DEMO_CSV, DEMO_GBXML)]
+            for src in (DEMO_CSV, DEMO_GBXML, built["xlsx"], built["ifc"])]
     out += [["template", "--format", f, "-o", f"out/template.{f}"] for f in template.FORMATS]
     out += [["plot", str(DEMO), "--system", "AHU-3", "--format", f, "-o", f"out/plot.{f}"]
             for f in sorted(set(plot.FORMATS.values()))]
@@ -88,7 +91,8 @@ def _german_locale(tmp: Path) -> dict[str, str]:
 
 
 def test_every_output_is_byte_identical_across_environments(tmp_path):
-    commands = _commands()
+    built = {"xlsx": demo_xlsx(tmp_path), "ifc": demo_ifc(tmp_path)}
+    commands = _commands(built)
     locales = tmp_path / "locales"
     locales.mkdir()
     # two settings that differ in every respect at once: seed, UTC offset (+12:45 against

@@ -74,14 +74,13 @@ def test_import_then_check_gives_the_findings_of_the_source(sources, tmp_path, c
 
 
 @pytest.mark.parametrize("fmt", FORMATS)
-def test_written_yaml_is_stable_and_says_where_values_came_from(sources, tmp_path, capsys, fmt):
+def test_written_yaml_says_where_values_came_from(sources, tmp_path, capsys, fmt):
+    # (byte-identical across runs and environments: tests/test_determinism.py)
     source = _source(sources, fmt)
-    first, second = tmp_path / "a.yaml", tmp_path / "b.yaml"
+    first = tmp_path / "a.yaml"
     assert main(["import", str(source), "-o", str(first)]) == 0
-    assert main(["import", str(source), "-o", str(second)]) == 0
     capsys.readouterr()
     text = first.read_text(encoding="utf-8")
-    assert text == second.read_text(encoding="utf-8")
     assert text.startswith(f"# Ventilation schedule imported by airgate from {source.name}.")
     zone_203 = next(line for line in text.splitlines() if "Tidewater meeting room" in line)
     assert f"# from {source.name}" in zone_203
