@@ -77,12 +77,14 @@ def _unit(area, bedrooms=None, occupants=None, intake="100 cfm"):
 @pytest.mark.parametrize(("area", "bedrooms"), [(450, 1), (1500, 3), (4800, 5), (2999, 0)])
 def test_engine_evaluates_equation_4_1(evaluate, area, bedrooms):
     # Qtot = 0.03·Afloor + 7.5·(Nbr + 1) cfm (ANSI/ASHRAE 62.2-2019 Eq. 4-1, published), by hand;
-    # Pz = Nbr + 1 in the trail.
+    # Pz = Nbr + 1 in the trail, with Nbr taken as not less than one (Section 4.1.1: a studio is
+    # rated for two occupants; published in the Uniform Mechanical Code, Appendix E).
     report = evaluate(schedule(_unit(f"{area} ft2", bedrooms), rules="ashrae-62.2-2019"))
     zone = report.systems[0].zones[0]
-    assert zone.trail.value("Pz") == bedrooms + 1
-    assert zone.trail["Pz"].formula == "{Nbr} + 1"
-    assert zone.trail.value("Voz") / CFM == pytest.approx(0.03 * area + 7.5 * (bedrooms + 1))
+    rated = max(bedrooms, 1)
+    assert zone.trail.value("Pz") == rated + 1
+    assert zone.trail["Pz"].formula == ("{Nbr} + 1" if bedrooms else "max({Nbr}, 1) + 1")
+    assert zone.trail.value("Voz") / CFM == pytest.approx(0.03 * area + 7.5 * (rated + 1))
 
 
 def test_table_cells_through_the_engine(evaluate):

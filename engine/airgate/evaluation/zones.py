@@ -44,6 +44,13 @@ def _population(trail: Trail, ctx: ZoneContext, pack: RulePack, emitter: Emitter
     if cat.default_occupants == "bedrooms-plus-one" and ctx.zone.bedrooms is not None:
         trail.add("Nbr", ctx.zone.bedrooms, "count", origin="schedule",
                   source=ctx.where("bedrooms"), note="number of bedrooms")
+        least = cat.minimum_bedrooms
+        if ctx.zone.bedrooms < least:
+            return trail.add("Pz", dwelling.default_occupants(float(least)), "people",
+                             formula=f"max({{Nbr}}, {least}) + 1", origin="computed",
+                             source=pack.cite("default_population"),
+                             note=f"occupants not stated: bedrooms (taken as not less than "
+                                  f"{least}) + 1")
         return trail.add("Pz", dwelling.default_occupants(ctx.zone.bedrooms), "people",
                          formula="{Nbr} + 1", origin="computed",
                          source=pack.cite("default_population"),

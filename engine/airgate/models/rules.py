@@ -67,6 +67,8 @@ class OccupancyCategory:
     #: how the default population is found when the table gives no density: None, or
     #: ``"bedrooms-plus-one"`` (dwelling units: Pz = Nbr + 1)
     default_occupants: str | None = None
+    #: with ``bedrooms-plus-one``: Nbr is taken as not less than this [–]
+    minimum_bedrooms: int = 0
     #: citations of single fields that differ from the row's source (amended by a layered pack,
     #: or raised by a requirement), by field name (``Rp``, ``Ra``, ``density``)
     cited: dict[str, str] = field(default_factory=dict)

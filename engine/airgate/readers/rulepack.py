@@ -225,6 +225,7 @@ def _categories(doc: Any, data: dict[str, Any], system: str) -> dict[str, Occupa
             notes=row.get("notes", ""),
             printed={"Rp": row["Rp"], "Ra": row["Ra"], "density": density},
             default_occupants=row.get("default_occupants"),
+            minimum_bedrooms=row.get("minimum_bedrooms", 0),
             cited=_cited(doc, row, source),
         )
     return out

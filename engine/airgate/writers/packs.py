@@ -88,7 +88,8 @@ def _categories(pack: RulePack, raw_rows: dict[str, dict], chosen: bool) -> list
         cells = [legend.cell(raw.get(k)) if not chosen and is_choice(raw.get(k)) else
                  choice_text(c.printed.get(k)) for k in ("Rp", "Ra", "density")]
         if c.default_occupants == "bedrooms-plus-one":
-            cells[2] = "Nbr + 1"
+            cells[2] = (f"max(Nbr, {c.minimum_bedrooms}) + 1" if c.minimum_bedrooms
+                        else "Nbr + 1")
         amended = " (amended: " + ", ".join(sorted(c.cited)) + ")" if c.cited else ""
         out.append(f"  {c.id:44} {cells[0]:>16} {cells[1]:>13} {cells[2]:>18} {c.air_class:>5}  "
                    f"{c.provenance}{amended}")

@@ -90,7 +90,7 @@ def occupants(zone: Any, cat: OccupancyCategory) -> float:
         return zone.occupants
     bedrooms = getattr(zone, "bedrooms", None)
     if cat.default_occupants == "bedrooms-plus-one" and bedrooms is not None:
-        return float(dwelling.default_occupants(bedrooms))
+        return float(dwelling.default_occupants(max(bedrooms, cat.minimum_bedrooms)))
     if cat.density is not None:
         return cat.density * zone.area
     return 0.0
