@@ -13,6 +13,12 @@ from conftest import CFM, schedule
 FT = 0.3048
 
 
+#: default CO2 generation per occupant as a volume at 20 °C: Persily & de Jonge (2017) Table 4,
+#: mean of male 0.0046 and female 0.0035 L/s (30 to <40 years, 1.2 met) at 0 °C, times the ratio
+#: of absolute temperatures (ideal gas, common practice)
+N_OFFICE = (0.0046 + 0.0035) / 2 * 293.15 / 273.15
+
+
 def single(zone_extra=None, outdoor_air="620 cfm", project_extra=None, **kw):
     z = {"id": "1", "space": "conference-meeting", "area": "2000 ft2", "occupants": 100,
          "height": "10 ft", "air_distribution": "ceiling-supply-cool", **(zone_extra or {})}
@@ -47,11 +53,12 @@ def test_purge_times_cdc_2003_table_b1(evaluate, ach, t99, t999):
 def test_dcv_setpoint_matches_required_airflow(evaluate):
     # Derived from the steady balance (Nazaroff & Alvarez-Cohen 2001 CMFR steady state, CO2 as a
     # tracer): C = C_out + 10⁶·N·Pz/Voz with Voz = 620 cfm (Vbz = 5·100 + 0.06·2000: ANSI/ASHRAE
-    # 62.1-2019 Section 6.2.2.1 with the Table 6-1 conference/meeting rates, derived) and
-    # N = 0.0048 L/s (Persily & de Jonge 2017 as quoted).
+    # 62.1-2019 Section 6.2.2.1 with the Table 6-1 conference/meeting rates, derived) and the
+    # default N: 0.00405 L/s at 0 °C (Persily & de Jonge 2017 Table 4, 30 to <40 years, 1.2 met,
+    # mean of male 0.0046 and female 0.0035; published cells) as a volume at 20 °C (ideal gas).
     r = evaluate(single())
     t = r.systems[0].zones[0].dilution
-    expected = 420 + 1e6 * 0.0048 * 100 / (620 * CFM)
+    expected = 420 + 1e6 * N_OFFICE * 100 / (620 * CFM)
     assert t.value("C_dcv") == pytest.approx(expected, rel=1e-9)
     # at exactly the required intake the steady state equals the set point
     assert t.value("C_ss") == pytest.approx(t.value("C_dcv"), rel=1e-6)
@@ -84,8 +91,8 @@ def test_declared_limit_is_a_finding(evaluate):
 
 
 def test_multiple_zone_steady_state_matches_closed_form(evaluate):
-    # Coupled well-mixed balance (Nazaroff & Alvarez-Cohen 2001 per zone): without filters or losses C_s = C_out + (1 − x)·ΣGz/Vot and
-    # C_z = C_s + Gz/Vpz (x = Vot/Vps).
+    # Coupled well-mixed balance (Nazaroff & Alvarez-Cohen 2001, per zone): without filters or
+    # losses C_s = C_out + (1 − x)·ΣGz/Vot and C_z = C_s + Gz/Vpz (x = Vot/Vps).
     zones = [{"id": str(i), "space": "office-space", "area": f"{a} ft2", "occupants": p,
               "height": "9 ft", "air_distribution": "ceiling-supply-cool",
               "primary_airflow": f"{v} cfm"} for i, (a, p, v) in
@@ -93,7 +100,7 @@ def test_multiple_zone_steady_state_matches_closed_form(evaluate):
     r = evaluate(schedule([{"id": "M", "kind": "multiple-zone", "outdoor_air": "600 cfm",
                             "zones": zones}]))
     vpz = np.array([900, 500, 200]) * CFM
-    g = np.array([12, 20, 3]) * 0.0048  # L/s of CO2
+    g = np.array([12, 20, 3]) * N_OFFICE  # L/s of CO2
     vot = 600 * CFM
     cs = 420 + (1 - vot / vpz.sum()) * 1e6 * g.sum() / vot
     for z, gz, v in zip(r.systems[0].zones, g, vpz):

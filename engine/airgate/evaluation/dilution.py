@@ -35,6 +35,8 @@ PURGE = ("t = ln(1/(1 − f))/λ; CDC 2003 Guidelines for Environmental Infectio
 CO2_TABLE = "occupant-co2-generation"
 CO2_LIMIT = ("project", "co2_limit")  #: where the schedule declares its CO2 limit
 STEP_H = 1.0 / 60.0  #: sampling step of the design-day series [h]
+ZERO_C = 273.15  #: 0 °C [K]
+ROOM_C = 20.0  #: indoor temperature at which a tabled CO2 volume rate is used [°C]
 
 
 @dataclass
@@ -70,8 +72,19 @@ def _start(ctx: ZoneContext, z: ZoneResult, schedule: Schedule, volume: float,
               note="CO2 generation per occupant stated in the schedule")
     else:
         row = ctx.zone.activity or table.default
-        t.add("N", table.rows[row].value, "gas_generation", origin="table",
-              source=table.cite(row), note=f"activity '{row}'")
+        value = table.rows[row].value
+        if table.reference_temperature is None:
+            t.add("N", value, "gas_generation", origin="table", source=table.cite(row),
+                  note=f"activity '{row}'")
+        else:
+            ref = table.reference_temperature
+            t.add("N_ref", value, "gas_generation", origin="table", source=table.cite(row),
+                  note=f"activity '{row}'; volume at {ref:g} °C")
+            t.add("N", value * (ZERO_C + ROOM_C) / (ZERO_C + ref), "gas_generation",
+                  formula=f"{{N_ref}}·{ZERO_C + ROOM_C:g} K / {ZERO_C + ref:g} K",
+                  origin="assumed",
+                  source="Persily & de Jonge 2017: Table 4 at 0 °C; ideal-gas volume at 20 °C",
+                  note=f"the same CO2 as a volume at {ROOM_C:g} °C indoors")
     t.copy_from(z.trail, "Pz")
     t.add("G", t.value("N") * t.value("Pz"), "gas_flow", formula="{N}·{Pz}",
           note="CO2 generated at design occupancy")

@@ -31,6 +31,8 @@ class DataTable:
     citation: str
     default: str
     rows: dict[str, DataRow]
+    #: temperature at which the table's volume rates are given [°C]; None: not a volume rate
+    reference_temperature: float | None = None
 
     def cite(self, row_id: str) -> str:
         row = self.rows[row_id]

@@ -40,8 +40,10 @@ def data_table(table_id: str) -> DataTable:
                         ("default",), allowed=sorted(rows))
     src = data["source"]
     return DataTable(id=data["id"], title=data["title"], units=unit,
-                     citation=f"{src['document']} ({src['edition']})", default=data["default"],
-                     rows=rows)
+                     citation=f"{src['document']} ({src['edition']})"
+                     + (f", {src['table']}" if src.get("table") else ""),
+                     default=data["default"], rows=rows,
+                     reference_temperature=data.get("reference_temperature"))
 
 
 #: table id → the quantity kind (airgate.units) its single values are: they are converted from
