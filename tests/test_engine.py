@@ -40,9 +40,9 @@ def test_single_zone_conference_620_cfm(evaluate):
 
 
 def test_single_zone_default_density_and_warm_ceiling_supply(evaluate):
-    # Office 5000 ft2, occupants not stated: Pz = 5/1000 ft2 × 5000 = 25 (Table 6.2.2.1 default
+    # Office 5000 ft2, occupants not stated: Pz = 5/1000 ft2 × 5000 = 25 (Table 6-1 default
     # density); Vbz = 5·25 + 0.06·5000 = 425 cfm; warm ceiling supply 20 °F above the room with
-    # ceiling return: Ez = 0.8 (Table 6.2.2.2) -> Voz = 531.25 cfm, short of 500 cfm scheduled.
+    # ceiling return: Ez = 0.8 (Table 6-4) -> Voz = 531.25 cfm, short of 500 cfm scheduled.
     z = zone("1", "office-space", "5000 ft2")
     z["air_distribution"] = {"supply": "ceiling", "return": "ceiling", "mode": "heating",
                              "temperature_difference": "20 delta_degF"}

@@ -91,17 +91,18 @@ def test_ip_and_si_packs_have_the_same_rows():
 
 
 def test_ez_table_values(tmp_path):
-    # ANSI/ASHRAE 62.1-2019 Table 6-4 (Ez), from memory except the warm-air jet rows, which
-    # read as in the 2007 edition's Table 6-2 quoted in a public forum thread (published).
-    ez = {k: c.ez for k, c in load_pack("ashrae-62.1-2019").configurations.items()}
-    assert ez["ceiling-supply-cool"] == 1.0
-    assert ez["ceiling-supply-warm-ceiling-return-stratified"] == 0.8
-    assert ez["ceiling-supply-warm-ceiling-return-jet"] == 1.0
-    assert ez["ceiling-supply-warm-ceiling-return-no-jet"] == 0.8
-    assert ez["floor-supply-cool-ceiling-return-displacement"] == 1.2
-    assert ez["floor-supply-warm-ceiling-return"] == 0.7
-    assert ez["makeup-supply-far-from-exhaust"] == 0.8
-    assert ez["makeup-supply-near-exhaust"] == 0.5
+    # ANSI/ASHRAE 62.1-2019 Table 6-4 (Ez). Only the two warm-air jet rows were compared with a
+    # public copy (the 2007 edition's Table 6-2 as quoted in a public forum thread: Ez 1.0 where
+    # the 150 fpm jet reaches within 4.5 ft of the floor, 0.8 for lower velocity): their values
+    # are checked; every other row is from memory and must say so rather than be checked against
+    # the same recalled list.
+    rows = load_pack("ashrae-62.1-2019").configurations
+    assert rows["ceiling-supply-warm-ceiling-return-jet"].ez == 1.0
+    assert rows["ceiling-supply-warm-ceiling-return-no-jet"].ez == 0.8
+    published = {k for k, r in rows.items() if r.provenance == "published"}
+    assert published == {"ceiling-supply-warm-ceiling-return-jet",
+                         "ceiling-supply-warm-ceiling-return-no-jet"}
+    assert all(r.provenance == "from memory" for k, r in rows.items() if k not in published)
 
 
 def test_published_schema_command_matches_file(capsys):

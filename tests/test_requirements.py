@@ -1,8 +1,8 @@
 """Requirements beyond the sum of rates: selectors, each kind, findings, and pack errors.
 
 Hand-computed cases on invented buildings. The rates are those of the built-in 62.1-2019 pack
-(ANSI/ASHRAE 62.1-2019 Table 6.2.2.1: office 5 cfm/person and 0.06 cfm/ft² — from memory,
-classrooms 10 and 0.12 — published 2016 table); the requirements' figures are invented.
+(ANSI/ASHRAE 62.1-2019 Table 6-1: office 5 cfm/person and 0.06 cfm/ft² — from memory,
+classrooms 10 and 0.12 — published, compared with a public reprint of the 2016 table); the requirements' figures are invented.
 """
 
 from __future__ import annotations
@@ -123,8 +123,8 @@ def test_larger_of_raises_a_multiple_zone_systems_intake(tmp_path, evaluate):
 
 
 def test_larger_of_at_vbz_and_at_voz(tmp_path, evaluate):
-    # Heating with warm air 20 °F above the room over a ceiling return: Ez 0.8 (62.1 Table
-    # 6.2.2.2, from memory). Table Voz = 408 / 0.8 = 510 cfm. At Voz the floor (450) does not
+    # Heating with warm air 20 °F above the room over a ceiling return: Ez 0.8 (62.1-2019 Table
+    # 6-4, from memory). Table Voz = 408 / 0.8 = 510 cfm. At Voz the floor (450) does not
     # govern; at Vbz it does: Vbz = 450, Voz = 450 / 0.8 = 562.5 cfm.
     warm = [{"supply": "ceiling", "return": "ceiling", "mode": "heating",
              "temperature_difference": "20 delta_degF"}]

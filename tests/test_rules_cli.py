@@ -114,7 +114,7 @@ def test_diff_json(capsys):
 def test_diff_of_two_unit_systems_says_so(capsys):
     code, out, _ = _run(capsys, "rules", "diff", "ashrae-62.1-2019", "ashrae-62.1-2019-si")
     assert code == 0 and "not converted" in out
-    assert "  ~ office-space  Rp: 5 → 2.5" in out  # 62.1-2019 Table 6.2.2.1 IP vs SI (from memory)
+    assert "  ~ office-space  Rp: 5 → 2.5" in out  # 62.1-2019 Table 6-1 IP vs SI (from memory)
 
 
 def test_diff_of_a_pack_with_itself(capsys):

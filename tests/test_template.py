@@ -71,7 +71,7 @@ def test_filled_template_checks(openpyxl, tmp_path, capsys):
                       "Area [ft2]": 1000, "Occupants [people]": 10,
                       "Air distribution": "ceiling-supply-cool"})
     book.save(path)
-    # libraries (from memory in the pack): 5 cfm/person × 10 + 0.12 cfm/ft² × 1000 = 170 cfm
+    # libraries (62.1-2019 Table 6-1; Rp, Ra published): 5 cfm/person × 10 + 0.12 cfm/ft² × 1000 = 170 cfm
     assert main(["check", str(path)]) == 0
     assert "RTU-7" in capsys.readouterr().out
 

@@ -72,12 +72,22 @@ class OccupancyCategory:
     #: citations of single fields that differ from the row's source (amended by a layered pack,
     #: or raised by a requirement), by field name (``Rp``, ``Ra``, ``density``)
     cited: dict[str, str] = field(default_factory=dict)
+    #: provenance of single values (``Rp``, ``Ra``, ``density``, ``air_class``) where it differs
+    #: from the row's
+    value_provenance: dict[str, str] = field(default_factory=dict)
+
+    #: the table values of a row, in the order of the table's columns
+    VALUES = ("Rp", "Ra", "density", "air_class")
+
+    def provenance_of(self, name: str) -> str:
+        """Provenance of one value of the row."""
+        return self.value_provenance.get(name, self.provenance)
 
     def cite(self, name: str) -> str:
         """Citation of one value of the row (``Rp``, ``Ra``, ``density``) with its provenance."""
         if name in self.cited:
             return self.cited[name]
-        return f"{self.source.cite()}, row '{self.label}' ({self.provenance})"
+        return f"{self.source.cite()}, row '{self.label}' ({self.provenance_of(name)})"
 
 
 @dataclass(frozen=True)
@@ -246,6 +256,40 @@ class RulePack:
             return (self.file, line, column, tuple(path))
         o = self.document_positions.origin(tuple(path))
         return (o.file, o.line, o.column, o.path)
+
+    def value_provenance_counts(self) -> dict[str, int]:
+        """How many of the pack's table values are ``published``, ``derived``, ``from memory`` …
+
+        Counted: each occupancy row's Rp, Ra, default density (where the table gives one) and
+        air class; each Ez; each number of an Ev method (slope, intercept, breakpoint, the value
+        above it, the VAV ratio; each table row's Ev and the value above the last row); each
+        numeric parameter of a requirement. Equations are forms, not values, and not counted.
+        """
+        counts: dict[str, int] = {}
+
+        def add(provenance: str, n: int = 1) -> None:
+            counts[provenance] = counts.get(provenance, 0) + n
+
+        for c in self.categories.values():
+            for name in OccupancyCategory.VALUES:
+                if name == "density" and c.density is None:
+                    continue
+                add(c.provenance_of(name))
+        for r in self.configurations.values():
+            add(r.provenance)
+        for m in self.methods.values():
+            if isinstance(m, SimplifiedEv):
+                add(m.provenance, 4 + (m.vav_minimum_primary_ratio is not None))
+            elif isinstance(m, TableEv):
+                add(m.provenance, len(m.rows) + (not isinstance(m.above_last, str)))
+        for req in self.requirements.values():
+            n = sum(isinstance(v, (int, float)) and not isinstance(v, bool)
+                    for v in req.printed.values())
+            if req.formula is not None:
+                n += len(req.formula.params)
+            if n:
+                add(req.provenance, n)
+        return dict(sorted(counts.items(), key=lambda kv: (-kv[1], kv[0])))
 
     def retirement(self, collection: str, entry: str) -> Retired | None:
         """Why ``entry`` is missing from ``collection``, when a layered pack retired it."""

@@ -226,6 +226,7 @@ def _categories(doc: Any, data: dict[str, Any], system: str) -> dict[str, Occupa
             printed={"Rp": row["Rp"], "Ra": row["Ra"], "density": density},
             default_occupants=row.get("default_occupants"),
             minimum_bedrooms=row.get("minimum_bedrooms", 0),
+            value_provenance=dict(row.get("value_provenance", {})),
             cited=_cited(doc, row, source),
         )
     return out

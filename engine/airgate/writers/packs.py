@@ -74,6 +74,9 @@ def _options(pack: RulePack, chosen: bool) -> list[str]:
     return out
 
 
+_VALUE_NAMES = {"Rp": "Rp", "Ra": "Ra", "density": "density", "air_class": "class"}
+
+
 def _categories(pack: RulePack, raw_rows: dict[str, dict], chosen: bool) -> list[str]:
     u = pack.units
     rp, ra, dens = (("cfm/person", "cfm/ft²", "/1000 ft²") if u == "IP"
@@ -91,8 +94,10 @@ def _categories(pack: RulePack, raw_rows: dict[str, dict], chosen: bool) -> list
             cells[2] = (f"max(Nbr, {c.minimum_bedrooms}) + 1" if c.minimum_bedrooms
                         else "Nbr + 1")
         amended = " (amended: " + ", ".join(sorted(c.cited)) + ")" if c.cited else ""
+        mixed = sorted({k: p for k, p in c.value_provenance.items() if p != c.provenance}.items())
+        own = "".join(f"; {_VALUE_NAMES[k]} {p}" for k, p in mixed)
         out.append(f"  {c.id:44} {cells[0]:>16} {cells[1]:>13} {cells[2]:>18} {c.air_class:>5}  "
-                   f"{c.provenance}{amended}")
+                   f"{c.provenance}{own}{amended}")
     out += [f"  {mark} {text}" for mark, text in legend.items]
     return out
 
@@ -179,8 +184,15 @@ def pack_summary(pack: RulePack, doc: Any = None) -> str:
     for c in pack.checks.values():
         out.append(f"  {c.id:34} {c.severity:8} {c.title}")
     out += _requirements(pack, data.get("requirements", [])) + _retired(pack)
-    out += ["", GOVERN]
+    out += ["", GOVERN, "", provenance_line(pack.value_provenance_counts())]
     return "\n".join(out) + "\n"
+
+
+def provenance_line(counts: dict[str, int]) -> str:
+    """The closing count of a pack's table values by provenance."""
+    total = sum(counts.values())
+    parts = ", ".join(f"{n} {p}" for p, n in counts.items())
+    return f"Values by provenance: {parts} (of {total})" if total else "Values by provenance: none"
 
 
 def pack_list(rows: list[tuple[str, str, str, str, str]]) -> str:

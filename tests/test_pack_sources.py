@@ -1,0 +1,142 @@
+"""Values a pack marks `published` equal the public copy it names, and nothing else is so marked.
+
+The expected values are those of the public copies (docs/references.md), typed here from them:
+- Table 6-1 of a 2019-or-later edition of ANSI/ASHRAE 62.1 (public reprint): Animal Facilities,
+  Correctional Facilities and Educational Facilities rows, I-P and SI, air class (Libraries: no
+  air class legible; listed under Educational Facilities);
+- Table 6.2.2.1 of the 2016 edition (public reprint), rows 2019 keeps: university/college
+  laboratories, wood/metal shop and the Food and Beverage Service rows;
+- Indiana Mechanical Code 2014 (675 IAC 18-1.6) Table 403.3: hotel and conference rows, I-P
+  density, Rp and Ra only;
+- 2020 Mechanical Code of New York State, Table 403.3.1.1.2.3.2: Ev against the largest Zp.
+"""
+
+from __future__ import annotations
+
+import pytest
+
+from airgate.readers.rulepack import load_pack
+
+#: id → (Rp cfm/person, Rp L/s·person, Ra cfm/ft², Ra L/s·m², density, air class)
+TABLE_6_1 = {
+    "animal-exam-room": (10, 5, 0.12, 0.6, 20, 2),
+    "animal-imaging": (10, 5, 0.18, 0.9, 20, 3),
+    "animal-operating-rooms": (10, 5, 0.18, 0.9, 20, 3),
+    "animal-postoperative-recovery-room": (10, 5, 0.18, 0.9, 20, 3),
+    "animal-preparation-rooms": (10, 5, 0.18, 0.9, 20, 3),
+    "animal-procedure-room": (10, 5, 0.18, 0.9, 20, 3),
+    "animal-surgery-scrub": (10, 5, 0.18, 0.9, 20, 3),
+    "large-animal-holding-room": (10, 5, 0.18, 0.9, 20, 3),
+    "necropsy": (10, 5, 0.18, 0.9, 20, 3),
+    "small-animal-cage-room-static-cages": (10, 5, 0.18, 0.9, 20, 3),
+    "small-animal-cage-room-ventilated-cages": (10, 5, 0.18, 0.9, 20, 3),
+    "booking-waiting": (7.5, 3.8, 0.06, 0.3, 50, 2),
+    "cell": (5, 2.5, 0.12, 0.6, 25, 2),
+    "dayroom": (5, 2.5, 0.06, 0.3, 30, 1),
+    "guard-stations": (5, 2.5, 0.06, 0.3, 15, 1),
+    "art-classroom": (10, 5, 0.18, 0.9, 20, 2),
+    "classrooms-ages-5-8": (10, 5, 0.12, 0.6, 25, 1),
+    "classrooms-age-9-plus": (10, 5, 0.12, 0.6, 35, 1),
+    "computer-lab": (10, 5, 0.12, 0.6, 25, 1),
+    "daycare-sickroom": (10, 5, 0.18, 0.9, 25, 3),
+    "daycare-through-age-4": (10, 5, 0.18, 0.9, 25, 2),
+    "lecture-classroom": (7.5, 3.8, 0.06, 0.3, 65, 1),
+    "lecture-hall-fixed-seats": (7.5, 3.8, 0.06, 0.3, 150, 1),
+    "libraries": (5, 2.5, 0.12, 0.6, 10, None),
+    "media-center": (10, 5, 0.12, 0.6, 25, 1),
+    "multi-use-assembly": (7.5, 3.8, 0.06, 0.3, 100, 1),
+    "music-theater-dance": (10, 5, 0.06, 0.3, 35, 1),
+    "science-laboratories": (10, 5, 0.18, 0.9, 25, 2),
+    # 2016 reprint
+    "university-college-laboratories": (10, 5, 0.18, 0.9, 25, 2),
+    "wood-metal-shop": (10, 5, 0.18, 0.9, 20, 2),
+    "restaurant-dining-rooms": (7.5, 3.8, 0.18, 0.9, 70, 2),
+    "cafeteria-fast-food-dining": (7.5, 3.8, 0.18, 0.9, 100, 2),
+    "bars-cocktail-lounges": (7.5, 3.8, 0.18, 0.9, 100, 2),
+    "kitchen-cooking": (7.5, 3.8, 0.12, 0.6, 20, 2),
+}
+#: Indiana Mechanical Code 2014 Table 403.3: id → (Rp cfm/person, Ra cfm/ft², density /1000 ft²)
+INDIANA = {
+    "lodging-multipurpose-assembly": (5, 0.06, 120),
+    "bedroom-living-room": (5, 0.06, 10),
+    "conference-meeting": (5, 0.06, 50),
+    "barracks-sleeping-areas": (5, 0.06, 20),  # "Dormitory sleeping areas" there
+    "gambling-casinos": (7.5, 0.18, 120),
+    "lodging-lobbies-prefunction": (7.5, 0.06, 30),
+}
+#: 2020 Mechanical Code of New York State, Table 403.3.1.1.2.3.2: (largest Zp up to, Ev)
+NYS_EV = ((0.15, 1.0), (0.25, 0.9), (0.35, 0.8), (0.45, 0.7), (0.55, 0.6), (0.65, 0.5),
+          (0.75, 0.4))
+
+
+def _published(pack_id: str) -> dict[str, dict[str, float]]:
+    """id → {value name: value as printed} of every value the pack marks published."""
+    out = {}
+    for c in load_pack(pack_id).categories.values():
+        values = {"Rp": c.printed["Rp"], "Ra": c.printed["Ra"], "density": c.printed["density"],
+                  "air_class": c.air_class}
+        chosen = {k: v for k, v in values.items() if c.provenance_of(k) == "published"}
+        if chosen:
+            out[c.id] = chosen
+    return out
+
+
+@pytest.mark.parametrize(("pack_id", "si"), [("ashrae-62.1-2019", False),
+                                             ("ashrae-62.1-2019-si", True)])
+def test_published_rates_equal_the_public_copies(pack_id, si):
+    published = _published(pack_id)
+    for row_id, values in published.items():
+        if row_id in TABLE_6_1:
+            rp_ip, rp_si, ra_ip, ra_si, density, air_class = TABLE_6_1[row_id]
+            copy = {"Rp": rp_si if si else rp_ip, "Ra": ra_si if si else ra_ip,
+                    "density": density, "air_class": air_class}
+        elif row_id in INDIANA and not si:
+            rp, ra, density = INDIANA[row_id]
+            copy = {"Rp": rp, "Ra": ra, "density": density}
+        else:
+            pytest.fail(f"{pack_id}: '{row_id}' is marked published but no public copy has it")
+        for name, value in values.items():
+            assert name in copy and copy[name] is not None, (row_id, name)
+            assert value == copy[name], (row_id, name)
+
+
+@pytest.mark.parametrize(("pack_id", "si"), [("ashrae-62.1-2019", False),
+                                             ("ashrae-62.1-2019-si", True)])
+def test_rows_seen_in_a_public_copy_are_marked_published(pack_id, si):
+    published = _published(pack_id)
+    seen = set(TABLE_6_1) | (set() if si else set(INDIANA))
+    assert seen <= set(published)
+
+
+def test_2019_table_rows():
+    # The 2019 table adds the Animal Facilities rows and lists Libraries under Educational
+    # Facilities (public reprint of Table 6-1).
+    for pack_id in ("ashrae-62.1-2019", "ashrae-62.1-2019-si"):
+        cats = load_pack(pack_id).categories
+        animal = {k for k, c in cats.items() if c.group == "animal-facilities"}
+        assert animal == {k for k in TABLE_6_1 if k.startswith(("animal", "large", "necropsy",
+                                                                  "small"))}
+        assert cats["libraries"].group == "educational-facilities"
+
+
+def test_rate_tables_cite_the_2019_numbering():
+    for pack_id in ("ashrae-62.1-2019", "ashrae-62.1-2019-si"):
+        pack = load_pack(pack_id)
+        assert pack.occupancy_source.table.startswith("Table 6-1,")
+        assert pack.air_distribution_source.table.startswith("Table 6-4,")
+        texts = [c.source.section for c in pack.checks.values()]
+        texts += [e.source.section for e in pack.equations.values()]
+        assert not any("6.2.2.1" in t and "Table" in t for t in texts)
+        assert not any("Table 6.2.2.2" in t for t in texts)
+
+
+def test_extended_ev_table_equals_the_new_york_state_code():
+    method = load_pack("ashrae-62.1-2019-ev-table-extended").methods["table"]
+    assert method.rows == NYS_EV and method.above_last == 0.3
+    assert method.provenance == "published"
+    assert "New York State" in method.source.document
+
+
+def test_ev_table_rows_equal_the_new_york_state_code_up_to_0_55():
+    method = load_pack("ashrae-62.1-2019-ev-table").methods["table"]
+    assert method.rows == NYS_EV[:5] and method.above_last == "detailed"
