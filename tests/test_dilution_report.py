@@ -114,12 +114,12 @@ def test_profile_gives_peak_and_average(evaluate):
     z = r.systems[0].zones[0]
     t = z.dilution
     # By hand from the well-mixed balance (C(t) = C_ss + (C0 − C_ss)·e^(−λt), common practice):
-    # 100 people × N = 0.0048 L/s (Persily & de Jonge 2017 as quoted) into Q = 620 cfm gives the
+    # 100 people × N (N_OFFICE: Persily & de Jonge 2017 Table 4 at 20 °C) into Q = 620 cfm gives the
     # steady excess ΔC = 10⁶·G/Q; λ = Q/V. Occupied 08:00-12:00 from the outdoor level (the
     # 20 h decay before leaves e^(−20λ) ≈ 1e-16), the peak at 12:00 is ΔC·(1 − e^(−4λ)), and the
     # day's integral of the excess is ΔC·(4 − a/λ) + ΔC·a·(1 − e^(−20λ))/λ, a = 1 − e^(−4λ).
     q = 620 * CFM  # L/s
-    d_c = 1e6 * 0.0048 * 100 / q
+    d_c = 1e6 * N_OFFICE * 100 / q
     lam = q * 3.6 / (2000 * 10 * FT**3)  # 1/h
     a = 1 - math.exp(-4 * lam)
     assert t.value("ACH") == pytest.approx(lam, rel=1e-9)

@@ -121,7 +121,7 @@ def _table_dir(tmp_path, unit_text):
                                                     ("L/h/person", 1 / 3600)])
 def test_co2_generation_table_values_are_read_in_their_units(tmp_path, monkeypatch, unit_text,
                                                              factor):
-    # 1 h = 3600 s (exact): a table in L/h per person is read as L/s per person (0.0048 is the
+    # 1 h = 3600 s (exact): a table in L/h per person is read as L/s per person (0.00405 is the
     # row as the file writes it: the input, read in the declared units).
     from airgate.readers import datatables
 
@@ -132,7 +132,7 @@ def test_co2_generation_table_values_are_read_in_their_units(tmp_path, monkeypat
     finally:
         datatables.data_table.cache_clear()
     assert table.units == "L/s/person"
-    assert table.rows["adult-office"].value == pytest.approx(0.0048 * factor, rel=1e-12)
+    assert table.rows["adult-office"].value == pytest.approx(0.00405 * factor, rel=1e-12)
 
 
 def test_co2_generation_table_not_per_person_is_refused(tmp_path, monkeypatch):
