@@ -168,3 +168,16 @@ def test_explain_marks_the_declared_limit(tmp_path):
     text = out.getvalue()
     assert "MISSED (declared limit) [concentration-limit] RTU-1/101" in text
     assert "FAIL [" not in text
+
+
+def test_a_run_of_several_counts_declared_limits_apart(tmp_path):
+    missed = write(tmp_path, design(900), "missed.yaml")
+    met = write(tmp_path, design(1000), "met.yaml")
+    code, out = check(missed, met, "--format", "json")
+    assert code == 0
+    doc = json.loads(out)
+    assert doc["verdict"] == "pass" and doc["summary"]["failing_schedules"] == 0
+    assert doc["summary"]["fail"] == 0 and doc["summary"]["declared"] == 1
+    assert check(missed, met, "--fail-on", "declared")[0] == 1
+    text = check(missed, met)[1]
+    assert "1 declared limits missed" in text.split("Run summary")[1]

@@ -163,7 +163,8 @@ def render(batch: Batch) -> str:
     failing = sum(r.verdict == "fail" for r in batch.reports)
     out = [f"### airgate: {len(batch.reports)} schedules — {_verdict(batch.verdict)}", "",
            f"{failing} of {len(batch.reports)} schedules fail · {c['fail']} failing · "
-           f"{c['warning']} warnings · {c['info']} notes · {c['waived']} waived", "",
+           f"{c['warning']} warnings · {c['info']} notes · {c['waived']} waived"
+           + (f" · {c['declared']} declared limits missed" if c["declared"] else ""), "",
            "| schedule | project | verdict | failing | warnings | waived |",
            "|---|---|---|---:|---:|---:|"]
     for r in batch.reports:
