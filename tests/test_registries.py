@@ -136,3 +136,72 @@ def test_a_system_kind_without_its_evaluation_is_an_internal_error(tmp_path, cap
     monkeypatch.delitem(SYSTEM_KINDS, "single-zone")
     assert main(["check", _demo_like(tmp_path)]) == 3
     assert "has no evaluation registered" in capsys.readouterr().err
+
+
+# --- report formats -----------------------------------------------------------------------------
+
+def test_a_registered_format_is_a_format_of_check(capsys, monkeypatch):
+    """Adding a format is one registry entry: --format accepts it and writes what it returns."""
+    from airgate.writers import formats
+
+    plain = formats.ReportFormat("verdicts", ".txt", lambda batch, step: "".join(
+        f"{r.schedule_file}: {r.verdict}\n" for r in batch.reports))
+    monkeypatch.setitem(formats.FORMATS, "verdicts", plain)
+    monkeypatch.chdir(ROOT)
+    demo = "fixtures/demo/fernhollow-civic-centre.yaml"
+    assert main(["check", demo, "--format", "verdicts"]) == 1
+    assert capsys.readouterr().out == f"{demo}: fail\n"
+
+
+def test_an_unknown_format_is_a_usage_error_naming_the_registered_ones(capsys):
+    from airgate.writers.formats import FORMATS
+
+    assert main(["check", str(ROOT / "fixtures/demo/fernhollow-civic-centre.yaml"),
+                 "--format", "pdf"]) == 2
+    err = capsys.readouterr().err
+    assert "unknown report format 'pdf'" in err and all(name in err for name in FORMATS)
+
+
+def test_every_format_has_its_extension():
+    from airgate.writers.formats import EXTENSIONS, FORMATS
+
+    assert list(EXTENSIONS) == list(FORMATS)
+    assert all(ext.startswith(".") for ext in EXTENSIONS.values())
+
+
+# --- importers ----------------------------------------------------------------------------------
+
+def test_every_suffix_has_one_importer_and_each_reader_exists():
+    import ast
+
+    from airgate.readers.importers import BY_SUFFIX, DEFAULT, IMPORTERS, REFUSED
+
+    claimed = [s for i in IMPORTERS.values() for s in i.suffixes]
+    assert len(claimed) == len(set(claimed)) == len(BY_SUFFIX)
+    assert not set(claimed) & set(REFUSED)
+    assert DEFAULT is IMPORTERS["schedule"]
+    for importer in IMPORTERS.values():  # read from the source: the IFC reader is optional
+        path = ROOT / "engine" / "airgate" / "readers" / f"{importer.module}.py"
+        tree = ast.parse(path.read_text(encoding="utf-8"))
+        assert importer.function in {n.name for n in tree.body if isinstance(n, ast.FunctionDef)}
+
+
+def test_a_registered_importer_reads_its_suffix(tmp_path, monkeypatch):
+    """Adding an importer is one registry entry: a file with its suffix goes to its reader."""
+    from airgate import check
+    from airgate.readers import importers
+
+    seen = []
+    yaml_reader = importers.IMPORTERS["schedule"]
+
+    class Spy(importers.Importer):
+        def read(self, path):
+            seen.append(path.name)
+            return yaml_reader.read(path)
+
+    spy = Spy("sched", (".sched",), "schedule", "read_schedule", "a test format")
+    monkeypatch.setitem(importers.BY_SUFFIX, ".sched", spy)
+    path = tmp_path / "building.sched"
+    path.write_text(open(_demo_like(tmp_path), encoding="utf-8").read(), encoding="utf-8")
+    assert check(path).verdict in ("pass", "fail")
+    assert seen == ["building.sched"]

@@ -17,8 +17,10 @@ from airgate.commands.common import add_output, add_rules
 from airgate.errors import (EXIT_FAIL, EXIT_PASS, AirgateError, ErrorGroup, ScheduleError,
                             UsageError, raise_all)
 from airgate.readers import document
+from airgate.readers.importers import IMPORTERS
 
-SCHEDULE_SUFFIXES = (".yaml", ".yml", ".json")
+#: the files of a folder that are checked: YAML/JSON schedules (not imports)
+SCHEDULE_SUFFIXES = IMPORTERS["schedule"].suffixes
 
 
 def register(sub) -> None:
@@ -36,7 +38,7 @@ def register(sub) -> None:
                         "YAML/JSON schedules")
     add_rules(c)
     c.add_argument("--format", action="append", metavar="NAME[:FILE]", dest="formats",
-                   help=f"report format: {', '.join(FORMATS)} (default: {FORMATS[0]}); "
+                   help=f"report format: {', '.join(FORMATS)} (default: {next(iter(FORMATS))}); "
                         "NAME:FILE writes it to FILE; repeatable, one evaluation for all")
     add_output(c, "file for the one --format given without a file (default: standard output)")
     c.add_argument("--waivers", action="append", default=[], metavar="FILE",
@@ -60,7 +62,7 @@ def _destinations(args: argparse.Namespace) -> list[tuple[str, str | None]]:
     from airgate.writers.formats import FORMATS
     from airgate.writers.output import is_stream
 
-    specs = args.formats or [FORMATS[0]]
+    specs = args.formats or [next(iter(FORMATS))]
     out: list[tuple[str, str | None]] = []
     for spec in specs:
         name, sep, dest = spec.partition(":")

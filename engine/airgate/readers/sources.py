@@ -1,14 +1,6 @@
-"""Any supported input file → a validated schedule; the one place that dispatches by suffix.
+"""Any supported input file → a validated schedule, through the importer its suffix names.
 
-=====================  ==========================================================
-suffix                 reader
-=====================  ==========================================================
-``.yaml .yml .json``   :mod:`airgate.readers.schedule` (and any unknown suffix)
-``.csv``               :mod:`airgate.readers.tabular` (a set of CSV tables)
-``.xlsx``              :mod:`airgate.readers.tabular` (a workbook)
-``.xml .gbxml``        :mod:`airgate.readers.gbxml`
-``.ifc``               :mod:`airgate.readers.ifc` (optional extra ``[ifc]``)
-=====================  ==========================================================
+The importers are registered in :mod:`airgate.readers.importers` (one entry per format).
 
 An importer builds the plain data a YAML schedule would hold, plus an :class:`Origin` for each
 field path: the file (for a workbook ``building.xlsx[Zones]``), the line (the row of a table, the
@@ -26,7 +18,8 @@ from typing import Any
 
 from airgate.errors import AirgateError, ErrorGroup, ScheduleError
 from airgate.readers.document import Document, Path_
-from airgate.readers.schedule import LoadedSchedule, read_schedule, validate
+from airgate.readers.importers import REFUSED, importer_for
+from airgate.readers.schedule import LoadedSchedule, validate
 
 MAX_ERRORS = 25
 
@@ -243,36 +236,15 @@ def _under(error_path: Path_, zone_path: Path_) -> bool:
         len(error_path) == 2 or error_path[2] != "zones")
 
 
-#: Suffixes of formats airgate cannot read, and what to do instead.
-_REFUSED = {
-    ".xls": "save the workbook as .xlsx (Excel Workbook)",
-    ".xlsm": "save the workbook as .xlsx; airgate does not read macro-enabled workbooks",
-    ".ods": "save the spreadsheet as .xlsx or as CSV tables",
-    ".ifczip": "unzip it to an .ifc file",
-    ".ifcxml": "save the model as .ifc (STEP physical file)",
-}
-
-
 def read_any(path: str | Path) -> LoadedSchedule:
-    """Read a schedule from any supported file: YAML/JSON, CSV tables, XLSX, gbXML or IFC."""
+    """Read a schedule from any supported file: YAML/JSON, CSV tables, XLSX, gbXML or IFC,
+    by the importer its suffix names (:data:`airgate.readers.importers.IMPORTERS`)."""
     path = Path(path)
     suffix = path.suffix.lower()
-    if suffix in _REFUSED:
+    if suffix in REFUSED:
         raise ScheduleError(f"{suffix} files cannot be read", file=str(path),
-                            hint=_REFUSED[suffix])
-    if suffix == ".csv":
-        from airgate.readers import tabular
-        return tabular.read_csv_set(path)
-    if suffix == ".xlsx":
-        from airgate.readers import tabular
-        return tabular.read_xlsx(path)
-    if suffix in (".xml", ".gbxml"):
-        from airgate.readers import gbxml
-        return gbxml.read(path)
-    if suffix == ".ifc":
-        from airgate.readers import ifc
-        return ifc.read(path)
-    return read_schedule(path)
+                            hint=REFUSED[suffix])
+    return importer_for(path).read(path)
 
 
 def import_notes(loaded: LoadedSchedule) -> list[str]:

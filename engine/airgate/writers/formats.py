@@ -1,49 +1,60 @@
-"""The report formats of ``airgate check`` and how a run of several schedules is written in each.
+"""The report formats of ``airgate check``: the one registry, and how a run of several
+schedules is written in each.
 
 text and markdown write each schedule's report in turn and close with a summary of the run; json
 writes a report object for one schedule and a batch wrapper around them for several; junit,
 sarif and html write one document for the whole run (docs/report-format.md).
+
+:data:`FORMATS` is where ``--format`` takes its names (and its help) from. A new format is a
+writer module plus one :class:`ReportFormat` entry here. The writers are imported when a report
+is written, so reading this registry (building the command line) stays cheap.
 """
 
 from __future__ import annotations
 
-from airgate.evaluation.batch import Batch
-from airgate.writers import html, json_report, junit, markdown, output, sarif, shared, text
-from airgate.writers.output import Body
-from airgate.writers.text import clean
+import importlib
+from collections.abc import Callable
+from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
-FORMATS = ("text", "json", "junit", "sarif", "markdown", "html")
-#: the usual file extension of each format (docs and the pre-commit example)
-EXTENSIONS = {"text": ".txt", "json": ".json", "junit": ".xml", "sarif": ".sarif",
-              "markdown": ".md", "html": ".html"}
+from airgate.errors import UsageError
 
-
-def stream(name: str, batch: Batch, series_step: int = 0) -> Body:
-    """The whole run in format ``name`` (one of :data:`FORMATS`): text, or for JSON its pieces
-    (a large portfolio's indented JSON is then written without ever being one string)."""
-    if name == "text":
-        return _text(batch)
-    if name == "json":
-        if batch.single:
-            return json_report.chunks(batch.reports[0], series_step)
-        return json_report.batch_chunks(batch, series_step)
-    if name == "junit":
-        return junit.render(batch)
-    if name == "sarif":
-        return sarif.render(batch)
-    if name == "markdown":
-        return markdown.render(batch)
-    if name == "html":
-        return html.render(batch)
-    raise ValueError(f"unknown format {name!r}")
+if TYPE_CHECKING:
+    from airgate.evaluation.batch import Batch
+    from airgate.writers.output import Body
 
 
-def render(name: str, batch: Batch, series_step: int = 0) -> str:
-    """:func:`stream` as one string."""
-    return output.joined(stream(name, batch, series_step))
+@dataclass(frozen=True)
+class ReportFormat:
+    """One report format: its ``--format`` name, usual file extension and writer."""
+
+    name: str
+    extension: str  #: the usual file extension (docs and the pre-commit example)
+    #: ``(batch, series_step) → body``: the whole run, as text or pieces of text
+    write: Callable[[Batch, int], Body]
 
 
-def _text(batch: Batch) -> str:
+def _whole_run(module: str) -> Callable[[Batch, int], Body]:
+    """A writer whose ``render(batch)`` writes one document for the whole run."""
+    def write(batch: Batch, series_step: int = 0) -> Body:
+        return importlib.import_module(f"airgate.writers.{module}").render(batch)
+    return write
+
+
+def _json(batch: Batch, series_step: int = 0) -> Body:
+    """A report object for one schedule, a batch wrapper for several, written piece by piece
+    (a large portfolio's indented JSON is never one string)."""
+    from airgate.writers import json_report
+
+    if batch.single:
+        return json_report.chunks(batch.reports[0], series_step)
+    return json_report.batch_chunks(batch, series_step)
+
+
+def _text(batch: Batch, series_step: int = 0) -> str:
+    from airgate.writers import text
+    from airgate.writers.text import clean
+
     if batch.single:
         return text.render(batch.reports[0])
     n = len(batch.reports)
@@ -54,6 +65,9 @@ def _text(batch: Batch) -> str:
 
 
 def _text_summary(batch: Batch) -> str:
+    from airgate.writers import shared
+    from airgate.writers.text import clean
+
     failing = sum(r.verdict == "fail" for r in batch.reports)
     out = [f"Run summary — {len(batch.reports)} schedules, {failing} fail"]
     width = max(len(clean(r.schedule_file)) for r in batch.reports)
@@ -76,3 +90,32 @@ def _text_summary(batch: Batch) -> str:
                    if c["declared"] else "") + ".", "", "Cautions"]
     out += [f"  - {x}" for x in batch.cautions()[:1]]
     return "\n".join(out) + "\n"
+
+
+#: the report formats by ``--format`` name; the first is the default
+FORMATS: dict[str, ReportFormat] = {f.name: f for f in (
+    ReportFormat("text", ".txt", _text),
+    ReportFormat("json", ".json", _json),
+    ReportFormat("junit", ".xml", _whole_run("junit")),
+    ReportFormat("sarif", ".sarif", _whole_run("sarif")),
+    ReportFormat("markdown", ".md", _whole_run("markdown")),
+    ReportFormat("html", ".html", _whole_run("html")),
+)}
+#: the usual file extension of each format
+EXTENSIONS = {name: f.extension for name, f in FORMATS.items()}
+
+
+def stream(name: str, batch: Batch, series_step: int = 0) -> Body:
+    """The whole run in format ``name`` (a key of :data:`FORMATS`): text, or its pieces."""
+    fmt = FORMATS.get(name)
+    if fmt is None:
+        raise UsageError(f"unknown report format '{name}'", allowed=list(FORMATS),
+                         field=("--format",))
+    return fmt.write(batch, series_step)
+
+
+def render(name: str, batch: Batch, series_step: int = 0) -> str:
+    """:func:`stream` as one string."""
+    from airgate.writers import output
+
+    return output.joined(stream(name, batch, series_step))
