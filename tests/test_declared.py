@@ -181,3 +181,14 @@ def test_a_run_of_several_counts_declared_limits_apart(tmp_path):
     assert check(missed, met, "--fail-on", "declared")[0] == 1
     text = check(missed, met)[1]
     assert "1 declared limits missed" in text.split("Run summary")[1]
+
+
+def test_a_declared_limit_that_cannot_be_checked_is_noted(tmp_path):
+    # Without a height or volume there is no dilution analysis: the limit is not silently lost.
+    data = design(900)
+    del data["systems"][0]["zones"][0]["height"]
+    code, out = check(write(tmp_path, data), "--format", "json")
+    doc = json.loads(out)
+    assert code == 0 and doc["findings"] == []
+    (note,) = [n for n in doc["notes"] if "project.co2_limit" in n]
+    assert "was not checked for RTU-1/101" in note and "height or volume" in note

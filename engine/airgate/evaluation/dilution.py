@@ -451,3 +451,25 @@ def multiple_zone_capacity(system: System, result: SystemResult) -> None:
             "short of the required Vot even with that zone empty, so no occupancy of the zone "
             "alone brings the system within its intake; the system's intake finding says what "
             "to change")
+
+
+def unchecked_limits(schedule: Schedule, results: list[SystemResult], where) -> list[str]:
+    """A note for each declared limit that some zones could not be checked against (no volume,
+    or no steady state), naming the zones, so that no declared limit is dropped silently.
+    ``where(path)`` gives the location text of a schedule field."""
+    out = []
+    limits = [(("project", "co2_limit"), "project.co2_limit", "CO2", None)] \
+        if schedule.project.co2_limit is not None else []
+    limits += [(("contaminants", i, "limit"), f"contaminants[{i}].limit", c.label or c.id, c.id)
+               for i, c in enumerate(schedule.contaminants) if c.limit is not None]
+    for path, field, what, cid in limits:
+        missing = [f"{s.id}/{z.id}" for s in results for z in s.zones
+                   if (z.dilution is None if cid is None else cid not in z.contaminants)]
+        if missing:
+            shown = ", ".join(missing[:10]) + (f" and {len(missing) - 10} more"
+                                              if len(missing) > 10 else "")
+            out.append(f"The {what} limit the schedule declares ({field} at {where(path)}) "
+                       f"was not checked for {shown}: a zone needs a height or "
+                       "volume (and, in a multiple-zone system, every zone a primary airflow) "
+                       "for the dilution analysis.")
+    return out

@@ -90,6 +90,8 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
     findings, statuses, waiver_date = waivers.review(findings, entries, pack, results, as_of)
     _verdicts(results, findings)
     notes = unused_fields(loaded.model, lambda path: str(_location(loaded, path)))
+    notes += dilution.unchecked_limits(loaded.model, results,
+                                       lambda path: str(_location(loaded, path)))
     notes += [f"{s.id}: {note}" for s in results for note in s.notes]
     if pack.units != units:
         notes.append(f"The schedule is in {units} units and rule pack {pack.id} in {pack.units}; "
