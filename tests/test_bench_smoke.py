@@ -17,17 +17,23 @@ import bench_dilution  # noqa: E402
 import bench_portfolio  # noqa: E402
 
 
-def test_march_scaling_table_runs_and_restores_the_procedure(capsys):
+def test_scaling_table_runs_and_restores_the_procedure(capsys):
     from airgate.procedures import coupled
 
-    inner = coupled._march
+    inner = coupled._modes
     rng = np.random.default_rng(1)
-    bench_dilution.march_scaling(rng, np.arange(25.0), np.linspace(0.0, 24.0, 25), sizes=(8, 16))
+    bench_dilution.scaling(rng, np.arange(25.0), np.linspace(0.0, 24.0, 25), sizes=(8, 16))
     rows = [line.split() for line in capsys.readouterr().out.splitlines()
             if line.strip()[:1].isdigit()]
     assert [int(r[0]) for r in rows] == [8, 16]
     assert rows[0][-2:] == ["1.00", "1.00"]  # the first size is the base of the ratios
-    assert coupled._march is inner
+    assert coupled._modes is inner
+
+
+def test_two_day_target_runs(capsys):
+    _, out = bench_dilution.two_day_target(np.random.default_rng(2), n_zones=6, repeats=1)
+    assert out.shape == (48 * 60 + 1, 6)
+    assert "of the one-second target" in capsys.readouterr().out
 
 
 def test_portfolio_repeats_the_demo_with_unique_ids():

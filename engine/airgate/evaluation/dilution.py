@@ -338,9 +338,12 @@ def coupled_design_day(schedule: Schedule, system: System, ctxs, people: np.ndar
             frac[:, j] = _sample_fractions(p[0], p[1], mids)
     b2, f2 = _two_days(breaks, frac)
     times = 24.0 + np.arange(0, 24 * 60 + 1) * STEP_H
-    run = coupled.coupled_piecewise_transient(
-        b2, f2 * people[None, :] + constant[None, :], volume, primary_airflow,
-        LS * system.outdoor_air, np.full(len(ctxs), c0), times, **losses)
+    try:
+        run = coupled.coupled_piecewise_transient(
+            b2, f2 * people[None, :] + constant[None, :], volume, primary_airflow,
+            LS * system.outdoor_air, np.full(len(ctxs), c0), times, **losses)
+    except coupled.TooManyRates:
+        return None  # above the size limit no design day is computed (docs/dilution.md)
     return times - 24.0, run.zone, breaks, frac
 
 

@@ -80,3 +80,46 @@ def check_breaks(times_breaks):
     if b.ndim != 1 or b.size < 2 or not np.all(np.isfinite(b)) or np.any(np.diff(b) <= 0):
         raise ValueError("times_breaks must be a strictly increasing 1-D array of >= 2 times")
     return b
+
+
+def exp_convolution(a, b, tau):
+    """∫₀^τ e^(−a(τ−s))·e^(−b·s) ds = τ·e^(−min(a, b)·τ)·φ(|a − b|·τ): the response of a
+    first-order decay a to a decaying input b, in the form free of cancellation for every pair
+    of rates (equal rates included). a, b [1/h] and τ [h] broadcast."""
+    a, b = np.asarray(a, dtype=float), np.asarray(b, dtype=float)
+    return tau * np.exp(-np.minimum(a, b) * tau) * phi(np.abs(a - b) * tau)
+
+
+def _second_divided_difference(x, y):
+    """The divided difference f[x, y, 0] of f(t) = e^(−t), for x, y >= 0 (arrays broadcast):
+    ∫ over the simplex of e^(−(t₀x + t₁y)), between e^(−max)/2 and 1/2.
+
+    Where max(x, y) >= 1, ``(φ(lo) − e^(−lo)·φ(hi − lo)) / hi`` (lo <= hi; the two terms differ
+    by at least a third of the first, so at most a couple of bits are lost); below it the
+    series Σ_m (−1)^m h_m(x, y)/(m + 2)!, h_m the complete homogeneous polynomial of degree
+    m, whose 19 terms reach a relative 1e-17."""
+    x, y = np.broadcast_arrays(np.asarray(x, dtype=float), np.asarray(y, dtype=float))
+    hi, lo = np.maximum(x, y), np.minimum(x, y)
+    big = hi >= 1.0
+    hb = np.where(big, hi, 1.0)
+    lb = np.where(big, lo, 0.0)
+    far = phi(lb) - np.exp(-lb) * phi(hb - lb)
+    far /= hb
+    hs, ls = np.where(big, 0.0, hi), np.where(big, 0.0, lo)
+    h_m, lo_m, fact, total = np.ones_like(hs), np.ones_like(hs), 2.0, np.full(hs.shape, 0.5)
+    for m in range(1, 19):
+        lo_m = lo_m * ls
+        h_m = hs * h_m + lo_m
+        fact *= m + 2
+        total += (-1) ** m * h_m / fact
+    return np.where(big, far, total)
+
+
+def exp_convolution_ramp(a, b, tau):
+    """∫₀^τ e^(−a(τ−s))·s·φ(b·s) ds = τ²·f[aτ, bτ, 0] (f(t) = e^(−t)): the response of a
+    first-order decay a to an input that rises from 0 with rate b towards its steady value,
+    accurate for every pair of rates >= 0 (Hermite–Genocchi: the double integral is the
+    second divided difference). a, b [1/h] and τ [h] broadcast."""
+    tau = np.asarray(tau, dtype=float)
+    return tau**2 * _second_divided_difference(np.asarray(a, dtype=float) * tau,
+                                               np.asarray(b, dtype=float) * tau)
