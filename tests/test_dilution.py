@@ -1,7 +1,9 @@
-"""Tests of airgate.procedures.dilution (single well-mixed zone).
+"""Tests of airgate.procedures.dilution, .losses and .piecewise (single well-mixed zone).
 
-Each check names its source: a table of a published document (via reference-values.md), an
-equation of domain.md §4, an outside numerical reference (scipy), or "common practice".
+Each check names its source: a table of a published document (docs/references.md), the
+completely mixed flow reactor (CMFR) balance of Nazaroff & Alvarez-Cohen, Environmental
+Engineering Science (Wiley, 2001), an outside numerical reference (scipy, decimal), or
+"common practice".
 """
 
 import math
@@ -17,7 +19,7 @@ from airgate.procedures import dilution as dil
 from conftest import examples
 
 # CDC, Guidelines for Environmental Infection Control in Health-Care Facilities (2003),
-# Appendix B, Table B.1 (reference-values.md F, published):
+# Appendix B, Table B.1 (published):
 # air changes per hour -> minutes to 99 % and to 99.9 % removal.
 CDC_2003_TABLE_B1 = [
     (2, 138, 207),
@@ -50,16 +52,17 @@ def test_purge_times_cdc_2003_table_b1_all_rows_as_one_array():
 
 
 def test_co2_excess_at_7_5_Ls_per_person_about_700_ppm():
-    # reference-values.md G: 7.5 L/s per person ~ 700 ppm above outdoor (ASHRAE technical
-    # FAQ, published); 0.0052 L/s / 7.5 L/s -> 693 ppm (derived).
+    # ASHRAE technical FAQ on CO2 (published): 7.5 L/s per person ~ 700 ppm above outdoor;
+    # 0.0052 L/s / 7.5 L/s -> 693 ppm (derived).
     excess = dil.co2_excess_ppm(0.0052, 7.5)
     assert round(excess) == 693
     assert excess == pytest.approx(700, rel=0.02)
 
 
 def test_co2_excess_from_steady_state_in_si_units():
-    # domain.md §4 steady state C = G/Q with CO2 in ppm: G = 1e6 · 0.0052 L/s (as m3/h),
-    # Q = 7.5 L/s (as m3/h) -> 693 ppm (reference-values.md G, derived).
+    # CMFR steady state C = G/Q (Nazaroff & Alvarez-Cohen 2001) with CO2 in ppm:
+    # G = 1e6 · 0.0052 L/s (as m3/h), Q = 7.5 L/s (as m3/h) -> 693 ppm (ASHRAE technical FAQ
+    # on CO2, derived).
     gen_ppm_m3h = 1e6 * 0.0052 * 3.6  # 0.0052 L/s of CO2 = 0.01872 m3/h, as ppm·m3/h
     c = dil.steady_state_concentration(gen_ppm_m3h, 60.0, 7.5 * 3.6)
     assert c == pytest.approx(dil.co2_excess_ppm(0.0052, 7.5), rel=1e-12)
@@ -67,22 +70,23 @@ def test_co2_excess_from_steady_state_in_si_units():
 
 
 def test_co2_excess_en_16798_categories_from_20_L_per_h():
-    # reference-values.md E: design emission 20 L/h per person (EN 16798-1:2019, published);
-    # 20 L/h over 10 / 7 / 4 L/s per person -> 556 / 794 / 1389 ppm (derived there).
+    # EN 16798-1:2019 (published): design emission 20 L/h per person; 20 L/h over
+    # 10 / 7 / 4 L/s per person -> 556 / 794 / 1389 ppm (derived by hand).
     excess = dil.co2_excess_ppm(20 / 3600, np.array([10.0, 7.0, 4.0]))
     np.testing.assert_array_equal(np.rint(excess), [556, 794, 1389])
 
 
 def test_dcv_setpoint_adds_outdoor_level():
-    # domain.md §2 demand-controlled ventilation: C_zone = C_out + N/Voz_per_person;
-    # 420 ppm outdoor is common practice (reference-values.md G).
+    # Demand-controlled ventilation set point from the CMFR steady state (Nazaroff &
+    # Alvarez-Cohen 2001): C_zone = C_out + N/Voz_per_person; 420 ppm outdoor is common
+    # practice.
     assert dil.dcv_setpoint_ppm(420, 0.0052, 7.5) == pytest.approx(420 + 1e6 * 0.0052 / 7.5)
     assert round(dil.dcv_setpoint_ppm(420, 0.0052, 7.5)) == 1113
 
 
 @pytest.mark.parametrize("airflow", [10.0, 100.0, 1000.0])
 def test_tenfold_airflow_tenfold_lower_concentration(airflow):
-    # reference-values.md H (common practice): with clean supply and no other losses,
+    # Common practice (and the CMFR steady state): with clean supply and no other losses,
     # C = G/Q, so each tenfold airflow lowers the concentration tenfold.
     c1 = dil.steady_state_concentration(500.0, 200.0, airflow)
     c10 = dil.steady_state_concentration(500.0, 200.0, 10 * airflow)
@@ -91,7 +95,8 @@ def test_tenfold_airflow_tenfold_lower_concentration(airflow):
 
 
 def test_steady_state_with_filters_and_losses_matches_domain_equation():
-    # domain.md §4: C_ss = (G + Q_oa(1 − η_oa)C_out) / (λ·V), λ from the same section.
+    # CMFR steady state with first-order losses (Nazaroff & Alvarez-Cohen 2001), written out by
+    # hand: C_ss = (G + Q_oa(1 − η_oa)C_out) / (λ·V).
     v, q_oa, q_rec, cadr = 150.0, 300.0, 900.0, 250.0
     kd, ki, c_out, g = 0.4, 0.7, 12.0, 5000.0
     lam = (q_oa + 0.5 * q_rec + cadr) / v + kd + ki
@@ -102,8 +107,8 @@ def test_steady_state_with_filters_and_losses_matches_domain_equation():
 
 
 def test_loss_breakdown_adds_up_to_equivalent_clean_airflow():
-    # reference-values.md H (published public-health guidance): equivalent air changes add
-    # across outdoor air, filtration (airflow × efficiency) and air cleaners; HEPA 99.97 %.
+    # ASHRAE 241-2023: equivalent clean airflows add across outdoor air, filtration (airflow ×
+    # efficiency) and air cleaners; HEPA 99.97 % (DOE-STD-3020).
     v = 120.0
     parts = dil.loss_breakdown(v, 240.0, 600.0, 0.9997, 180.0, 0.2, 0.5)
     assert parts == pytest.approx({"outdoor_air": 240.0, "recirculation_filter": 599.82,
@@ -114,7 +119,8 @@ def test_loss_breakdown_adds_up_to_equivalent_clean_airflow():
 
 
 def test_inactivation_half_life_halves_concentration():
-    # domain.md §4: k_inact = ln 2 / half-life; after one half-life in a sealed zone with no
+    # First-order decay (Nazaroff & Alvarez-Cohen 2001): k_inact = ln 2 / half-life; after one
+    # half-life in a sealed zone with no
     # other loss the concentration halves.
     k = dil.inactivation_rate_from_half_life(1.5)
     assert k == pytest.approx(math.log(2) / 1.5, rel=1e-15)
@@ -122,14 +128,15 @@ def test_inactivation_half_life_halves_concentration():
 
 
 def test_95_percent_of_steady_state_is_three_time_constants():
-    # domain.md §4: reaching 95 % of steady state takes 3/λ (ln 20 = 2.996).
+    # CMFR transient (Nazaroff & Alvarez-Cohen 2001): reaching 95 % of steady state takes 3/λ
+    # (ln 20 = 2.996).
     assert dil.time_to_fraction_of_steady_state(2.0) == pytest.approx(3.0 / 2.0, rel=2e-3)
     assert dil.time_to_fraction_of_steady_state(2.0, 0.95) == pytest.approx(math.log(20) / 2)
 
 
 def test_short_term_averaging_time_t_equals_50_v_over_vbz():
-    # domain.md §2 "Short-term conditions": T = 3 time constants = 50·v/Vbz minutes (v in m3,
-    # Vbz in L/s). Reaching 1 − e^(−3) of steady state takes exactly 3/λ.
+    # ANSI/ASHRAE 62.1-2019 Section 6.2.6.2 (short-term conditions): T = 3 time constants =
+    # 50·v/Vbz minutes (v in m3, Vbz in L/s). Reaching 1 − e^(−3) of steady state takes exactly 3/λ.
     v, vbz_ls = 240.0, 85.0
     lam = dil.loss_rate(v, vbz_ls * 3.6)
     t_min = 60 * dil.time_to_fraction_of_steady_state(lam, 1 - math.exp(-3))
@@ -137,7 +144,8 @@ def test_short_term_averaging_time_t_equals_50_v_over_vbz():
 
 
 def test_breathing_zone_with_voz_equals_vbz_case():
-    # domain.md §2 Voz = Vbz/Ez and §4 C_bz − C_s = (C_exhaust − C_s)/Ez: supplying Voz of clean
+    # ANSI/ASHRAE 62.1-2019 Section 6.2.2.3 Voz = Vbz/Ez, and C_bz − C_s = (C_exhaust − C_s)/Ez
+    # (Ez as the effectiveness of Section 6.2.2.2, derived): supplying Voz of clean
     # air gives the breathing zone G/Vbz, as if Vbz were delivered with Ez = 1.
     g, vbz = 1000.0, 400.0
     for ez in (0.5, 0.7, 0.8, 1.0, 1.2):
@@ -158,7 +166,7 @@ def _assert_agrees(got, ref):
 
 def _reference_piecewise(breaks, gen, vol, q_oa, c0, times, c_out, eta_oa, q_rec, eta_rec,
                          cadr, kd, ki):
-    """Direct integration of the domain.md §4 balance, all zones as one system, piece by
+    """Direct integration of the CMFR balance, all zones as one system, piece by
     piece (scipy.integrate.solve_ivp, LSODA, rtol=1e-10: the outside reference)."""
     def at(x, j):
         x = np.asarray(x, dtype=float)
@@ -186,7 +194,7 @@ def _reference_piecewise(breaks, gen, vol, q_oa, c0, times, c_out, eta_oa, q_rec
 
 
 def test_transient_matches_solve_ivp_random_zones():
-    # domain.md §4 C(t) = C_ss + (C0 − C_ss)e^(−λt), against scipy.integrate.solve_ivp
+    # CMFR transient C(t) = C_ss + (C0 − C_ss)e^(−λt), against scipy.integrate.solve_ivp
     # (LSODA, rtol=1e-10) as outside reference, 1e-6 relative.
     rng = np.random.default_rng(20031)
     n = 20
@@ -214,7 +222,7 @@ def _flow(top):
 def test_piecewise_transient_random_single_zone_matches_solve_ivp(volume, q_oa, q_rec, eta_rec,
                                                                   gen, c0, c_out):
     # Random single zones, exact piecewise solution against scipy.integrate.solve_ivp (LSODA,
-    # rtol=1e-10) as outside reference, 1e-6 relative (domain.md §4 balance).
+    # rtol=1e-10) as outside reference, 1e-6 relative (the CMFR balance).
     breaks = np.linspace(0.0, 4.0, len(gen) + 1)
     times = np.linspace(0.0, 4.0, 17)
     g = np.array(gen)
@@ -226,7 +234,7 @@ def test_piecewise_transient_random_single_zone_matches_solve_ivp(volume, q_oa, 
 
 
 def test_piecewise_transient_matches_solve_ivp_with_changing_airflow():
-    # Exact piecewise-exponential solution (domain.md §4 "Transient", piece by piece) against
+    # Exact piecewise-exponential solution (the CMFR transient, piece by piece) against
     # scipy.integrate.solve_ivp (LSODA, rtol=1e-10) as outside reference, 1e-6 relative;
     # generation and outdoor airflow change per piece, with outdoor air, filters and losses.
     rng = np.random.default_rng(7)
@@ -272,7 +280,8 @@ def test_time_weighted_average_matches_quadrature_and_augmented_ode():
 
 
 def test_time_weighted_average_of_steady_zone_is_its_steady_value():
-    # domain.md §4: a zone started at C_ss stays there, so its average is C_ss.
+    # CMFR balance (Nazaroff & Alvarez-Cohen 2001): a zone started at C_ss stays there, so its
+    # average is C_ss.
     c_ss = dil.steady_state_concentration(700.0, 60.0, 350.0)
     sol = dil.piecewise_solution([0, 3, 8], [[700.0], [700.0]], 60.0, 350.0, c_ss)
     assert dil.time_weighted_average(sol)[0] == pytest.approx(c_ss, rel=1e-14)
@@ -280,7 +289,7 @@ def test_time_weighted_average_of_steady_zone_is_its_steady_value():
 
 
 def test_peak_is_at_a_break_and_not_below_any_sample():
-    # domain.md §4: C(t) is monotone on each piece (exponential approach to C_ss), so the
+    # CMFR transient: C(t) is monotone on each piece (exponential approach to C_ss), so the
     # exact peak is attained at a piece boundary; a fine sampling never exceeds it.
     rng = np.random.default_rng(3)
     breaks = np.arange(0.0, 25.0)
@@ -295,7 +304,7 @@ def test_peak_is_at_a_break_and_not_below_any_sample():
 
 
 def test_sealed_zone_without_losses_grows_linearly():
-    # domain.md §4 mass balance with λ = 0: V·dC/dt = G, so C = C0 + G·t/V exactly.
+    # CMFR balance with λ = 0: V·dC/dt = G, so C = C0 + G·t/V exactly.
     sol = dil.piecewise_solution([0.0, 2.0, 5.0], [300.0, 0.0], 50.0, 0.0, 1.0)
     np.testing.assert_allclose(dil.evaluate_piecewise(sol, [0.0, 1.0, 2.0, 4.0]),
                                [1.0, 7.0, 13.0, 13.0], rtol=1e-15)
@@ -394,10 +403,34 @@ def _decimal_piece(c0, lam, s, t):
 @pytest.mark.parametrize("lam", [0.0, 1e-200, 1e-9, 1e-3, 1.0, 50.0, 1e4])
 @pytest.mark.parametrize(("c0", "s"), [(420.0, 5.0), (0.0, 5.0), (420.0, 0.0), (1e-6, 1e3)])
 def test_exact_piece_keeps_full_precision_rising_and_falling(lam, c0, s):
-    # The exact piece solution (domain.md §4) evaluated in 50-digit decimal arithmetic (Python's
+    # The exact piece solution (CMFR transient) evaluated in 50-digit decimal arithmetic (Python's
     # decimal module) as outside reference: rising and falling zones, no removal at all, and
     # decay far past the initial value (where a single formula would cancel), 1e-13 relative.
     times = np.array([0.0, 1e-9, 1e-3, 0.5, 1.0, 24.0])
     got = dil.piecewise_transient([0.0, 24.0], [s], 1.0, lam, c0, times)  # V = 1: λ = Q
     ref = np.array([_decimal_piece(c0, lam, s, t) for t in times])
     np.testing.assert_allclose(got, ref, rtol=1e-13, atol=1e-300)
+
+
+@pytest.mark.parametrize("bad", [0.0, np.array([50.0, 0.0])])
+def test_invalid_input_is_a_value_error_naming_the_parameter_for_floats_and_arrays(bad):
+    # One policy for the procedures (module docstrings; common practice for an API): a float
+    # and an array with the same bad value both raise ValueError naming the parameter, never
+    # ZeroDivisionError or inf with a warning.
+    with pytest.raises(ValueError, match="volume"):
+        dil.loss_rate(bad, 100.0)
+    with pytest.raises(ValueError, match="lam"):
+        dil.time_to_fraction_removed(bad, 0.99)
+    with pytest.raises(ValueError, match="airflow_Ls"):
+        dil.co2_excess_ppm(0.005, bad)
+    with pytest.raises(ValueError, match="outdoor_airflow"):
+        dil.steady_state_concentration(10.0, 50.0, bad)
+    with pytest.raises(ValueError, match="ez"):
+        dil.breathing_zone_concentration(400.0, 900.0, bad)
+
+
+def test_float_in_float_out():
+    # API contract (module docstrings): a float in gives a Python float out.
+    assert type(dil.loss_rate(100.0, 600.0)) is float
+    assert type(dil.steady_state_concentration(500.0, 50.0, 250.0)) is float
+    assert all(type(v) is float for v in dil.loss_breakdown(100.0, 600.0).values())

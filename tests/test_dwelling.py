@@ -1,8 +1,8 @@
 """Dwelling-unit whole-house rate (ASHRAE Standard 62.2 form): procedure, packs and engine.
 
-Sources (../shared/reference-values.md D):
-- Qtot = 0.03·Afloor + 7.5·(Nbr + 1) cfm: published (a model mechanical code appendix citing
-  ANSI/ASHRAE 62.2 2013 and later; a national-laboratory guide);
+Sources (ANSI/ASHRAE Standard 62.2-2019, docs/references.md):
+- Qtot = 0.03·Afloor + 7.5·(Nbr + 1) cfm, Section 4.1.1 Equation 4-1: published (as quoted in a
+  model mechanical code appendix and a national-laboratory guide);
 - table cells: published (< 500 ft², 1–5 bedrooms: 30, 38, 45, 53, 60 cfm; 4501–5000 ft²,
   5 bedrooms: 195 cfm); the rule "formula at the top of each area bin, halves rounded up" is
   derived from them;
@@ -22,7 +22,8 @@ from conftest import CFM, FT2, schedule
 def test_qtot_formula_ip():
     # ANSI/ASHRAE 62.2 (2013 and later) Equation 4-1 as quoted (published): 1500 ft², 3 bedrooms
     # → 0.03 × 1500 + 7.5 × 4 = 75 cfm.
-    assert dwelling.whole_dwelling_airflow(1500, 3) == pytest.approx(75.0)
+    ip = dict(per_area=dwelling.IP_PER_AREA, per_person=dwelling.IP_PER_PERSON)
+    assert dwelling.whole_dwelling_airflow(1500, 3, **ip) == pytest.approx(75.0)
     assert dwelling.default_occupants(3) == 4
 
 
@@ -40,7 +41,8 @@ def test_table_cell_4501_to_5000_ft2_five_bedrooms():
 
 def test_table_is_the_formula_at_the_top_of_the_bin_halves_up():
     # derived from the published cells: 2 bedrooms at 500 ft² is 37.5 → 38 (half up), not 37.
-    assert dwelling.whole_dwelling_airflow(500, 2) == pytest.approx(37.5)
+    assert dwelling.whole_dwelling_airflow(500, 2, dwelling.IP_PER_AREA,
+                                           dwelling.IP_PER_PERSON) == pytest.approx(37.5)
     assert dwelling.table_airflow(1, 2) == 38
     assert dwelling.table_airflow(501, 2) == 53  # 0.03 × 1000 + 7.5 × 3 = 52.5 → 53
     with pytest.raises(ValueError):
@@ -51,6 +53,7 @@ def test_si_coefficients():
     # SI form 0.15·A + 3.5·(Nbr + 1) L/s (from memory): 140 m², 3 bedrooms → 21 + 14 = 35 L/s.
     q = dwelling.whole_dwelling_airflow(140, 3, dwelling.SI_PER_AREA, dwelling.SI_PER_PERSON)
     assert q == pytest.approx(35.0)
+    assert dwelling.whole_dwelling_airflow(140, 3) == q  # the SI coefficients are the default
 
 
 def test_packs_carry_the_equation_coefficients():
@@ -115,3 +118,14 @@ def test_area_in_square_metres_on_the_ip_pack(evaluate):
     # Units at the edges: 139.35 m² is 1500 ft² (1 ft = 0.3048 m, common practice).
     report = evaluate(schedule(_unit(f"{1500 * FT2} m2", 3), rules="ashrae-62.2-2019"))
     assert report.systems[0].zones[0].trail.value("Voz") / CFM == pytest.approx(75.0)
+
+
+@pytest.mark.parametrize("bad", [-1.0, float("nan")])
+def test_invalid_input_is_a_value_error_naming_the_parameter(bad):
+    # One policy for the procedures (module docstring): ValueError naming the parameter.
+    with pytest.raises(ValueError, match="area"):
+        dwelling.whole_dwelling_airflow(bad, 2)
+    with pytest.raises(ValueError, match="bedrooms"):
+        dwelling.default_occupants(bad)
+    with pytest.raises(ValueError, match="area_ft2"):
+        dwelling.table_airflow(bad, 2)

@@ -1,11 +1,15 @@
 """Dilution in a multiple-zone recirculating system: zones coupled through a mixed supply.
 
-Pure functions on plain floats and numpy arrays in SI (airflow m3/h, volume m3, rates 1/h,
-time h, generation ``C·m3/h`` for a concentration unit ``C``), for one air handler serving
-``n_zones`` zones (the zone axis is a 1-D array).
+Pure functions on plain floats and numpy arrays in the mass-balance units of
+:mod:`airgate.procedures.dilution` (airflow m3/h, volume m3, rates 1/h, time h, generation
+``C·m3/h`` for a concentration unit ``C``), for one air handler serving ``n_zones`` zones (the
+zone axis is a 1-D array). Invalid input raises ValueError naming the parameter.
 
-Model (domain.md §4, "Multiple-zone recirculating system", with filters, losses and exhaust)
----------------------------------------------------------------------------------------------
+The model: each zone is the completely mixed flow reactor of [1]_, the air handler a mixing
+box without volume, with filters, in-room losses and exhaust; the multiple-zone system is that
+of [2]_ Section 6.2.5, whose detailed ventilation efficiency (Normative Appendix A) is the
+condition that every zone does as well as if it alone received its Voz of clean air.
+
 - Zone z (volume V_z) receives primary airflow Vpz of mixed supply at concentration C_s. It
   loses E_z of exhaust straight outdoors (0 <= E_z <= Vpz); the rest, Vpz − E_z, returns to
   the air handler. Air mass is balanced: what enters a zone leaves it; transfer air between
@@ -17,10 +21,19 @@ Model (domain.md §4, "Multiple-zone recirculating system", with filters, losses
   at the air handler. Hence ΣE_z <= Vot <= Vps.
 - ``C_s = [Vot·(1 − η_oa)·C_out + (Vps − Vot)·(1 − η_rec)·C_r] / Vps = a + Σ w_z·C_z``.
 - Zone balance: ``V_z·dC_z/dt = G_z + Vpz·C_s − (Vpz + L_z)·C_z`` with the in-room losses
-  ``L_z = CADR_z + (k_dep,z + k_inact,z)·V_z`` (domain.md §4 mass balance).
+  ``L_z = CADR_z + (k_dep,z + k_inact,z)·V_z``.
 
 The system matrix is diagonal plus rank one (coupling only through the scalar C_s), which
 gives the O(N) steady state below (Sherman–Morrison in closed form) and the exact transient.
+
+References
+----------
+.. [1] Nazaroff, W.W. and Alvarez-Cohen, L. (2001). *Environmental Engineering Science*. Wiley,
+   New York: material balance on a completely mixed flow reactor (CMFR).
+.. [2] ANSI/ASHRAE Standard 62.1-2019, *Ventilation for Acceptable Indoor Air Quality*,
+   Section 6.2.5 (multiple-zone recirculating systems) and Normative Appendix A.
+.. [3] Golub, G.H. (1973). Some modified matrix eigenvalue problems. *SIAM Review* 15(2):
+   318–334 (eigenproblems of a diagonal matrix plus a rank-one matrix).
 """
 
 from __future__ import annotations
@@ -91,7 +104,8 @@ def supply_coupling(primary_airflow, outdoor_intake, outdoor_concentration=0.0,
     """Mixed-supply concentration as a linear function of the zone concentrations.
 
     ``C_s = a + Σ w_z·C_z`` with ``a = x·(1 − η_oa)·C_out`` and
-    ``w_z = (1 − η_rec)·(1 − x)·(Vpz − E_z)/Σ(Vpz − E_z)`` (module model; domain.md §4).
+    ``w_z = (1 − η_rec)·(1 − x)·(Vpz − E_z)/Σ(Vpz − E_z)`` (the mixing box of the module
+    model: a material balance without volume).
 
     Parameters
     ----------
@@ -114,6 +128,19 @@ def supply_coupling(primary_airflow, outdoor_intake, outdoor_concentration=0.0,
         Outdoor contribution to C_s. [C]
     w : ndarray, shape (n_zones,)
         Weight of each zone concentration in C_s; Σw = (1 − η_rec)(1 − x) or 0. [-]
+
+    References
+    ----------
+    Nazaroff & Alvarez-Cohen (2001), material balance on the mixing box (no volume).
+
+    Examples
+    --------
+    500 m³/h of outdoor air (x = 0.25) with C_out = 20 through a 50 % intake filter, the
+    return through a 60 % filter: a = 0.25·0.5·20 = 2.5 and Σw = 0.4·0.75 = 0.3 (by hand):
+
+    >>> a, w = supply_coupling([400.0, 600.0, 1000.0], 500.0, 20.0, 0.5, 0.6)
+    >>> round(a, 12), round(float(w.sum()), 12)
+    (2.5, 0.3)
     """
     s = _system(primary_airflow, outdoor_intake, zone_exhaust, recirc_filter_efficiency)
     eta_oa = float(_fraction("outdoor_filter_efficiency", outdoor_filter_efficiency))
@@ -162,10 +189,9 @@ def coupled_steady_state(generation, volume, primary_airflow, outdoor_intake,
     """Steady zone and supply concentrations of a multiple-zone recirculating system.
 
     Zone balances ``0 = G_z + Vpz·C_s − (Vpz + L_z)·C_z`` with ``C_s = a + Σ w_z·C_z``
-    (module model, domain.md §4): a diagonal-plus-rank-one system solved in closed form
-    (Sherman–Morrison), O(N) time and memory, no N×N matrix. Without filters, losses or
-    exhaust it reduces to ``C_s = C_out + (1 − x)·ΣG_z/Vot`` and ``C_z = C_s + G_z/Vpz``
-    (domain.md §4).
+    (module model): a diagonal-plus-rank-one system solved in closed form (Sherman–Morrison),
+    O(N) time and memory, no N×N matrix. Without filters, losses or exhaust it reduces to
+    ``C_s = C_out + (1 − x)·ΣG_z/Vot`` and ``C_z = C_s + G_z/Vpz`` (derived).
 
     Parameters
     ----------
@@ -193,6 +219,21 @@ def coupled_steady_state(generation, volume, primary_airflow, outdoor_intake,
     Returns
     -------
     CoupledSteadyState
+        Zone, supply and mixed-return concentrations. [C]
+
+    References
+    ----------
+    Nazaroff & Alvarez-Cohen (2001), CMFR steady state for each zone and the mixing box;
+    ANSI/ASHRAE Standard 62.1-2019, Section 6.2.5.
+
+    Examples
+    --------
+    Two zones, no filter or loss, a quarter of the supply outdoor air (x = 0.25): by hand,
+    C_s = C_out + (1 − x)·ΣG/Vot = 0 + 0.75·(600 + 200)/500 = 1.2, C_z = C_s + G_z/Vpz:
+
+    >>> res = coupled_steady_state([600.0, 200.0], 50.0, [1000.0, 1000.0], 500.0)
+    >>> round(res.supply, 12), [round(float(c), 12) for c in res.zone]
+    (1.2, [1.8, 1.4])
     """
     sysm = _system(primary_airflow, outdoor_intake, zone_exhaust, recirc_filter_efficiency)
     a, _ = supply_coupling(primary_airflow, outdoor_intake, outdoor_concentration,
@@ -403,6 +444,28 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
     Returns
     -------
     CoupledTransient
+        Zone and supply concentrations at the output times. [C]
+
+    Raises
+    ------
+    TooManyRates
+        More than :data:`MAX_DISTINCT_RATES` distinct rates among the zones that return air.
+
+    References
+    ----------
+    Nazaroff & Alvarez-Cohen (2001), CMFR transient for each zone; Golub (1973) for the
+    diagonal-plus-rank-one eigenproblem.
+
+    Examples
+    --------
+    Two equal zones behave as one zone with the same outdoor fraction: 1,000 m³/h into 100 m³
+    each, a quarter outdoor air, so each holds λ = 2.5/h of clean air and tends to
+    G/(x·Vpz) = 600/250 = 2.4 as 2.4·(1 − e^(−2.5 t)) (hand calculation):
+
+    >>> run = coupled_piecewise_transient([0.0, 1.0], [600.0, 600.0], 100.0, [1000.0, 1000.0],
+    ...                                   500.0, 0.0, [0.4, 1.0])
+    >>> [round(float(c), 9) for c in run.zone[:, 0]]
+    [1.517089341, 2.202996003]
     """
     b = _check_breaks(times_breaks)
     n = b.size - 1

@@ -38,8 +38,10 @@ def fraction(name, value, *, open_top=False):
 
 
 def out(a):
-    """0-d arrays back to numpy scalars, so float inputs give float results."""
-    return np.asarray(a)[()]
+    """0-d arrays back to Python floats, so float inputs give float results; arrays as they
+    are."""
+    a = np.asarray(a)
+    return float(a) if a.ndim == 0 else a
 
 
 def phi(x):
@@ -123,3 +125,11 @@ def exp_convolution_ramp(a, b, tau):
     tau = np.asarray(tau, dtype=float)
     return tau**2 * _second_divided_difference(np.asarray(a, dtype=float) * tau,
                                                np.asarray(b, dtype=float) * tau)
+
+
+def finite(name, value):
+    """``value`` as a float array; ValueError naming ``name`` unless every element is finite."""
+    a = np.asarray(value, dtype=float)
+    if not (math.isfinite(float(a)) if a.ndim == 0 else bool(np.all(np.isfinite(a)))):
+        raise ValueError(f"{name} must be finite, got {value!r}")
+    return a

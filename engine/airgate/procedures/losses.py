@@ -1,0 +1,176 @@
+"""Removal mechanisms of the well-mixed zone balance: equivalent clean airflows and loss rates.
+
+Pure functions on plain floats and numpy arrays (broadcasting), in the mass-balance units of
+:mod:`airgate.procedures.dilution`: airflow [m3/h], volume [m3], rates [1/h], time [h]. A float
+in gives a float out; an invalid input raises ValueError naming the parameter.
+
+Every first-order loss term of ``V·dC/dt = G + Q_oa·(1 − η_oa)·C_out − λ·V·C`` written as the
+airflow of clean air that would remove as much: outdoor air Q_oa, filtration η_rec·Q_rec,
+in-room air cleaners CADR, deposition k_dep·V and inactivation k_inact·V; they add to λ·V.
+
+References
+----------
+.. [1] Nazaroff, W.W. and Alvarez-Cohen, L. (2001). *Environmental Engineering Science*. Wiley,
+   New York: the completely mixed flow reactor (CMFR) with first-order loss terms.
+.. [2] ASHRAE 241-2023, *Control of Infectious Aerosols* (equivalent clean airflow as the sum
+   of outdoor air, filtration as airflow × efficiency, and air cleaners).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from airgate.procedures.numeric import (
+    fraction as _fraction,
+    nonneg as _nonneg,
+    out as _out,
+    positive as _positive,
+)
+
+__all__ = ["equivalent_clean_airflow", "inactivation_rate_from_half_life", "loss_breakdown",
+           "loss_rate"]
+
+
+def loss_breakdown(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficiency=0.0,
+                   cadr=0.0, k_deposition=0.0, k_inactivation=0.0):
+    """Equivalent clean airflow of each removal mechanism.
+
+    Each first-order loss term of the zone balance written as the airflow of clean air that
+    would remove as much; they add.
+
+    Parameters
+    ----------
+    volume : float or array_like
+        Zone volume (>= 0). [m3]
+    outdoor_airflow : float or array_like
+        Outdoor airflow supplied to the zone, Q_oa (>= 0). [m3/h]
+    recirc_airflow : float or array_like
+        Recirculated airflow passing a filter, Q_rec (>= 0). [m3/h]
+    recirc_efficiency : float or array_like
+        Single-pass efficiency of that filter, η_rec, in [0, 1]. [-]
+    cadr : float or array_like
+        Clean-air delivery rate of in-room air cleaners (>= 0). [m3/h]
+    k_deposition : float or array_like
+        Deposition rate on surfaces (>= 0). [1/h]
+    k_inactivation : float or array_like
+        Inactivation (decay) rate (>= 0). [1/h]
+
+    Returns
+    -------
+    dict of str to float or ndarray
+        ``outdoor_air`` = Q_oa, ``recirculation_filter`` = η_rec·Q_rec, ``air_cleaner`` = CADR,
+        ``deposition`` = k_dep·V, ``inactivation`` = k_inact·V. [m3/h]
+
+    References
+    ----------
+    Nazaroff & Alvarez-Cohen (2001), CMFR balance with first-order losses; ASHRAE 241-2023
+    (equivalent clean airflow: outdoor air, filtration as airflow × efficiency, air cleaners).
+
+    Examples
+    --------
+    >>> parts = loss_breakdown(100.0, 200.0, recirc_airflow=800.0, recirc_efficiency=0.5,
+    ...                        cadr=150.0, k_deposition=0.2)
+    >>> {k: round(v, 9) for k, v in parts.items()}
+    {'outdoor_air': 200.0, 'recirculation_filter': 400.0, 'air_cleaner': 150.0, 'deposition': 20.0, 'inactivation': 0.0}
+    """
+    v = _nonneg("volume", volume)
+    parts = {
+        "outdoor_air": _nonneg("outdoor_airflow", outdoor_airflow),
+        "recirculation_filter": _fraction("recirc_efficiency", recirc_efficiency)
+        * _nonneg("recirc_airflow", recirc_airflow),
+        "air_cleaner": _nonneg("cadr", cadr),
+        "deposition": _nonneg("k_deposition", k_deposition) * v,
+        "inactivation": _nonneg("k_inactivation", k_inactivation) * v,
+    }
+    if all(np.ndim(p) == 0 for p in parts.values()):  # one zone: floats, no copies
+        return {k: float(p) for k, p in parts.items()}
+    shape = np.broadcast_shapes(*(np.shape(p) for p in parts.values()))
+    return {k: np.broadcast_to(p, shape).copy() for k, p in parts.items()}
+
+
+def equivalent_clean_airflow(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficiency=0.0,
+                             cadr=0.0, k_deposition=0.0, k_inactivation=0.0):
+    """Equivalent clean airflow ``λ·V = Q_oa + η_rec·Q_rec + CADR + (k_dep + k_inact)·V``.
+
+    Parameters
+    ----------
+    volume, outdoor_airflow, recirc_airflow, recirc_efficiency, cadr, k_deposition, k_inactivation
+        As in :func:`loss_breakdown`. [m3], [m3/h], [m3/h], [-], [m3/h], [1/h], [1/h]
+
+    Returns
+    -------
+    float or ndarray
+        λ·V, the sum of :func:`loss_breakdown`. [m3/h]
+
+    References
+    ----------
+    ASHRAE 241-2023 (equivalent clean airflow); Nazaroff & Alvarez-Cohen (2001), CMFR balance.
+
+    Examples
+    --------
+    >>> round(equivalent_clean_airflow(100.0, 200.0, 800.0, 0.5, 150.0, 0.2), 9)
+    770.0
+    """
+    parts = loss_breakdown(volume, outdoor_airflow, recirc_airflow, recirc_efficiency, cadr,
+                           k_deposition, k_inactivation)
+    return _out(parts["outdoor_air"] + parts["recirculation_filter"] + parts["air_cleaner"]
+                + parts["deposition"] + parts["inactivation"])
+
+
+def loss_rate(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficiency=0.0, cadr=0.0,
+              k_deposition=0.0, k_inactivation=0.0):
+    """First-order loss rate of the zone, ``λ = (Q_oa + η_rec·Q_rec + CADR)/V + k_dep + k_inact``.
+
+    With outdoor air alone it is the outdoor-air change rate (ACH).
+
+    Parameters
+    ----------
+    volume : float or array_like
+        Zone volume (> 0). [m3]
+    outdoor_airflow, recirc_airflow, recirc_efficiency, cadr, k_deposition, k_inactivation
+        As in :func:`loss_breakdown`. [m3/h], [m3/h], [-], [m3/h], [1/h], [1/h]
+
+    Returns
+    -------
+    float or ndarray
+        λ. [1/h]
+
+    References
+    ----------
+    Nazaroff & Alvarez-Cohen (2001), CMFR balance: the first-order loss rate constant.
+
+    Examples
+    --------
+    600 m³/h of outdoor air through a 100 m³ room is 6 air changes per hour:
+
+    >>> loss_rate(100.0, 600.0)
+    6.0
+    """
+    v = _positive("volume", volume)
+    return _out(equivalent_clean_airflow(v, outdoor_airflow, recirc_airflow, recirc_efficiency,
+                                         cadr, k_deposition, k_inactivation) / v)
+
+
+def inactivation_rate_from_half_life(half_life):
+    """First-order inactivation rate from a half-life, ``k_inact = ln 2 / t½``.
+
+    Parameters
+    ----------
+    half_life : float or array_like
+        Half-life (> 0). [h]
+
+    Returns
+    -------
+    float or ndarray
+        k_inact. [1/h]
+
+    References
+    ----------
+    Nazaroff & Alvarez-Cohen (2001), first-order decay.
+
+    Examples
+    --------
+    >>> round(inactivation_rate_from_half_life(1.0), 12)  # ln 2
+    0.69314718056
+    """
+    return _out(np.log(2.0) / _positive("half_life", half_life))
