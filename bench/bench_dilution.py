@@ -37,6 +37,7 @@ for _var in ("OPENBLAS_NUM_THREADS", "OMP_NUM_THREADS", "MKL_NUM_THREADS"):
 import time  # noqa: E402
 
 import numpy as np  # noqa: E402
+import pint  # noqa: E402
 from scipy.integrate import solve_ivp  # noqa: E402
 
 from airgate.procedures import coupled  # noqa: E402
@@ -46,7 +47,9 @@ from airgate.procedures.dilution import piecewise_transient  # noqa: E402
 N_ZONES = 1000
 HOURS = 24
 C_OUT = 420.0  # ppm
-CO2_PER_PERSON = 1e6 * 0.0052 * 3.6  # ppm·m3/h per person (0.0052 L/s)
+CO2_PER_PERSON = 1e6 * 0.0052  # ppm·L/s per person (0.0052 L/s of CO2)
+#: 1/h per (L/s)/m³, from pint: the reference right-hand sides below are written in hours
+PER_HOUR = float(pint.UnitRegistry().Quantity(1.0, "L/s/m**3").to("1/hour").magnitude)
 RTOL = 1e-10
 METHODS = ("LSODA", "DOP853")
 
@@ -93,7 +96,7 @@ def _report(title, compared, t_exact, t_ivp, exact, ref, label="exact procedure"
 
 def single_zones(rng, breaks, times):
     vol = rng.uniform(30.0, 500.0, N_ZONES)  # m3
-    q_oa = vol * rng.uniform(0.5, 6.0, N_ZONES)  # m3/h: 0.5 to 6 outdoor air changes per hour
+    q_oa = vol * rng.uniform(0.5, 6.0, N_ZONES) / PER_HOUR  # L/s: 0.5 to 6 air changes per hour
     people = rng.integers(1, 30, N_ZONES)
     gen = CO2_PER_PERSON * PROFILE[:, None] * people[None, :]  # (24, n_zones)
 
@@ -105,7 +108,7 @@ def single_zones(rng, breaks, times):
 
     def rhs_for_piece(j):
         src = gen[j] + q_oa * C_OUT
-        return lambda _t, y: (src - q_oa * y) / vol
+        return lambda _t, y: PER_HOUR * (src - q_oa * y) / vol
 
     ivp = {}
     for method in METHODS:
@@ -122,7 +125,7 @@ def single_zones(rng, breaks, times):
     for z in range(N_ZONES):
         def rhs_one(j, z=z):
             src = gen[j, z] + q_oa[z] * C_OUT
-            return lambda _t, y: (src - q_oa[z] * y) / vol[z]
+            return lambda _t, y: PER_HOUR * (src - q_oa[z] * y) / vol[z]
         per_zone[:, z] = _piecewise_ivp(rhs_one, np.array([C_OUT]), breaks, times, "LSODA")[:, 0]
     t_loop = time.perf_counter() - t0
     _report(f"{N_ZONES} single zones, solved zone by zone",
@@ -136,9 +139,9 @@ def _air_handler(rng, n_zones, n_types=None):
     """Zones of one air handler; n_types=None: every zone different (K = N)."""
     kinds = rng.integers(0, n_types, n_zones) if n_types else np.arange(n_zones)
     vol = rng.uniform(30.0, 500.0, n_zones)[kinds]
-    vpz = vol * rng.uniform(2.0, 8.0, n_zones)[kinds]  # m3/h primary airflow
+    vpz = vol * rng.uniform(2.0, 8.0, n_zones)[kinds] / PER_HOUR  # L/s: 2 to 8 per hour
     exhaust = np.where(rng.random(n_zones) < 0.05, 0.5 * vpz, 0.0)  # a few exhausted rooms
-    cadr = np.where(rng.random(n_zones) < 0.2, rng.uniform(50, 300, n_zones), 0.0)[kinds]
+    cadr = np.where(rng.random(n_zones) < 0.2, rng.uniform(14, 83, n_zones), 0.0)[kinds]  # L/s
     vot = max(exhaust.sum(), 0.3 * vpz.sum())
     people = rng.integers(1, 30, n_zones)
     gen = CO2_PER_PERSON * PROFILE[:, None] * people[None, :]
@@ -158,7 +161,7 @@ def coupled_system(rng, breaks, times, n_types=None):
     a, w = supply_coupling(vpz, vot, C_OUT, 0.0, 0.0, exhaust)
 
     def rhs_for_piece(j):
-        return lambda _t, y: (gen[j] + vpz * (a + w @ y) - (vpz + cadr) * y) / vol
+        return lambda _t, y: PER_HOUR * (gen[j] + vpz * (a + w @ y) - (vpz + cadr) * y) / vol
 
     ivp = {}
     for method in METHODS:

@@ -13,9 +13,12 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy.integrate import solve_ivp
 
-from airgate.procedures import coupled as cpl
+from airgate.procedures import coupled
 
 from conftest import examples
+from in_m3h import in_m3h
+
+cpl = in_m3h(coupled)  # scenarios in m³/h; the procedures take L/s (tests/in_m3h.py)
 
 LS_TO_M3H = 3.6  # 1 L/s = 3.6 m3/h (exact)
 
@@ -450,7 +453,7 @@ def test_more_distinct_rates_than_the_limit_is_a_clear_error(monkeypatch):
     # Size limit documented on coupled_piecewise_transient (its docstring): above
     # MAX_DISTINCT_RATES distinct rates among the returning zones the call is refused, as a
     # ValueError that names the limit and the count, before any work; equal zones count once.
-    monkeypatch.setattr(cpl, "MAX_DISTINCT_RATES", 3)
+    monkeypatch.setattr(coupled, "MAX_DISTINCT_RATES", 3)
     vol = np.array([50.0, 60.0, 70.0, 80.0])
     with pytest.raises(cpl.TooManyRates, match=r"limited to 3 distinct .* has 4"):
         cpl.coupled_piecewise_transient([0.0, 1.0], 10.0, vol, np.full(4, 300.0), 400.0, 0.0,

@@ -14,9 +14,12 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy.integrate import quad, solve_ivp
 
-from airgate.procedures import dilution as dil
+from airgate.procedures import dilution
 
 from conftest import examples
+from in_m3h import in_m3h
+
+dil = in_m3h(dilution)  # scenarios in m³/h; the procedures take L/s (tests/in_m3h.py)
 
 # CDC, Guidelines for Environmental Infection Control in Health-Care Facilities (2003),
 # Appendix B, Table B.1 (published):

@@ -18,7 +18,19 @@ temperature_difference      K                   °F (difference)       K
 velocity                    m/s                 fpm                   m/s
 fraction (Ez, Ev, D, ...)   1                   –                     –
 count (Nbr, MERV, class)    1                   –                     –
+time                        h                   min                   min
+rate (ACH, k_dep)           1/h                 1/h                   1/h
+gas_flow (CO2 generation)   L/s                 L/s                   L/s
 ==========================  ==================  ====================  ======================
+
+These are also the units of every procedure in :mod:`airgate.procedures` — the rate procedure
+and the mass balance alike — so the evaluation hands trail values to them as they are, and
+nothing between the readers and the writers converts a unit. In the mass balance an airflow per
+volume, (L/s)/m³, becomes a rate per hour by the factor 3.6 (3600 s/h over 1000 L/m³), applied
+inside the procedures where airflows meet volumes (``procedures.numeric.PER_HOUR``); a
+generation is a concentration × L/s (CO2 in ppm: 10⁶ × its flow in L/s), so that a steady
+concentration is G/Q. An emission per hour enters as such a generation through
+:func:`factor` (pint).
 
 Exact factors (common practice; NIST SP 811): 1 ft = 0.3048 m, so 1 cfm = 0.471947443 L/s and
 1 cfm/ft² = 5.08 L/s·m².
@@ -304,6 +316,13 @@ def _factor(kind: str, system: str) -> float:
     if k.name == "temperature_difference":
         return float(ureg.Quantity(1.0, k.unit(system)).to(k.internal).magnitude)
     return float(ureg.Quantity(1.0, k.unit(system)).to(k.internal).magnitude) / k.scale(system)
+
+
+@lru_cache(maxsize=64)
+def factor(from_unit: str, to_unit: str) -> float:
+    """``to_unit`` per ``from_unit``, by pint (e.g. ``factor("1/hour", "L/s/m**3")`` is 1/3.6:
+    an emission per hour as the procedures' generation, concentration × L/s)."""
+    return float(registry().Quantity(1.0, from_unit).to(to_unit).magnitude)
 
 
 def to_internal(value: float, kind: str, system: str) -> float:

@@ -4,8 +4,8 @@ The same well-mixed balance as the CO2 analysis (Nazaroff & Alvarez-Cohen 2001, 
 material balance; docs/references.md) with every removal term:
 outdoor air, the system filter on outdoor and recirculated air (MERV → efficiency by particle
 size range, ANSI/ASHRAE 52.2-2017 Table 12-1), in-room air cleaners (CADR), deposition and
-inactivation. Amounts are in the contaminant's own unit; concentrations per m³; generation
-[unit/h] = concentration × m³/h, as the procedures expect.
+inactivation. Amounts are in the contaminant's own unit; concentrations per m³; the emission
+[unit/h] enters the procedures as a generation in concentration × L/s (units.factor, pint).
 """
 
 from __future__ import annotations
@@ -16,7 +16,6 @@ import numpy as np
 
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.dilution import (
-    LS,
     MB,
     _profile_pieces,
     _two_days,
@@ -31,6 +30,7 @@ from airgate.evaluation.zones import ZoneContext
 from airgate.models.datatables import DataTable, Tables
 from airgate.models.equipment import Contaminant
 from airgate.models.schedule import Schedule, System
+from airgate import units
 from airgate.procedures import coupled, dilution
 
 MERV_TABLE = "merv-efficiency"
@@ -70,6 +70,11 @@ def _cadr(ctx: ZoneContext, c: Contaminant) -> float:
     return 0.0 if c.kind == "gas" else sum(a.cadr for a in ctx.zone.air_cleaners)
 
 
+def _per_second(emission):
+    """An emission [unit/h] as the procedures' generation [unit/m³ × L/s]."""
+    return emission * units.factor("1/hour", "L/s/m**3")
+
+
 def _generation(ctx: ZoneContext, z: ZoneResult, c: Contaminant) -> tuple[float, float]:
     """(people part, constant part) of the emission at design occupancy [unit/h]."""
     return c.per_person * z.trail.value("Pz"), c.per_area * ctx.zone.area + c.per_zone
@@ -103,25 +108,26 @@ def _single(ctx, z, c, system: System, schedule: Schedule, emitter: Emitter,
     t.add("Q_oa", q_oa, "airflow", note=co2["Q_oa"].note)
     t.add("Q_rec", q_rec, "airflow", note="recirculated airflow through the filter (supply − "
           "outdoor air)" if q_rec else "no recirculation analysed")
-    kw = dict(recirc_airflow=LS * q_rec, recirc_efficiency=t.value("eta"),
-              cadr=LS * t.value("CADR"), k_deposition=t.value("k_dep"),
+    kw = dict(recirc_airflow=q_rec, recirc_efficiency=t.value("eta"),
+              cadr=t.value("CADR"), k_deposition=t.value("k_dep"),
               k_inactivation=t.value("k_inact"))
-    if dilution.loss_rate(t.value("V"), LS * q_oa, **kw) <= 0:
+    if dilution.loss_rate(t.value("V"), q_oa, **kw) <= 0:
         return None  # nothing removes it: no steady state
     c_ss = dilution.steady_state_concentration(
-        t.value("E"), t.value("V"), LS * q_oa, c.outdoor, outdoor_filter_efficiency=t.value("eta"),
+        _per_second(t.value("E")), t.value("V"), q_oa, c.outdoor,
+        outdoor_filter_efficiency=t.value("eta"),
         **kw)
     t.add("C_ss", float(c_ss), "concentration", note=f"{c.unit}/m³ at steady state", source=MB)
-    parts = dilution.loss_breakdown(t.value("V"), LS * q_oa, **kw)
+    parts = dilution.loss_breakdown(t.value("V"), q_oa, **kw)
     for key, symbol, what in MECHANISMS:
-        t.add(symbol, float(parts[key]) / LS, "airflow", note=f"equivalent clean airflow: {what}")
+        t.add(symbol, float(parts[key]), "airflow", note=f"equivalent clean airflow: {what}")
     _totals(t, z)
     pieces = _profile_pieces(schedule, ctx)
     if pieces is not None:
         people, rest = _generation(ctx, z, c)
         b2, f2 = _two_days(*pieces)
         sol = dilution.piecewise_solution(
-            b2, people * f2 + rest, t.value("V"), LS * q_oa, c.outdoor,
+            b2, _per_second(people * f2 + rest), t.value("V"), q_oa, c.outdoor,
             outdoor_concentration=c.outdoor, outdoor_filter_efficiency=t.value("eta"), **kw)
         t.add("C_peak", float(dilution.peak_concentration(sol, 24.0, 48.0)[0]), "concentration",
               note=f"peak over the design day, profile '{ctx.zone.profile}'", source=MB)
@@ -136,7 +142,8 @@ def _totals(t: Trail, z: ZoneResult) -> None:
     pz = z.trail.value("Pz")
     if pz > 0:
         t.add("Qc_pp", total / pz, "airflow_per_person", note="equivalent clean airflow per person")
-    t.add("ACHe", LS * total / t.value("V"), "rate", note="equivalent air changes per hour")
+    t.add("ACHe", dilution.air_change_rate(total, t.value("V")), "rate",
+          note="equivalent air changes per hour")
 
 
 def _coupled(system: System, ctxs, result: SystemResult, c: Contaminant, schedule: Schedule,
@@ -146,43 +153,47 @@ def _coupled(system: System, ctxs, result: SystemResult, c: Contaminant, schedul
         return None
     trails = [_start(ctx, z, c, filt) for ctx, z in zip(ctxs, result.zones)]
     eta = trails[0].value("eta")
-    vpz = np.array([LS * z.trail.value("Vpz") for z in result.zones])
+    vpz = np.array([z.trail.value("Vpz") for z in result.zones])
     vol = np.array([t.value("V") for t in trails])
     kw = dict(outdoor_concentration=c.outdoor, outdoor_filter_efficiency=eta,
               recirc_filter_efficiency=eta,
-              cadr=np.array([LS * t.value("CADR") for t in trails]),
+              cadr=np.array([t.value("CADR") for t in trails]),
               k_deposition=np.array([t.value("k_dep") for t in trails]),
               k_inactivation=np.array([t.value("k_inact") for t in trails]))
-    gen = np.array([t.value("E") for t in trails])
-    steady = coupled.coupled_steady_state(gen, vol, vpz, LS * system.outdoor_air, **kw)
+    gen = _per_second(np.array([t.value("E") for t in trails]))
+    steady = coupled.coupled_steady_state(gen, vol, vpz, system.outdoor_air, **kw)
     for t, z, cz, v in zip(trails, result.zones, steady.zone, vpz):
         t.add("C_ss", float(cz), "concentration", note=f"{c.unit}/m³ at steady state; zones "
               "coupled through the return air", source=MB)
         t.add("C_s", float(steady.supply), "concentration", note="mixed supply air")
         if t.value("E") <= 0:
             continue  # no emission here: an equivalent clean airflow is not defined
-        supply = v * (1 - steady.supply / cz) / LS if cz > 0 else 0.0
+        supply = v * (1 - steady.supply / cz) if cz > 0 else 0.0
         t.add("Qc_supply", supply, "airflow", note="equivalent clean airflow delivered by the "
               "supply air (outdoor air and filtered recirculation, coupled)")
-        for symbol, value, what in (("Qc_cleaner", t.value("CADR"), "in-room air cleaners"),
-                                    ("Qc_dep", t.value("k_dep") * t.value("V") / LS, "deposition"),
-                                    ("Qc_inact", t.value("k_inact") * t.value("V") / LS,
-                                     "inactivation")):
+        parts = dilution.loss_breakdown(t.value("V"), 0.0, cadr=t.value("CADR"),
+                                        k_deposition=t.value("k_dep"),
+                                        k_inactivation=t.value("k_inact"))
+        for symbol, value, what in (("Qc_cleaner", parts["air_cleaner"], "in-room air cleaners"),
+                                    ("Qc_dep", parts["deposition"], "deposition"),
+                                    ("Qc_inact", parts["inactivation"], "inactivation")):
             t.add(symbol, value, "airflow", note=f"equivalent clean airflow: {what}")
         total = supply + t.value("Qc_cleaner") + t.value("Qc_dep") + t.value("Qc_inact")
         t.add("Qc", total, "airflow", note="equivalent clean airflow, all mechanisms")
         if z.trail.value("Pz") > 0:
             t.add("Qc_pp", total / z.trail.value("Pz"), "airflow_per_person",
                   note="equivalent clean airflow per person")
-        t.add("ACHe", LS * total / t.value("V"), "rate", note="equivalent air changes per hour")
+        t.add("ACHe", dilution.air_change_rate(total, t.value("V")), "rate",
+              note="equivalent air changes per hour")
     _coupled_day(system, ctxs, result, c, schedule, trails, vol, vpz, kw)
     return trails
 
 
 def _coupled_day(system, ctxs, result, c, schedule, trails, vol, vpz, kw) -> None:
     parts = [_generation(ctx, z, c) for ctx, z in zip(ctxs, result.zones)]
-    day = coupled_design_day(schedule, system, ctxs, np.array([p for p, _ in parts]),
-                             np.array([r for _, r in parts]), vol, vpz, c.outdoor, **kw)
+    day = coupled_design_day(schedule, system, ctxs, _per_second(np.array([p for p, _ in parts])),
+                             _per_second(np.array([r for _, r in parts])), vol, vpz, c.outdoor,
+                             **kw)
     if day is None:
         return
     times, conc, _, _ = day

@@ -5,10 +5,10 @@ outdoor-air change rate, time constant and purge times, the DCV set point matchi
 outdoor airflow, the occupancy the delivered outdoor air supports and — with an occupancy
 profile — the design day's peak and time-weighted average.
 
-Units: the engine's internal units (airflow L/s, volume m³, time h). The mass-balance procedures
-take m³/h, so airflows are multiplied by 3.6 at the call, and a CO2 generation G [L/s] enters as
-``10⁶·3.6·G`` ppm·m³/h so that ``C = C_out + 10⁶·G/Q`` in ppm (CO2 as a tracer; the well-mixed balance of
-Nazaroff & Alvarez-Cohen 2001, docs/references.md).
+Units: the engine's internal units (airflow L/s, volume m³, time h), which the mass-balance
+procedures take as they are; a CO2 generation G [L/s] enters as ``10⁶·G`` ppm·L/s so that
+``C = C_out + 10⁶·G/Q`` in ppm (CO2 as a tracer; the well-mixed balance of Nazaroff &
+Alvarez-Cohen 2001, docs/references.md).
 """
 
 from __future__ import annotations
@@ -18,6 +18,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from airgate import units
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.report import SystemResult, ZoneResult
 from airgate.evaluation.system_kinds import kind_of
@@ -27,7 +28,6 @@ from airgate.models.datatables import DataTable, Tables
 from airgate.models.schedule import Schedule, System
 from airgate.procedures import coupled, dilution
 
-LS = 3.6  #: m³/h per L/s (exact)
 PPM = 1e6  #: ppm per unit volume fraction
 MB = "well-mixed mass balance (Nazaroff & Alvarez-Cohen 2001, CMFR material balance)"
 PURGE = ("t = ln(1/(1 − f))/λ; CDC 2003 Guidelines for Environmental Infection Control in "
@@ -99,7 +99,7 @@ def _per_airflow(flow: str, u: str) -> str:
 
 def _steady_single(t: Trail, q_oa: float, q_note: str, u: str) -> None:
     t.add("Q_oa", q_oa, "airflow", note=q_note)
-    c = dilution.steady_state_concentration(PPM * LS * t.value("G"), t.value("V"), LS * q_oa,
+    c = dilution.steady_state_concentration(PPM * t.value("G"), t.value("V"), q_oa,
                                             t.value("C_out"))
     t.add("C_ss", float(c), "concentration_ppm",
           formula="{C_out} + 10⁶·{G} / " + _per_airflow("Q_oa", u), source=MB,
@@ -115,8 +115,9 @@ def _excess(t: Trail) -> None:
 def _rates(t: Trail, u: str) -> None:
     """Change rate, time constant, time to 95 % of steady state, purge times."""
     q = t.value("Q_oa")
-    lam = float(dilution.loss_rate(t.value("V"), LS * q))
-    ach = unit_factor(("airflow",), ("volume", "rate"), u, times=LS)
+    lam = float(dilution.loss_rate(t.value("V"), q))
+    ach = unit_factor(("airflow",), ("volume", "rate"), u,
+                      times=units.factor("L/s/m**3", "1/hour"))
     t.add("ACH", lam, "rate", formula=f"{ach}·{{Q_oa}} / {{V}}", source=MB,
           note="outdoor-air changes per hour (CO2 has no other removal)")
     if lam <= 0:
@@ -171,13 +172,15 @@ def _capacity(t: Trail, z: ZoneResult, q_oa: float, notes: list[str]) -> None:
 
 def _short_term(t: Trail, ctx: ZoneContext, z: ZoneResult, fractions: np.ndarray,
                 emitter: Emitter) -> None:
-    k = unit_factor(("volume",), ("airflow", "time"), emitter.units, times=3 / LS)
+    k = unit_factor(("volume",), ("airflow", "time"), emitter.units,
+                    times=3 / units.factor("L/s/m**3", "1/hour"))
     """T = 3v/Vbz: whether the profile's peak may be averaged over it (Section 6.2.6.2)."""
     vbz = z.trail.value("Vbz")
     if vbz <= 0:
         return
     t.copy_from(z.trail, "Vbz")
-    t.add("T", 3 * t.value("V") / (LS * vbz), "time", formula=f"{k}·{{V}} / {{Vbz}}",
+    t.add("T", 3 / dilution.air_change_rate(vbz, t.value("V")), "time",
+          formula=f"{k}·{{V}} / {{Vbz}}",
           note="averaging time for short-term conditions (50·v/Vbz in SI, minutes)")
     window = max(1, int(round(t.value("T") / STEP_H)))
     kernel = np.ones(window) / window
@@ -215,8 +218,8 @@ def _weekend_peak(t: Trail, profile) -> None:
         return
     breaks, fractions = profile.pieces("weekend")
     b2, f2 = _two_days(breaks, fractions)
-    sol = dilution.piecewise_solution(b2, PPM * LS * t.value("G") * f2, t.value("V"),
-                                      LS * t.value("Q_oa"), t.value("C_out"),
+    sol = dilution.piecewise_solution(b2, PPM * t.value("G") * f2, t.value("V"),
+                                      t.value("Q_oa"), t.value("C_out"),
                                       outdoor_concentration=t.value("C_out"))
     t.add("C_peak_weekend", float(dilution.peak_concentration(sol, 24.0, 48.0)[0]),
           "concentration_ppm", source=MB, note="peak over a weekend day (the profile's weekend "
@@ -225,8 +228,8 @@ def _weekend_peak(t: Trail, profile) -> None:
 
 def _day_series_single(t: Trail, breaks, fractions, name: str) -> Series:
     b2, f2 = _two_days(breaks, fractions)
-    gen = PPM * LS * t.value("G") * f2
-    sol = dilution.piecewise_solution(b2, gen, t.value("V"), LS * t.value("Q_oa"),
+    gen = PPM * t.value("G") * f2
+    sol = dilution.piecewise_solution(b2, gen, t.value("V"), t.value("Q_oa"),
                                       t.value("C_out"), outdoor_concentration=t.value("C_out"))
     t.add("C_peak", float(dilution.peak_concentration(sol, 24.0, 48.0)[0]), "concentration_ppm",
           note=f"peak over the design day, profile '{name}' (exact piecewise solution)",
@@ -289,11 +292,11 @@ def _single_path(system, ctxs, result, schedule, emitter, out, table) -> None:
 def _coupled_steady(system: System, ctxs, result: SystemResult, trails: list[Trail],
                     units_: str) -> bool:
     """Steady CO2 of every zone of a multiple-zone system through the coupled balance."""
-    vpz = np.array([LS * z.trail.value("Vpz") for z in result.zones])
-    vot = LS * system.outdoor_air
+    vpz = np.array([z.trail.value("Vpz") for z in result.zones])
+    vot = system.outdoor_air
     if vot > vpz.sum() * (1 + 1e-12) or vot <= 0:
         return False
-    gen = np.array([PPM * LS * t.value("G") for t in trails])
+    gen = np.array([PPM * t.value("G") for t in trails])
     c_out = trails[0].value("C_out")
     volume = np.array([t.value("V") for t in trails])
     steady = coupled.coupled_steady_state(gen, volume, vpz, vot, outdoor_concentration=c_out)
@@ -321,7 +324,7 @@ def coupled_design_day(schedule: Schedule, system: System, ctxs, people: np.ndar
                        c0: float, **losses):
     """Exact coupled run over two design days (the second is reported, so it starts periodic).
 
-    Zone generation on each piece is ``people·fraction + constant`` [C·m³/h]; zones without a
+    Zone generation on each piece is ``people·fraction + constant`` [C·L/s]; zones without a
     profile stay at design occupancy. Returns ``(times, zone_concentrations, breaks,
     fractions)`` for the second day (times in h after midnight, concentrations (n_t, n_zones),
     the day's breaks and per-zone fractions), or None when no zone has a profile.
@@ -341,7 +344,7 @@ def coupled_design_day(schedule: Schedule, system: System, ctxs, people: np.ndar
     try:
         run = coupled.coupled_piecewise_transient(
             b2, f2 * people[None, :] + constant[None, :], volume, primary_airflow,
-            LS * system.outdoor_air, np.full(len(ctxs), c0), times, **losses)
+            system.outdoor_air, np.full(len(ctxs), c0), times, **losses)
     except coupled.TooManyRates:
         return None  # above the size limit no design day is computed (docs/dilution.md)
     return times - 24.0, run.zone, breaks, frac
@@ -359,9 +362,9 @@ def add_day_statistics(t: Trail, series: np.ndarray, times: np.ndarray, kind: st
 def _coupled_series(schedule: Schedule, system: System, ctxs, result, trails) -> None:
     c_out = trails[0].value("C_out")
     day = coupled_design_day(
-        schedule, system, ctxs, np.array([PPM * LS * t.value("G") for t in trails]),
+        schedule, system, ctxs, np.array([PPM * t.value("G") for t in trails]),
         np.zeros(len(ctxs)), np.array([t.value("V") for t in trails]),
-        np.array([LS * z.trail.value("Vpz") for z in result.zones]), c_out,
+        np.array([z.trail.value("Vpz") for z in result.zones]), c_out,
         outdoor_concentration=c_out)
     if day is None:
         return

@@ -1,8 +1,9 @@
 """Dilution in a multiple-zone recirculating system: zones coupled through a mixed supply.
 
 Pure functions on plain floats and numpy arrays in the mass-balance units of
-:mod:`airgate.procedures.dilution` (airflow m3/h, volume m3, rates 1/h, time h, generation
-``C·m3/h`` for a concentration unit ``C``), for one air handler serving ``n_zones`` zones (the
+:mod:`airgate.procedures.dilution` (airflow L/s, volume m3, rates 1/h, time h, generation
+``C·L/s`` for a concentration unit ``C``; a rate is ``PER_HOUR·Q/V``), for one air handler
+serving ``n_zones`` zones (the
 zone axis is a 1-D array). Invalid input raises ValueError naming the parameter.
 
 The model: each zone is the completely mixed flow reactor of [1]_, the air handler a mixing
@@ -20,8 +21,9 @@ condition that every zone does as well as if it alone received its Voz of clean 
   with R = Σ(Vpz − E_z); the return not recirculated, R − (Vps − Vot) = Vot − ΣE_z, is relieved
   at the air handler. Hence ΣE_z <= Vot <= Vps.
 - ``C_s = [Vot·(1 − η_oa)·C_out + (Vps − Vot)·(1 − η_rec)·C_r] / Vps = a + Σ w_z·C_z``.
-- Zone balance: ``V_z·dC_z/dt = G_z + Vpz·C_s − (Vpz + L_z)·C_z`` with the in-room losses
-  ``L_z = CADR_z + (k_dep,z + k_inact,z)·V_z``.
+- Zone balance: ``V_z·dC_z/dt = 3.6·[G_z + Vpz·C_s − (Vpz + L_z)·C_z]`` (3.6 = PER_HOUR:
+  airflows in L/s, V in m³, t in h) with the in-room losses
+  ``L_z = CADR_z + (k_dep,z + k_inact,z)·V_z/3.6``.
 
 The system matrix is diagonal plus rank one (coupling only through the scalar C_s), which
 gives the O(N) steady state below (Sherman–Morrison in closed form) and the exact transient.
@@ -43,6 +45,7 @@ from typing import NamedTuple
 import numpy as np
 
 from airgate.procedures.numeric import (
+    PER_HOUR,
     check_breaks as _check_breaks,
     exp_and_integral as _exp_and_integral,
     exp_convolution as _exp_convolution,
@@ -89,7 +92,7 @@ def _system(primary_airflow, outdoor_intake, zone_exhaust, recirc_filter_efficie
     ret = np.maximum(vpz - exh, 0.0)
     if vot > vps * (1 + _FLOW_TOL) or vot < exh.sum() * (1 - _FLOW_TOL):
         raise ValueError(f"outdoor_intake must lie between the total zone exhaust "
-                         f"{exh.sum():g} and ΣVpz {vps:g} m3/h to keep the air balance")
+                         f"{exh.sum():g} and ΣVpz {vps:g} L/s to keep the air balance")
     recirc = max(vps - vot, 0.0)
     big_r = float(ret.sum())
     rho = ret / big_r if big_r > 0 else np.zeros_like(ret)
@@ -110,9 +113,9 @@ def supply_coupling(primary_airflow, outdoor_intake, outdoor_concentration=0.0,
     Parameters
     ----------
     primary_airflow : array_like, shape (n_zones,)
-        Zone primary airflow Vpz. [m3/h]
+        Zone primary airflow Vpz. [L/s]
     outdoor_intake : float
-        Outdoor air intake Vot, between ΣE_z and ΣVpz. [m3/h]
+        Outdoor air intake Vot, between ΣE_z and ΣVpz. [L/s]
     outdoor_concentration : float
         Outdoor concentration C_out. [C]
     outdoor_filter_efficiency : float
@@ -120,7 +123,7 @@ def supply_coupling(primary_airflow, outdoor_intake, outdoor_concentration=0.0,
     recirc_filter_efficiency : float
         Efficiency of the filter on recirculated air η_rec. [-]
     zone_exhaust : float or array_like, shape (n_zones,)
-        Exhaust leaving each zone straight outdoors, E_z <= Vpz. [m3/h]
+        Exhaust leaving each zone straight outdoors, E_z <= Vpz. [L/s]
 
     Returns
     -------
@@ -135,7 +138,7 @@ def supply_coupling(primary_airflow, outdoor_intake, outdoor_concentration=0.0,
 
     Examples
     --------
-    500 m³/h of outdoor air (x = 0.25) with C_out = 20 through a 50 % intake filter, the
+    500 L/s of outdoor air (x = 0.25) with C_out = 20 through a 50 % intake filter, the
     return through a 60 % filter: a = 0.25·0.5·20 = 2.5 and Σw = 0.4·0.75 = 0.3 (by hand):
 
     >>> a, w = supply_coupling([400.0, 600.0, 1000.0], 500.0, 20.0, 0.5, 0.6)
@@ -196,13 +199,13 @@ def coupled_steady_state(generation, volume, primary_airflow, outdoor_intake,
     Parameters
     ----------
     generation : array_like, shape (n_zones,)
-        Zone generation G_z. [C·m3/h]
+        Zone generation G_z. [C·L/s]
     volume : float or array_like, shape (n_zones,)
         Zone volume (enters through deposition and inactivation). [m3]
     primary_airflow : array_like, shape (n_zones,)
-        Zone primary airflow Vpz. [m3/h]
+        Zone primary airflow Vpz. [L/s]
     outdoor_intake : float
-        Outdoor air intake Vot. [m3/h]
+        Outdoor air intake Vot. [L/s]
     outdoor_concentration : float
         C_out. [C]
     outdoor_filter_efficiency : float
@@ -210,9 +213,9 @@ def coupled_steady_state(generation, volume, primary_airflow, outdoor_intake,
     recirc_filter_efficiency : float
         η_rec. [-]
     zone_exhaust : float or array_like, shape (n_zones,)
-        Exhaust straight outdoors from each zone, E_z. [m3/h]
+        Exhaust straight outdoors from each zone, E_z. [L/s]
     cadr : float or array_like, shape (n_zones,)
-        In-room air cleaner clean-air delivery rate. [m3/h]
+        In-room air cleaner clean-air delivery rate. [L/s]
     k_deposition, k_inactivation : float or array_like, shape (n_zones,)
         Deposition and inactivation rates. [1/h]
 
@@ -247,17 +250,18 @@ def coupled_steady_state(generation, volume, primary_airflow, outdoor_intake,
 
 
 def _in_room_loss(volume, cadr, k_deposition, k_inactivation):
-    """L_z = CADR + (k_dep + k_inact)·V [m3/h]."""
+    """L_z = CADR + (k_dep + k_inact)·V/PER_HOUR [L/s]."""
     v = _positive("volume", volume)
     return (_nonneg("cadr", cadr)
             + (_nonneg("k_deposition", k_deposition)
-               + _nonneg("k_inactivation", k_inactivation)) * v)
+               + _nonneg("k_inactivation", k_inactivation)) * v / PER_HOUR)
 
 
 # --------------------------------------------------------------------------- exact transient
 #
-# On a piece, dC/dt = A·C + b with A = −diag(d) + u·wᵀ, d_z = (Vpz + L_z)/V_z, u_z = Vpz/V_z,
-# b_z = (G_z + Vpz·a)/V_z. Group the zones that return air (w_z > 0) by equal rate, K groups of
+# On a piece, dC/dt = A·C + b with A = −diag(d) + u·wᵀ, d_z = F·(Vpz + L_z)/V_z,
+# u_z = F·Vpz/V_z, b_z = F·(G_z + Vpz·a)/V_z, F = PER_HOUR (rates per hour from L/s and m³).
+# Group the zones that return air (w_z > 0) by equal rate, K groups of
 # rates p_k, and take the aggregates X_k = Σ_{z in k} w_z·C_z. Their balance is closed:
 #     dX/dt = M·X + β,  M = −diag(p) + c·1ᵀ,  c_k = Σ_{z in k} w_z·u_z,  β_k = Σ_{z in k} w_z·b_z,
 # and the coupling signal y = wᵀC = Σ_k X_k. With S = diag(1/√c), S·M·S⁻¹ = −diag(p) + √c·√cᵀ
@@ -398,7 +402,7 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
                                 k_inactivation=0.0):
     """Exact transient of a coupled system for inputs constant on each piece.
 
-    Solves ``V_z·dC_z/dt = G_z + Vpz·C_s − (Vpz + L_z)·C_z``, ``C_s = a + Σ w_z C_z`` (module
+    Solves ``V_z·dC_z/dt = 3.6·[G_z + Vpz·C_s − (Vpz + L_z)·C_z]``, ``C_s = a + Σ w_z C_z`` (module
     model) piece by piece in closed form through the eigendecomposition of the symmetrised
     K×K coupling of the zones that return air (the comment above :func:`_modes`): no ODE
     solver, no N×N matrix, and no steady state needed, so a system that removes nothing is
@@ -421,13 +425,13 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
     times_breaks : array_like, shape (n_pieces + 1,)
         Strictly increasing times bounding the pieces. [h]
     generation_per_piece : array_like, shape (n_zones,) or (n_pieces, n_zones)
-        Zone generation G_z. [C·m3/h]
+        Zone generation G_z. [C·L/s]
     volume : float or array_like, shape (n_zones,)
         Zone volume V_z. [m3]
     primary_airflow : array_like, shape (n_zones,) or (n_pieces, n_zones)
-        Zone primary airflow Vpz. [m3/h]
+        Zone primary airflow Vpz. [L/s]
     outdoor_intake : float or array_like, shape (n_pieces,)
-        Outdoor air intake Vot. [m3/h]
+        Outdoor air intake Vot. [L/s]
     c0 : float or array_like, shape (n_zones,)
         Zone concentrations at ``times_breaks[0]``. [C]
     output_times : array_like, shape (n_times,)
@@ -437,7 +441,7 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
     outdoor_filter_efficiency, recirc_filter_efficiency : float or array_like, (n_pieces,)
         η_oa and η_rec. [-]
     zone_exhaust, cadr : float or array_like, shape (n_zones,) or (n_pieces, n_zones)
-        Zone exhaust E_z and in-room CADR. [m3/h]
+        Zone exhaust E_z and in-room CADR. [L/s]
     k_deposition, k_inactivation : float or array_like, shape (n_zones,) or (n_pieces, n_zones)
         In-room first-order losses. [1/h]
 
@@ -458,12 +462,12 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
 
     Examples
     --------
-    Two equal zones behave as one zone with the same outdoor fraction: 1,000 m³/h into 100 m³
-    each, a quarter outdoor air, so each holds λ = 2.5/h of clean air and tends to
-    G/(x·Vpz) = 600/250 = 2.4 as 2.4·(1 − e^(−2.5 t)) (hand calculation):
+    Two equal zones behave as one zone with the same outdoor fraction: 250 L/s (900 m³/h) into
+    90 m³ each, a quarter outdoor air, so each gets λ = 0.25 × 10/h = 2.5/h of clean air and
+    tends to G/(x·Vpz) = 150/62.5 = 2.4 as 2.4·(1 − e^(−2.5 t)) (hand calculation):
 
-    >>> run = coupled_piecewise_transient([0.0, 1.0], [600.0, 600.0], 100.0, [1000.0, 1000.0],
-    ...                                   500.0, 0.0, [0.4, 1.0])
+    >>> run = coupled_piecewise_transient([0.0, 1.0], [150.0, 150.0], 90.0, [250.0, 250.0],
+    ...                                   125.0, 0.0, [0.4, 1.0])
     >>> [round(float(c), 9) for c in run.zone[:, 0]]
     [1.517089341, 2.202996003]
     """
@@ -501,10 +505,12 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
             last_air, sysm = inputs, _system(*inputs)
         key = (vpz.tobytes(), loss[j].tobytes(), sysm.w.tobytes())
         if key != last_key:  # modes are shared while airflows and losses stay the same
-            last_key, m = key, _modes((vpz + loss[j]) / vol, vpz / vol, sysm.w)
+            last_key, m = key, _modes(PER_HOUR * (vpz + loss[j]) / vol, PER_HOUR * vpz / vol,
+                                      sysm.w)
         a = sysm.x * outdoor[j]
         sel = order[bounds[j]:bounds[j + 1]]
-        values, y = _piece(m, c, (gen[j] + vpz * a) / vol, np.append(t[sel] - b[j], b[j + 1] - b[j]))
+        values, y = _piece(m, c, PER_HOUR * (gen[j] + vpz * a) / vol,
+                           np.append(t[sel] - b[j], b[j + 1] - b[j]))
         out_zone[sel], out_supply[sel] = values[:-1], a + y[:-1]
         c = values[-1]
     return CoupledTransient(out_zone, out_supply)

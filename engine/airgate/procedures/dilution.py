@@ -4,14 +4,16 @@ Pure functions on plain floats and numpy arrays; no unit objects. Every argument
 with numpy rules, so one call evaluates any number of zones. A float in gives a float out; an
 invalid input raises ValueError naming the parameter, for floats and arrays alike.
 
-Units (:mod:`airgate.units`, "mass balance"): airflow [m3/h], volume [m3], first-order rates
-[1/h], time [h]; concentration in any unit ``C`` (particles/m3, ug/m3, ppm, ...), the same for
-every concentration argument of one call; generation [C·m3/h], so that a steady concentration
-is ``C = G / Q``. The CO2 helpers take their flows in L/s, the unit of occupant CO2 generation.
+Units, those of every procedure (:mod:`airgate.units`): airflow [L/s], volume [m3],
+first-order rates [1/h], time [h]; concentration in any unit ``C`` (particles/m3, ug/m3,
+ppm, ...), the same for every concentration argument of one call; generation [C·L/s], so that
+a steady concentration is ``C = G / Q`` (CO2 in ppm: ``G = 10⁶ × CO2 flow in L/s``). Rates
+come from airflows as ``PER_HOUR·Q/V`` (:mod:`airgate.procedures.numeric`).
 
 The zone balance, a completely mixed flow reactor with first-order losses [1]_::
 
-    V·dC/dt = G + Q_oa·(1 − η_oa)·C_out − Q_oa·C − η_rec·Q_rec·C − CADR·C − (k_dep + k_inact)·V·C
+    V·dC/dt = 3.6·[G + Q_oa·(1 − η_oa)·C_out − (Q_oa + η_rec·Q_rec + CADR)·C]
+              − (k_dep + k_inact)·V·C
 
 is linear with constant coefficients between changes of its inputs, so every result here and
 in :mod:`airgate.procedures.piecewise` is its exact solution, never a numerical integration.
@@ -44,6 +46,7 @@ from airgate.procedures.numeric import (
 # the loss terms and the piecewise-constant solution live in their own modules; their names
 # are part of this module's API too
 from airgate.procedures.losses import (  # noqa: F401
+    air_change_rate,
     equivalent_clean_airflow,
     inactivation_rate_from_half_life,
     loss_breakdown,
@@ -69,24 +72,28 @@ def steady_state_concentration(generation, volume, outdoor_airflow, outdoor_conc
                                outdoor_filter_efficiency=0.0, recirc_airflow=0.0,
                                recirc_efficiency=0.0, cadr=0.0, k_deposition=0.0,
                                k_inactivation=0.0):
-    """Steady concentration of a well-mixed zone, ``C_ss = (G + Q_oa·(1 − η_oa)·C_out)/(λ·V)``.
+    """Steady concentration of a well-mixed zone, ``C_ss = (G + Q_oa·(1 − η_oa)·C_out) / Q_c``.
+
+    Q_c is the equivalent clean airflow (:func:`~airgate.procedures.losses.
+    equivalent_clean_airflow`), λ·V/3.6 in L/s.
 
     With clean supply and no other loss, ``C_ss = G / Q_oa``.
 
     Parameters
     ----------
     generation : float or array_like
-        Generation rate G (>= 0). [C·m3/h]
+        Generation rate G (>= 0). [C·L/s]
     volume : float or array_like
         Zone volume (enters only through deposition and inactivation). [m3]
     outdoor_airflow : float or array_like
-        Outdoor airflow, Q_oa (>= 0). [m3/h]
+        Outdoor airflow, Q_oa (>= 0). [L/s]
     outdoor_concentration : float or array_like
         Outdoor concentration, C_out (>= 0). [C]
     outdoor_filter_efficiency : float or array_like
         Efficiency of the filter on outdoor air, η_oa, in [0, 1]. [-]
     recirc_airflow, recirc_efficiency, cadr, k_deposition, k_inactivation
-        As in :func:`loss_breakdown`. [m3/h], [-], [m3/h], [1/h], [1/h]
+        As in :func:`~airgate.procedures.losses.loss_breakdown`. [L/s], [-], [L/s], [1/h],
+        [1/h]
 
     Returns
     -------
@@ -104,9 +111,9 @@ def steady_state_concentration(generation, volume, outdoor_airflow, outdoor_conc
 
     Examples
     --------
-    500 C·m³/h generated, 250 m³/h of clean outdoor air:
+    100 C·L/s generated, 50 L/s of clean outdoor air:
 
-    >>> steady_state_concentration(500.0, 50.0, 250.0)
+    >>> steady_state_concentration(100.0, 50.0, 50.0)
     2.0
     """
     q_clean = np.asarray(equivalent_clean_airflow(volume, outdoor_airflow, recirc_airflow,
@@ -114,7 +121,7 @@ def steady_state_concentration(generation, volume, outdoor_airflow, outdoor_conc
                                                   k_inactivation))
     if np.any(q_clean <= 0):
         raise ValueError("outdoor_airflow, recirc_airflow·recirc_efficiency, cadr, k_deposition "
-                         "and k_inactivation are all 0 (λ·V = 0): no steady state")
+                         "and k_inactivation are all 0 (no removal): no steady state")
     source = (_nonneg("generation", generation)
               + _nonneg("outdoor_airflow", outdoor_airflow)
               * (1 - _fraction("outdoor_filter_efficiency", outdoor_filter_efficiency))
@@ -283,8 +290,8 @@ def time_to_fraction_removed(lam, fraction):
     --------
     Table B.1: at 6 air changes per hour, 46 minutes to remove 99 % and 69 to remove 99.9 %:
 
-    >>> round(60 * time_to_fraction_removed(6.0, 0.99)), round(60 * time_to_fraction_removed(6.0, 0.999))
-    (46, 69)
+    >>> [round(60 * time_to_fraction_removed(6.0, f)) for f in (0.99, 0.999)]
+    [46, 69]
     """
     f = _fraction("fraction", fraction, open_top=True)
     with np.errstate(over="ignore"):  # a loss rate too small for the float range gives inf

@@ -1,12 +1,15 @@
 """Removal mechanisms of the well-mixed zone balance: equivalent clean airflows and loss rates.
 
-Pure functions on plain floats and numpy arrays (broadcasting), in the mass-balance units of
-:mod:`airgate.procedures.dilution`: airflow [m3/h], volume [m3], rates [1/h], time [h]. A float
-in gives a float out; an invalid input raises ValueError naming the parameter.
+Pure functions on plain floats and numpy arrays (broadcasting), in the procedures' units
+(:mod:`airgate.units`): airflow [L/s], volume [m3], rates [1/h], time [h]; a loss rate is
+``PER_HOUR·(airflow/volume) + k`` with ``PER_HOUR`` = 3.6 (L/s)/m³ per 1/h
+(:mod:`airgate.procedures.numeric`). A float in gives a float out; an invalid input raises
+ValueError naming the parameter.
 
 Every first-order loss term of ``V·dC/dt = G + Q_oa·(1 − η_oa)·C_out − λ·V·C`` written as the
 airflow of clean air that would remove as much: outdoor air Q_oa, filtration η_rec·Q_rec,
-in-room air cleaners CADR, deposition k_dep·V and inactivation k_inact·V; they add to λ·V.
+in-room air cleaners CADR, deposition k_dep·V and inactivation k_inact·V (each V/PER_HOUR in
+L/s); they add to λ·V.
 
 References
 ----------
@@ -21,14 +24,15 @@ from __future__ import annotations
 import numpy as np
 
 from airgate.procedures.numeric import (
+    PER_HOUR,
     fraction as _fraction,
     nonneg as _nonneg,
     out as _out,
     positive as _positive,
 )
 
-__all__ = ["equivalent_clean_airflow", "inactivation_rate_from_half_life", "loss_breakdown",
-           "loss_rate"]
+__all__ = ["air_change_rate", "equivalent_clean_airflow", "inactivation_rate_from_half_life",
+           "loss_breakdown", "loss_rate"]
 
 
 def loss_breakdown(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficiency=0.0,
@@ -43,13 +47,13 @@ def loss_breakdown(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficienc
     volume : float or array_like
         Zone volume (>= 0). [m3]
     outdoor_airflow : float or array_like
-        Outdoor airflow supplied to the zone, Q_oa (>= 0). [m3/h]
+        Outdoor airflow supplied to the zone, Q_oa (>= 0). [L/s]
     recirc_airflow : float or array_like
-        Recirculated airflow passing a filter, Q_rec (>= 0). [m3/h]
+        Recirculated airflow passing a filter, Q_rec (>= 0). [L/s]
     recirc_efficiency : float or array_like
         Single-pass efficiency of that filter, η_rec, in [0, 1]. [-]
     cadr : float or array_like
-        Clean-air delivery rate of in-room air cleaners (>= 0). [m3/h]
+        Clean-air delivery rate of in-room air cleaners (>= 0). [L/s]
     k_deposition : float or array_like
         Deposition rate on surfaces (>= 0). [1/h]
     k_inactivation : float or array_like
@@ -59,7 +63,7 @@ def loss_breakdown(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficienc
     -------
     dict of str to float or ndarray
         ``outdoor_air`` = Q_oa, ``recirculation_filter`` = η_rec·Q_rec, ``air_cleaner`` = CADR,
-        ``deposition`` = k_dep·V, ``inactivation`` = k_inact·V. [m3/h]
+        ``deposition`` = k_dep·V/3.6, ``inactivation`` = k_inact·V/3.6. [L/s]
 
     References
     ----------
@@ -68,10 +72,14 @@ def loss_breakdown(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficienc
 
     Examples
     --------
-    >>> parts = loss_breakdown(100.0, 200.0, recirc_airflow=800.0, recirc_efficiency=0.5,
-    ...                        cadr=150.0, k_deposition=0.2)
+    A 90 m³ room: 50 L/s of outdoor air, 200 L/s recirculated through a 50 % filter, a
+    40 L/s air cleaner and deposition at 0.2/h (0.2 × 90 m³/h = 5 L/s), by hand:
+
+    >>> parts = loss_breakdown(90.0, 50.0, recirc_airflow=200.0, recirc_efficiency=0.5,
+    ...                        cadr=40.0, k_deposition=0.2)
     >>> {k: round(v, 9) for k, v in parts.items()}
-    {'outdoor_air': 200.0, 'recirculation_filter': 400.0, 'air_cleaner': 150.0, 'deposition': 20.0, 'inactivation': 0.0}
+    {'outdoor_air': 50.0, 'recirculation_filter': 100.0, 'air_cleaner': 40.0,
+     'deposition': 5.0, 'inactivation': 0.0}
     """
     v = _nonneg("volume", volume)
     parts = {
@@ -79,8 +87,8 @@ def loss_breakdown(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficienc
         "recirculation_filter": _fraction("recirc_efficiency", recirc_efficiency)
         * _nonneg("recirc_airflow", recirc_airflow),
         "air_cleaner": _nonneg("cadr", cadr),
-        "deposition": _nonneg("k_deposition", k_deposition) * v,
-        "inactivation": _nonneg("k_inactivation", k_inactivation) * v,
+        "deposition": _nonneg("k_deposition", k_deposition) * v / PER_HOUR,
+        "inactivation": _nonneg("k_inactivation", k_inactivation) * v / PER_HOUR,
     }
     if all(np.ndim(p) == 0 for p in parts.values()):  # one zone: floats, no copies
         return {k: float(p) for k, p in parts.items()}
@@ -90,17 +98,17 @@ def loss_breakdown(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficienc
 
 def equivalent_clean_airflow(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficiency=0.0,
                              cadr=0.0, k_deposition=0.0, k_inactivation=0.0):
-    """Equivalent clean airflow ``λ·V = Q_oa + η_rec·Q_rec + CADR + (k_dep + k_inact)·V``.
+    """Equivalent clean airflow ``Q_oa + η_rec·Q_rec + CADR + (k_dep + k_inact)·V/3.6``.
 
     Parameters
     ----------
     volume, outdoor_airflow, recirc_airflow, recirc_efficiency, cadr, k_deposition, k_inactivation
-        As in :func:`loss_breakdown`. [m3], [m3/h], [m3/h], [-], [m3/h], [1/h], [1/h]
+        As in :func:`loss_breakdown`. [m3], [L/s], [L/s], [-], [L/s], [1/h], [1/h]
 
     Returns
     -------
     float or ndarray
-        λ·V, the sum of :func:`loss_breakdown`. [m3/h]
+        The sum of :func:`loss_breakdown`, λ·V in L/s. [L/s]
 
     References
     ----------
@@ -108,8 +116,8 @@ def equivalent_clean_airflow(volume, outdoor_airflow, recirc_airflow=0.0, recirc
 
     Examples
     --------
-    >>> round(equivalent_clean_airflow(100.0, 200.0, 800.0, 0.5, 150.0, 0.2), 9)
-    770.0
+    >>> round(equivalent_clean_airflow(90.0, 50.0, 200.0, 0.5, 40.0, 0.2), 9)
+    195.0
     """
     parts = loss_breakdown(volume, outdoor_airflow, recirc_airflow, recirc_efficiency, cadr,
                            k_deposition, k_inactivation)
@@ -119,7 +127,7 @@ def equivalent_clean_airflow(volume, outdoor_airflow, recirc_airflow=0.0, recirc
 
 def loss_rate(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficiency=0.0, cadr=0.0,
               k_deposition=0.0, k_inactivation=0.0):
-    """First-order loss rate of the zone, ``λ = (Q_oa + η_rec·Q_rec + CADR)/V + k_dep + k_inact``.
+    """First-order loss rate, ``λ = 3.6·(Q_oa + η_rec·Q_rec + CADR)/V + k_dep + k_inact``.
 
     With outdoor air alone it is the outdoor-air change rate (ACH).
 
@@ -128,7 +136,7 @@ def loss_rate(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficiency=0.0
     volume : float or array_like
         Zone volume (> 0). [m3]
     outdoor_airflow, recirc_airflow, recirc_efficiency, cadr, k_deposition, k_inactivation
-        As in :func:`loss_breakdown`. [m3/h], [m3/h], [-], [m3/h], [1/h], [1/h]
+        As in :func:`loss_breakdown`. [L/s], [L/s], [-], [L/s], [1/h], [1/h]
 
     Returns
     -------
@@ -141,14 +149,43 @@ def loss_rate(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficiency=0.0
 
     Examples
     --------
-    600 m³/h of outdoor air through a 100 m³ room is 6 air changes per hour:
+    50 L/s (180 m³/h) of outdoor air through a 90 m³ room is 2 air changes per hour:
 
-    >>> loss_rate(100.0, 600.0)
-    6.0
+    >>> round(loss_rate(90.0, 50.0), 12)
+    2.0
     """
     v = _positive("volume", volume)
-    return _out(equivalent_clean_airflow(v, outdoor_airflow, recirc_airflow, recirc_efficiency,
-                                         cadr, k_deposition, k_inactivation) / v)
+    return _out(PER_HOUR * equivalent_clean_airflow(v, outdoor_airflow, recirc_airflow,
+                                                    recirc_efficiency, cadr, k_deposition,
+                                                    k_inactivation) / v)
+
+
+def air_change_rate(airflow, volume):
+    """Air changes per hour of an airflow through a volume, ``ACH = 3.6·Q/V``.
+
+    Parameters
+    ----------
+    airflow : float or array_like
+        Airflow, or equivalent clean airflow (>= 0). [L/s]
+    volume : float or array_like
+        Zone volume (> 0). [m3]
+
+    Returns
+    -------
+    float or ndarray
+        ACH. [1/h]
+
+    References
+    ----------
+    Nazaroff & Alvarez-Cohen (2001), CMFR residence time (its inverse); CDC (2003) Appendix B
+    states purge times per air change rate.
+
+    Examples
+    --------
+    >>> round(air_change_rate(50.0, 90.0), 12)
+    2.0
+    """
+    return _out(PER_HOUR * _nonneg("airflow", airflow) / _positive("volume", volume))
 
 
 def inactivation_rate_from_half_life(half_life):

@@ -1,11 +1,21 @@
-"""Numerical helpers shared by the mass-balance procedures: input checks and the exponential
-kernels with their small-argument limits (plain floats and numpy arrays)."""
+"""Helpers shared by the procedures: input checks, the procedures' one hourly factor, and the
+exponential kernels with their small-argument limits (plain floats and numpy arrays).
+
+Internal to the procedures (they re-export nothing from here); the checks raise ValueError
+naming the parameter, the policy of every procedure.
+"""
 
 from __future__ import annotations
 
 import math
 
 import numpy as np
+
+#: The procedures take the engine's units (:mod:`airgate.units`): airflow [L/s], volume [m³],
+#: time [h]. An airflow per volume is then in (L/s)/m³, and a first-order rate in 1/h is
+#: ``PER_HOUR × airflow / volume``: 3600 s per hour over 1000 L per m³ (exact). This is where
+#: the mass balance turns airflows into rates; nothing outside the procedures converts them.
+PER_HOUR = 3600.0 / 1000.0
 
 
 def nonneg(name, value, *, strict=False):

@@ -1,11 +1,12 @@
 """Exact solution of the well-mixed zone balance for inputs constant on each piece of time.
 
 An occupancy profile makes the generation (and possibly airflows and losses) piecewise
-constant; on each piece the balance ``V·dC/dt = G + Q_oa·(1 − η_oa)·C_out − λ·V·C`` of
+constant; on each piece the balance ``dC/dt = s − λ·C`` of
 :mod:`airgate.procedures.dilution` has constant coefficients, so its solution is exact piece by
 piece, ``C(τ) = C_ss + (C0 − C_ss)·e^(−λτ)``, the end of one piece starting the next; averages
 and peaks over a window follow in closed form. Units as in :mod:`airgate.procedures.dilution`:
-airflow [m3/h], volume [m3], time [h], rates [1/h], concentration [C], generation [C·m3/h].
+airflow [L/s], volume [m3], time [h], rates [1/h] (``PER_HOUR·Q/V``), concentration [C],
+generation [C·L/s].
 Invalid input raises ValueError naming the parameter.
 
 References
@@ -22,6 +23,7 @@ import numpy as np
 
 from airgate.procedures.losses import equivalent_clean_airflow
 from airgate.procedures.numeric import (
+    PER_HOUR,
     check_breaks as _check_breaks,
     fraction as _fraction,
     nonneg as _nonneg,
@@ -39,7 +41,8 @@ def _on_piece(c_start, lam, source_rate, tau, out=None):
     """C(τ) = C0·e^(−λτ) + s·τ·φ(λτ) on one piece (the CMFR transient), at times τ (n_t values)
     for every zone, into ``out`` (n_t, *zone shape; allocated when None).
 
-    One transcendental per value, in the form free of cancellation for each zone: a zone falling towards its steady state ``C_ss = s/λ`` (C0 > C_ss) as
+    One transcendental per value, in the form free of cancellation for each zone: a zone
+    falling towards its steady state ``C_ss = s/λ`` (C0 > C_ss) as
     ``C_ss + (C0 − C_ss)·e^(−λτ)`` (two terms of one sign), a rising one as
     ``C0 + (C_ss − C0)·(−expm1(−λτ))`` (likewise); either is accurate to a few ulps for every
     λτ. Where λ is so small that s/λ would overflow (λ = 0 included) the zone grows linearly,
@@ -131,11 +134,11 @@ def piecewise_solution(times_breaks, generation_per_piece, volume, outdoor_airfl
     times_breaks : array_like, shape (n_pieces + 1,)
         Strictly increasing times bounding the pieces. [h]
     generation_per_piece : array_like, shape (n_pieces, *zone_shape)
-        Generation on each piece. [C·m3/h]
+        Generation on each piece. [C·L/s]
     volume : float or array_like
         Zone volume; > 0. [m3]
     outdoor_airflow : float or array_like
-        Outdoor airflow Q_oa. [m3/h]
+        Outdoor airflow Q_oa. [L/s]
     c0 : float or array_like
         Concentration at ``times_breaks[0]``. [C]
     outdoor_concentration : float or array_like
@@ -143,7 +146,7 @@ def piecewise_solution(times_breaks, generation_per_piece, volume, outdoor_airfl
     outdoor_filter_efficiency : float or array_like
         η_oa. [-]
     recirc_airflow, recirc_efficiency, cadr, k_deposition, k_inactivation
-        As in :func:`loss_rate`. [m3/h], [-], [m3/h], [1/h], [1/h]
+        As in :func:`~airgate.procedures.losses.loss_rate`. [L/s], [-], [L/s], [1/h], [1/h]
 
     Returns
     -------
@@ -155,9 +158,10 @@ def piecewise_solution(times_breaks, generation_per_piece, volume, outdoor_airfl
 
     Examples
     --------
-    A 100 m³ room at 6 air changes per hour (600 m³/h), occupied for an hour then empty:
+    A 90 m³ room at 6 air changes per hour (150 L/s), occupied for an hour then empty, with a
+    generation that holds 1 at steady state:
 
-    >>> sol = piecewise_solution([0.0, 1.0, 2.0], [[600.0], [0.0]], 100.0, 600.0, 0.0)
+    >>> sol = piecewise_solution([0.0, 1.0, 2.0], [[150.0], [0.0]], 90.0, 150.0, 0.0)
     >>> [round(float(c), 6) for c in sol.c_end]  # (1 − e^-6)·e^-6
     [0.002473]
     """
@@ -187,8 +191,8 @@ def piecewise_solution(times_breaks, generation_per_piece, volume, outdoor_airfl
         raise ValueError("c0 must be >= 0 with at most the zone shape")
     shape = np.broadcast_shapes((n,) + (1,) * nd, q_clean.shape, source.shape,
                                 (1,) + c_init.shape)
-    lam = np.broadcast_to(q_clean / v, shape)
-    s = np.broadcast_to(source / v, shape)
+    lam = np.broadcast_to(PER_HOUR * q_clean / v, shape)
+    s = np.broadcast_to(PER_HOUR * source / v, shape)
     c_start = np.empty(shape)
     c = np.broadcast_to(c_init, shape[1:]).astype(float)
     for j, dt in enumerate(np.diff(b)):  # sequential in time, vectorised over zones
@@ -220,7 +224,7 @@ def evaluate_piecewise(solution, times):
     --------
     After one time constant (1/6 h) a clean room holds 1 − 1/e of its steady value G/Q = 1:
 
-    >>> sol = piecewise_solution([0.0, 1.0], [600.0], 100.0, 600.0, 0.0)
+    >>> sol = piecewise_solution([0.0, 1.0], [150.0], 90.0, 150.0, 0.0)
     >>> round(float(evaluate_piecewise(sol, [1 / 6])[0]), 9)
     0.632120559
     """
@@ -256,11 +260,13 @@ def piecewise_transient(times_breaks, generation_per_piece, volume, outdoor_airf
     Parameters
     ----------
     times_breaks, generation_per_piece, volume, outdoor_airflow, c0
-        As in :func:`piecewise_solution`. [h], [C·m3/h], [m3], [m3/h], [C]
+        As in :func:`piecewise_solution`. [h], [C·L/s], [m3], [L/s], [C]
     output_times : array_like, shape (n_times,)
         Times within the span of ``times_breaks``, any order. [h]
-    outdoor_concentration, outdoor_filter_efficiency, recirc_airflow, recirc_efficiency, cadr, k_deposition, k_inactivation
-        As in :func:`piecewise_solution`. [C], [-], [m3/h], [-], [m3/h], [1/h], [1/h]
+    outdoor_concentration, outdoor_filter_efficiency, recirc_airflow, recirc_efficiency
+        As in :func:`piecewise_solution`. [C], [-], [L/s], [-]
+    cadr, k_deposition, k_inactivation
+        As in :func:`piecewise_solution`. [L/s], [1/h], [1/h]
 
     Returns
     -------
@@ -275,7 +281,7 @@ def piecewise_transient(times_breaks, generation_per_piece, volume, outdoor_airf
     --------
     Two zones sharing one profile, at the end of the occupied hour:
 
-    >>> c = piecewise_transient([0.0, 1.0, 2.0], [[600.0], [0.0]], 100.0, [600.0, 300.0], 0.0,
+    >>> c = piecewise_transient([0.0, 1.0, 2.0], [[150.0], [0.0]], 90.0, [150.0, 75.0], 0.0,
     ...                         [1.0])
     >>> [round(float(x), 6) for x in c[0]]
     [0.997521, 1.900426]
@@ -325,7 +331,7 @@ def time_weighted_average(solution, t_start=None, t_end=None):
     --------
     A zone starting at its steady value stays there, so its average is that value:
 
-    >>> sol = piecewise_solution([0.0, 4.0], [600.0], 100.0, 600.0, 1.0)
+    >>> sol = piecewise_solution([0.0, 4.0], [150.0], 90.0, 150.0, 1.0)
     >>> round(float(time_weighted_average(sol)), 12)
     1.0
     """
@@ -370,7 +376,7 @@ def peak_concentration(solution, t_start=None, t_end=None):
     --------
     Occupied for an hour, then empty: the peak is at the end of the occupied hour.
 
-    >>> sol = piecewise_solution([0.0, 1.0, 2.0], [[600.0], [0.0]], 100.0, 600.0, 0.0)
+    >>> sol = piecewise_solution([0.0, 1.0, 2.0], [[150.0], [0.0]], 90.0, 150.0, 0.0)
     >>> peak, when = peak_concentration(sol)
     >>> round(float(peak[0]), 6), float(when[0])  # 1 − e^-6
     (0.997521, 1.0)
