@@ -3,6 +3,13 @@ exponential kernels with their small-argument limits (plain floats and numpy arr
 
 Internal to the procedures (they re-export nothing from here); the checks raise ValueError
 naming the parameter, the policy of every procedure.
+
+References
+----------
+.. [1] Nazaroff, W.W. and Alvarez-Cohen, L. (2001). *Environmental Engineering Science*. Wiley,
+   New York: the CMFR transient whose exponentials and their integrals these kernels are.
+.. [2] de Boor, C. (2001). *A Practical Guide to Splines*, revised edition. Springer, New York:
+   divided differences and the Hermite–Genocchi formula.
 """
 
 from __future__ import annotations
@@ -17,8 +24,40 @@ import numpy as np
 #: the mass balance turns airflows into rates; nothing outside the procedures converts them.
 PER_HOUR = 3600.0 / 1000.0
 
+__all__ = ["check_breaks", "exp_and_integral", "exp_convolution", "exp_convolution_ramp",
+           "finite", "fraction", "nonneg", "out", "phi", "positive", "psi"]
+
 
 def nonneg(name, value, *, strict=False):
+    """``value`` as a float array, or ValueError naming ``name`` unless finite and >= 0.
+
+    Parameters
+    ----------
+    name : str
+        The parameter's name, for the message.
+    value : float or array_like
+        The value to check. [any unit]
+    strict : bool
+        Require > 0 instead of >= 0.
+
+    Returns
+    -------
+    ndarray
+        ``value`` as floats (0-d for a scalar).
+
+    References
+    ----------
+    Common practice (one invalid-input policy for floats and arrays alike).
+
+    Examples
+    --------
+    >>> float(nonneg("volume", 3))
+    3.0
+    >>> nonneg("volume", [1.0, -2.0])
+    Traceback (most recent call last):
+    ...
+    ValueError: volume must be finite and >= 0, got [1.0, -2.0]
+    """
     a = np.asarray(value, dtype=float)
     if a.ndim == 0:  # the common scalar case, without numpy reductions
         x = float(a)
@@ -31,10 +70,62 @@ def nonneg(name, value, *, strict=False):
 
 
 def positive(name, value):
+    """:func:`nonneg` with ``strict=True``: finite and > 0.
+
+    Parameters
+    ----------
+    name : str
+        The parameter's name, for the message.
+    value : float or array_like
+        The value to check. [any unit]
+
+    Returns
+    -------
+    ndarray
+        ``value`` as floats.
+
+    References
+    ----------
+    Common practice.
+
+    Examples
+    --------
+    >>> positive("ez", 0.0)
+    Traceback (most recent call last):
+    ...
+    ValueError: ez must be finite and > 0, got 0.0
+    """
     return nonneg(name, value, strict=True)
 
 
 def fraction(name, value, *, open_top=False):
+    """``value`` as a float array, or ValueError naming ``name`` unless in [0, 1] ([0, 1)).
+
+    Parameters
+    ----------
+    name : str
+        The parameter's name, for the message.
+    value : float or array_like
+        The fraction to check. [-]
+    open_top : bool
+        Exclude 1.
+
+    Returns
+    -------
+    ndarray
+        ``value`` as floats.
+
+    References
+    ----------
+    Common practice.
+
+    Examples
+    --------
+    >>> fraction("fraction", 1.0, open_top=True)
+    Traceback (most recent call last):
+    ...
+    ValueError: fraction must lie in [0, 1), got 1.0
+    """
     a = np.asarray(value, dtype=float)
     if a.ndim == 0:
         x = float(a)
@@ -48,14 +139,53 @@ def fraction(name, value, *, open_top=False):
 
 
 def out(a):
-    """0-d arrays back to Python floats, so float inputs give float results; arrays as they
-    are."""
+    """0-d arrays back to Python floats, so float inputs give float results; arrays as they are.
+
+    Parameters
+    ----------
+    a : float or array_like
+        A result. [any unit]
+
+    Returns
+    -------
+    float or ndarray
+        A Python float for a 0-d input, else the array.
+
+    References
+    ----------
+    Common practice.
+
+    Examples
+    --------
+    >>> type(out(np.float64(2.0))).__name__, out(np.array([1.0])).shape
+    ('float', (1,))
+    """
     a = np.asarray(a)
     return float(a) if a.ndim == 0 else a
 
 
 def phi(x):
-    """(1 − e^(−x)) / x, with its limit 1 at x = 0, accurate for small x >= 0."""
+    """``φ(x) = (1 − e^(−x)) / x``, with its limit 1 at x = 0, accurate for small x >= 0.
+
+    Parameters
+    ----------
+    x : float or array_like
+        A rate times a time, λτ. [-]
+
+    Returns
+    -------
+    ndarray
+        φ(x). [-]
+
+    References
+    ----------
+    Nazaroff & Alvarez-Cohen (2001): the CMFR approach to steady state, C_ss·λτ·φ(λτ).
+
+    Examples
+    --------
+    >>> float(phi(0.0)), round(float(phi(1.0)), 12)  # 1 − 1/e
+    (1.0, 0.632120558829)
+    """
     x = np.asarray(x, dtype=float)
     small = x < 1e-8
     safe = np.where(small, 1.0, x)
@@ -63,7 +193,27 @@ def phi(x):
 
 
 def psi(x):
-    """(x − 1 + e^(−x)) / x², with its limit 1/2 at x = 0 (series below x = 0.01)."""
+    """``ψ(x) = (x − 1 + e^(−x)) / x²``, with its limit 1/2 at x = 0 (series below 0.01).
+
+    Parameters
+    ----------
+    x : float or array_like
+        A rate times a time, λτ (>= 0). [-]
+
+    Returns
+    -------
+    ndarray
+        ψ(x), the time integral of φ-shaped growth. [-]
+
+    References
+    ----------
+    Nazaroff & Alvarez-Cohen (2001): the CMFR transient, integrated over time.
+
+    Examples
+    --------
+    >>> float(psi(0.0)), round(float(psi(1.0)), 12)  # 1/e
+    (0.5, 0.367879441171)
+    """
     x = np.asarray(x, dtype=float)
     small = x < 1e-2
     safe = np.where(small, 1.0, x)
@@ -72,9 +222,33 @@ def psi(x):
 
 
 def exp_and_integral(rate, tau):
-    """e^(−rτ) and its integral over [0, τ], τ·φ(rτ) = −expm1(−rτ)/r (accurate for every
-    rτ >= 0: expm1 keeps small products exact), or τ where r < 1e-300 (r = 0 and rates whose
-    reciprocal would overflow; the relative error r·τ/2 is then below 1e-300·τ)."""
+    """``e^(−rτ)`` and its integral over [0, τ], ``τ·φ(rτ) = −expm1(−rτ)/r``.
+
+    Accurate for every rτ >= 0 (expm1 keeps small products exact); τ where r < 1e-300 (r = 0
+    and rates whose reciprocal would overflow; the relative error r·τ/2 is then below
+    1e-300·τ).
+
+    Parameters
+    ----------
+    rate : float or array_like
+        Decay rate r. [1/h]
+    tau : float or array_like
+        Time τ. [h]
+
+    Returns
+    -------
+    decay, integral : ndarray
+        e^(−rτ) [-] and its integral over [0, τ]. [h]
+
+    References
+    ----------
+    Nazaroff & Alvarez-Cohen (2001), CMFR transient.
+
+    Examples
+    --------
+    >>> [round(float(v), 12) for v in exp_and_integral(2.0, 0.5)]  # e^-1, (1 − e^-1)/2
+    [0.367879441171, 0.316060279414]
+    """
     rate = np.asarray(rate, dtype=float)
     y = rate * tau
     tiny = rate < 1e-300
@@ -88,6 +262,29 @@ def exp_and_integral(rate, tau):
 
 
 def check_breaks(times_breaks):
+    """The piece boundaries as floats, or ValueError naming ``times_breaks``.
+
+    Parameters
+    ----------
+    times_breaks : array_like, shape (n_pieces + 1,)
+        Strictly increasing finite times. [h]
+
+    Returns
+    -------
+    ndarray
+        The boundaries. [h]
+
+    References
+    ----------
+    Common practice.
+
+    Examples
+    --------
+    >>> check_breaks([0, 1, 1])
+    Traceback (most recent call last):
+    ...
+    ValueError: times_breaks must be a strictly increasing 1-D array of >= 2 times
+    """
     b = np.asarray(times_breaks, dtype=float)
     if b.ndim != 1 or b.size < 2 or not np.all(np.isfinite(b)) or np.any(np.diff(b) <= 0):
         raise ValueError("times_breaks must be a strictly increasing 1-D array of >= 2 times")
@@ -95,9 +292,34 @@ def check_breaks(times_breaks):
 
 
 def exp_convolution(a, b, tau):
-    """∫₀^τ e^(−a(τ−s))·e^(−b·s) ds = τ·e^(−min(a, b)·τ)·φ(|a − b|·τ): the response of a
-    first-order decay a to a decaying input b, in the form free of cancellation for every pair
-    of rates (equal rates included). a, b [1/h] and τ [h] broadcast."""
+    """``∫₀^τ e^(−a(τ−s))·e^(−b·s) ds = τ·e^(−min(a, b)·τ)·φ(|a − b|·τ)``.
+
+    The response of a first-order decay a to a decaying input b, in the form free of
+    cancellation for every pair of rates (equal rates included).
+
+    Parameters
+    ----------
+    a, b : float or array_like
+        The two decay rates (broadcast). [1/h]
+    tau : float or array_like
+        Time τ. [h]
+
+    Returns
+    -------
+    ndarray
+        The integral. [h]
+
+    References
+    ----------
+    de Boor (2001): a first divided difference of the exponential, τ·f[aτ, bτ].
+
+    Examples
+    --------
+    Equal rates give τ·e^(−aτ):
+
+    >>> round(float(exp_convolution(2.0, 2.0, 1.0)), 12)  # e^-2
+    0.135335283237
+    """
     a, b = np.asarray(a, dtype=float), np.asarray(b, dtype=float)
     return tau * np.exp(-np.minimum(a, b) * tau) * phi(np.abs(a - b) * tau)
 
@@ -128,17 +350,66 @@ def _second_divided_difference(x, y):
 
 
 def exp_convolution_ramp(a, b, tau):
-    """∫₀^τ e^(−a(τ−s))·s·φ(b·s) ds = τ²·f[aτ, bτ, 0] (f(t) = e^(−t)): the response of a
-    first-order decay a to an input that rises from 0 with rate b towards its steady value,
-    accurate for every pair of rates >= 0 (Hermite–Genocchi: the double integral is the
-    second divided difference). a, b [1/h] and τ [h] broadcast."""
+    """``∫₀^τ e^(−a(τ−s))·s·φ(b·s) ds = τ²·f[aτ, bτ, 0]`` with ``f(t) = e^(−t)``.
+
+    The response of a first-order decay a to an input that rises from 0 with rate b towards
+    its steady value, accurate for every pair of rates >= 0 (Hermite–Genocchi: the double
+    integral is the second divided difference).
+
+    Parameters
+    ----------
+    a, b : float or array_like
+        The two decay rates, >= 0 (broadcast). [1/h]
+    tau : float or array_like
+        Time τ. [h]
+
+    Returns
+    -------
+    ndarray
+        The integral. [h²]
+
+    References
+    ----------
+    de Boor (2001), divided differences and the Hermite–Genocchi formula.
+
+    Examples
+    --------
+    With no decay at all the input is s and the integral τ²/2:
+
+    >>> float(exp_convolution_ramp(0.0, 0.0, 2.0))
+    2.0
+    """
     tau = np.asarray(tau, dtype=float)
     return tau**2 * _second_divided_difference(np.asarray(a, dtype=float) * tau,
                                                np.asarray(b, dtype=float) * tau)
 
 
 def finite(name, value):
-    """``value`` as a float array; ValueError naming ``name`` unless every element is finite."""
+    """``value`` as a float array; ValueError naming ``name`` unless every element is finite.
+
+    Parameters
+    ----------
+    name : str
+        The parameter's name, for the message.
+    value : float or array_like
+        The value to check. [any unit]
+
+    Returns
+    -------
+    ndarray
+        ``value`` as floats.
+
+    References
+    ----------
+    Common practice.
+
+    Examples
+    --------
+    >>> finite("c0", float("inf"))
+    Traceback (most recent call last):
+    ...
+    ValueError: c0 must be finite, got inf
+    """
     a = np.asarray(value, dtype=float)
     if not (math.isfinite(float(a)) if a.ndim == 0 else bool(np.all(np.isfinite(a)))):
         raise ValueError(f"{name} must be finite, got {value!r}")
