@@ -132,3 +132,47 @@ def test_declared_findings_follow_the_code_findings(tmp_path):
         for z in s["zones"]:
             if z["verdict"] == "fail":
                 assert f"{s['id']}/{z['id']}" in failing or s["id"] in failing
+
+
+def _report_schema():
+    import jsonschema
+
+    out = __import__("io").StringIO()
+    with __import__("contextlib").redirect_stdout(out):
+        assert main(["schema", "report"]) == 0
+    schema = json.loads(out.getvalue())
+    jsonschema.Draft202012Validator.check_schema(schema)  # jsonschema as the outside checker
+    return jsonschema.Draft202012Validator(schema)
+
+
+def test_the_report_follows_the_published_schema(report):
+    validator = _report_schema()
+    assert not list(validator.iter_errors(report))
+    # the schema holds the contract: a finding's basis is one of the two, and summary counts
+    # the declared findings
+    bad = json.loads(json.dumps(report))
+    bad["findings"][0]["basis"] = "standard"
+    assert list(validator.iter_errors(bad))
+    del bad["summary"]["declared"]
+    assert list(validator.iter_errors(bad))
+
+
+def test_a_report_with_declared_findings_follows_the_schema(tmp_path):
+    import contextlib
+    import io
+
+    import yaml
+
+    data = yaml.safe_load(DEMO.read_text(encoding="utf-8"))
+    data["project"]["co2_limit"] = 600  # ppm, the schedule's own (invented) limit
+    path = tmp_path / "demo-with-limit.yaml"
+    path.write_text(yaml.safe_dump(data, sort_keys=False), encoding="utf-8")
+    out = io.StringIO()
+    with contextlib.redirect_stdout(out):
+        main(["check", str(path), "--format", "json", "--series-step", "60", "--waivers",
+              str(DEMO.parent / "approvals" / "fernhollow-approvals.yaml"),
+              "--as-of", "2026-12-01"])
+    doc = json.loads(out.getvalue())
+    assert any(f["basis"] == "declared" for f in doc["findings"])
+    assert doc["waivers"] and any(f["waiver"] for f in doc["findings"])
+    assert not list(_report_schema().iter_errors(doc))

@@ -8,8 +8,10 @@ import json
 from airgate.commands.common import add_output, emit
 from airgate.errors import EXIT_PASS
 
-#: the published schemas: the schedule, a rule pack, a pack test case
-SCHEMAS = ("schedule", "rules", "pack-test")
+#: the published schemas: the schedule, a rule pack, a pack test case, the JSON report
+SCHEMAS = ("schedule", "rules", "pack-test", "report")
+#: schemas kept as files under rules/schema/
+_FILES = {"pack-test": "pack-test.schema.json", "report": "report.schema.json"}
 
 
 def register(sub) -> None:
@@ -34,7 +36,7 @@ def run(args: argparse.Namespace) -> int:
     else:
         from airgate.readers.rulepack import builtin_rules_dir
 
-        path = builtin_rules_dir() / "schema" / "pack-test.schema.json"
+        path = builtin_rules_dir() / "schema" / _FILES[args.which]
         schema = json.loads(path.read_text(encoding="utf-8"))
     emit(args.output, json.dumps(schema, indent=2, ensure_ascii=False, sort_keys=True) + "\n")
     return EXIT_PASS
