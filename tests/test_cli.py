@@ -346,12 +346,19 @@ def test_every_option_the_docs_show_exists():
 
 
 def test_readme_lists_the_choices_the_commands_take():
-    from airgate.commands import template
+    from airgate.commands import rules, template
+    from airgate.evaluation.batch import FAIL_ON
+    from airgate.units import UNIT_SYSTEMS
+    from airgate.writers import plot
     from airgate.writers.formats import FORMATS
 
     readme = (ROOT / "README.md").read_text(encoding="utf-8")
     rows = {m.group(1): m.group(0) for m in re.finditer(r"^\| `airgate (\w+)[^\n]*", readme, re.M)}
     assert {"check", "explain", "import", "plot", "rules", "schema"} <= set(rows)
-    assert all(name in rows["check"] for name in FORMATS)
     bar = "\\|"  # a | inside a Markdown table cell
+    assert all(name in rows["check"] for name in FORMATS)
+    assert "--fail-on " + bar.join(FAIL_ON) in rows["check"]
     assert "--format " + bar.join(template.FORMATS) in rows["import"]
+    assert "--units " + bar.join(UNIT_SYSTEMS) in rows["import"]
+    assert "--format " + bar.join(sorted(set(plot.FORMATS.values()))) in rows["plot"]
+    assert "--format " + bar.join(rules.FORMATS) in rows["rules"]
