@@ -218,6 +218,18 @@ def test_plot_formats_in_help_come_from_the_writer(monkeypatch):
     assert "zz-new" in options["--format"].help and ".zz" in options["-o"].help
 
 
+def test_input_suffixes_in_help_come_from_the_importer_registry(monkeypatch):
+    from airgate.readers import importers
+
+    extra = importers.Importer("zz", (".zz",), "schedule", "read_schedule", "an invented format")
+    monkeypatch.setattr(importers, "IMPORTERS", {**importers.IMPORTERS, "zz": extra})
+    tree = dict(_parsers())
+    for path, dest in ((("check",), "paths"), (("import",), "file"), (("explain",), "file"),
+                       (("plot",), "file")):
+        action = next(a for a in tree[("airgate", *path)]._actions if a.dest == dest)
+        assert ".zz" in action.help and ".xlsx" in action.help, path
+
+
 def test_check_one_report_with_o_equals_the_named_file_form(tmp_path, capsys):
     # --format NAME -o FILE (one report) and --format NAME:FILE (repeatable) write the same file.
     a, b, c = tmp_path / "a.sarif", tmp_path / "b.sarif", tmp_path / "c.json"

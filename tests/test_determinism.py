@@ -3,13 +3,14 @@ the same input gives byte-identical files whatever the environment.
 
 One subprocess per setting (two settings) runs every command that writes a file: every report
 format of ``check`` (one schedule and a run of two), ``explain``, ``rules show`` and ``rules
-diff`` in each of their formats, every schema, ``import`` from every source format (CSV, gbXML,
-and XLSX and IFC built at test time), every ``template`` format and every ``plot`` format. The
-files are compared byte for byte across the settings, which differ in everything that could leak
-into output: hash seed (set and dict order), time zone (clock-derived dates, ZIP entry times),
-locale (adopted with ``setlocale`` as a host program might: decimal comma, the preferred encoding
-of files opened without one) and working folder. The lists of formats are taken from where they
-live, so a new format is covered when it is added.
+diff`` in each of their formats, every schema, ``import`` from every format of the importer
+registry (the demo as YAML, CSV and gbXML, and as XLSX and IFC built at test time), every
+``template`` format and every ``plot`` format. The files are compared byte for byte across the
+settings, which differ in everything that could leak into output: hash seed (set and dict
+order), time zone (clock-derived dates, ZIP entry times), locale (adopted with ``setlocale`` as
+a host program might: decimal comma, the preferred encoding of files opened without one) and
+working folder. The lists of formats are taken from the registries and the lists they live in,
+so a new format is covered when it is added (a new importer needs the demo in its format here).
 """
 
 from __future__ import annotations
@@ -48,6 +49,15 @@ print(json.dumps(runs))
 """
 
 
+def _sources(built: dict[str, Path]) -> dict[str, Path]:
+    """The demo in the format of every importer of the registry."""
+    from airgate.readers.importers import IMPORTERS
+
+    demo = {"schedule": DEMO, "csv": DEMO_CSV, "gbxml": DEMO_GBXML, **built}
+    assert set(demo) == set(IMPORTERS), "give the demo in the new import format here"
+    return demo
+
+
 def _commands(built: dict[str, Path]) -> list[list[str]]:
     """Every command writing into ``out/``; ``built`` holds the demo as XLSX and IFC."""
     from airgate.commands import rules, schema, template
@@ -68,8 +78,8 @@ def _commands(built: dict[str, Path]) -> list[list[str]]:
         out.append(["rules", "diff", "ashrae-62.1-2019", QUILLBY, "--format", f,
                     "-o", f"out/diff.{f}"])
     out += [["schema", s, "-o", f"out/schema-{s}.json"] for s in schema.SCHEMAS]
-    out += [["import", str(src), "-o", f"out/import-{src.suffix[1:]}.yaml"]
-            for src in (DEMO_CSV, DEMO_GBXML, built["xlsx"], built["ifc"])]
+    out += [["import", str(src), "-o", f"out/import-{name}.yaml"]
+            for name, src in _sources(built).items()]
     out += [["template", "--format", f, "-o", f"out/template.{f}"] for f in template.FORMATS]
     out += [["plot", str(DEMO), "--system", "AHU-3", "--format", f, "-o", f"out/plot.{f}"]
             for f in sorted(set(plot.FORMATS.values()))]

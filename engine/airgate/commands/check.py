@@ -13,7 +13,7 @@ import datetime as dt
 import sys
 from pathlib import Path
 
-from airgate.commands.common import add_output, add_rules
+from airgate.commands.common import add_output, add_rules, input_suffixes
 from airgate.errors import (EXIT_FAIL, EXIT_PASS, AirgateError, ErrorGroup, ScheduleError,
                             UsageError, raise_all)
 from airgate.readers import document
@@ -33,9 +33,8 @@ def register(sub) -> None:
                                    "run: --format NAME:FILE, repeated (at most one format "
                                    "without a file goes to standard output).")
     c.add_argument("paths", nargs="+", metavar="PATH",
-                   help="schedule files (.yaml, .yml, .json; also CSV tables STEM.zones.csv, "
-                        ".xlsx, gbXML .xml, .ifc — see docs/importing.md) or folders holding "
-                        "YAML/JSON schedules")
+                   help=f"schedule files ({input_suffixes()}; see docs/importing.md) or "
+                        f"folders holding {', '.join(SCHEDULE_SUFFIXES)} schedules")
     add_rules(c)
     c.add_argument("--format", action="append", metavar="NAME[:FILE]", dest="formats",
                    help=f"report format: {', '.join(FORMATS)} (default: {next(iter(FORMATS))}); "

@@ -8,7 +8,6 @@ shown in help comes from where the list lives, never typed into the help text.
 
 from __future__ import annotations
 
-import sys
 from collections.abc import Sequence
 
 from airgate.errors import UsageError, nearest
@@ -71,11 +70,17 @@ def emit(output: str | None, text: str) -> None:
     write_atomic(output or STDOUT, text)
 
 
+def input_suffixes() -> str:
+    """The file suffixes a schedule is read from, as the importer registry lists them."""
+    from airgate.readers.importers import IMPORTERS
+
+    return ", ".join(s for i in IMPORTERS.values() for s in i.suffixes)
+
+
 def add_subject(parser, system_help: str = "system id") -> None:
     """The schedule FILE, ``--zone ID`` or ``--system ID``, and the pack options (explain, plot)."""
     parser.add_argument("file", metavar="SCHEDULE",
-                        help="schedule file (YAML/JSON, or a table, gbXML or IFC file as "
-                             "'check' reads it)")
+                        help=f"schedule file ({input_suffixes()}; see docs/importing.md)")
     group = parser.add_mutually_exclusive_group(required=True)
     group.add_argument("--zone", metavar="ID", help="zone id")
     group.add_argument("--system", metavar="ID", help=system_help)

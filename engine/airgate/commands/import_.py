@@ -6,7 +6,7 @@ import argparse
 import sys
 from pathlib import Path
 
-from airgate.commands.common import add_output, emit
+from airgate.commands.common import add_output, emit, input_suffixes
 from airgate.errors import EXIT_PASS
 
 
@@ -18,8 +18,8 @@ def register(sub) -> None:
                     "comments say where each value came from. Nothing is written when a room "
                     "or value cannot be read.")
     i.add_argument("file", metavar="FILE",
-                   help="source file (.csv, .xlsx, .xml, .ifc; .yaml/.json are rewritten in the "
-                        "same layout)")
+                   help=f"source file ({input_suffixes()}; a YAML/JSON schedule is rewritten "
+                        "in the same layout)")
     add_output(i, "YAML file to write (default: standard output)")
     i.set_defaults(command="import_")  # the module name ('import' is a Python keyword)
 
