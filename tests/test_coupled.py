@@ -484,3 +484,25 @@ def test_convolution_kernels_match_quadrature(a, b):
                  epsrel=1e-13, limit=200)[0]
     assert float(exp_convolution(a, b, tau)) == pytest.approx(conv, rel=1e-12)
     assert float(exp_convolution_ramp(a, b, tau)) == pytest.approx(conv2, rel=1e-12)
+
+
+def test_system_above_the_size_limit_keeps_its_steady_state_without_a_design_day(evaluate,
+                                                                                   monkeypatch):
+    # The fallback docs/dilution.md documents: above MAX_DISTINCT_RATES a multiple-zone system
+    # is reported without its design-day series (no error, nothing else lost); its steady state
+    # (O(N), no limit) stays. Below the limit the same schedule has the design day.
+    from conftest import schedule
+
+    zones = [{"id": str(i), "space": "office-space", "area": f"{a} ft2", "occupants": p,
+              "height": "9 ft", "air_distribution": "ceiling-supply-cool",
+              "primary_airflow": f"{v} cfm", "profile": "office"}
+             for i, (a, p, v) in enumerate([(2000, 12, 900), (1000, 20, 500), (600, 3, 200)])]
+    data = schedule([{"id": "M", "kind": "multiple-zone", "outdoor_air": "600 cfm",
+                      "ventilation_efficiency": "detailed", "zones": zones}])
+    data["profiles"] = {"office": {"weekday": {"08:00-17:00": 1.0}}}
+    below = evaluate(data).systems[0].zones
+    assert all("C_peak" in z.dilution and z.series is not None for z in below)
+    monkeypatch.setattr(coupled, "MAX_DISTINCT_RATES", 2)
+    above = evaluate(data).systems[0].zones
+    assert all("C_peak" not in z.dilution and z.series is None for z in above)
+    assert [z.dilution.value("C_ss") for z in above] == [z.dilution.value("C_ss") for z in below]
