@@ -358,7 +358,7 @@ def test_every_option_the_docs_show_exists():
 
 
 def test_readme_lists_the_choices_the_commands_take():
-    from airgate.commands import rules, template
+    from airgate.commands import rules, schema, template
     from airgate.evaluation.batch import FAIL_ON
     from airgate.units import UNIT_SYSTEMS
     from airgate.writers import plot
@@ -374,3 +374,5 @@ def test_readme_lists_the_choices_the_commands_take():
     assert "--units " + bar.join(UNIT_SYSTEMS) in rows["import"]
     assert "--format " + bar.join(sorted(set(plot.FORMATS.values()))) in rows["plot"]
     assert "--format " + bar.join(rules.FORMATS) in rows["rules"]
+    assert all(f"`{name}`" in rows["schema"] or f"schema {name}`" in rows["schema"]
+               for name in schema.SCHEMAS)
