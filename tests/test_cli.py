@@ -228,6 +228,10 @@ def test_input_suffixes_in_help_come_from_the_importer_registry(monkeypatch):
                        (("plot",), "file")):
         action = next(a for a in tree[("airgate", *path)]._actions if a.dest == dest)
         assert ".zz" in action.help and ".xlsx" in action.help, path
+    assert "an invented format" in tree[("airgate", "import")].description
+    commands = next(a for a in tree[("airgate",)]._actions
+                    if isinstance(a, argparse._SubParsersAction))
+    assert "zz" in next(a.help for a in commands._choices_actions if a.dest == "import")
 
 
 def test_check_one_report_with_o_equals_the_named_file_form(tmp_path, capsys):

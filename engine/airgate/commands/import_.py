@@ -11,17 +11,23 @@ from airgate.errors import EXIT_PASS
 
 
 def register(sub) -> None:
+    from airgate.readers.importers import DEFAULT, IMPORTERS
+
+    others = [i for i in IMPORTERS.values() if i is not DEFAULT]
     i = sub.add_parser(
-        "import", help="convert CSV/XLSX tables, gbXML or IFC into a YAML schedule",
-        description="Read a schedule from CSV tables (STEM.zones.csv …), an .xlsx workbook, a "
-                    "gbXML .xml file or an .ifc model and write it as a YAML schedule whose "
-                    "comments say where each value came from. Nothing is written when a room "
-                    "or value cannot be read.")
+        "import", help=f"convert a {_or([x.name for x in others])} file into a YAML schedule",
+        description=f"Read a schedule from {_or([x.what for x in others])} and write it as "
+                    "a YAML schedule whose comments say where each value came from. Nothing is "
+                    "written when a room or value cannot be read.")
     i.add_argument("file", metavar="FILE",
                    help=f"source file ({input_suffixes()}; a YAML/JSON schedule is rewritten "
                         "in the same layout)")
     add_output(i, "YAML file to write (default: standard output)")
     i.set_defaults(command="import_")  # the module name ('import' is a Python keyword)
+
+
+def _or(items: list[str]) -> str:
+    return ", ".join(items[:-1]) + f" or {items[-1]}" if len(items) > 1 else "".join(items)
 
 
 def run(args: argparse.Namespace) -> int:
