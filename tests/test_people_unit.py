@@ -49,7 +49,7 @@ def test_a_rate_without_per_person_is_refused_with_the_fix(raw, kind, fix):
     assert fix in str(err.value)
 
 
-@pytest.mark.parametrize("raw", ["30 percent", "0.3 dimensionless", "30 ppm"])
+@pytest.mark.parametrize("raw", ["30 percent", "0.3 dimensionless", "30 ppm", "30 %", "30%"])
 def test_a_share_is_not_a_count_of_people(raw):
     with pytest.raises(units.QuantityError, match="count of people, not a share"):
         units.parse(raw, "people", units.IP)

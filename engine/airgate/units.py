@@ -236,8 +236,11 @@ def _read_text(raw: str, kind: str) -> tuple[float, str]:
                             f"such as {k.example}")
     unit = _normalise(match["unit"], kind) if match["unit"].strip() else ""
     if unit and not unit[0].isalpha():
-        raise QuantityError(f"cannot read {raw!r} as a number followed by a unit; expected a "
-                            f"quantity such as {k.example}")
+        share = kind == "people" and unit.startswith("%")
+        raise QuantityError(f"cannot read {raw!r} as a number followed by a unit; expected "
+                            f"{_article(kind) if share else 'a quantity'} such as {k.example}"
+                            + ("; occupants are a count of people, not a share: give the "
+                               "number of people" if share else ""))
     if unit and not _UNIT_EXPR.match(unit):
         raise QuantityError(f"cannot read the unit of {raw!r} (unit names with powers 2 or 3, "
                             f"joined by '/' or '*'); expected a quantity such as {k.example}")
