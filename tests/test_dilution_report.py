@@ -143,6 +143,36 @@ def test_short_term_averaging_is_reported(evaluate):
     assert t.value("Pz_avg") == pytest.approx(100 * 60 / (3 * 60000 / 620), rel=1e-2)
 
 
+@pytest.mark.parametrize("height", ["3000 ft", "5e6 ft", "1e12 ft"])
+def test_an_averaging_time_longer_than_the_day_is_the_mean_over_whole_days(evaluate, height):
+    # Section 6.2.6.2 (from memory): the population averaged over T. The profile repeats each
+    # day, so over T of k days and r minutes the largest average is (k·one day's sum + the
+    # largest sum of r consecutive minutes) / T (arithmetic, common practice). Here one hour
+    # at 1.0 in 24: a T of days gives about 1/24 of Pz; T = 3·v/Vbz with v = 2000 ft2 · height.
+    data = single({"profile": "brief", "height": height})
+    data["profiles"] = {"brief": {"weekday": {"10:00-11:00": 1.0}}}
+    t = evaluate(data).systems[0].zones[0].dilution
+    minutes = 3 * 2000 * float(height.split()[0]) / 620
+    days, rest = divmod(round(minutes), 1440)
+    expected = 100 * (days * 60 + min(rest, 60)) / round(minutes)
+    assert t.value("T") * 60 == pytest.approx(minutes, rel=1e-9)
+    assert t.value("Pz_avg") == pytest.approx(expected, rel=1e-9)
+
+
+def test_largest_window_mean_against_a_brute_force_sum():
+    # the sliding mean over a repeating day, summed term by term over the tiled profile
+    # (plain Python arithmetic as the independent computation)
+    from airgate.evaluation.dilution import largest_window_mean
+
+    rng = np.random.default_rng(7)
+    day = rng.random(50)
+    for window in (1, 7, 49, 50, 51, 99, 100, 101, 377):
+        tiled = list(day) * (window // 50 + 2)
+        best = max(sum(tiled[i:i + window]) / window for i in range(50))
+        assert largest_window_mean(day, float(window)) == pytest.approx(best, rel=1e-12)
+    assert largest_window_mean(day, float("inf")) == pytest.approx(float(np.mean(day)))
+
+
 def test_zone_without_height_has_no_dilution(evaluate):
     data = single()
     del data["systems"][0]["zones"][0]["height"]
