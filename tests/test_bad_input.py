@@ -245,7 +245,9 @@ def test_missing_file_and_folder(tmp_path, capsys):
 
 def test_node_limit_applies_while_composing(tmp_path, capsys, monkeypatch):
     # A large document is refused before it is held whole in memory: the composer counts too.
-    monkeypatch.setattr(document, "MAX_NODES", 50)
+    from airgate.readers import limits
+
+    monkeypatch.setattr(limits, "MAX_NODES", 50)
     path = tmp_path / "big.yaml"
     path.write_text("schedule: 1\nnotes: [" + ", ".join(["x"] * 100) + "]\n", encoding="utf-8")
     code, _, err = _run(capsys, ["check", str(path)])
@@ -371,3 +373,76 @@ def test_file_size_limit_is_an_input_error(tmp_path):
     run = subprocess.run([sys.executable, "-m", "airgate", "check", str(DEMO)], cwd=ROOT,
                          env=env, capture_output=True, text=True)
     assert run.returncode == 2 and "larger than" in run.stderr and "Traceback" not in run.stderr
+
+
+@pytest.mark.skipif(not Path("/dev/zero").exists(), reason="no /dev/zero on this system")
+def test_a_stream_is_read_only_up_to_the_size_limit(tmp_path, capsys, monkeypatch):
+    # docs/limits.md: a device or pipe has no size to ask, so the limit applies while reading
+    # (/dev/zero never ends: without it the read would run until memory is gone).
+    import os
+    import threading
+
+    from airgate.readers import limits
+
+    monkeypatch.setattr(limits, "MAX_BYTES", 1000)
+    code, out, err = _run(capsys, ["check", "/dev/zero"])
+    assert code == 2 and out == ""
+    assert "/dev/zero: schedule error: file is larger than the 1000 bytes limit" in err
+    fifo = tmp_path / "schedule.yaml"
+    os.mkfifo(fifo)
+
+    def feed():
+        try:
+            with open(fifo, "wb") as w:
+                w.write(b"notes: " + b"x" * 5000 + b"\n")
+        except BrokenPipeError:
+            pass  # the reader stopped at its limit
+
+    writer = threading.Thread(target=feed)
+    writer.start()
+    code, out, err = _run(capsys, ["check", str(fifo)])
+    writer.join(30)
+    assert code == 2 and "file is larger than the 1000 bytes limit" in err
+
+
+def test_the_alias_budget_is_shared_by_the_texts_of_one_file(monkeypatch):
+    # docs/limits.md: the cells of one table file (or the description lines of one gbXML
+    # file) share one alias budget; each text alone stays under it.
+    from airgate.readers import limits
+
+    monkeypatch.setattr(limits, "MAX_ALIAS_VALUES", 25)
+    text = "[&a [x, x, x, x], [*a, *a, *a]]"  # 3 aliases of 5 values: 15 values each
+    assert document.parse_yaml(text, "<cell>", ScheduleError).data[1][2] == ["x"] * 4
+    assert document.parse_yaml(text, "<cell>", ScheduleError)  # a fresh budget each time
+    with limits.shared_alias_budget() as budget:
+        document.parse_yaml(text, "<cell>", ScheduleError)
+        assert budget.values == 15
+        with pytest.raises(ScheduleError, match="aliases expand to more than 25 values"):
+            document.parse_yaml(text, "<cell>", ScheduleError)
+    monkeypatch.setattr(limits, "MAX_ALIAS_BYTES", 50)
+    long = "[&n " + "y" * 20 + ", *n, *n]"  # 40 bytes through aliases: under 50
+    assert document.parse_yaml(long, "<cell>", ScheduleError).data[2] == "y" * 20
+    longer = long[:-1] + ", *n]"
+    with pytest.raises(ScheduleError, match="more than 50 bytes of text") as err:
+        document.parse_yaml(longer, "<cell>", ScheduleError)
+    # located at the alias that passes it (1-based column of the last '*n')
+    assert (err.value.line, err.value.column) == (1, longer.rindex("*n") + 1)
+
+
+def test_alias_byte_limit_is_configurable_by_environment(tmp_path):
+    # docs/limits.md: AIRGATE_MAX_ALIAS_BYTES sets the byte limit for one run
+    import os
+    import subprocess
+    import sys
+
+    from conftest import subprocess_env
+
+    path = tmp_path / "s.yaml"
+    path.write_text("schedule: 1\nproject: {name: &n " + "z" * 300 + ", notes: [*n, *n]}\n",
+                    encoding="utf-8")
+    run = subprocess.run([sys.executable, "-m", "airgate", "check", str(path)],
+                         env=subprocess_env(AIRGATE_MAX_ALIAS_BYTES="500"), capture_output=True,
+                         text=True)
+    assert run.returncode == 2 and "more than 500 bytes of text" in run.stderr
+    assert f"{path}:2:" in run.stderr and "Traceback" not in run.stderr
+    assert os.path.getsize(path) < 500  # the file itself is small

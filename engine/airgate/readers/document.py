@@ -14,6 +14,7 @@ from __future__ import annotations
 import json
 import os
 import re
+import stat
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -21,30 +22,15 @@ from typing import Any
 import yaml
 
 from airgate.errors import AirgateError, Path_
-
-
-def _limit(name: str, default: int) -> int:
-    """A limit from the environment (docs/limits.md), or its default; bad values are ignored."""
-    try:
-        value = int(os.environ.get(name, default))
-    except ValueError:
-        return default
-    return value if value > 0 else default
-
-
-#: Hard limits that keep a hostile document from exhausting memory or the stack; each can be
-#: set by an environment variable of the same name with the AIRGATE_ prefix (docs/limits.md).
-MAX_NODES = _limit("AIRGATE_MAX_NODES", 500_000)
-MAX_DEPTH = _limit("AIRGATE_MAX_DEPTH", 64)
-#: Values reached through aliases (a repeated anchor is expanded at each alias).
-MAX_ALIAS_VALUES = _limit("AIRGATE_MAX_ALIAS_VALUES", 100_000)
-MAX_BYTES = _limit("AIRGATE_MAX_BYTES", 50 * 1024 * 1024)
+from airgate.readers import limits as L  # the limits (docs/limits.md), read when used
+from airgate.readers.limits import (AliasBudget, current_budget, limit_error, read_at_most,
+                                    size_text, utf8_len)
 
 _MERGE_TAG = "tag:yaml.org,2002:merge"
 
 
 class _LimitReached(Exception):
-    """The composer passed :data:`MAX_NODES` or :data:`MAX_DEPTH` (raised with its mark)."""
+    """The composer passed :data:`~airgate.readers.limits.MAX_NODES` or ``MAX_DEPTH`` (raised with its mark)."""
 
     def __init__(self, what: str, mark: yaml.Mark) -> None:
         super().__init__(what)
@@ -59,12 +45,17 @@ class _Rules:
 
     composed: int
     depth: int
+    #: where each alias is written: (id of the parent node, index or id of the key node) → mark
+    alias_marks: dict[tuple[int, int], yaml.Mark]
 
     def compose_node(self, parent: yaml.Node | None, index: Any) -> yaml.Node:
+        if parent is not None and self.check_event(yaml.AliasEvent):
+            key = index if isinstance(index, int) else id(index)
+            self.alias_marks[(id(parent), key)] = self.peek_event().start_mark
         self.composed += 1
-        if self.composed > MAX_NODES:
+        if self.composed > L.MAX_NODES:
             raise _LimitReached("nodes", self.peek_event().start_mark)
-        if self.depth > MAX_DEPTH:
+        if self.depth > L.MAX_DEPTH:
             raise _LimitReached("depth", self.peek_event().start_mark)
         self.depth += 1
         try:
@@ -94,6 +85,7 @@ class _Loader(_Rules, yaml.SafeLoader):
         super().__init__(stream)
         self.composed = 0
         self.depth = 0
+        self.alias_marks = {}
 
 
 try:  # libyaml's scanner and parser (C), with PyYAML's Python composer and constructor
@@ -120,6 +112,7 @@ if _CParser is not None:
             yaml.resolver.Resolver.__init__(self)
             self.composed = 0
             self.depth = 0
+            self.alias_marks = {}
 
     _LOADERS: tuple[type, ...] = (_FastLoader, _Loader)
 else:
@@ -171,39 +164,15 @@ class Document:
         return cls(message, file=self.file, line=line, column=column, field=path, **kw)
 
 
-#: How many levels of a field path a limit error shows (the rest is only counted).
-_SHOWN_LEVELS = 8
-
-
-def _limit_error(error_cls: type[AirgateError], what: str, file: str, path: Path_,
-                 line: int | None = None, column: int | None = None) -> AirgateError:
-    """The error for a document that passes a hard limit, at ``path`` (shown shortened)."""
-    where = f" ({len(path)} levels down)" if len(path) > _SHOWN_LEVELS else ""
-    shown = path[:_SHOWN_LEVELS]
-    if what == "nodes":
-        return error_cls(
-            f"document has more than {MAX_NODES} values; the node limit stops it here{where}",
-            file=file, line=line, column=column, field=shown, hint="split the file")
-    if what == "aliases":
-        return error_cls(
-            f"aliases expand to more than {MAX_ALIAS_VALUES} values (alias expansion?); the "
-            f"node limit stops it here{where}", file=file, line=line, column=column, field=shown,
-            hint="remove YAML aliases that expand to huge trees")
-    return error_cls(
-        f"nesting deeper than {MAX_DEPTH} levels; the depth limit stops it here{where}",
-        file=file, line=line, column=column, field=shown,
-        hint="a schedule or rule pack needs only a few levels; check for a runaway "
-             "or self-referencing structure")
-
-
 class _Builder:
     def __init__(self, doc: Document, loader: yaml.SafeLoader, error_cls: type[AirgateError]):
         self.doc = doc
         self.loader = loader
         self.error_cls = error_cls
         self.count = 0
-        self.expanded = 0
+        self.budget = current_budget() or AliasBudget()
         self.built: set[int] = set()
+        self.alias_at: yaml.Mark | None = None  # the alias being expanded, for limit errors
         self.first_own: dict[int, int] = {}
 
     def fail(self, node: yaml.Node, message: str, path: Path_, hint: str | None = None):
@@ -213,25 +182,41 @@ class _Builder:
             field=path, hint=hint,
         )
 
-    def build(self, node: yaml.Node, path: Path_, depth: int) -> Any:
+    def build(self, node: yaml.Node, path: Path_, depth: int, parent: yaml.Node | None = None,
+              key: int = 0) -> Any:
+        alias = self.loader.alias_marks.get((id(parent), key)) if parent is not None else None
+        if alias is None or self.alias_at is not None:  # the outermost alias is the use site
+            return self._build(node, path, depth)
+        outer, self.alias_at = self.alias_at, alias
+        try:
+            return self._build(node, path, depth)
+        finally:
+            self.alias_at = outer
+
+    def _build(self, node: yaml.Node, path: Path_, depth: int) -> Any:
         self.count += 1
         mark = node.start_mark
-        if id(node) in self.built:  # reached again through an alias
-            self.expanded += 1
+        again = id(node) in self.built  # reached again through an alias
+        if again:
+            self.budget.values += 1
+            if isinstance(node, yaml.ScalarNode):
+                self.budget.bytes += utf8_len(node.value)
         else:
             self.built.add(id(node))
-        if self.count > MAX_NODES or self.expanded > MAX_ALIAS_VALUES:
-            what = "nodes" if self.count > MAX_NODES else "aliases"
-            raise _limit_error(self.error_cls, what, self.doc.file, path,
-                               mark.line + 1, mark.column + 1)
-        if depth > MAX_DEPTH:
-            raise _limit_error(self.error_cls, "depth", self.doc.file, path,
+        what = "nodes" if self.count > L.MAX_NODES else self.budget.over()
+        if what:
+            at = self.alias_at if again and self.alias_at is not None else mark
+            raise limit_error(self.error_cls, what, self.doc.file, path, at.line + 1,
+                              at.column + 1)
+        if depth > L.MAX_DEPTH:
+            raise limit_error(self.error_cls, "depth", self.doc.file, path,
                                mark.line + 1, mark.column + 1)
         self.doc.positions[path] = (mark.line + 1, mark.column + 1)
         if isinstance(node, yaml.MappingNode):
-            return self._mapping(node, path, depth)
+            return self._mapping(node, path, depth, again)
         if isinstance(node, yaml.SequenceNode):
-            return [self.build(item, path + (i,), depth + 1) for i, item in enumerate(node.value)]
+            return [self.build(item, path + (i,), depth + 1, node, i)
+                    for i, item in enumerate(node.value)]
         try:
             value = self.loader.construct_object(node, deep=True)
         except yaml.YAMLError as exc:
@@ -253,7 +238,8 @@ class _Builder:
             self.first_own[id(node)] = len(node.value) - own_count
         return self.first_own[id(node)]
 
-    def _mapping(self, node: yaml.MappingNode, path: Path_, depth: int) -> dict[str, Any]:
+    def _mapping(self, node: yaml.MappingNode, path: Path_, depth: int,
+                 again: bool = False) -> dict[str, Any]:
         first_own = self._flatten(node)
         out: dict[str, Any] = {}
         own: set[str] = set()
@@ -261,6 +247,13 @@ class _Builder:
             if not isinstance(key_node, yaml.ScalarNode):
                 raise self.fail(key_node, "a key must be a plain name, not a list or mapping",
                                 path, hint="write 'name: value'")
+            if again or id(key_node) in self.built:  # a key repeated through an alias
+                self.budget.bytes += utf8_len(key_node.value)
+                if self.budget.over():
+                    at = self.alias_at or key_node.start_mark
+                    raise limit_error(self.error_cls, self.budget.over(), self.doc.file,
+                                      path, at.line + 1, at.column + 1)
+            self.built.add(id(key_node))
             key = self.loader.construct_object(key_node)
             if not isinstance(key, str):
                 key = key_node.value  # as written: 'true', '1', '~'
@@ -277,7 +270,7 @@ class _Builder:
             self.doc.positions[path + (key,)] = (
                 value_node.start_mark.line + 1, value_node.start_mark.column + 1,
             )
-            out[key] = self.build(value_node, path + (key,), depth + 1)
+            out[key] = self.build(value_node, path + (key,), depth + 1, node, id(key_node))
         return out
 
 
@@ -297,22 +290,33 @@ def followable(path: Path | str, error_cls: type[AirgateError]) -> Path:
 
 
 def read_bytes(path: Path, error_cls: type[AirgateError]) -> bytes:
-    """Read a file within the size limit, or raise an error naming it (any reader's first step)."""
+    """Read a file within the size limit, or raise an error naming it (any reader's first step).
+
+    A regular file larger than the limit is refused before it is read; anything else (a pipe,
+    a device such as /dev/zero, standard input) is read only up to one byte past the limit."""
     name = str(path)
     try:
-        raw = Path(path).read_bytes()
+        with open(path, "rb") as handle:
+            info = os.fstat(handle.fileno())
+            if stat.S_ISDIR(info.st_mode):
+                raise IsADirectoryError
+            if stat.S_ISREG(info.st_mode) and info.st_size > L.MAX_BYTES:
+                raise _too_large(name, error_cls)
+            raw = read_at_most(handle, L.MAX_BYTES + 1)
     except FileNotFoundError:
         raise error_cls("file not found", file=name) from None
     except IsADirectoryError:
         raise error_cls("is a directory, expected a file", file=name) from None
     except OSError as exc:
-        raise error_cls(f"cannot read file: {exc.strerror}", file=name) from None
-    if len(raw) > MAX_BYTES:
-        size = (f"{MAX_BYTES // (1024 * 1024)} MiB" if MAX_BYTES >= 1024 * 1024
-                else f"{MAX_BYTES} bytes")
-        raise error_cls(f"file is larger than the {size} limit", file=name,
-                        hint="split the file, or raise AIRGATE_MAX_BYTES (docs/limits.md)")
+        raise error_cls(f"cannot read file: {exc.strerror or exc}", file=name) from None
+    if len(raw) > L.MAX_BYTES:
+        raise _too_large(name, error_cls)
     return raw
+
+
+def _too_large(name: str, error_cls: type[AirgateError]) -> AirgateError:
+    return error_cls(f"file is larger than the {size_text(L.MAX_BYTES)} limit", file=name,
+                     hint="split the file, or raise AIRGATE_MAX_BYTES (docs/limits.md)")
 
 
 def read_text(path: Path, error_cls: type[AirgateError]) -> str:
@@ -424,10 +428,13 @@ def parse_yaml(text: str, file: str, error_cls: type[AirgateError]) -> Document:
     with a tab goes to the reference loader alone: libyaml accepts tabs as separators where
     PyYAML's loader refuses them, and a schedule must read the same on every machine."""
     if len(_LOADERS) > 1 and "\t" not in text:  # libyaml takes tabs PyYAML refuses
+        budget = current_budget()
+        spent = (budget.values, budget.bytes) if budget is not None else None
         try:
             return _parse_with(_LOADERS[0], text, file, error_cls)
         except _SyntaxSeen:
-            pass
+            if budget is not None:  # the reading again spends it again, not twice
+                budget.values, budget.bytes = spent
     try:
         return _parse_with(_Loader, text, file, error_cls)
     except _SyntaxSeen as seen:  # both readings fail: the reference loader's own report
@@ -454,12 +461,12 @@ def _parse_with(loader_cls: type, text: str, file: str,
     except yaml.MarkedYAMLError as exc:
         raise _SyntaxSeen(_syntax_error(exc, text, file, error_cls)) from None
     except _LimitReached as exc:
-        raise _limit_error(error_cls, exc.what, file, path_at_error(text, exc.mark.index),
+        raise limit_error(error_cls, exc.what, file, path_at_error(text, exc.mark.index),
                            exc.mark.line + 1, exc.mark.column + 1) from None
     except yaml.YAMLError as exc:
         raise _SyntaxSeen(error_cls(f"not valid YAML: {exc}", file=file)) from None
     except RecursionError:
-        raise _limit_error(error_cls, "depth", file, ()) from None
+        raise limit_error(error_cls, "depth", file, ()) from None
     finally:
         if loader is not None:
             loader.dispose()
@@ -497,9 +504,9 @@ def _walk_json(data: Any) -> tuple[str, Path_, str] | None:
     while todo:
         value, path = todo.pop()
         count += 1
-        if count > MAX_NODES:
+        if count > L.MAX_NODES:
             return ("nodes", path, "")
-        if len(path) > MAX_DEPTH:
+        if len(path) > L.MAX_DEPTH:
             return ("depth", path, "")
         if isinstance(value, _Constant):
             return ("constant", path, value.name)
@@ -548,7 +555,7 @@ def parse_json(text: str, file: str, error_cls: type[AirgateError]) -> Document:
     except json.JSONDecodeError as exc:
         raise _json_decode_error(exc, text, file, error_cls) from None
     except RecursionError:
-        raise _limit_error(error_cls, "depth", file, ()) from None
+        raise limit_error(error_cls, "depth", file, ()) from None
     problem = _walk_json(data)
     try:
         positions = _json_positions(text, file, error_cls).positions
@@ -561,7 +568,7 @@ def parse_json(text: str, file: str, error_cls: type[AirgateError]) -> Document:
         return doc
     what, path, detail = problem
     if what in ("nodes", "depth"):
-        raise _limit_error(error_cls, what, file, path, *doc.locate(path))
+        raise limit_error(error_cls, what, file, path, *doc.locate(path))
     if what == "duplicate":
         raise doc.error(error_cls, f"duplicate key '{detail}'", path, hint="give each key once")
     raise doc.error(error_cls, f"{detail} is not a number JSON allows", path,

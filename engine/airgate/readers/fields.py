@@ -386,7 +386,8 @@ def flow_value(text: str) -> Any:
     try:
         return parse_yaml(text, "<cell>", ScheduleError).data
     except ScheduleError as exc:
-        raise CellError(f"cannot read {text!r} as a YAML flow value: {exc.message}",
+        shown = text if len(text) <= 60 else text[:57] + "..."
+        raise CellError(f"cannot read {shown!r} as a YAML flow value: {exc.message}",
                         hint="write a mapping as {key: value, key: value} or a list as "
                              "[item, item]") from None
 

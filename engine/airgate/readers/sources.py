@@ -238,8 +238,16 @@ def _under(error_path: Path_, zone_path: Path_) -> bool:
 
 def read_any(path: str | Path) -> LoadedSchedule:
     """Read a schedule from any supported file: YAML/JSON, CSV tables, XLSX, gbXML or IFC,
-    by the importer its suffix names (:data:`airgate.readers.importers.IMPORTERS`)."""
-    path = Path(path)
+    by the importer its suffix names (:data:`airgate.readers.importers.IMPORTERS`). The YAML
+    texts inside one file (flow values in cells, description lines) share one alias budget
+    (airgate.readers.limits)."""
+    from airgate.readers.limits import shared_alias_budget
+
+    with shared_alias_budget():
+        return _read_any(Path(path))
+
+
+def _read_any(path: Path) -> LoadedSchedule:
     suffix = path.suffix.lower()
     if suffix in REFUSED:
         raise ScheduleError(f"{suffix} files cannot be read", file=str(path),

@@ -26,7 +26,8 @@ from typing import Any
 
 from airgate.errors import ScheduleError, nearest
 from airgate.readers import fields as F
-from airgate.readers.document import MAX_BYTES, read_text
+from airgate.readers import limits
+from airgate.readers.document import read_text
 from airgate.readers.sources import Builder, ImportedSchedule, Origin
 
 #: Top-level lists of the schedule besides systems (contaminants, waivers): a table each.
@@ -165,8 +166,8 @@ def read_xlsx(path: str | Path) -> ImportedSchedule:
     if not path.is_file():
         raise ScheduleError("file not found" if not path.exists() else
                             "is a directory, expected a file", file=name)
-    if path.stat().st_size > MAX_BYTES:
-        raise ScheduleError(f"file is larger than {MAX_BYTES // (1024 * 1024)} MiB", file=name)
+    if path.stat().st_size > limits.MAX_BYTES:
+        raise ScheduleError(f"file is larger than {limits.MAX_BYTES // (1024 * 1024)} MiB", file=name)
     try:
         book = openpyxl.load_workbook(path, read_only=True, data_only=False, keep_links=False)
     except Exception as exc:  # zip, XML or format problems all mean "not a workbook"
