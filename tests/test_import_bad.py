@@ -203,3 +203,79 @@ def test_csv_file_not_named_as_a_table(tmp_path, capsys):
     path.write_text("Zone,Area\n101,100\n", encoding="utf-8")
     code, _, err = _run(capsys, ["check", str(path)])
     assert code == 2 and "a CSV schedule is a set of tables named STEM.project.csv" in err
+
+
+# --- XLSX: workbooks whose size on disk hides the work of reading them --------------------------
+
+def _rewrite_sheet(src: Path, dst: Path, part_of_zones, change) -> Path:
+    """The workbook ``src`` with the Zones sheet's XML changed by ``change`` (bytes → bytes)."""
+    import zipfile
+
+    with zipfile.ZipFile(src) as zin, zipfile.ZipFile(dst, "w", zipfile.ZIP_DEFLATED) as zout:
+        for info in zin.infolist():
+            data = zin.read(info.filename)
+            zout.writestr(info, change(data) if info.filename == part_of_zones else data)
+    return dst
+
+
+def _zones_part(openpyxl, path: Path) -> str:
+    book = openpyxl.load_workbook(path, read_only=True)
+    try:
+        return book["Zones"]._worksheet_path  # the sheet's part in the archive
+    finally:
+        book.close()
+
+
+def _cell(ref: str, text: str) -> bytes:
+    row = "".join(ch for ch in ref if ch.isdigit())
+    return (f'<row r="{row}"><c r="{ref}" t="inlineStr"><is><t>{text}</t></is></c></row>'
+            "</sheetData>").encode()
+
+
+HOSTILE_XLSX = [
+    # (what, change of the Zones sheet XML, exit code, texts of the message)
+    ("a declared size of A1:XFD99999 and an empty styled cell there is read as its content",
+     lambda d: re.sub(rb'<dimension ref="[^"]*"\s*/>', b'<dimension ref="A1:XFD99999"/>', d)
+     .replace(b"</sheetData>", b'<row r="99999"><c r="XFD99999" s="0"/></row></sheetData>'),
+     1, []),
+    ("a cell of 40,000 characters (inline string)",
+     lambda d: d.replace(b"</sheetData>", _cell("B40", "A" * 40_000)),
+     2, ["[Zones]:40:2: schedule error: cell B40 holds more than 32,767 characters"]),
+    ("a value beyond column 200",
+     lambda d: d.replace(b"</sheetData>", _cell("KZ40", "x")),
+     2, ["[Zones]:40:312: schedule error: more than 200 columns: cell KZ40 holds a value"]),
+    ("a value beyond row 100,000",
+     lambda d: d.replace(b"</sheetData>", _cell("A100001", "x")),
+     2, ["[Zones]:100001:1: schedule error: more than 100000 rows: cell A100001"]),
+    ("a document type declaration (entities)",
+     lambda d: b'<!DOCTYPE worksheet [<!ENTITY a "aaaa">]>' + d,
+     2, ["[Zones]: schedule error: the workbook declares a document type (DTD)"]),
+]
+
+
+@pytest.mark.parametrize("what, change, code, texts", HOSTILE_XLSX,
+                         ids=[c[0] for c in HOSTILE_XLSX])
+def test_hostile_workbook_is_read_within_its_limits(demo_xlsx, openpyxl, tmp_path, capsys, what,
+                                                    change, code, texts):
+    # docs/limits.md, workbooks: the parts are checked by a streaming scan before openpyxl
+    # reads them; the declared dimension is not trusted
+    path = _rewrite_sheet(demo_xlsx, tmp_path / "hostile.xlsx", _zones_part(openpyxl, demo_xlsx),
+                          change)
+    got, out, err = _run(capsys, ["check", str(path)])
+    assert got == code, err
+    assert "Traceback" not in err
+    for text in texts:
+        assert f"{path}{text}" in err, err
+    if code == 1:
+        assert "14 rooms read" not in err and "Fernhollow" in out  # read as the demo
+
+
+def test_workbook_unpacking_past_the_limit_is_refused(demo_xlsx, openpyxl, tmp_path, capsys,
+                                                      monkeypatch):
+    from airgate.readers import limits
+
+    monkeypatch.setattr(limits, "MAX_UNPACKED_BYTES", 20_000)  # the demo unpacks to more
+    code, _, err = _run(capsys, ["check", str(demo_xlsx)])
+    assert code == 2 and "Traceback" not in err
+    assert f"{demo_xlsx}: schedule error: the workbook's parts unpack to " in err
+    assert "more than the 20000 bytes limit" in err

@@ -35,6 +35,8 @@ MAX_DEPTH = _limit("AIRGATE_MAX_DEPTH", 64)
 MAX_ALIAS_VALUES = _limit("AIRGATE_MAX_ALIAS_VALUES", 100_000)
 MAX_ALIAS_BYTES = _limit("AIRGATE_MAX_ALIAS_BYTES", 10 * 1024 * 1024)
 MAX_BYTES = _limit("AIRGATE_MAX_BYTES", 50 * 1024 * 1024)
+#: Bytes the parts of one XLSX workbook may unpack to (readers/workbook_guard.py).
+MAX_UNPACKED_BYTES = _limit("AIRGATE_MAX_UNPACKED_BYTES", 256 * 1024 * 1024)
 
 
 def size_text(n: int) -> str:

@@ -26,7 +26,7 @@ from typing import Any
 
 from airgate.errors import ScheduleError, nearest
 from airgate.readers import fields as F
-from airgate.readers import limits
+from airgate.readers import limits, workbook_guard
 from airgate.readers.document import read_text
 from airgate.readers.sources import Builder, ImportedSchedule, Origin
 
@@ -167,7 +167,10 @@ def read_xlsx(path: str | Path) -> ImportedSchedule:
         raise ScheduleError("file not found" if not path.exists() else
                             "is a directory, expected a file", file=name)
     if path.stat().st_size > limits.MAX_BYTES:
-        raise ScheduleError(f"file is larger than {limits.MAX_BYTES // (1024 * 1024)} MiB", file=name)
+        raise ScheduleError(f"file is larger than the {limits.size_text(limits.MAX_BYTES)} "
+                            "limit", file=name,
+                            hint="split the file, or raise AIRGATE_MAX_BYTES (docs/limits.md)")
+    extents = workbook_guard.check(path, name, MAX_ROWS, MAX_COLUMNS)
     try:
         book = openpyxl.load_workbook(path, read_only=True, data_only=False, keep_links=False)
     except Exception as exc:  # zip, XML or format problems all mean "not a workbook"
@@ -189,7 +192,7 @@ def read_xlsx(path: str | Path) -> ImportedSchedule:
                 raise ScheduleError(f"two sheets are named {title!r}", file=f"{name}[{title}]",
                                     hint="give each table one sheet")
             tables[key] = _sheet_table(book[title], key, f"{name}[{title}]",
-                                       f"{path.name}[{title}]")
+                                       f"{path.name}[{title}]", extents.get(title))
     except ScheduleError:
         raise
     except Exception as exc:
@@ -208,9 +211,17 @@ def read_xlsx(path: str | Path) -> ImportedSchedule:
     return loaded
 
 
-def _sheet_table(sheet, key: str, file: str, source: str) -> Table:
+def _sheet_table(sheet, key: str, file: str, source: str,
+                 extent: workbook_guard.Extent | None) -> Table:
+    """The sheet's cells, read up to the last row and column holding content (the sheet's
+    declared dimension is not trusted; without a scanned extent, up to the limits)."""
     rows: list[list[Cell]] = []
-    for r, row in enumerate(sheet.iter_rows(), start=1):
+    if extent is None:
+        extent = workbook_guard.Extent(MAX_ROWS + 1, MAX_COLUMNS + 1)
+    if not extent.rows:
+        return Table(key, file, source, rows)
+    cells = sheet.iter_rows(min_row=1, min_col=1, max_row=extent.rows, max_col=extent.columns)
+    for r, row in enumerate(cells, start=1):
         if r > MAX_ROWS:
             raise ScheduleError(f"more than {MAX_ROWS} rows; the row limit stops it here",
                                 file=file, line=r, hint="split the table")
