@@ -202,3 +202,54 @@ def test_write_all_keeps_regular_files_when_a_stream_fails(tmp_path):
     assert list(tmp_path.iterdir()) == []
     assert output.is_stream("-") and output.is_stream("/dev/stdout")
     assert not output.is_stream(tmp_path / "new.json")
+
+
+# --- JSON and SARIF are written zone by zone and result by result ------------------------------
+
+def test_lazy_json_is_the_standard_indented_dump():
+    # Python's json module (json.dumps, indent=2) as the outside reference
+    import json
+
+    data = output.Streamed(a=output.Lazy([]), b=output.Streamed(), c=output.Lazy(iter(
+        [{}, [], 1.5, "x\ny ü", {"k": [1, {"z": None}]}, output.Streamed(n=output.Lazy([2]))])))
+    ref = {"a": [], "b": {}, "c": [{}, [], 1.5, "x\ny ü", {"k": [1, {"z": None}]}, {"n": [2]}]}
+    assert "".join(output.json_chunks(data)) == json.dumps(ref, indent=2,
+                                                           ensure_ascii=False) + "\n"
+
+
+@pytest.mark.parametrize("fmt", ["json", "sarif"])
+def test_json_and_sarif_make_each_zone_and_result_while_writing(fmt, tmp_path, monkeypatch):
+    # bounded memory: after the first pieces are written, only the first zones (or results)
+    # have been made; the whole text equals the plain data dumped at once
+    import json
+
+    from airgate import check
+    from airgate.evaluation.batch import gather
+    from airgate.writers import formats, json_report, sarif
+
+    report = check(DEMO)
+    batch = gather([report, check(DEMO)], [], "fail")
+    made = []
+    name = "_zone" if fmt == "json" else "_result"
+    module = json_report if fmt == "json" else sarif
+    original = getattr(module, name)
+
+    def counting(*args, **kw):
+        made.append(1)
+        return original(*args, **kw)
+
+    monkeypatch.setattr(module, name, counting)
+    pieces = iter(formats.stream(fmt, batch))
+    text = []
+    for piece in pieces:  # up to the first zone (result) written
+        text.append(piece)
+        if made:
+            break
+    total = (sum(len(s.zones) for r in batch.reports for s in r.systems) if fmt == "json"
+             else sum(len(r.findings) for r in batch.reports))
+    assert len(made) == 1 < total
+    text += list(pieces)
+    assert len(made) == total
+    monkeypatch.setattr(module, name, original)
+    plain = (json_report._batch_dict(batch, 0) if fmt == "json" else sarif.to_dict(batch))
+    assert "".join(text) == json.dumps(plain, indent=2, ensure_ascii=False) + "\n"

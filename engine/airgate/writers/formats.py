@@ -35,9 +35,11 @@ class ReportFormat:
 
 
 def _whole_run(module: str) -> Callable[[Batch, int], Body]:
-    """A writer whose ``render(batch)`` writes one document for the whole run."""
+    """A writer that writes one document for the whole run: its ``chunks(batch)`` (pieces
+    made while they are written) where it has one, else its ``render(batch)``."""
     def write(batch: Batch, series_step: int = 0) -> Body:
-        return importlib.import_module(f"airgate.writers.{module}").render(batch)
+        writer = importlib.import_module(f"airgate.writers.{module}")
+        return writer.chunks(batch) if hasattr(writer, "chunks") else writer.render(batch)
     return write
 
 

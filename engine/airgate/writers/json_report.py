@@ -16,7 +16,7 @@ from airgate.evaluation.findings import Amount, Finding
 from airgate.evaluation.report import Report, SystemResult, ZoneResult
 from airgate.evaluation.waivers import WaiverStatus
 from airgate.evaluation.trail import Step, Trail
-from airgate.writers.output import json_chunks, json_text
+from airgate.writers.output import Lazy, Streamed, json_chunks, json_text
 
 REPORT_VERSION = 1
 
@@ -91,13 +91,15 @@ def _zone(z: ZoneResult, system: str, step_minutes: int = 0) -> dict[str, Any]:
     }
 
 
-def _system(s: SystemResult, system: str, step_minutes: int = 0) -> dict[str, Any]:
-    return {
-        "id": s.id, "name": s.name, "kind": s.kind, "verdict": s.verdict,
-        "ventilation_efficiency_method": s.method, "critical_zone": s.critical_zone,
-        "values": _values(s.trail, system), "location": _location(s.location),
-        "trail": _trail(s.trail, system), "zones": [_zone(z, system, step_minutes) for z in s.zones],
-    }
+def _system(s: SystemResult, system: str, step_minutes: int = 0,
+            lazy: bool = False) -> dict[str, Any]:
+    zones = (_zone(z, system, step_minutes) for z in s.zones)
+    return (Streamed if lazy else dict)(
+        id=s.id, name=s.name, kind=s.kind, verdict=s.verdict,
+        ventilation_efficiency_method=s.method, critical_zone=s.critical_zone,
+        values=_values(s.trail, system), location=_location(s.location),
+        trail=_trail(s.trail, system), zones=Lazy(zones) if lazy else list(zones),
+    )
 
 
 def _location(loc) -> dict[str, Any]:
@@ -131,9 +133,17 @@ def waiver_status(s: WaiverStatus) -> dict[str, Any]:
 
 
 def to_dict(report: Report, series_step: int = 0) -> dict[str, Any]:
+    """The JSON report as plain data."""
+    return _report(report, series_step, lazy=False)
+
+
+def _report(report: Report, series_step: int, lazy: bool) -> dict[str, Any]:
+    """The report; ``lazy``: systems, zones and findings are made while they are written
+    (output.Lazy), so memory holds one zone at a time, not the whole portfolio."""
     system = report.units
     pack = report.pack
-    return {
+    listed = Lazy if lazy else list
+    return (Streamed if lazy else dict)({
         "report_version": REPORT_VERSION,
         "generator": f"airgate {__version__}",
         "verdict": report.verdict,
@@ -144,18 +154,18 @@ def to_dict(report: Report, series_step: int = 0) -> dict[str, Any]:
                   "verify": pack.verify},
         "summary": {**report.counts(), "declared": report.declared_count(),
                     "waived": report.waived_count()},
-        "systems": [_system(s, system, series_step) for s in report.systems],
-        "findings": [_finding(f, system) for f in report.findings],
+        "systems": listed(_system(s, system, series_step, lazy) for s in report.systems),
+        "findings": listed(_finding(f, system) for f in report.findings),
         "waivers": [waiver_status(s) for s in report.waivers],
         "waivers_judged_on": report.waiver_date,
         "notes": list(report.notes),
         "cautions": list(report.cautions),
-    }
+    })
 
 
 def chunks(report: Report, series_step: int = 0) -> Iterator[str]:
-    """:func:`render` piece by piece (the report data is built at once, the text lazily)."""
-    return json_chunks(to_dict(report, series_step))
+    """:func:`render` piece by piece, each zone's data made as it is written."""
+    return json_chunks(_report(report, series_step, lazy=True))
 
 
 def render(report: Report, series_step: int = 0) -> str:
@@ -172,20 +182,21 @@ def render_batch(batch, series_step: int = 0) -> str:
 
 
 def batch_chunks(batch, series_step: int = 0) -> Iterator[str]:
-    """:func:`render_batch` piece by piece."""
-    return json_chunks(_batch_dict(batch, series_step))
+    """:func:`render_batch` piece by piece, each zone's data made as it is written."""
+    return json_chunks(_batch_dict(batch, series_step, lazy=True))
 
 
-def _batch_dict(batch, series_step: int) -> dict[str, Any]:
-    out = {
+def _batch_dict(batch, series_step: int, lazy: bool = False) -> dict[str, Any]:
+    reports = (_report(r, series_step, lazy) for r in batch.reports)
+    out = (Streamed if lazy else dict)({
         "batch_version": BATCH_VERSION,
         "generator": f"airgate {__version__}",
         "verdict": batch.verdict,
         "summary": {"schedules": len(batch.reports),
                     "failing_schedules": sum(r.verdict == "fail" for r in batch.reports),
                     **batch.counts()},
-        "reports": [to_dict(r, series_step) for r in batch.reports],
+        "reports": Lazy(reports) if lazy else list(reports),
         "waivers": [waiver_status(s) for s in batch.waivers],
         "cautions": batch.cautions(),
-    }
+    })
     return out

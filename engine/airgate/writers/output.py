@@ -61,11 +61,58 @@ class Interrupted(BaseException):
         return 128 + self.signum
 
 
+class Lazy:
+    """A JSON list whose items are produced one at a time while it is written (by
+    :func:`json_chunks`), so a list of 60,000 zones is never held whole."""
+
+    __slots__ = ("items",)
+
+    def __init__(self, items: Iterable[object]) -> None:
+        self.items = items
+
+
+class Streamed(dict):
+    """A JSON object written key by key, whose values may be :class:`Lazy` lists or other
+    streamed objects. Any other value is encoded whole."""
+
+
+_ENCODER = json.JSONEncoder(indent=2, ensure_ascii=False, allow_nan=False)
+
+
 def json_chunks(data: object) -> Iterator[str]:
     """The pieces of ``json.dumps(data, indent=2, ensure_ascii=False, allow_nan=False)`` and a
-    final newline: the indented form, byte for byte, produced piece by piece."""
-    yield from json.JSONEncoder(indent=2, ensure_ascii=False, allow_nan=False).iterencode(data)
+    final newline: the indented form, byte for byte, produced piece by piece. :class:`Lazy`
+    lists and :class:`Streamed` objects in ``data`` are produced while they are written: memory
+    holds one item of a lazy list at a time."""
+    if isinstance(data, (Lazy, Streamed)):
+        yield from _streamed(data, 0)
+    else:
+        yield from _ENCODER.iterencode(data)
     yield "\n"
+
+
+def _streamed(value: object, level: int) -> Iterator[str]:
+    """``value`` indented as at ``level``, as json.dumps(indent=2) writes it there."""
+    inner = "\n" + "  " * (level + 1)
+    if isinstance(value, Streamed):
+        if not value:
+            yield "{}"
+            return
+        sep = "{"
+        for key, item in value.items():
+            yield sep + inner + json.dumps(key, ensure_ascii=False) + ": "
+            sep = ","
+            yield from _streamed(item, level + 1)
+        yield "\n" + "  " * level + "}"
+    elif isinstance(value, Lazy):
+        sep = "["
+        for item in value.items:
+            yield sep + inner
+            sep = ","
+            yield from _streamed(item, level + 1)
+        yield "[]" if sep == "[" else "\n" + "  " * level + "]"
+    else:  # a JSON string holds no raw line break, so indenting every line is exact
+        yield _ENCODER.encode(value).replace("\n", "\n" + "  " * level)
 
 
 def json_text(data: object) -> str:

@@ -13,7 +13,9 @@ tool notifications. A limit the schedule declares for itself is a result with
 from __future__ import annotations
 
 import hashlib
+import itertools
 import re
+from collections.abc import Iterator
 from pathlib import PurePath
 from typing import Any
 from urllib.parse import quote
@@ -25,7 +27,7 @@ from airgate.evaluation.findings import Finding, Location
 from airgate.evaluation.report import SAFETY_CAUTION, Report
 from airgate.evaluation.waivers import SCHEDULE, WaiverStatus
 from airgate.writers import shared
-from airgate.writers.output import json_text
+from airgate.writers.output import Lazy, Streamed, json_chunks, json_text
 
 SCHEMA_URI = "https://docs.oasis-open.org/sarif/sarif/v2.1.0/errata01/os/schemas/sarif-schema-2.1.0.json"
 LEVEL = {"fail": "error", "warning": "warning", "info": "note"}
@@ -168,41 +170,53 @@ def _artifacts(batch: Batch) -> list[str]:
 
 
 def to_dict(batch: Batch) -> dict[str, Any]:
+    """The SARIF log as plain data."""
+    return _log(batch, lazy=False)
+
+
+def _log(batch: Batch, lazy: bool) -> dict[str, Any]:
+    """The log; ``lazy``: each result is made while it is written (output.Lazy), so memory
+    holds one result at a time however many findings the run has."""
     rules = _rules(batch)
     rule_index = {r["id"]: i for i, r in enumerate(rules)}
     files = _artifacts(batch)
     artifacts = {f: i for i, f in enumerate(files)}
     level = _declared_level(batch)
-    results = [_result(r, f, rule_index, artifacts, level) for r in batch.reports
-               for f in r.code_findings]
-    results += [_result(r, f, rule_index, artifacts, level) for r in batch.reports
-                for f in r.declared_findings]  # the declared limits after every code finding
+    results = itertools.chain(
+        (_result(r, f, rule_index, artifacts, level) for r in batch.reports
+         for f in r.code_findings),
+        (_result(r, f, rule_index, artifacts, level) for r in batch.reports
+         for f in r.declared_findings))  # the declared limits after every code finding
     stale = batch.stale_waivers()
-    return {
-        "$schema": SCHEMA_URI,
-        "version": "2.1.0",
-        "runs": [{
-            "tool": {"driver": {
-                "name": "airgate", "version": __version__, "semanticVersion": __version__,
-                "fullName": f"airgate {__version__} ventilation schedule checker",
-                "rules": rules, "notifications": NOTIFICATIONS}},
-            "invocations": [{
-                "executionSuccessful": True,
-                "toolExecutionNotifications": [_notification(s, artifacts) for s in stale]}],
-            "artifacts": [{"location": {"uri": uri(f)}} for f in files],
-            "columnKind": "unicodeCodePoints",
-            "results": results,
-            "properties": {
-                "schedules": [{"file": _s(r.schedule_file), "project": _s(r.project_name),
-                               "rulePack": r.pack.id, "units": r.units, "verdict": r.verdict,
-                               "waiversJudgedOn": r.waiver_date}
-                              for r in batch.reports],
-                "verdict": batch.verdict,
-                "cautions": [_s(c) for c in batch.cautions()]},
-        }],
-    }
+    obj = Streamed if lazy else dict
+    run = obj({
+        "tool": {"driver": {
+            "name": "airgate", "version": __version__, "semanticVersion": __version__,
+            "fullName": f"airgate {__version__} ventilation schedule checker",
+            "rules": rules, "notifications": NOTIFICATIONS}},
+        "invocations": [{
+            "executionSuccessful": True,
+            "toolExecutionNotifications": [_notification(s, artifacts) for s in stale]}],
+        "artifacts": [{"location": {"uri": uri(f)}} for f in files],
+        "columnKind": "unicodeCodePoints",
+        "results": Lazy(results) if lazy else list(results),
+        "properties": {
+            "schedules": [{"file": _s(r.schedule_file), "project": _s(r.project_name),
+                           "rulePack": r.pack.id, "units": r.units, "verdict": r.verdict,
+                           "waiversJudgedOn": r.waiver_date}
+                          for r in batch.reports],
+            "verdict": batch.verdict,
+            "cautions": [_s(c) for c in batch.cautions()]},
+    })
+    return obj({"$schema": SCHEMA_URI, "version": "2.1.0",
+                "runs": Lazy([run]) if lazy else [run]})
 
 
 def render(batch: Batch) -> str:
     """The SARIF log (UTF-8 JSON, 2-space indent, final newline)."""
     return json_text(to_dict(batch))
+
+
+def chunks(batch: Batch) -> Iterator[str]:
+    """:func:`render` piece by piece, each result made as it is written."""
+    return json_chunks(_log(batch, lazy=True))
