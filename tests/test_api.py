@@ -52,6 +52,18 @@ def test_the_page_example_runs(monkeypatch):
     assert result.failed == 0
 
 
+def test_waivers_as_the_cli(capsys, monkeypatch):
+    import datetime
+
+    monkeypatch.chdir(ROOT)
+    approvals = "fixtures/demo/approvals/fernhollow-approvals.yaml"
+    _, out, _ = _cli(capsys, "check", DEMO_ARG, "--format", "json", "--waivers", approvals,
+                     "--as-of", "2026-12-01")
+    report = airgate.check(DEMO_ARG, waivers=airgate.load_waivers(approvals),
+                           as_of=datetime.date(2026, 12, 1))
+    assert report.to_dict() == json.loads(out)
+
+
 def test_evaluate_in_steps_equals_check(monkeypatch):
     monkeypatch.chdir(ROOT)
     loaded = airgate.load_schedule(DEMO_ARG)
@@ -122,7 +134,7 @@ def test_import_airgate_loads_nothing_else():
 
 
 def test_the_public_names():
-    assert {"load_schedule", "load_pack", "evaluate", "check", "Report",
+    assert {"load_schedule", "load_pack", "load_waivers", "evaluate", "check", "Report",
             "AirgateError"} <= set(airgate.__all__)
     with pytest.raises(AttributeError):
         airgate.no_such_name  # noqa: B018

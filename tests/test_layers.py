@@ -30,10 +30,6 @@ ALLOWED: dict[str, set[str]] = {
     "commands": {"procedures", "models", "evaluation", "readers", "writers", "api"},
     "cli": {"procedures", "models", "evaluation", "readers", "writers", "api", "commands"},
 }
-#: names the package itself exports lazily, and the layer they come from (airgate/__init__.py)
-PACKAGE_NAMES = {"load_schedule": "api", "load_pack": "api", "evaluate": "api", "check": "api",
-                 "Report": "api", "AirgateError": "base", "ErrorGroup": "base",
-                 "__version__": "base"}
 
 
 def _layer(dotted: str) -> str:
@@ -45,6 +41,17 @@ def _layer(dotted: str) -> str:
     if top in ("cli", "__main__"):
         return "cli"
     return top
+
+
+def _package_names() -> dict[str, str]:
+    """Names the package itself exports lazily (airgate/__init__.py), and their layers."""
+    import airgate
+
+    return {"__version__": "base",
+            **{name: _layer(module) for name, module in airgate._LAZY.items()}}
+
+
+PACKAGE_NAMES = _package_names()
 
 
 def _imports(path: Path) -> list[tuple[int, str]]:

@@ -33,6 +33,7 @@ _LAZY = {
     "load_pack": "airgate.api.core",
     "evaluate": "airgate.api.core",
     "check": "airgate.api.core",
+    "load_waivers": "airgate.api.core",
     "Report": "airgate.api.core",
     "AirgateError": "airgate.errors",
     "ErrorGroup": "airgate.errors",

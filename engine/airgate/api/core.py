@@ -55,6 +55,15 @@ def load_schedule(path: str | Path) -> LoadedSchedule:
     return read_any(path)
 
 
+def load_waivers(path: str | Path) -> list[WaiverEntry]:
+    """Read a waivers file (``--waivers``, docs/report-format.md): its entries, for the
+    ``waivers`` argument of :func:`check` and :func:`evaluate`."""
+    from airgate.evaluation.waivers import from_file
+    from airgate.readers.waivers import read_waivers
+
+    return from_file(read_waivers(path))
+
+
 def load_pack(id_or_path: str | Path, search: Search = None, *,
               options: Mapping[str, str] | None = None) -> RulePack:
     """Load a rule pack by built-in id (``ashrae-62.1-2019``) or file path, validated and built.

@@ -170,9 +170,8 @@ def _evaluate(files: list[str], args, entries, as_of):
 
 
 def run(args: argparse.Namespace) -> int:
-    from airgate.evaluation import waivers as waiver_rules
+    from airgate.api.core import load_waivers
     from airgate.evaluation.batch import gather
-    from airgate.readers.waivers import read_waivers
     from airgate.writers import formats, output
 
     if args.series_step < 0:
@@ -184,7 +183,7 @@ def run(args: argparse.Namespace) -> int:
     if any(document.followable(f, ScheduleError) in written for f in [*files, *args.waivers]):
         raise UsageError("a report would overwrite one of the schedules or waivers files "
                          "read", field=("--format",))
-    entries = [e for w in args.waivers for e in waiver_rules.from_file(read_waivers(w))]
+    entries = [e for w in args.waivers for e in load_waivers(w)]
     reports = _evaluate(files, args, entries, as_of)
     batch = gather(reports, entries, args.fail_on)
     # every regular file of the run appears together or not at all; streams (standard
