@@ -186,7 +186,7 @@ def test_format_output_and_rules_options_are_spelled_alike_everywhere():
 
 @pytest.mark.parametrize("module, name, path, option", [
     ("airgate.writers.formats", "FORMATS", ("check",), "--format"),
-    ("airgate.evaluation.batch", "FAIL_ON", ("check",), "--fail-on"),
+    ("airgate.evaluation.gate", "FAIL_ON", ("check",), "--fail-on"),
     ("airgate.commands.rules", "FORMATS", ("rules", "show"), "--format"),
     ("airgate.commands.rules", "FORMATS", ("rules", "diff"), "--format"),
     ("airgate.commands.template", "FORMATS", ("template",), "--format"),

@@ -24,7 +24,7 @@ SCHEDULE_SUFFIXES = IMPORTERS["schedule"].suffixes
 
 
 def register(sub) -> None:
-    from airgate.evaluation.batch import FAIL_ON
+    from airgate.evaluation.gate import FAIL_ON
     from airgate.writers.formats import FORMATS
 
     c = sub.add_parser("check", help="evaluate schedules and report findings",

@@ -10,11 +10,12 @@ from __future__ import annotations
 
 import io
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from airgate.errors import UsageError
-from airgate.evaluation.report import Report, SystemResult, ZoneResult
-from airgate.writers.output import write_atomic
-from airgate.writers.text import clean
+
+if TYPE_CHECKING:  # the command line reads FORMATS without loading the engine
+    from airgate.evaluation.report import Report, SystemResult, ZoneResult
 
 FORMATS = {".png": "png", ".svg": "svg"}
 
@@ -46,6 +47,9 @@ def plot(report: Report, system: SystemResult, zones: list[ZoneResult], output: 
     """Draw CO2 against time of day for ``zones``, with limit and occupancy, to ``output``
     in picture format ``fmt`` (one of the values of :data:`FORMATS`; default: from the file's
     extension)."""
+    from airgate.writers.output import write_atomic
+    from airgate.writers.text import clean
+
     suffix = Path(output).suffix.lower()
     if fmt is None and suffix not in FORMATS:
         raise UsageError(f"cannot tell the picture format from '{output}'",
