@@ -140,3 +140,45 @@ def test_extended_ev_table_equals_the_new_york_state_code():
 def test_ev_table_rows_equal_the_new_york_state_code_up_to_0_55():
     method = load_pack("ashrae-62.1-2019-ev-table").methods["table"]
     assert method.rows == NYS_EV[:5] and method.above_last == "detailed"
+
+
+def _count_from_file(pack_id: str) -> dict[str, int]:
+    """Values by provenance counted from the pack file itself (YAML, not the loader): each row's
+    Rp, Ra, density (where not null) and air class, each Ez, each number of an Ev method."""
+    import yaml
+
+    from airgate.readers.rulepack import builtin_rules_dir
+
+    data = yaml.safe_load((builtin_rules_dir() / f"{pack_id}.yaml").read_text(encoding="utf-8"))
+    counts: dict[str, int] = {}
+    occ = data["occupancy"]
+    for row in occ["categories"]:
+        own = row.get("provenance", occ.get("provenance", data["provenance"]))
+        for name in ("Rp", "Ra", "density", "air_class"):
+            if name == "density" and row["density"] is None:
+                continue
+            p = row.get("value_provenance", {}).get(name, own)
+            counts[p] = counts.get(p, 0) + 1
+    air = data["air_distribution"]
+    for row in air["configurations"]:
+        p = row.get("provenance", air["provenance"])
+        counts[p] = counts.get(p, 0) + 1
+    for method in data.get("ventilation_efficiency", {}).get("methods", {}).values():
+        n = sum(k in method for k in ("breakpoint", "slope", "intercept", "above_breakpoint",
+                                      "vav_minimum_primary_ratio"))
+        if n:
+            counts[method["provenance"]] = counts.get(method["provenance"], 0) + n
+    return counts
+
+
+@pytest.mark.parametrize("pack_id", ["ashrae-62.1-2019", "ashrae-62.1-2019-si"])
+def test_rules_show_ends_with_the_count_of_values_by_provenance(capsys, pack_id):
+    from airgate.cli import main
+
+    assert main(["rules", "show", pack_id]) == 0
+    last = capsys.readouterr().out.rstrip().splitlines()[-1]
+    counts = _count_from_file(pack_id)
+    assert last.startswith("Values by provenance: ")
+    for provenance, n in counts.items():
+        assert f"{n} {provenance}" in last
+    assert f"(of {sum(counts.values())})" in last
