@@ -90,6 +90,21 @@ def test_dash_is_standard_output(capsys):
     assert "at most one format can go to standard output" in capsys.readouterr().err
 
 
+def test_dev_stdout_appends_where_standard_output_is(tmp_path):
+    # /dev/stdout is written through the process's own standard output, so a file opened for
+    # appending (the shell's >>) keeps what it held (POSIX O_APPEND)
+    log = tmp_path / "log.txt"
+    log.write_text("previous line\n", encoding="utf-8")
+    with open(log, "ab") as out:
+        done = subprocess.run([sys.executable, "-m", "airgate", "check", str(DEMO), "--format",
+                               "json:/dev/stdout"], stdout=out, stderr=subprocess.PIPE,
+                              env=_env(), timeout=120)
+    assert done.returncode == 1, done.stderr
+    text = log.read_text(encoding="utf-8")
+    assert text.startswith("previous line\n{\n") and text.endswith("}\n")
+    assert stat.S_ISREG(log.stat().st_mode) and not log.is_symlink()
+
+
 def test_modes_follow_the_umask_and_a_replaced_file_keeps_its_mode(tmp_path, capsys):
     old = os.umask(0o027)
     try:

@@ -46,6 +46,9 @@ Body = Union[str, bytes, Iterable[str]]
 STDOUT = "-"
 #: folders whose entries are never replaced by a rename (devices, process files)
 _SPECIAL_FOLDERS = ("/dev/", "/proc/")
+#: names of this process's standard output: written through it, at its offset (a file opened
+#: for appending, ``>>``, is appended to, not overwritten from its start)
+_STDOUT_NAMES = ("/dev/stdout", "/dev/fd/1", "/proc/self/fd/1")
 
 
 class Interrupted(BaseException):
@@ -230,7 +233,7 @@ def _write_temp(path: Path, body: Body, temps: list[tuple[str, Path]]) -> None:
 def _write_stream(name: str, body: Body) -> None:
     """Write in place: standard output, or the device, FIFO or special file ``name``."""
     try:
-        if name == STDOUT:
+        if name == STDOUT or os.path.abspath(name) in _STDOUT_NAMES:
             if isinstance(body, bytes):
                 sys.stdout.flush()
                 sys.stdout.buffer.write(body)
