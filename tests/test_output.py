@@ -216,7 +216,22 @@ def test_write_all_keeps_regular_files_when_a_stream_fails(tmp_path):
         output.write_all([(tmp_path / "a.txt", "a\n"), ("/dev/full", "b\n")])
     assert list(tmp_path.iterdir()) == []
     assert output.is_stream("-") and output.is_stream("/dev/stdout")
+    assert output.is_stream("/dev/fd/1") and output.is_stream("/proc/self/fd/1")
     assert not output.is_stream(tmp_path / "new.json")
+
+
+@pytest.mark.skipif(not os.access("/dev/shm", os.W_OK), reason="no writable /dev/shm")
+def test_a_regular_file_under_dev_is_still_written_atomically(capsys):
+    # /dev/shm is an ordinary (memory) file system: its files are files, not devices
+    import tempfile
+
+    with tempfile.TemporaryDirectory(dir="/dev/shm") as folder:
+        target = Path(folder) / "report.json"
+        assert not output.is_stream(target)
+        assert main(["check", str(DEMO), "--format", f"json:{target}"]) == 1
+        assert target.read_text(encoding="utf-8").startswith("{\n")
+        assert sorted(p.name for p in Path(folder).iterdir()) == ["report.json"]
+    capsys.readouterr()
 
 
 # --- JSON and SARIF are written zone by zone and result by result ------------------------------

@@ -9,8 +9,8 @@ gets the mode of the file it replaces, or for a new file the mode the umask leav
 ``open`` would give it), never the temporary file's 0600.
 
 A **stream** — ``-`` (standard output), a character device such as ``/dev/null``, a FIFO, a
-socket, or any path under ``/dev/`` or ``/proc/`` such as ``/dev/stdout`` — is opened and
-written in place; it is never replaced, so writing to ``/dev/null`` leaves ``/dev/null`` as it
+socket, or the path of an open file (``/dev/stdout``, ``/dev/fd/N``, anything under
+``/proc/``) — is opened and written in place; it is never replaced, so writing to ``/dev/null`` leaves ``/dev/null`` as it
 was. Streams are written after every regular file of the run is complete and before any is
 moved into place, so a failing stream still leaves no regular file changed.
 
@@ -44,8 +44,10 @@ Body = Union[str, bytes, Iterable[str]]
 
 #: the name that means standard output
 STDOUT = "-"
-#: folders whose entries are never replaced by a rename (devices, process files)
-_SPECIAL_FOLDERS = ("/dev/", "/proc/")
+#: paths that name a process's open files (links to whatever they are open on): never
+#: replaced, even when what they point at is a regular file
+_OPEN_FILE_PATHS = ("/proc/", "/dev/fd/")
+_OPEN_FILE_NAMES = ("/dev/stdin", "/dev/stdout", "/dev/stderr")
 #: names of this process's standard output: written through it, at its offset (a file opened
 #: for appending, ``>>``, is appended to, not overwritten from its start)
 _STDOUT_NAMES = ("/dev/stdout", "/dev/fd/1", "/proc/self/fd/1")
@@ -141,13 +143,13 @@ def joined(body: str | Iterable[str]) -> str:
 
 def is_stream(target: str | Path) -> bool:
     """True when ``target`` is written in place rather than replaced: ``-``, anything that
-    exists and is not a regular file (devices, FIFOs, sockets; links followed), and any path
-    under /dev/ or /proc/."""
+    exists and is not a regular file (devices, FIFOs, sockets; links followed), and the paths
+    of open files (/dev/stdout, /dev/stderr, /dev/fd/N, anything under /proc/)."""
     name = str(target)
     if name == STDOUT:
         return True
     absolute = os.path.abspath(name)
-    if any(absolute.startswith(folder) for folder in _SPECIAL_FOLDERS):
+    if absolute.startswith(_OPEN_FILE_PATHS) or absolute in _OPEN_FILE_NAMES:
         return True
     try:
         mode = os.stat(name).st_mode
