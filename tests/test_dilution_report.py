@@ -208,3 +208,22 @@ def test_weekend_variant_has_its_own_peak(evaluate):
     data["profiles"]["p"]["weekend"] = {}
     t = evaluate(data).systems[0].zones[0].dilution
     assert t.value("C_peak_weekend") == pytest.approx(420)
+
+
+def test_design_day_series_share_their_times_and_profile_samples(evaluate):
+    # memory per zone: only the CO2 samples are the zone's own; the sample times and the
+    # profile sampled at them are shared, read-only (docs/limits.md). The profile's value at
+    # each minute is read off the profile itself (step function, common practice).
+    data = single({"profile": "am"})
+    zone2 = dict(data["systems"][0]["zones"][0], id="2")
+    data["systems"].append({"id": "S2", "kind": "single-zone", "outdoor_air": "620 cfm",
+                            "zones": [zone2]})
+    data["profiles"] = {"am": {"weekday": {"08:00-12:00": 1.0}}}
+    r = evaluate(data)
+    a, b = (s.zones[0].series for s in r.systems)
+    assert a.times is b.times and a.occupancy is b.occupancy
+    assert not a.times.flags.writeable and not a.occupancy.flags.writeable
+    minutes = np.arange(0, 24 * 60 + 1)
+    expected = np.where((minutes >= 8 * 60) & (minutes < 12 * 60), 1.0, 0.0)
+    assert np.array_equal(a.occupancy, expected)
+    assert np.allclose(a.times * 60, minutes)

@@ -13,6 +13,7 @@ Alvarez-Cohen 2001, docs/references.md).
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass
 
@@ -35,6 +36,12 @@ PURGE = ("t = ln(1/(1 − f))/λ; CDC 2003 Guidelines for Environmental Infectio
 CO2_TABLE = "occupant-co2-generation"
 CO2_LIMIT = ("project", "co2_limit")  #: where the schedule declares its CO2 limit
 STEP_H = 1.0 / 60.0  #: sampling step of the design-day series [h]
+#: the design day's sample times, second day of the two-day run [h]; the series of every zone
+#: share one read-only copy of the times after midnight (:data:`DAY_TIMES`)
+_RUN_TIMES = 24.0 + np.arange(0, 24 * 60 + 1) * STEP_H
+DAY_TIMES = _RUN_TIMES - 24.0
+_RUN_TIMES.setflags(write=False)
+DAY_TIMES.setflags(write=False)
 ZERO_C = 273.15  #: 0 °C [K]
 ROOM_C = 20.0  #: indoor temperature at which a tabled CO2 volume rate is used [°C]
 
@@ -230,8 +237,22 @@ def _two_days(breaks: np.ndarray, fractions: np.ndarray) -> tuple[np.ndarray, np
 
 
 def _sample_fractions(breaks: np.ndarray, fractions: np.ndarray, times: np.ndarray) -> np.ndarray:
+    """The profile at each design-day sample time [–]; zones with the same profile share one
+    read-only array (a portfolio's series hold one occupancy array per profile, not per zone)."""
+    if times is _RUN_TIMES or times is DAY_TIMES:
+        return _day_fractions(np.asarray(breaks, dtype=float).tobytes(),
+                              np.asarray(fractions, dtype=float).tobytes())
     idx = np.clip(np.searchsorted(breaks, times % 24.0, side="right") - 1, 0, len(fractions) - 1)
     return fractions[idx]
+
+
+@functools.lru_cache(maxsize=256)
+def _day_fractions(breaks: bytes, fractions: bytes) -> np.ndarray:
+    b, f = np.frombuffer(breaks), np.frombuffer(fractions)
+    idx = np.clip(np.searchsorted(b, DAY_TIMES % 24.0, side="right") - 1, 0, len(f) - 1)
+    out = f[idx]
+    out.setflags(write=False)
+    return out
 
 
 def _weekend_peak(t: Trail, profile) -> None:
@@ -258,9 +279,8 @@ def _day_series_single(t: Trail, breaks, fractions, name: str) -> Series:
           source=MB)
     t.add("C_twa", float(dilution.time_weighted_average(sol, 24.0, 48.0)), "concentration_ppm",
           note="24-hour time-weighted average (exact integral)", source=MB)
-    times = 24.0 + np.arange(0, 24 * 60 + 1) * STEP_H
-    ppm = np.asarray(dilution.evaluate_piecewise(sol, times), dtype=float)
-    return Series(times - 24.0, ppm, _sample_fractions(breaks, fractions, times), name)
+    ppm = np.asarray(dilution.evaluate_piecewise(sol, _RUN_TIMES), dtype=float)
+    return Series(DAY_TIMES, ppm, _sample_fractions(breaks, fractions, _RUN_TIMES), name)
 
 
 def _limit(t: Trail, ctx: ZoneContext, schedule: Schedule, emitter: Emitter) -> None:
@@ -362,14 +382,14 @@ def coupled_design_day(schedule: Schedule, system: System, ctxs, people: np.ndar
         if p is not None:
             frac[:, j] = _sample_fractions(p[0], p[1], mids)
     b2, f2 = _two_days(breaks, frac)
-    times = 24.0 + np.arange(0, 24 * 60 + 1) * STEP_H
+    times = _RUN_TIMES
     try:
         run = coupled.coupled_piecewise_transient(
             b2, f2 * people[None, :] + constant[None, :], volume, primary_airflow,
             system.outdoor_air, np.full(len(ctxs), c0), times, **losses)
     except coupled.TooManyRates:
         return None  # above the size limit no design day is computed (docs/dilution.md)
-    return times - 24.0, run.zone, breaks, frac
+    return DAY_TIMES, run.zone, breaks, frac
 
 
 def add_day_statistics(t: Trail, series: np.ndarray, times: np.ndarray, kind: str,
