@@ -226,7 +226,9 @@ def dcv_setpoint_ppm(outdoor_ppm, co2_generation_per_person_Ls,  # noqa: N803
     1060.0
     """
     return _out(_nonneg("outdoor_ppm", outdoor_ppm)
-                + co2_excess_ppm(co2_generation_per_person_Ls, outdoor_air_per_person_Ls))
+                + co2_excess_ppm(
+                    _nonneg("co2_generation_per_person_Ls", co2_generation_per_person_Ls),
+                    _positive("outdoor_air_per_person_Ls", outdoor_air_per_person_Ls)))
 
 
 def transient_concentration(c0, c_ss, lam, t):

@@ -303,6 +303,9 @@ def system_ventilation_efficiency_simplified(d, breakpoint=0.60, slope=0.88, int
     0.75
     """
     dd = nonneg("d", d)
+    breakpoint, slope = finite("breakpoint", breakpoint), finite("slope", slope)
+    intercept = finite("intercept", intercept)
+    above_breakpoint = finite("above_breakpoint", above_breakpoint)
     return out(np.where(dd < breakpoint, slope * dd + intercept, above_breakpoint))
 
 

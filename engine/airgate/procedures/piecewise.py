@@ -186,9 +186,9 @@ def piecewise_solution(times_breaks, generation_per_piece, volume, outdoor_airfl
                                piece("outdoor_filter_efficiency", outdoor_filter_efficiency)))
               * _nonneg("outdoor_concentration",
                         piece("outdoor_concentration", outdoor_concentration)))
-    c_init = np.asarray(c0, dtype=float)
-    if c_init.ndim > nd or np.any(c_init < 0):
-        raise ValueError("c0 must be >= 0 with at most the zone shape")
+    c_init = _nonneg("c0", c0)
+    if c_init.ndim > nd:
+        raise ValueError("c0 must have at most the zone shape")
     shape = np.broadcast_shapes((n,) + (1,) * nd, q_clean.shape, source.shape,
                                 (1,) + c_init.shape)
     lam = np.broadcast_to(PER_HOUR * q_clean / v, shape)
@@ -292,7 +292,10 @@ def piecewise_transient(times_breaks, generation_per_piece, volume, outdoor_airf
         outdoor_filter_efficiency=outdoor_filter_efficiency, recirc_airflow=recirc_airflow,
         recirc_efficiency=recirc_efficiency, cadr=cadr, k_deposition=k_deposition,
         k_inactivation=k_inactivation)
-    return evaluate_piecewise(sol, output_times)
+    t, b = np.atleast_1d(np.asarray(output_times, dtype=float)), sol.breaks
+    if t.ndim != 1 or np.any(~np.isfinite(t)) or np.any((t < b[0]) | (t > b[-1])):
+        raise ValueError(f"output_times must be 1-D and lie within [{b[0]}, {b[-1]}] h")
+    return evaluate_piecewise(sol, t)
 
 
 def _window(solution, t_start, t_end):
