@@ -191,9 +191,14 @@ def test_a_signal_while_writing_leaves_no_temporary_file(tmp_path, signame):
     out = tmp_path / "out"
     out.mkdir()
     (out / "old.txt").write_text("previous\n", encoding="utf-8")
+    def default_handlers() -> None:  # a signal the test runner ignores is not inherited
+        signal.signal(signal.SIGINT, signal.SIG_DFL)
+        signal.signal(signal.SIGTERM, signal.SIG_DFL)
+
     proc = subprocess.Popen([sys.executable, "-c", _SLOW_WRITER, str(DEMO),
                              str(out / "r.json"), str(out / "old.txt")],
-                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, env=_env())
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, env=_env(),
+                            preexec_fn=default_handlers)
     try:
         assert proc.stdout.readline() == b"writing\n"
         assert _leftovers(out)  # the writer is mid-write: its temporary file exists

@@ -225,7 +225,8 @@ def _write_temp(path: Path, body: Body, temps: list[tuple[str, Path]]) -> None:
     try:
         fd, tmp = tempfile.mkstemp(prefix=f".{final.name}.", suffix=".tmp", dir=folder)
         temps.append((tmp, final))
-        os.fchmod(fd, _mode_for(final))
+        if hasattr(os, "fchmod"):  # POSIX; elsewhere the file keeps the mode it was made with
+            os.fchmod(fd, _mode_for(final))
         with os.fdopen(fd, "wb") as raw:
             _write_body(raw, body)
     except OSError as exc:
