@@ -51,3 +51,13 @@ def test_portfolio_benchmark_runs_end_to_end(n, capsys, monkeypatch):
     out = capsys.readouterr().out
     row = [line.split() for line in out.splitlines() if line.strip()[:1].isdigit()]
     assert len(row) == 1 and int(row[0][0]) >= n and row[0][-2:] == ["1.00", "1.00"]
+
+
+def test_html_benchmark_runs_end_to_end(capsys, monkeypatch):
+    import bench_html
+
+    monkeypatch.setattr(bench_html, "SIZES", ())
+    bench_html.main(["14"])
+    out = capsys.readouterr().out
+    row = [line.split() for line in out.splitlines() if line.strip()[:1].isdigit()]
+    assert len(row) == 1 and int(row[0][0]) >= 14 and row[0][-1] == "1.00"

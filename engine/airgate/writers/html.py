@@ -5,291 +5,378 @@ shortfall) on the first screen; the outdoor air each zone gets against what it n
 per system with its check table, zone quantities, CO2 curves and, on expand, every calculation
 trail; the provenance of every rule value used; notes, waivers and the cautions. No network, no
 web fonts, no images: CSS, inline SVG and a three-line script that opens the trails for printing.
-Every input string is escaped. Same input, same bytes.
+
+The markup is in ``templates/`` (Jinja2, autoescape on: every value a template shows is escaped,
+and control characters are replaced, so a new section cannot forget it). This module only picks
+and formats what the evaluation computed; it computes nothing. Same input, same bytes.
+
+Size rule (docs/report-format.md): a schedule with more than :data:`DETAIL_LIMIT` zones is
+**summarised** — failing and warning zones keep everything (chart bar, trail, CO2 chart; the
+first :data:`ZONE_DETAIL_LIMIT` of them), the systems that pass become one row each, and the
+other zones of the systems shown one table row without their trail or chart. The page is then written piece by piece in one pass over the report, so
+its time and memory grow linearly with the zones, and the parts that list every subject (the
+outdoor-air chart, the notes, the subjects a rule value is used for) are capped.
 """
 
 from __future__ import annotations
 
-import html as _html
 import re
+from collections.abc import Iterator
+from functools import lru_cache
 from pathlib import PurePath
+
+from jinja2 import Environment, PackageLoader, StrictUndefined
+from markupsafe import Markup
 
 from airgate import __version__, formatting, units
 from airgate.evaluation.batch import Batch
 from airgate.evaluation.findings import DECLARED, Amount, Finding
 from airgate.evaluation.report import Report, SystemResult, ZoneResult
 from airgate.evaluation.trail import Step, Trail
-from airgate.writers import html_svg, shared
-from airgate.writers.html_style import CSS, SCRIPT
+from airgate.writers import html_svg, output, shared
+
+#: a schedule with more zones than this is summarised (see the module docstring)
+DETAIL_LIMIT = 200
+#: at most this many failing or warning zones keep their trails and CO2 charts when summarised
+ZONE_DETAIL_LIMIT = 200
+#: at most this many bars in a summarised schedule's outdoor-air chart
+CHART_LIMIT = 100
+#: at most this many information notes listed in a summarised schedule
+NOTES_LIMIT = 200
+#: at most this many subjects listed against one rule value in the provenance table
+USED_FOR_LIMIT = 12
 
 _CONTROL = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\x7f\ud800-\udfff]")
 _ORIGIN = {"schedule": "schedule", "table": "rule pack", "computed": "computed",
            "explicit": "stated with basis", "assumed": "assumed", "system": "system value"}
 
 
-def esc(value: object) -> str:
-    """Text for HTML content or a quoted attribute: markup escaped, control characters gone."""
-    return _html.escape(_CONTROL.sub("\ufffd", str(value)), quote=True)
+def _finalize(value: object) -> object:
+    """Every ``{{ value }}`` of a template: control characters become U+FFFD before escaping."""
+    if isinstance(value, str) and not isinstance(value, Markup):
+        return _CONTROL.sub("\ufffd", value)
+    return value
 
 
-def _badge(state: str, text: str | None = None) -> str:
-    return f'<span class="badge {esc(state)}">{esc(text or state)}</span>'
+@lru_cache(maxsize=1)
+def environment() -> Environment:
+    """The templates' environment: autoescape on for every template, undefined names fail."""
+    return Environment(loader=PackageLoader("airgate.writers", "templates"), autoescape=True,
+                       finalize=_finalize, undefined=StrictUndefined, trim_blocks=True,
+                       lstrip_blocks=True, keep_trailing_newline=True, auto_reload=False)
 
 
-def _amt(a: Amount | None, u: str) -> str:
-    return esc(shared.amount(a, u))
+class _View:
+    """What one schedule's page shows, formatted for display (units of the report)."""
 
+    def __init__(self, report: Report, pid: str) -> None:
+        self.r, self.pid, self.u = report, pid, report.units
+        self.names: dict[str, str] = {}
+        for s in report.systems:
+            self.names[s.id] = s.name or ""
+            for z in s.zones:
+                self.names[f"{s.id}/{z.id}"] = z.name or ""
+        self.zone_count = sum(len(s.zones) for s in report.systems)
+        self.summarised = self.zone_count > DETAIL_LIMIT
+        #: subjects with a live fail or warning finding: always shown in full
+        self.attention = {f.subject for f in report.findings if not f.waived
+                          and f.severity in ("fail", "warning")}
+        self.detailed_zones = 0  # zones given trails and charts so far (summarised pages)
+        self.cases: dict[str, list] = {}
+        for c in report.cases:
+            if c.basis != DECLARED:
+                self.cases.setdefault(c.system, []).append(c)
 
-def _subject(report: Report, subject: str) -> str:
-    system_id, _, zone_id = subject.partition("/")
-    name = None
-    if zone_id:
-        found = report.zone(zone_id)
-        name = found[1].name if found else None
-    else:
-        s = report.system(system_id)
-        name = s.name if s else None
-    return f"<b>{esc(subject)}</b>" + (f'<br><span class="small">{esc(name)}</span>' if name
-                                      else "")
+    # --- formatting helpers ---------------------------------------------------------------
 
+    def amount(self, a: Amount | None) -> str:
+        return shared.amount(a, self.u)
 
-# --- the first screen ------------------------------------------------------------------------
+    def margin(self, required: Amount | None, provided: Amount | None) -> dict:
+        rel = shared.relative_margin(required, provided)
+        return {"text": shared.margin(required, provided, self.u),
+                "short": rel is not None and rel < 0}
 
-def _top(report: Report) -> str:
-    pack, c = report.pack, report.counts()
-    failing = sum(s.verdict == "fail" for s in report.systems)
-    verify = (" · <b>values partly from memory: verify against the adopted edition</b>"
-              if pack.verify else "")
-    tally = [("fail", c["fail"], "failing"), ("warning", c["warning"], "warnings"),
-             ("info", c["info"], "notes"), ("waived", report.waived_count(), "waived")]
-    items = "".join(f'<li class="{k}"><b>{n}</b> {label}</li>' for k, n, label in tally)
-    items += f"<li><b>{failing}</b> of {len(report.systems)} systems fail</li>"
-    return (f'<div class="top"><div><h1>{esc(report.project_name)}</h1>'
-            f'<p class="meta">schedule <b class="mono">{esc(report.schedule_file)}</b> · '
-            f"rule pack <b>{esc(pack.id)}</b> ({esc(pack.title)}){verify} · "
-            f"{esc(report.units)} units</p>"
-            f'<ul class="tally">{items}</ul></div>'
-            f'<div class="stamp {report.verdict}">{report.verdict.upper()}</div></div>'
-            f'<p class="caution-line">{esc(report.cautions[0])}</p>')
+    def number(self, trail: Trail, symbol: str) -> str:
+        if symbol not in trail:
+            return "–"
+        step = trail[symbol]
+        return formatting.number(units.to_display(step.value, step.kind, self.u), step.kind)
 
+    def detailed(self, s: SystemResult, z: ZoneResult | None = None) -> bool:
+        """Whether a system (or one of its zones) is shown in full."""
+        if not self.summarised:
+            return True
+        if z is None:
+            return s.verdict == "fail" or s.id in self.attention or any(
+                f"{s.id}/{x.id}" in self.attention or x.verdict == "fail" for x in s.zones)
+        return z.verdict == "fail" or f"{s.id}/{z.id}" in self.attention
 
-def _items_rows(report: Report, items: list[Finding]) -> str:
-    u = report.units
-    rows = []
-    for f in items:
+    # --- findings ---------------------------------------------------------------------------
+
+    def item(self, f: Finding) -> dict:
         state = "waived" if f.waived else f.severity
-        rel = shared.relative_margin(f.required, f.provided)
-        cls = ' class="short"' if rel is not None and rel < 0 else ""
-        waived = (f'<br><span class="small">{esc(shared.waived_line(f.waiver))}</span>'
-                  if f.waiver else "")
-        rows.append(
-            f'<tr class="{state}"><td>{_subject(report, f.subject)}</td>'
-            f"<td>{_badge(state)}<br><code>{esc(f.rule)}</code></td>"
-            f'<td class="n">{_amt(f.required, u)}</td><td class="n">{_amt(f.provided, u)}</td>'
-            f'<td class="n"><span{cls}>{esc(shared.margin(f.required, f.provided, u))}</span></td>'
-            f'<td class="msg">{esc(f.message)}{waived}<br><span class="small">{esc(f.source)}'
-            f'</span></td><td class="small mono">{esc(f.location)}</td></tr>')
-    return "".join(rows)
+        return {"state": state, "subject": f.subject, "name": self.names.get(f.subject, ""),
+                "rule": f.rule, "required": self.amount(f.required),
+                "provided": self.amount(f.provided), "margin": self.margin(f.required, f.provided),
+                "message": f.message, "waived": shared.waived_line(f.waiver) if f.waiver else "",
+                "source": f.source, "location": str(f.location)}
 
+    def declared(self) -> dict | None:
+        r = self.r
+        if not any(c.basis == DECLARED for c in r.cases) and not r.declared_findings:
+            return None
+        return {"heading": shared.DECLARED_HEADING, "summary": shared.declared_summary(r),
+                "note": shared.DECLARED_NOTE,
+                "rows": [self.item(f) for f in r.declared_findings if not f.waived]}
 
-_ITEMS_HEAD = ('<tr><th>subject</th><th>check</th><th class="n">required</th>'
-               '<th class="n">provided</th><th class="n">margin</th><th>what it says · source'
-               "</th><th>where</th></tr>")
+    # --- outdoor air per zone ---------------------------------------------------------------
 
+    def chart(self) -> tuple[dict | None, str]:
+        u, bars, left_out = self.u, [], 0
+        for s in self.r.systems:
+            for z in s.zones:
+                if self.summarised and f"{s.id}/{z.id}" not in self.attention \
+                        and z.verdict != "fail":
+                    continue
+                if self.summarised and len(bars) >= CHART_LIMIT:
+                    left_out += 1
+                    continue
+                bars.append(self.bar(s, z))
+        if not bars:
+            return None, ""
+        title = (f"Outdoor air per zone: required Voz (tick) and what the zone gets (bar), "
+                 f"{u} units")
+        note = ""
+        if self.summarised:
+            note = (f"{self.zone_count:,} zones: only the zones with a failing or warning "
+                    "finding are charted" + (f" (the first {CHART_LIMIT}; {left_out:,} more are "
+                                             "in the system panels)" if left_out else "") + ".")
+        return html_svg.airflow_chart(bars, units.label("airflow", u), title), note
 
-def _failing(report: Report, pid: str) -> str:
-    live = [f for f in report.code_findings
-            if not f.waived and f.severity in ("fail", "warning")]
-    body = (f"<table>{_ITEMS_HEAD}{_items_rows(report, live)}</table>" if live else
-            '<p class="none">Nothing fails: every check passes.</p>')
-    return (f'<section id="{pid}-failing"><h2>What fails ({len(live)})</h2>{body}</section>'
-            + _declared(report, pid))
+    def bar(self, s: SystemResult, z: ZoneResult) -> html_svg.Bar:
+        u = self.u
+        req = z.trail.value("Voz")
+        got = z.trail.value("Voz_delivered") if "Voz_delivered" in z.trail else None
+        text = formatting.amount(req, "airflow", u) + " needed"
+        if got is not None:
+            rel = shared.relative_margin(Amount(req, "airflow"), Amount(got, "airflow"))
+            text = (f"{formatting.amount(got, 'airflow', u)} of "
+                    f"{formatting.amount(req, 'airflow', u)}"
+                    + (f" ({formatting.percent(rel)})" if rel is not None else ""))
+        return html_svg.Bar(
+            label=f"{s.id}/{z.id} {z.name or ''}".strip(),
+            required=units.to_display(req, "airflow", u),
+            provided=None if got is None else units.to_display(got, "airflow", u), text=text,
+            short=got is not None and got < req * (1 - 1e-9))
 
+    # --- systems ----------------------------------------------------------------------------
 
-def _declared(report: Report, pid: str) -> str:
-    """Limits the schedule declares for itself, after the code findings (no verdict)."""
-    if not any(c.basis == DECLARED for c in report.cases) and not report.declared_findings:
-        return ""
-    live = [f for f in report.declared_findings if not f.waived]
-    table = f"<table>{_ITEMS_HEAD}{_items_rows(report, live)}</table>" if live else ""
-    return (f'<section id="{pid}-declared"><h2>{esc(shared.DECLARED_HEADING)}: '
-            f"{esc(shared.declared_summary(report))}</h2><p class=\"small\">"
-            f"{esc(shared.DECLARED_NOTE)}</p>{table}</section>")
+    def intake(self, s: SystemResult) -> tuple[Amount, Amount]:
+        return Amount(s.trail.value("Vot"), "airflow"), Amount(s.trail.value("Vot_design"),
+                                                               "airflow")
 
+    def passing_row(self, s: SystemResult) -> dict:
+        req, prov = self.intake(s)
+        return {"id": s.id, "name": s.name or "", "kind": s.kind, "zones": len(s.zones),
+                "required": self.amount(req), "scheduled": self.amount(prov),
+                "margin": self.margin(req, prov), "verdict": s.verdict}
 
-# --- outdoor air per zone --------------------------------------------------------------------
+    def passing_zone(self, s: SystemResult, z: ZoneResult) -> dict:
+        return {"system": s.id, "id": z.id, "name": z.name or "", "space": z.space_label,
+                "voz": self.number(z.trail, "Voz"), "got": self.number(z.trail, "Voz_delivered"),
+                "verdict": z.verdict}
 
-def _chart(report: Report, pid: str) -> str:
-    u = report.units
-    show = lambda v: units.to_display(v, "airflow", u)  # noqa: E731
-    bars = []
-    for s in report.systems:
-        for z in s.zones:
-            req = z.trail.value("Voz")
-            got = z.trail.value("Voz_delivered") if "Voz_delivered" in z.trail else None
-            text = formatting.amount(req, "airflow", u) + " needed"
-            if got is not None:
-                rel = shared.relative_margin(Amount(req, "airflow"), Amount(got, "airflow"))
-                text = (f"{formatting.amount(got, 'airflow', u)} of "
-                        f"{formatting.amount(req, 'airflow', u)}"
-                        + (f" ({formatting.percent(rel)})" if rel is not None else ""))
-            bars.append(html_svg.Bar(
-                label=f"{s.id}/{z.id} {z.name or ''}".strip(), required=show(req),
-                provided=None if got is None else show(got), text=text,
-                short=got is not None and got < req * (1 - 1e-9)))
-    if not bars:
-        return ""
-    title = f"Outdoor air per zone: required Voz (tick) and what the zone gets (bar), {u} units"
-    svg = html_svg.airflow_chart(bars, units.label("airflow", u), esc, title)
-    return (f'<section id="{pid}-air"><h2>Outdoor air per zone</h2>{svg}'
-            '<p class="legend"><i class="k-got"></i>gets<i class="k-short"></i>gets less than '
-            'it needs<i class="k-need"></i>needs (Voz)</p><p class="small">What the zone gets is '
-            "its trail's Voz_delivered: on a single-zone system the scheduled intake; on a "
-            "100 % outdoor-air system the air scheduled to the zone (or its share of the intake "
-            "by Voz); on a multiple-zone system Vpz·(1 + Xs − Vou/Vot_design), the zone "
-            "outdoor airflow the scheduled intake satisfies by Appendix A (Voz·Vot_design/Vot "
-            "where Ev is one figure for the system). It is below Voz exactly when the scheduled "
-            "intake is short for that zone.</p></section>")
+    def system(self, s: SystemResult) -> dict:
+        t = s.trail
+        req, prov = self.intake(s)
+        params = []
+        if s.kind == "multiple-zone":
+            params = [f"{sym} {self.number(t, sym)}" for sym in ("Ps", "D", "Vou", "Xs", "Ev")
+                      if sym in t]
+        cases = self.cases.get(s.id, [])
+        quiet = sum(1 for c in cases if c.status == "pass" and c.required is None
+                    and c.provided is None)
+        shown_zones = [z for z in s.zones if self.detailed(s, z)]
+        if self.summarised:
+            room = max(0, ZONE_DETAIL_LIMIT - self.detailed_zones)
+            shown_zones = shown_zones[:room]
+            self.detailed_zones += len(shown_zones)
+        left_out = len(s.zones) - len(shown_zones)
+        return {
+            "id": s.id, "name": s.name or "", "kind": s.kind, "method": s.method or "",
+            "verdict": s.verdict, "required": self.amount(req), "scheduled": self.amount(prov),
+            "margin": self.margin(req, prov), "params": params, "critical": s.critical_zone or "",
+            "checks": (self.check_row(c) for c in cases
+                       if not (c.required is None and c.provided is None and c.status == "pass")
+                       and (not self.summarised or c.status != "pass")),
+            "quiet": self.quiet_note(cases, quiet),
+            "zone_head": [f"{sym} {units.label(k, self.u)}".strip() for sym, k in self.columns(s)],
+            "zone_rows": (self.zone_row(s, z) for z in s.zones),
+            "co2": [f for f in (self.co2(s, z) for z in shown_zones) if f is not None],
+            "trails": self.trails(s, shown_zones),
+            "trails_left_out": (f"{left_out:,} of the zones above are listed without their "
+                                "calculation trails and CO2 charts (the schedule has more than "
+                                f"{DETAIL_LIMIT} zones; trails are kept for the first "
+                                f"{ZONE_DETAIL_LIMIT} failing or warning zones); airgate explain "
+                                "--zone or the JSON report gives any of them." if left_out
+                                else ""),
+        }
 
+    def quiet_note(self, cases: list, quiet: int) -> str:
+        passing = sum(1 for c in cases if c.status == "pass") - quiet
+        parts = []
+        if quiet:
+            parts.append(f"{quiet} further checks without quantities pass (air classes, rates, "
+                         "stated distribution, populations).")
+        if self.summarised and passing:
+            parts.append(f"{passing:,} checks with quantities pass and are not listed.")
+        return " ".join(parts)
 
-# --- per system ------------------------------------------------------------------------------
+    def check_row(self, c) -> dict:
+        return {"status": c.status, "subject": c.subject, "rule": c.rule,
+                "title": shared.check_title(self.r, c.rule), "required": self.amount(c.required),
+                "provided": self.amount(c.provided), "margin": self.margin(c.required, c.provided)}
 
-def _checks_table(report: Report, s: SystemResult) -> str:
-    u = report.units
-    rows = []
-    for c in [c for c in report.cases if c.system == s.id and c.basis != DECLARED]:
-        if c.required is None and c.provided is None and c.status == "pass":
-            continue  # passing checks without quantities are counted below, not listed
-        rel = shared.relative_margin(c.required, c.provided)
-        cls = ' class="short"' if rel is not None and rel < 0 else ""
-        rows.append(f'<tr class="{c.status}"><td>{esc(c.subject)}</td>'
-                    f"<td><code>{esc(c.rule)}</code><br><span class=\"small\">"
-                    f"{esc(shared.check_title(report, c.rule))}</span></td>"
-                    f'<td class="n">{_amt(c.required, u)}</td>'
-                    f'<td class="n">{_amt(c.provided, u)}</td>'
-                    f'<td class="n"><span{cls}>{esc(shared.margin(c.required, c.provided, u))}'
-                    f"</span></td><td>{_badge(c.status)}</td></tr>")
-    quiet = sum(1 for c in report.cases if c.system == s.id and c.status == "pass"
-                and c.basis != DECLARED and c.required is None and c.provided is None)
-    note = (f'<p class="small">{quiet} further checks without quantities pass (air classes, '
-            "rates, stated distribution, populations).</p>" if quiet else "")
-    return ('<table><tr><th>subject</th><th>check</th><th class="n">required</th>'
-            '<th class="n">provided</th><th class="n">margin</th><th>result</th></tr>'
-            + "".join(rows) + "</table>" + note)
+    _COLUMNS = [("Az", "area"), ("Pz", "people"), ("Vbz", "airflow"), ("Ez", "fraction"),
+                ("Voz", "airflow")]
+    _EXTRA = {"multiple-zone": [("Vpz", "airflow"), ("Zpz", "fraction"), ("Evz", "fraction")],
+              "outdoor-air": [("Voz_design", "airflow")]}
 
+    def columns(self, s: SystemResult) -> list[tuple[str, str]]:
+        return self._COLUMNS + self._EXTRA.get(s.kind, []) + [("Voz_delivered", "airflow")]
 
-_ZONE_COLS = [("Az", "area"), ("Pz", "people"), ("Vbz", "airflow"), ("Ez", "fraction"),
-              ("Voz", "airflow")]
+    def zone_row(self, s: SystemResult, z: ZoneResult) -> dict:
+        return {"id": z.id, "name": z.name or "", "space": z.space_label,
+                "critical": s.critical_zone == z.id, "verdict": z.verdict,
+                "cells": [self.number(z.trail, sym) for sym, _ in self.columns(s)]}
 
-
-def _zone_table(report: Report, s: SystemResult) -> str:
-    u = report.units
-    extra = {"multiple-zone": [("Vpz", "airflow"), ("Zpz", "fraction"), ("Evz", "fraction")],
-             "outdoor-air": [("Voz_design", "airflow")]}.get(s.kind, [])
-    cols = _ZONE_COLS + extra + [("Voz_delivered", "airflow")]
-    head = "".join(f'<th class="n">{esc(sym)}'
-                   f"{(' ' + esc(units.label(k, u))) if units.label(k, u) else ''}</th>"
-                   for sym, k in cols)
-    rows = []
-    for z in s.zones:
-        cells = "".join(f'<td class="n">{_step(z.trail, sym, u)}</td>' for sym, _ in cols)
-        crit = " ◂ critical" if s.critical_zone == z.id else ""
-        rows.append(f'<tr class="{z.verdict}"><td><b>{esc(z.id)}</b> {esc(z.name or "")}'
-                    f'<br><span class="small">{esc(z.space_label)}{crit}</span></td>{cells}'
-                    f"<td>{_badge(z.verdict)}</td></tr>")
-    return (f"<table><tr><th>zone</th>{head}<th>verdict</th></tr>{''.join(rows)}</table>")
-
-
-def _step(trail: Trail, symbol: str, u: str) -> str:
-    if symbol not in trail:
-        return "–"
-    step = trail[symbol]
-    return esc(formatting.number(units.to_display(step.value, step.kind, u), step.kind))
-
-
-def _intake_line(report: Report, s: SystemResult) -> str:
-    u, t = report.units, s.trail
-    req, prov = Amount(t.value("Vot"), "airflow"), Amount(t.value("Vot_design"), "airflow")
-    rel = shared.relative_margin(req, prov)
-    cls = "short" if rel is not None and rel < 0 else ""
-    parts = [f"required Vot <b>{_amt(req, u)}</b>", f"scheduled <b>{_amt(prov, u)}</b>",
-             f'margin <span class="{cls}">{esc(shared.margin(req, prov, u))}</span>']
-    if s.kind == "multiple-zone":
-        parts += [f"{sym} {_step(t, sym, u)}" for sym in ("Ps", "D", "Vou", "Xs", "Ev")
-                  if sym in t]
-        if s.critical_zone:
-            parts.append(f"critical zone <b>{esc(s.critical_zone)}</b>")
-    return f'<p class="meta">{" · ".join(parts)}</p>'
-
-
-def _co2(report: Report, s: SystemResult) -> str:
-    figs = []
-    for z in s.zones:
+    def co2(self, s: SystemResult, z: ZoneResult) -> dict | None:
         if z.series is None or z.dilution is None:
-            continue
+            return None
         d = z.dilution
         curve = html_svg.Curve(
             label=f"{s.id}/{z.id} {z.name or ''}".strip(),
             hours=[float(v) for v in z.series.times], ppm=[float(v) for v in z.series.ppm],
             occupancy=[float(v) for v in z.series.occupancy], outdoor=d.value("C_out"),
             limit=d.value("C_limit") if "C_limit" in d else None, peak=d.value("C_peak"))
-        peak = formatting.amount(d.value("C_peak"), "concentration_ppm", report.units)
-        figs.append(f"<figure>{html_svg.co2_chart(curve, esc)}<figcaption><b>{esc(z.id)}</b> "
-                    f"{esc(z.name or '')} · peak {esc(peak)} · profile "
-                    f"{esc(z.series.profile)}</figcaption></figure>")
-    if not figs:
-        return ""
-    return ("<h3>CO2 over the design day</h3><p class=\"small\">Well-mixed mass balance at the "
-            "scheduled airflows; shaded: occupancy; dotted: outdoor level; dashed: declared "
-            f"limit.</p><div class=\"grid-co2\">{''.join(figs)}</div>")
+        return {"chart": html_svg.co2_chart(curve), "id": z.id, "name": z.name or "",
+                "peak": formatting.amount(d.value("C_peak"), "concentration_ppm", self.u),
+                "profile": z.series.profile}
+
+    def trails(self, s: SystemResult, zones: list[ZoneResult]) -> Iterator[dict]:
+        for z in zones:
+            parts = [{"label": "", "rows": self.trail_rows(z.trail)}]
+            if z.dilution is not None:
+                parts.append({"label": "CO2 from occupants",
+                              "rows": self.trail_rows(z.dilution)})
+            for cid, t in z.contaminants.items():
+                parts.append({"label": cid, "rows": self.trail_rows(t)})
+            yield {"what": "zone", "id": z.id, "name": z.name or "", "parts": parts}
+        yield {"what": "system", "id": s.id, "name": "",
+               "parts": [{"label": "", "rows": self.trail_rows(s.trail)}]}
+
+    def trail_rows(self, trail: Trail) -> list[dict]:
+        rows = []
+        for step in trail.steps.values():
+            subst = ""
+            if step.formula:
+                subst = trail.substituted(step, self.bare).replace("·", " × ")
+            rows.append({"symbol": step.symbol, "symbolic": step.symbolic(),
+                         "substituted": subst,
+                         "value": formatting.amount(step.value, step.kind, self.u),
+                         "origin": _ORIGIN.get(step.origin, step.origin),
+                         "why": " · ".join(x for x in (step.note, step.source) if x)})
+        return rows
+
+    def bare(self, step: Step) -> str:
+        return formatting.number(units.to_display(step.value, step.kind, self.u), step.kind)
+
+    # --- provenance, waivers, notes ---------------------------------------------------------
+
+    def provenance(self) -> dict:
+        r, u = self.r, self.u
+        values: dict[tuple[str, str, str], dict[str, None]] = {}
+        cited: dict[str, dict[str, None]] = {}
+        for subject, trail in _all_trails(r):
+            for step in trail.steps.values():
+                if step.origin in ("table", "explicit", "assumed"):
+                    key = (step.symbol, formatting.amount(step.value, step.kind, u),
+                           step.source or step.note or _ORIGIN[step.origin])
+                    values.setdefault(key, {})[subject] = None  # ordered set
+                elif step.formula and step.source and step.origin == "computed":
+                    cited.setdefault(step.source, {})[step.symbol] = None
+        cap = USED_FOR_LIMIT if self.summarised else None
+        rows = [{"symbol": sym, "value": val, "source": src, "used_for": _listed(subs, cap)}
+                for (sym, val, src), subs in values.items()]
+        ran = {c.rule for c in r.cases}
+        pack = r.pack
+        return {"id": pack.id, "document": pack.document, "edition": pack.edition,
+                "units": pack.units, "provenance": pack.provenance,
+                "file": PurePath(pack.file).name, "table_values": rows,
+                "equations": [{"gives": ", ".join(syms), "source": src}
+                              for src, syms in cited.items()],
+                "checks": [{"id": x.id, "severity": x.severity, "source": x.source}
+                           for x in shared.pack_rules(pack).values() if x.id in ran]}
+
+    def waivers(self) -> dict | None:
+        waived = [f for f in self.r.findings if f.waived]
+        if not waived and not self.r.waivers:
+            return None
+        return {"date": self.r.waiver_date or "", "waived": [self.item(f) for f in waived],
+                "statuses": [_status(s) for s in self.r.waivers]}
+
+    def notes(self) -> dict | None:
+        info = [f for f in self.r.code_findings if f.severity == "info" and not f.waived]
+        if not info and not self.r.notes:
+            return None
+        shown = info[:NOTES_LIMIT] if self.summarised else info
+        more = len(info) - len(shown)
+        return {"info": [self.item(f) for f in shown], "info_count": len(info),
+                "info_left_out": (f"{more:,} more notes are in the text and JSON reports."
+                                  if more else ""),
+                "report": list(self.r.notes)}
+
+    # --- the article ------------------------------------------------------------------------
+
+    def article(self) -> dict:
+        r, pack, c = self.r, self.r.pack, self.r.counts()
+        chart, chart_note = self.chart()
+        full = [s for s in r.systems if self.detailed(s)]
+        passing = [s for s in r.systems if not self.detailed(s)]
+        return {
+            "pid": self.pid, "project": r.project_name, "schedule_file": r.schedule_file,
+            "pack_id": pack.id, "pack_title": pack.title, "verify": bool(pack.verify),
+            "units": r.units, "verdict": r.verdict, "caution": r.cautions[0],
+            "airflow_unit": units.label("airflow", self.u),
+            "tally": [{"cls": "fail", "n": c["fail"], "label": "failing"},
+                      {"cls": "warning", "n": c["warning"], "label": "warnings"},
+                      {"cls": "info", "n": c["info"], "label": "notes"},
+                      {"cls": "waived", "n": r.waived_count(), "label": "waived"}],
+            "failing_systems": sum(s.verdict == "fail" for s in r.systems),
+            "n_systems": len(r.systems),
+            "failing": [self.item(f) for f in r.code_findings
+                        if not f.waived and f.severity in ("fail", "warning")],
+            "declared": self.declared(), "chart": chart, "chart_left_out": chart_note,
+            "summary_rule": (f"The schedule has {self.zone_count:,} zones, more than "
+                             f"{DETAIL_LIMIT}: systems that pass are listed one row each, and "
+                             f"only zones with a failing or warning finding (the first "
+                             f"{ZONE_DETAIL_LIMIT}) keep their calculation trails and CO2 "
+                             "charts." if self.summarised else ""),
+            "passing_systems": [self.passing_row(s) for s in passing],
+            "passing_zone_count": sum(len(s.zones) for s in passing),
+            "passing_zones": (self.passing_zone(s, z) for s in passing for z in s.zones),
+            "systems": (self.system(s) for s in full),
+            "waivers": self.waivers(), "provenance": self.provenance(), "notes": self.notes(),
+        }
 
 
-def _trail_table(trail: Trail, u: str) -> str:
-    rows = []
-    for step in trail.steps.values():
-        value = formatting.amount(step.value, step.kind, u)
-        subst = ""
-        if step.formula:
-            subst = trail.substituted(step, lambda st: _bare(st, u)).replace("·", " × ")
-        why = " · ".join(x for x in (step.note, step.source) if x)
-        rows.append(f"<tr><td><b>{esc(step.symbol)}</b></td><td>{esc(step.symbolic())}</td>"
-                    f"<td>{esc(subst)}</td><td class=\"n\">{esc(value)}</td>"
-                    f"<td>{esc(_ORIGIN.get(step.origin, step.origin))}</td>"
-                    f'<td class="small">{esc(why)}</td></tr>')
-    return ("<table><tr><th>symbol</th><th>equation</th><th>with values</th>"
-            '<th class="n">result</th><th>from</th><th>note · source</th></tr>'
-            + "".join(rows) + "</table>")
+def _listed(subjects: dict[str, None], cap: int | None) -> str:
+    names = list(subjects)
+    if cap is None or len(names) <= cap:
+        return ", ".join(names)
+    return ", ".join(names[:cap]) + f" and {len(names) - cap:,} more"
 
-
-def _bare(step: Step, u: str) -> str:
-    return formatting.number(units.to_display(step.value, step.kind, u), step.kind)
-
-
-def _trails(report: Report, s: SystemResult) -> str:
-    u = report.units
-    out = []
-    for z in s.zones:
-        body = _trail_table(z.trail, u)
-        if z.dilution is not None:
-            body += "<p class=\"small\">CO2 from occupants</p>" + _trail_table(z.dilution, u)
-        for cid, t in z.contaminants.items():
-            body += f'<p class="small">{esc(cid)}</p>' + _trail_table(t, u)
-        out.append(f"<details><summary>Calculation trail — zone <b>{esc(z.id)}</b> "
-                   f"{esc(z.name or '')}</summary>{body}</details>")
-    out.append(f"<details><summary>Calculation trail — system <b>{esc(s.id)}</b></summary>"
-               f"{_trail_table(s.trail, u)}</details>")
-    return "".join(out)
-
-
-def _system(report: Report, s: SystemResult) -> str:
-    method = f", {esc(s.method)} Ev" if s.method else ""
-    return (f'<section class="system"><h3>{esc(s.id)} {esc(s.name or "")} '
-            f'<span class="small">— {esc(s.kind)}{method}</span>{_badge(s.verdict)}</h3>'
-            f"{_intake_line(report, s)}{_checks_table(report, s)}{_zone_table(report, s)}"
-            f"{_co2(report, s)}{_trails(report, s)}</section>")
-
-
-# --- provenance, waivers, notes, cautions ----------------------------------------------------
 
 def _all_trails(report: Report):
     for s in report.systems:
@@ -302,138 +389,49 @@ def _all_trails(report: Report):
                 yield f"{s.id}/{z.id}", t
 
 
-def _provenance(report: Report, pid: str) -> str:
-    u = report.units
-    values: dict[tuple[str, str, str], list[str]] = {}
-    cited: dict[str, list[str]] = {}
-    for subject, trail in _all_trails(report):
-        for step in trail.steps.values():
-            if step.origin in ("table", "explicit", "assumed"):
-                key = (step.symbol, formatting.amount(step.value, step.kind, u),
-                       step.source or step.note or _ORIGIN[step.origin])
-                values.setdefault(key, [])
-                if subject not in values[key]:
-                    values[key].append(subject)
-            elif step.formula and step.source and step.origin == "computed":
-                cited.setdefault(step.source, [])
-                if step.symbol not in cited[step.source]:
-                    cited[step.source].append(step.symbol)
-    rows = "".join(f"<tr><td><b>{esc(sym)}</b></td><td class=\"n\">{esc(val)}</td>"
-                   f"<td>{esc(src)}</td><td class=\"small\">{esc(', '.join(subs))}</td></tr>"
-                   for (sym, val, src), subs in values.items())
-    eqs = "".join(f"<tr><td>{esc(', '.join(syms))}</td><td>{esc(src)}</td></tr>"
-                  for src, syms in cited.items())
-    rules = shared.pack_rules(report.pack)
-    ran = {c.rule for c in report.cases}
-    checks = "".join(f"<tr><td><code>{esc(r.id)}</code></td><td>{esc(r.severity)}"
-                     f"</td><td>{esc(r.source)}</td></tr>"
-                     for r in rules.values() if r.id in ran)
-    pack = report.pack
-    return (f'<section id="{pid}-provenance"><h2>Where every rule value comes from</h2>'
-            f'<p class="meta">rule pack <b>{esc(pack.id)}</b>: {esc(pack.document)}, '
-            f"{esc(pack.edition)} edition · {esc(pack.units)} tables · provenance "
-            f"<b>{esc(pack.provenance)}</b> · file <span class=\"mono\">{esc(PurePath(pack.file).name)}"
-            "</span>"
-            "</p><h3>Table values and assumptions used</h3><table><tr><th>symbol</th>"
-            '<th class="n">value</th><th>source (provenance)</th><th>used for</th></tr>'
-            f"{rows}</table><h3>Equations cited</h3><table><tr><th>gives</th><th>source</th>"
-            f"</tr>{eqs}</table><h3>Checks run</h3><table><tr><th>check</th><th>severity</th>"
-            f"<th>source</th></tr>{checks}</table></section>")
+def _status(s) -> dict:
+    w = s.entry.waiver
+    return {"state": s.state, "rule": w.rule, "subject": w.subject, "detail": s.detail,
+            "reason": w.reason, "approval": shared.approval(s.entry.mark()),
+            "where": f"{s.entry.origin} {s.entry.location}"}
 
 
-def _waivers(report: Report, pid: str) -> str:
-    waived = [f for f in report.findings if f.waived]
-    if not waived and not report.waivers:
-        return ""
-    day = (f' <span class="small">(expiry judged on {esc(report.waiver_date)})</span>'
-           if report.waiver_date else "")
-    out = [f'<section id="{pid}-waivers"><h2>Waivers{day}</h2>']
-    if waived:
-        out.append(f"<h3>Waived findings ({len(waived)})</h3><table>{_ITEMS_HEAD}"
-                   f"{_items_rows(report, waived)}</table>")
-    out.append(_status_table(report.waivers))
-    out.append("</section>")
-    return "".join(out)
-
-
-def _status_table(statuses) -> str:
-    if not statuses:
-        return ""
-    rows = "".join(
-        f"<tr><td>{_badge(s.state)}</td><td><code>{esc(s.entry.waiver.rule)}</code></td>"
-        f"<td>{esc(s.entry.waiver.subject)}</td><td>{esc(s.detail)}</td>"
-        f"<td>{esc(s.entry.waiver.reason)}<br><span class=\"small\">"
-        f"{esc(shared.approval(s.entry.mark()))}</span></td>"
-        f'<td class="small mono">{esc(s.entry.origin)} {esc(s.entry.location)}</td></tr>'
-        for s in statuses)
-    return ("<table><tr><th>state</th><th>check</th><th>subject</th><th>outcome</th>"
-            f"<th>reason · approval</th><th>written at</th></tr>{rows}</table>")
-
-
-def _notes(report: Report, pid: str) -> str:
-    info = [f for f in report.code_findings if f.severity == "info" and not f.waived]
-    parts = []
-    if info:
-        parts.append(f"<details><summary>{len(info)} notes from the checks</summary><table>"
-                     f"{_ITEMS_HEAD}{_items_rows(report, info)}</table></details>")
-    if report.notes:
-        parts.append("<ul>" + "".join(f"<li>{esc(n)}</li>" for n in report.notes) + "</ul>")
-    if not parts:
-        return ""
-    return f'<section id="{pid}-notes"><h2>Notes</h2>{"".join(parts)}</section>'
-
-
-def _cautions(cautions: list[str]) -> str:
-    items = "".join(f"<li>{esc(c)}</li>" for c in cautions)
-    return f'<footer class="cautions" id="cautions"><h2>Cautions</h2><ul>{items}</ul></footer>'
-
-
-def _article(report: Report, pid: str) -> str:
-    return (f'<article class="schedule" id="{pid}">{_top(report)}{_failing(report, pid)}'
-            f"{_chart(report, pid)}<section id=\"{pid}-systems\"><h2>Systems</h2>"
-            + "".join(_system(report, s) for s in report.systems) + "</section>"
-            f"{_waivers(report, pid)}{_provenance(report, pid)}{_notes(report, pid)}</article>")
-
-
-def _overview(batch: Batch) -> str:
-    rows = "".join(
-        f'<tr class="{r.verdict}"><td><a href="#r{i}">{esc(r.schedule_file)}</a></td>'
-        f"<td>{esc(r.project_name)}</td><td>{_badge(r.verdict)}</td>"
-        f'<td class="n">{r.counts()["fail"]}</td><td class="n">{r.counts()["warning"]}</td>'
-        f'<td class="n">{r.waived_count()}</td></tr>' for i, r in enumerate(batch.reports, 1))
+def _overview(batch: Batch) -> dict:
     c = batch.counts()
-    failing = sum(r.verdict == "fail" for r in batch.reports)
-    stale = _status_table(batch.waivers)
-    return (f'<section id="overview"><div class="top"><div><h1>{len(batch.reports)} schedules'
-            f'</h1><p class="meta">{failing} fail · {c["fail"]} failing · {c["warning"]} '
-            f'warnings · {c["waived"]} waived</p></div><div class="stamp {batch.verdict}">'
-            f"{batch.verdict.upper()}</div></div><p class=\"caution-line\">"
-            f"{esc(batch.cautions()[0])}</p><table><tr><th>schedule</th><th>project</th>"
-            '<th>verdict</th><th class="n">failing</th><th class="n">warnings</th>'
-            f'<th class="n">waived</th></tr>{rows}</table>'
-            + (f"<h2>Waivers of the waivers file</h2>{stale}" if stale else "") + "</section>")
+    return {"count": len(batch.reports), "failing": sum(r.verdict == "fail"
+                                                        for r in batch.reports),
+            "fail": c["fail"], "warning": c["warning"], "waived": c["waived"],
+            "verdict": batch.verdict, "caution": batch.cautions()[0],
+            "rows": [{"pid": f"r{i}", "file": r.schedule_file, "project": r.project_name,
+                      "verdict": r.verdict, "fail": r.counts()["fail"],
+                      "warning": r.counts()["warning"], "waived": r.waived_count()}
+                     for i, r in enumerate(batch.reports, 1)],
+            "waivers": [_status(s) for s in batch.waivers]}
 
 
-def render(batch: Batch) -> str:
-    """The HTML document of the run."""
+def chunks(batch: Batch) -> Iterator[str]:
+    """The HTML document of the run, piece by piece (each schedule's page is built as it is
+    written, so a large schedule is never held as one string)."""
     if batch.single:
         r = batch.reports[0]
         title = f"Ventilation review — {r.project_name}"
         links = [("r1-failing", "what fails"), ("r1-air", "outdoor air"),
                  ("r1-systems", "systems"), ("r1-provenance", "provenance"),
                  ("cautions", "cautions")]
-        body = _article(r, "r1")
+        overview = None
     else:
         title = f"Ventilation review — {len(batch.reports)} schedules"
         links = [("overview", "overview")] + [(f"r{i}", r.schedule_file)
                                               for i, r in enumerate(batch.reports, 1)]
-        body = _overview(batch) + "".join(_article(r, f"r{i}")
-                                          for i, r in enumerate(batch.reports, 1))
-    nav = "".join(f'<a href="#{esc(href)}">{esc(text)}</a>' for href, text in links)
-    return ("<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
-            '<meta name="viewport" content="width=device-width, initial-scale=1">'
-            f'<meta name="generator" content="airgate {__version__}">'
-            f"<title>{esc(title)}</title><style>{CSS}</style></head><body>"
-            f'<header class="bar"><span class="brand">airgate · ventilation review</span>'
-            f"<nav>{nav}</nav></header><main>{body}{_cautions(batch.cautions())}</main>"
-            f"<script>{SCRIPT}</script></body></html>\n")
+        overview = _overview(batch)
+    articles = (_View(r, f"r{i}").article() for i, r in enumerate(batch.reports, 1))
+    template = environment().get_template("page.html.j2")
+    return template.generate(
+        version=__version__, title=title, overview=overview, articles=articles,
+        links=[{"href": href, "text": text} for href, text in links],
+        cautions=batch.cautions())
+
+
+def render(batch: Batch) -> str:
+    """The HTML document of the run as one string."""
+    return output.joined(chunks(batch))

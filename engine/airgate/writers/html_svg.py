@@ -1,16 +1,15 @@
 """Inline SVG charts for the HTML report: outdoor air per zone, and CO2 over the design day.
 
-Plain SVG markup with fixed number formatting, so the same report gives the same bytes. Every
-label passes through the caller's escaping function; colours come from CSS classes of the page.
+The geometry only (coordinates with fixed number formatting, so the same report gives the same
+bytes); the markup is in ``templates/macros.html.j2``, whose environment escapes every label.
+Colours come from CSS classes of the page.
 """
 
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Sequence
+from collections.abc import Sequence
 from dataclasses import dataclass
-
-Escape = Callable[[object], str]
 
 
 @dataclass(frozen=True)
@@ -46,8 +45,9 @@ def _tick(v: float) -> str:
     return f"{v:,.0f}" if abs(v) >= 10 or v == 0 else f"{v:g}"
 
 
-def airflow_chart(bars: Sequence[Bar], unit: str, esc: Escape, title: str) -> str:
-    """Bullet rows: the bar is what the zone gets, the dark tick what it requires."""
+def airflow_chart(bars: Sequence[Bar], unit: str, title: str) -> dict:
+    """Geometry of the bullet rows (the bar is what the zone gets, the dark tick what it
+    requires) for the ``airflow_chart`` macro of ``templates/macros.html.j2``."""
     label_w, plot_w, value_w, row_h, top_pad = 250, 400, 230, 24, 26
     width = label_w + plot_w + value_w
     height = top_pad + row_h * len(bars) + 22
@@ -56,40 +56,27 @@ def airflow_chart(bars: Sequence[Bar], unit: str, esc: Escape, title: str) -> st
     step = nice_step(max(finite, default=1.0))
     top = step * max(1, math.ceil(max(finite, default=1.0) / step))
     x = lambda v: label_w + plot_w * min(max(v, 0.0), top) / top  # noqa: E731
-    out = [f'<svg class="chart airflow" role="img" viewBox="0 0 {width} {height}" '
-           f'width="100%" preserveAspectRatio="xMinYMin meet" aria-label="{esc(title)}">',
-           f"<title>{esc(title)}</title>"]
+    grid = []
     n = 0
     while n * step <= top + 1e-9:
-        gx = _f(x(n * step))
-        out.append(f'<line class="grid" x1="{gx}" y1="{top_pad - 6}" x2="{gx}" '
-                   f'y2="{height - 20}"/>')
-        out.append(f'<text class="tick" x="{gx}" y="{height - 6}" text-anchor="middle">'
-                   f"{_tick(n * step)}</text>")
+        grid.append({"x": _f(x(n * step)), "label": _tick(n * step)})
         n += 1
-    out.append(f'<text class="axis" x="{label_w + plot_w}" y="14" text-anchor="end">'
-               f"{esc(unit)}</text>")
+    rows = []
     for i, b in enumerate(bars):
         y = top_pad + i * row_h
         mid = y + row_h / 2
-        label = b.label if len(b.label) <= 40 else b.label[:39] + "…"
-        out.append(f'<g class="row{" short" if b.short else ""}"><title>{esc(b.label)}: '
-                   f"{esc(b.text)}</title>")
-        out.append(f'<text class="label" x="{label_w - 8}" y="{_f(mid + 4)}" '
-                   f'text-anchor="end">{esc(label)}</text>')
-        out.append(f'<rect class="track" x="{label_w}" y="{_f(y + 5)}" width="{plot_w}" '
-                   f'height="{row_h - 10}"/>')
-        if b.provided is not None:
-            out.append(f'<rect class="got" x="{label_w}" y="{_f(y + 7)}" '
-                       f'width="{_f(x(b.provided) - label_w)}" height="{row_h - 14}"/>')
-        if not math.isinf(b.required):
-            rx = _f(x(b.required))
-            out.append(f'<line class="need" x1="{rx}" y1="{_f(y + 3)}" x2="{rx}" '
-                       f'y2="{_f(y + row_h - 3)}"/>')
-        out.append(f'<text class="value" x="{label_w + plot_w + 8}" y="{_f(mid + 4)}">'
-                   f"{esc(b.text)}</text></g>")
-    out.append("</svg>")
-    return "\n".join(out)
+        rows.append({
+            "label": b.label, "text": b.text, "short": b.short,
+            "short_label": b.label if len(b.label) <= 40 else b.label[:39] + "…",
+            "text_y": _f(mid + 4), "track_y": _f(y + 5), "got_y": _f(y + 7),
+            "got_w": None if b.provided is None else _f(x(b.provided) - label_w),
+            "need_x": None if math.isinf(b.required) else _f(x(b.required)),
+            "need_y1": _f(y + 3), "need_y2": _f(y + row_h - 3)})
+    return {"width": width, "height": height, "title": title, "unit": unit, "grid": grid,
+            "grid_top": top_pad - 6, "grid_bottom": height - 20, "tick_y": height - 6,
+            "axis_x": label_w + plot_w, "label_x": label_w - 8, "plot_x": label_w,
+            "plot_w": plot_w, "value_x": label_w + plot_w + 8, "track_h": row_h - 10,
+            "got_h": row_h - 14, "rows": rows}
 
 
 @dataclass(frozen=True)
@@ -112,8 +99,9 @@ def _points(xs, ys, fx, fy, every: int) -> str:
     return " ".join(f"{_f(fx(xs[i]))},{_f(fy(ys[i]))}" for i in idx)
 
 
-def co2_chart(c: Curve, esc: Escape, every: int = 5) -> str:
-    """CO2 against the hour of day, with outdoor level, declared limit and occupancy."""
+def co2_chart(c: Curve, every: int = 5) -> dict:
+    """Geometry of CO2 against the hour of day, with outdoor level, declared limit and
+    occupancy, for the ``co2_chart`` macro of ``templates/macros.html.j2``."""
     w, h, left, right, top_pad, bottom = 320, 170, 40, 8, 10, 22
     pw, ph = w - left - right, h - top_pad - bottom
     hi = max(max(c.ppm), c.peak, c.limit or 0.0)
@@ -126,30 +114,22 @@ def co2_chart(c: Curve, esc: Escape, every: int = 5) -> str:
     fx = lambda t: left + pw * t / 24.0  # noqa: E731
     fy = lambda v: top_pad + ph * (1 - (v - y0) / (y1 - y0))  # noqa: E731
     occ_y = lambda f: top_pad + ph - 0.25 * ph * f  # noqa: E731
-    title = f"CO2 over the design day, {c.label}: peak {c.peak:,.0f} ppm"
-    out = [f'<svg class="chart co2" role="img" viewBox="0 0 {w} {h}" width="100%" '
-           f'aria-label="{esc(title)}"><title>{esc(title)}</title>']
+    grid = []
     v = y0
     while v <= y1 + 1e-9:
-        gy = _f(fy(v))
-        out.append(f'<line class="grid" x1="{left}" y1="{gy}" x2="{w - right}" y2="{gy}"/>')
-        out.append(f'<text class="tick" x="{left - 4}" y="{_f(fy(v) + 3)}" '
-                   f'text-anchor="end">{v:,.0f}</text>')
+        grid.append({"y": _f(fy(v)), "label_y": _f(fy(v) + 3), "label": f"{v:,.0f}"})
         v += step
-    for hour in (0, 6, 12, 18, 24):
-        anchor = "end" if hour == 24 else "middle"
-        out.append(f'<text class="tick" x="{_f(fx(hour))}" y="{h - 6}" '
-                   f'text-anchor="{anchor}">{hour:02d}:00</text>')
+    hours = [{"x": _f(fx(hour)), "label": f"{hour:02d}:00",
+              "anchor": "end" if hour == 24 else "middle"} for hour in (0, 6, 12, 18, 24)]
     occ = _points(c.hours, c.occupancy, fx, occ_y, every)
-    out.append(f'<polygon class="occupancy" points="{_f(fx(c.hours[0]))},{_f(occ_y(0))} {occ} '
-               f'{_f(fx(c.hours[-1]))},{_f(occ_y(0))}"/>')
-    oy = _f(fy(c.outdoor))
-    out.append(f'<line class="outdoor" x1="{left}" y1="{oy}" x2="{w - right}" y2="{oy}"/>')
+    limit = None
     if c.limit is not None:
-        ly = _f(fy(c.limit))
-        out.append(f'<line class="limit" x1="{left}" y1="{ly}" x2="{w - right}" y2="{ly}"/>')
-        out.append(f'<text class="tick limit-label" x="{w - right}" y="{_f(fy(c.limit) - 3)}" '
-                   f'text-anchor="end">limit {c.limit:,.0f}</text>')
-    out.append(f'<polyline class="ppm" points="{_points(c.hours, c.ppm, fx, fy, every)}"/>')
-    out.append("</svg>")
-    return "\n".join(out)
+        limit = {"y": _f(fy(c.limit)), "label_y": _f(fy(c.limit) - 3),
+                 "label": f"limit {c.limit:,.0f}"}
+    return {"width": w, "height": h, "left": left, "right": w - right, "tick_x": left - 4,
+            "hour_y": h - 6, "title": f"CO2 over the design day, {c.label}: peak "
+            f"{c.peak:,.0f} ppm", "grid": grid, "hours": hours,
+            "occupancy": f"{_f(fx(c.hours[0]))},{_f(occ_y(0))} {occ} "
+                         f"{_f(fx(c.hours[-1]))},{_f(occ_y(0))}",
+            "outdoor_y": _f(fy(c.outdoor)), "limit": limit,
+            "ppm": _points(c.hours, c.ppm, fx, fy, every)}

@@ -1,0 +1,1 @@
+addEventListener("beforeprint",function(){document.querySelectorAll("details").forEach(function(d){d.open=true})});
