@@ -446,3 +446,25 @@ def test_alias_byte_limit_is_configurable_by_environment(tmp_path):
     assert run.returncode == 2 and "more than 500 bytes of text" in run.stderr
     assert f"{path}:2:" in run.stderr and "Traceback" not in run.stderr
     assert os.path.getsize(path) < 500  # the file itself is small
+
+
+def test_a_long_name_aliased_on_thousands_of_zones_is_refused(tmp_path, capsys):
+    # docs/limits.md, alias text: a 1 MB name anchored once and aliased on 2,000 zones is
+    # 1.2 MB of schedule but 2 GB of report; the byte budget stops it at the alias that
+    # passes 10 MiB (the 11th alias: 11 MB)
+    name = "N" * 1_000_000
+    lines = ["schedule: 1", "project: {name: Alias test (invented), units: IP}",
+             "rules: ashrae-62.1-2019", "systems:", "  - id: S", "    kind: outdoor-air",
+             "    outdoor_air: 100000 cfm", "    zones:"]
+    for i in range(2000):
+        named = f"&big {name}" if i == 0 else "*big"
+        lines.append(f"      - {{id: z{i}, name: {named}, space: office-space, area: 100 ft2, "
+                     "air_distribution: ceiling-supply-cool}")
+    path = tmp_path / "aliased.yaml"
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    target = tmp_path / "report.json"
+    code, out, err = _run(capsys, ["check", str(path), "--format", f"json:{target}"])
+    assert code == 2 and out == "" and not target.exists()
+    column = lines[19].index("*big") + 1
+    assert f"{path}:20:{column}: schedule error: systems[0].zones[11].name: aliases expand to " \
+           "more than 10 MiB of text" in err

@@ -279,3 +279,14 @@ def test_workbook_unpacking_past_the_limit_is_refused(demo_xlsx, openpyxl, tmp_p
     assert code == 2 and "Traceback" not in err
     assert f"{demo_xlsx}: schedule error: the workbook's parts unpack to " in err
     assert "more than the 20000 bytes limit" in err
+
+
+def test_a_workbook_that_is_not_a_file_on_disk_is_refused(tmp_path, capsys):
+    # a workbook is an archive read by position: a pipe named .xlsx is refused before reading
+    import os
+
+    fifo = tmp_path / "book.xlsx"
+    os.mkfifo(fifo)
+    code, _, err = _run(capsys, ["check", str(fifo)])
+    assert code == 2 and "Traceback" not in err
+    assert f"{fifo}: schedule error: is not a regular file" in err

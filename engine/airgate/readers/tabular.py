@@ -165,7 +165,9 @@ def read_xlsx(path: str | Path) -> ImportedSchedule:
                             hint="pip install 'airgate[xlsx]'") from None
     if not path.is_file():
         raise ScheduleError("file not found" if not path.exists() else
-                            "is a directory, expected a file", file=name)
+                            "is a directory, expected a file" if path.is_dir() else
+                            "is not a regular file; a workbook is read from a file on disk",
+                            file=name)
     if path.stat().st_size > limits.MAX_BYTES:
         raise ScheduleError(f"file is larger than the {limits.size_text(limits.MAX_BYTES)} "
                             "limit", file=name,
