@@ -2,10 +2,11 @@
 written in place, failures to write reported as output errors (exit 2), no temporary file left
 behind by an error or a signal.
 
-The expectations are the POSIX semantics of the calls involved (common practice): ``rename``
-replaces a directory entry, so a device or FIFO must be opened and written, never renamed over;
-``open(…, O_CREAT)`` gives mode 0666 less the umask; a write to /dev/full fails with ENOSPC
-(Linux null(4)/full(4) man page); a write to a pipe whose reader has gone fails with EPIPE.
+The expectations are the semantics of the calls involved (POSIX.1-2017: rename(), open(),
+umask(); docs/references.md): ``rename`` replaces a directory entry, so a device or FIFO must
+be opened and written, never renamed over; ``open(…, O_CREAT)`` gives mode 0666 less the
+umask; a write to /dev/full fails with ENOSPC (Linux null(4)/full(4) manual page); a write to
+a pipe whose reader has gone fails with EPIPE.
 The real /dev/null is only ever written to here, never replaced or changed otherwise.
 """
 
