@@ -103,8 +103,10 @@ def _is_number(text: str) -> bool:
     return True
 
 
-def air_distribution(loaded: LoadedSchedule, pack: RulePack, zone: Zone, path: Path_) -> EzChoice:
-    """The zone's Ez: explicit with its basis, the matched table row(s), or the pack default."""
+def air_distribution(loaded: LoadedSchedule, pack: RulePack, zone: Zone, path: Path_,
+                     key: tuple = ()) -> EzChoice:
+    """The zone's Ez: explicit with its basis, the matched table row(s), or the pack default.
+    ``key``: the condition id under ``air_distribution`` where it is given per condition."""
     if zone.ez is not None:
         return EzChoice(zone.ez, "explicit", f"stated in the schedule: {zone.ez_basis}",
                         "schedule")
@@ -117,7 +119,7 @@ def air_distribution(loaded: LoadedSchedule, pack: RulePack, zone: Zone, path: P
         return EzChoice(row.ez, "assumed", f"not stated; assumed '{row.id}': {row.label}",
                         f"{row.source.cite()} ({row.provenance})", (row.id,))
     items = refs if isinstance(refs, list) else [refs]
-    base = path + ("air_distribution",)
+    base = path + ("air_distribution",) + key
     rows = [_row(loaded, pack, ref, base + ((i,) if isinstance(refs, list) else ()))
             for i, ref in enumerate(items)]
     governing = min(rows, key=lambda r: (r.ez, r.id))

@@ -10,12 +10,20 @@ import datetime as dt
 from collections.abc import Sequence
 
 from airgate.errors import AirgateError, raise_all
-from airgate.evaluation import bind, contaminants, coverage, dilution, systems, waivers
+from airgate.evaluation import (
+    bind,
+    conditions,
+    contaminants,
+    coverage,
+    dilution,
+    systems,
+    waivers,
+)
 from airgate.evaluation.checks import DECLARED_CHECKS, KNOWN_CHECKS, Emitter
 from airgate.evaluation.system_kinds import kind_of
 from airgate.evaluation.findings import Location
 from airgate.evaluation.requirements import Run as RequirementRun
-from airgate.evaluation.report import SAFETY_CAUTION, Report, SystemResult
+from airgate.evaluation.report import SAFETY_CAUTION, ConditionResult, Report, SystemResult
 from airgate.evaluation.trail import Trail
 from airgate.evaluation.unused import unused_fields
 from airgate.evaluation.zones import ZoneContext, evaluate_zone
@@ -30,28 +38,76 @@ def _location(loaded: LoadedSchedule, path: tuple) -> Location:
 
 
 def _bind_all(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
-              run: RequirementRun | None = None) -> list[list[ZoneContext]]:
+              run: RequirementRun | None = None) -> list[dict[str | None, list[ZoneContext]]]:
+    """Every zone bound to the pack at every design condition of its system: per system, the
+    zone contexts of each condition (one unnamed condition for a system without any)."""
     errors: list[AirgateError] = []
     out = []
-    for i, system in enumerate(loaded.model.systems):
-        ctxs = []
-        for j, zone in enumerate(system.zones):
-            path = ("systems", i, "zones", j)
-            cat = bind.collect(errors, bind.category, loaded, pack, zone, path)
-            ez = bind.collect(errors, bind.air_distribution, loaded, pack, zone, path)
-            bind.collect(errors, bind.dilution_refs, loaded, zone, path, tables)
-            if cat is not None and ez is not None and run is not None:  # the pack's requirements
-                cat, ez = bind.collect(errors, run.adjust, i, j, cat, ez) or (None, None)
-            if cat is not None and ez is not None:
-                fields = {name: _location(loaded, path + (name,)) for name in
-                          ("area", "occupants", "bedrooms") if getattr(zone, name) is not None}
-                ctxs.append(ZoneContext(zone=zone, path=path, location=_location(loaded, path),
-                                        category=cat, ez=ez, subject=f"{system.id}/{zone.id}",
-                                        system_id=system.id, fields=fields))
-        out.append(ctxs)
-        errors.extend(kind_of(system).check_inputs(loaded, pack, i))
-    raise_all(errors)
+    for i, stated in enumerate(loaded.model.systems):
+        by_condition: dict[str | None, list[ZoneContext]] = {}
+        for cond in conditions.names(stated):
+            system = stated.at(cond)
+            ctxs = by_condition.setdefault(cond, [])
+            for j, zone in enumerate(system.zones):
+                path = ("systems", i, "zones", j)
+                cat = bind.collect(errors, bind.category, loaded, pack, zone, path)
+                key = (cond,) if isinstance(stated.zones[j].air_distribution, dict) else ()
+                ez = bind.collect(errors, bind.air_distribution, loaded, pack, zone, path, key)
+                bind.collect(errors, bind.dilution_refs, loaded, zone, path, tables)
+                if cat is not None and ez is not None and run is not None:  # pack requirements
+                    cat, ez = bind.collect(errors, run.adjust, i, j, cat, ez, zone) or (None, None)
+                if cat is not None and ez is not None:
+                    fields = {name: _location(loaded, conditions.keyed(path + (name,), cond))
+                              for name in ("area", "occupants", "bedrooms")
+                              if getattr(zone, name) is not None}
+                    ctxs.append(ZoneContext(zone=zone, path=path, location=_location(loaded, path),
+                                            category=cat, ez=ez, subject=f"{system.id}/{zone.id}",
+                                            system_id=system.id, fields=fields))
+        out.append(by_condition)
+        errors.extend(kind_of(stated).check_inputs(loaded, pack, i))
+    raise_all(_unique(errors))
     return out
+
+
+def _unique(errors: list[AirgateError]) -> list[AirgateError]:
+    """An input error repeated at several conditions (an unknown space, say) is reported once."""
+    seen: set = set()
+    out = []
+    for e in errors:
+        key = (e.field, e.message)
+        if key not in seen:
+            seen.add(key)
+            out.append(e)
+    return out
+
+
+def _evaluate_system(loaded: LoadedSchedule, pack: RulePack, emitter: Emitter, i: int,
+                     by_condition: dict[str | None, list[ZoneContext]]) -> tuple:
+    """The system at each of its conditions; the governing one as the system's result, every
+    condition's own results on it, findings naming their condition."""
+    stated = loaded.model.systems[i]
+    where = _location(loaded, ("systems", i))
+    runs = []
+    for cond, ctxs in by_condition.items():
+        system = stated.at(cond)
+        locate = lambda path, c=cond: _location(loaded, conditions.keyed(path, c))  # noqa: E731
+        intake_at = locate(("systems", i, "outdoor_air"))
+        start = len(emitter.findings)
+        zones = [evaluate_zone(ctx, pack, emitter) for ctx in ctxs]
+        result = SystemResult(id=system.id, name=system.name, kind=system.kind, location=where,
+                              trail=Trail(), zones=zones)
+        kind_of(system).evaluate(system, ctxs, zones, result, pack, emitter, intake_at, locate)
+        conditions.tag(emitter.findings, start, cond)
+        runs.append((cond, system, ctxs, result))
+    k = conditions.governing([r[3] for r in runs])
+    cond, system, ctxs, result = runs[k]
+    if cond is not None:
+        result.condition = cond
+        result.conditions = [
+            ConditionResult(id=c, trail=r.trail, zones=r.zones, method=r.method,
+                            critical_zone=r.critical_zone, load=conditions.load_ratio(r))
+            for c, _, _, r in runs]
+    return system, ctxs, result, where
 
 
 def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
@@ -73,24 +129,26 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
     bound = _bind_all(loaded, pack, tables, run)
     emitter = Emitter(pack, units, lambda path: _location(loaded, path))
     results = []
-    for i, (system, ctxs) in enumerate(zip(loaded.model.systems, bound)):
-        where = _location(loaded, ("systems", i))
-        intake_at = _location(loaded, ("systems", i, "outdoor_air"))
-        zones = [evaluate_zone(ctx, pack, emitter) for ctx in ctxs]
-        result = SystemResult(id=system.id, name=system.name, kind=system.kind, location=where,
-                              trail=Trail(), zones=zones)
-        locate = lambda path: _location(loaded, path)  # noqa: E731
-        kind_of(system).evaluate(system, ctxs, zones, result, pack, emitter, intake_at, locate)
+    governed = []  # each system at its governing condition
+    for i, by_condition in enumerate(bound):
+        system, ctxs, result, where = _evaluate_system(loaded, pack, emitter, i, by_condition)
+        governed.append(system)
         systems.air_classes(system, ctxs, emitter, where)
+        start = len(emitter.findings)
+        # the CO2 and contaminant analyses and the pack's requirements: at the governing condition
         dilution.analyse(system, ctxs, result, loaded.model, emitter, tables)
         contaminants.analyse(system, ctxs, result, loaded.model, emitter, tables)
         run.evaluate(i, system, ctxs, result, emitter)
+        conditions.tag(emitter.findings, start, result.condition)
         results.append(result)
+    model = loaded.model.model_copy(update={"systems": governed})
     findings = sorted(emitter.findings, key=lambda f: f.sort_key())
     findings, statuses, waiver_date = waivers.review(findings, entries, pack, results, as_of)
     _verdicts(results, findings)
+    for result in results:
+        conditions.verdicts(result, findings)
     notes = unused_fields(loaded.model, lambda path: str(_location(loaded, path)))
-    notes += dilution.unchecked_limits(loaded.model, results,
+    notes += dilution.unchecked_limits(model, results,
                                        lambda path: str(_location(loaded, path)))
     notes += [f"{s.id}: {note}" for s in results for note in s.notes]
     if pack.units != units:
@@ -99,7 +157,7 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
                      "1 ft = 0.3048 m). The standard's own table for your unit system is rounded "
                      "separately; use that pack where one exists.")
     cautions = [SAFETY_CAUTION, *pack.cautions]
-    cases = coverage.cases(loaded.model, pack, results, findings,
+    cases = coverage.cases(model, pack, results, findings,
                            lambda path: _location(loaded, path), run.outcomes)
     return Report(schedule_file=loaded.file, project_name=loaded.model.project.name, units=units,
                   pack=pack, systems=results, findings=findings, notes=notes, cautions=cautions,

@@ -68,6 +68,9 @@ class Finding:
     waiver: WaiverMark | None = None
     #: ``code`` (a requirement of the pack) or ``declared`` (a limit the schedule sets itself)
     basis: str = CODE
+    #: the design condition the finding is about (None: the system lists no conditions, or the
+    #: finding holds at every condition)
+    condition: str | None = None
 
     @property
     def waived(self) -> bool:

@@ -38,6 +38,20 @@ class ZoneResult:
 
 
 @dataclass
+class ConditionResult:
+    """One design condition of a system: its own trail, zones and verdict."""
+
+    id: str
+    trail: Trail
+    zones: list[ZoneResult]
+    method: str | None = None
+    critical_zone: str | None = None
+    #: Vot / Vot_design: the share of the scheduled intake this condition needs [–]
+    load: float = 0.0
+    verdict: str = "pass"
+
+
+@dataclass
 class SystemResult:
     id: str
     name: str | None
@@ -50,6 +64,11 @@ class SystemResult:
     verdict: str = "pass"
     #: what the evaluation of this system wants a reader to know (the report lists them)
     notes: list[str] = field(default_factory=list)
+    #: the governing design condition (None: the system lists no conditions); the trail, zones,
+    #: method and critical zone above are those of this condition
+    condition: str | None = None
+    #: every design condition the system lists, in its order (empty without conditions)
+    conditions: list[ConditionResult] = field(default_factory=list)
 
 
 @dataclass

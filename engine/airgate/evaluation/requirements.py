@@ -71,12 +71,13 @@ class Run:
 
     # --- binding ------------------------------------------------------------------------------
 
-    def adjust(self, i: int, j: int, cat: OccupancyCategory,
-               ez: EzChoice) -> tuple[OccupancyCategory, EzChoice]:
+    def adjust(self, i: int, j: int, cat: OccupancyCategory, ez: EzChoice,
+               zone: Any = None) -> tuple[OccupancyCategory, EzChoice]:
         """The zone's category (effective rates) and Ez after the modifying requirements, kind
-        by kind in the order the kinds are registered."""
+        by kind in the order the kinds are registered. ``zone``: the zone at the design
+        condition bound (default: as the schedule states it)."""
         system = self.loaded.model.systems[i]
-        zone = system.zones[j]
+        zone = system.zones[j] if zone is None else zone
         self._dwelling_inputs(zone, cat, ("systems", i, "zones", j))
         subject = zone_subject(system, zone, cat, ez.rows)
         for kind, found in EVALUATORS.items():

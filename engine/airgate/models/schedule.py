@@ -15,7 +15,9 @@ from pydantic import (
     BaseModel,
     BeforeValidator,
     ConfigDict,
+    Discriminator,
     Field,
+    Tag,
     WithJsonSchema,
     field_validator,
     model_validator,
@@ -101,6 +103,38 @@ Id = Annotated[
 ]
 
 
+#: most design conditions a system may list
+MAX_CONDITIONS = 8
+
+
+def _condition_tag(value: Any) -> str:
+    """A mapping is a per-condition value, except a stated air distribution (it has ``supply``)."""
+    if isinstance(value, dict) and "supply" not in value:
+        return "by_condition"
+    return "value"
+
+
+def by_condition(kind: Any) -> Any:
+    """``kind``, or a mapping from condition id (the system's ``conditions``) to ``kind``: the
+    value at each design condition. A plain value applies to every condition."""
+    return Annotated[
+        Annotated[kind, Tag("value")] | Annotated[dict[Id, kind | None], Tag("by_condition")],
+        Discriminator(_condition_tag),
+    ]
+
+
+def at_condition(value: Any, condition: str | None) -> Any:
+    """The value of a field at ``condition`` (a plain value applies to every condition)."""
+    if isinstance(value, dict) and condition is not None:
+        return value.get(condition)
+    return value
+
+
+#: the fields that may differ by design condition
+ZONE_CONDITION_FIELDS = ("occupants", "air_distribution", "ez", "ez_basis", "primary_airflow")
+SYSTEM_CONDITION_FIELDS = ("outdoor_air", "population", "supply_airflow")
+
+
 class _Model(BaseModel):
     model_config = ConfigDict(extra="forbid", frozen=True, str_strip_whitespace=True,
                               populate_by_name=True)
@@ -162,6 +196,9 @@ class StatedDistribution(_Model):
     ) | None = None
 
 
+ExplicitEz = Annotated[float, Field(gt=0, le=2, allow_inf_nan=False,
+                                    description="Explicit Ez. [–]")]
+EzBasis = Annotated[str, Field(min_length=1, description="Why the explicit Ez applies. [–]")]
 DistributionRef = Annotated[str, Field(min_length=1, description="A row id of the pack's Ez table. [–]")]
 #: Several modes analysed (cooling and heating, say); at least one.
 DistributionModes = Annotated[list[DistributionRef | StatedDistribution], Field(min_length=1)]
@@ -174,23 +211,27 @@ class Zone(_Model):
     name: str | None = Field(None, description="Room or zone name. [–]")
     space: str = Field(min_length=1, description="Occupancy category id of the rule pack. [–]")
     area: Q("area", "Zone floor area Az (net occupiable). [ft² or m²]", positive=True)
-    occupants: People | None = Field(
-        None, description="Zone population Pz; default: table density × Az. [people]")
+    occupants: by_condition(People) | None = Field(
+        None, description="Zone population Pz; default: table density × Az; a mapping "
+                          "gives it per design condition. [people]")
     bedrooms: Annotated[int, BeforeValidator(_whole_number)] | None = Field(
         None, ge=0, le=100, description="Number of bedrooms Nbr of a dwelling unit (its default "
                                         "occupancy is Nbr + 1 where the pack says so). [–]")
     height: Q("length", "Ceiling height. [ft or m]", positive=True) | None = None
     volume: Q("volume", "Zone volume. [ft³ or m³]", positive=True) | None = None
-    air_distribution: (
-        DistributionRef | StatedDistribution | DistributionModes | None
-    ) = Field(None, description="Ez table row id or stated configuration; a list of modes: the "
-                                "lowest Ez governs. [–]")
-    ez: float | None = Field(None, gt=0, le=2, allow_inf_nan=False,
-                             description="Explicit zone air distribution effectiveness Ez. [–]")
-    ez_basis: str | None = Field(None, min_length=1, description="Why the explicit Ez applies. [–]")
-    primary_airflow: Q(
-        "airflow", "Zone primary airflow Vpz at the design condition analysed. [cfm or L/s]",
-        positive=True) | None = None
+    air_distribution: by_condition(
+        DistributionRef | StatedDistribution | DistributionModes
+    ) | None = Field(None, description="Ez table row id or stated configuration; a list of "
+                                       "modes: the lowest Ez governs; a mapping from condition "
+                                       "id: one per design condition. [–]")
+    ez: by_condition(ExplicitEz) | None = Field(
+        None, description="Explicit zone air distribution effectiveness Ez (a mapping: per "
+                          "design condition). [–]")
+    ez_basis: by_condition(EzBasis) | None = Field(
+        None, description="Why the explicit Ez applies (a mapping: per design condition). [–]")
+    primary_airflow: by_condition(Q(
+        "airflow", "Zone primary airflow Vpz at the design condition analysed (a mapping: per "
+        "design condition). [cfm or L/s]", positive=True)) | None = None
     ep: float | None = Field(None, gt=0, le=1, allow_inf_nan=False,
                              description="Primary air fraction of zone supply Ep (secondary "
                                          "recirculation); default 1. [–]")
@@ -217,10 +258,18 @@ class Zone(_Model):
 
     @model_validator(mode="after")
     def _ez_has_basis(self) -> Zone:
-        if self.ez is not None and self.ez_basis is None:
-            raise cross_field("ez", "an explicit ez needs ez_basis: say why it applies")
-        if self.ez is not None and self.air_distribution is not None:
-            raise cross_field("ez", "give either air_distribution or an explicit ez, not both")
+        # once validated, a per-condition value is a dict (a stated distribution is a model)
+        keys = sorted({k for name in ZONE_CONDITION_FIELDS
+                       if isinstance(v := getattr(self, name), dict) for k in v}) or [None]
+        for key in keys:
+            ez, basis = at_condition(self.ez, key), at_condition(self.ez_basis, key)
+            where = "" if key is None else f" (condition {key})"
+            if ez is not None and basis is None:
+                raise cross_field("ez", f"an explicit ez needs ez_basis{where}: say why it "
+                                        "applies")
+            if ez is not None and at_condition(self.air_distribution, key) is not None:
+                raise cross_field("ez", f"give either air_distribution or an explicit "
+                                        f"ez{where}, not both")
         if self.er is not None and self.ep is None:
             raise cross_field("er", "er (secondary recirculation) needs ep, the primary air "
                                     "fraction")
@@ -251,12 +300,19 @@ class System(_Model):
     name: str | None = Field(None, description="Air system name. [–]")
     kind: Literal[tuple(SYSTEM_KINDS)] = Field(
         description="single-zone, 100 % outdoor-air, or multiple-zone recirculating. [–]")
-    outdoor_air: Q("airflow", "Scheduled minimum outdoor-air intake Vot. [cfm or L/s]")
-    supply_airflow: Q(
+    conditions: list[Id] | None = Field(
+        None, min_length=1, max_length=MAX_CONDITIONS,
+        description="Design conditions the system operates at (ids of your choosing, e.g. "
+                    "[cooling, heating]); fields given as a mapping from these ids take one "
+                    "value per condition, and each condition is evaluated. [–]")
+    outdoor_air: by_condition(Q("airflow", "Scheduled minimum outdoor-air intake Vot (a "
+                                           "mapping: per design condition). [cfm or L/s]"))
+    supply_airflow: by_condition(Q(
         "airflow", "System primary airflow Vps at the condition analysed; default ΣVpz. "
-                   "[cfm or L/s]", positive=True) | None = None
-    population: People | None = Field(
-        None, description="System population Ps; default ΣPz. [people]")
+                   "[cfm or L/s]", positive=True)) | None = None
+    population: by_condition(People) | None = Field(
+        None, description="System population Ps; default ΣPz (a mapping: per design "
+                          "condition). [people]")
     ventilation_efficiency: Literal["simplified", "detailed", "table"] | None = Field(
         None, description="Ev method (multiple-zone); default: the pack's. [–]")
     variable_air_volume: bool = Field(
@@ -273,6 +329,26 @@ class System(_Model):
             raise cross_field("kind", f"a single-zone system serves exactly one zone, this one "
                                       f"lists {len(self.zones)}; use kind: multiple-zone")
         return self
+
+    @field_validator("conditions")
+    @classmethod
+    def _unique_conditions(cls, items: list[str] | None) -> list[str] | None:
+        if items is not None and len(set(items)) != len(items):
+            twice = sorted({c for c in items if items.count(c) > 1})
+            raise ValueError(f"condition '{twice[0]}' is listed twice")
+        return items
+
+    def at(self, condition: str | None) -> System:
+        """This system at one design condition: every per-condition field resolved to its plain
+        value (no validation is repeated; the values are already in internal units)."""
+        if condition is None:
+            return self
+        zones = [z.model_copy(update={name: at_condition(getattr(z, name), condition)
+                                      for name in ZONE_CONDITION_FIELDS})
+                 for z in self.zones]
+        update = {name: at_condition(getattr(self, name), condition)
+                  for name in SYSTEM_CONDITION_FIELDS}
+        return self.model_copy(update={**update, "zones": zones})
 
     @property
     def is_recirculating(self) -> bool:

@@ -13,7 +13,15 @@ from typing import Any
 from pydantic import BaseModel, ValidationError
 
 from airgate.errors import AirgateError, ScheduleError, nearest, raise_all
-from airgate.models.schedule import Project, Schedule, StatedDistribution, System, Zone
+from airgate.models.schedule import (
+    SYSTEM_CONDITION_FIELDS,
+    ZONE_CONDITION_FIELDS,
+    Project,
+    Schedule,
+    StatedDistribution,
+    System,
+    Zone,
+)
 from airgate.models.loaded import LoadedSchedule
 from airgate.models.waivers import Waiver
 from airgate.readers.document import Document, Path_, load
@@ -291,8 +299,48 @@ def validate(doc: Document) -> Schedule:
                  if not (e.field == ("systems",) and "duplicate" in e.message)]
         raise_all(_dedupe(found + errors))
         raise doc.error(ScheduleError, f"the schedule is not valid: {exc}", ()) from None
-    raise_all(errors)
+    raise_all(errors + _condition_errors(model, doc))
     return model
+
+
+def _condition_errors(model: Schedule, doc: Document) -> list[AirgateError]:
+    """Every per-condition mapping names each of its system's conditions, and no other."""
+    out: list[AirgateError] = []
+    for i, system in enumerate(model.systems):
+        named = system.conditions or []
+        fields = [(("systems", i, name), getattr(system, name)) for name in SYSTEM_CONDITION_FIELDS]
+        fields += [(("systems", i, "zones", j, name), getattr(zone, name))
+                   for j, zone in enumerate(system.zones) for name in ZONE_CONDITION_FIELDS]
+        for path, value in fields:
+            if not isinstance(value, dict):
+                continue
+            if not named:
+                out.append(doc.error(
+                    ScheduleError, f"{path[-1]} is given per condition ({', '.join(value)}) but "
+                    f"system '{system.id}' lists no conditions", path,
+                    hint="add conditions: [" + ", ".join(value) + "] to the system, or give "
+                    "one plain value"))
+                continue
+            for key in value:
+                if key not in named:
+                    close = nearest(key, named)
+                    out.append(doc.error(
+                        ScheduleError, f"unknown condition '{key}'" + (
+                            f"; did you mean '{close[0]}'?" if close else ""), path + (key,),
+                        allowed=list(named), hint=f"the conditions of system '{system.id}' "
+                        f"are {', '.join(named)}"))
+            missing = [c for c in named if c not in value]
+            if missing:
+                out.append(doc.error(
+                    ScheduleError, f"{path[-1]} has no value for condition "
+                    f"{', '.join(repr(c) for c in missing)}", path, allowed=list(named),
+                    hint="give a value for every condition the system lists (null where an "
+                    "optional field does not apply), or one plain value for all"))
+            if path[-1] == "outdoor_air" and any(value.get(c) is None for c in named):
+                out.append(doc.error(
+                    ScheduleError, "outdoor_air needs a value at every condition", path,
+                    hint="give the scheduled minimum intake of each condition"))
+    return out[:MAX_ERRORS]
 
 
 def _kind_of(value: Any) -> str:
