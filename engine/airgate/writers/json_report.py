@@ -13,7 +13,7 @@ from typing import Any
 
 from airgate import __version__, units
 from airgate.evaluation.findings import Amount, Finding
-from airgate.evaluation.report import Report, SystemResult, ZoneResult
+from airgate.evaluation.report import ConditionResult, Report, SystemResult, ZoneResult
 from airgate.evaluation.waivers import WaiverStatus
 from airgate.evaluation.trail import Step, Trail
 from airgate.writers.output import Lazy, Streamed, json_chunks, json_text
@@ -94,12 +94,23 @@ def _zone(z: ZoneResult, system: str, step_minutes: int = 0) -> dict[str, Any]:
 def _system(s: SystemResult, system: str, step_minutes: int = 0,
             lazy: bool = False) -> dict[str, Any]:
     zones = (_zone(z, system, step_minutes) for z in s.zones)
-    return (Streamed if lazy else dict)(
+    out = dict(
         id=s.id, name=s.name, kind=s.kind, verdict=s.verdict,
         ventilation_efficiency_method=s.method, critical_zone=s.critical_zone,
         values=_values(s.trail, system), location=_location(s.location),
         trail=_trail(s.trail, system), zones=Lazy(zones) if lazy else list(zones),
     )
+    if s.condition is not None:  # only a system that lists design conditions
+        out["condition"] = s.condition
+        out["conditions"] = [_condition(c, system) for c in s.conditions]
+    return (Streamed if lazy else dict)(out)
+
+
+def _condition(c: ConditionResult, system: str) -> dict[str, Any]:
+    return {"id": c.id, "verdict": c.verdict, "ventilation_efficiency_method": c.method,
+            "critical_zone": c.critical_zone, "values": _values(c.trail, system),
+            "zones": [{"id": z.id, "verdict": z.verdict, "values": _values(z.trail, system)}
+                      for z in c.zones]}
 
 
 def _location(loc) -> dict[str, Any]:
@@ -114,7 +125,8 @@ def _finding(f: Finding, system: str) -> dict[str, Any]:
     return {
         "rule": f.rule, "severity": f.severity, "basis": f.basis, "subject": f.subject,
         "system": f.system,
-        "zone": f.zone, "message": f.message,
+        "zone": f.zone, **({} if f.condition is None else {"condition": f.condition}),
+        "message": f.message,
         "required": _amount(f.required, system), "provided": _amount(f.provided, system),
         "source": f.source, "location": _location(f.location),
         "waiver": None if f.waiver is None else {

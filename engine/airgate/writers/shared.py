@@ -9,7 +9,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from airgate import formatting
+from airgate import formatting, units
 from airgate.evaluation.checks import DECLARED_CHECKS, what_it_verifies
 from airgate.evaluation.findings import DECLARED, Amount, WaiverMark
 from airgate.evaluation.report import Report
@@ -119,3 +119,33 @@ def status_line(s: WaiverStatus) -> str:
     w = s.entry.waiver
     return (f"{w.rule} on {w.subject}: {s.detail} — {w.reason} "
             f"({approval(s.entry.mark())}; {s.entry.origin} {s.entry.location})")
+
+
+#: the header of the per-condition summary (units are added by each writer)
+CONDITION_HEAD = ("condition", "Vot", "scheduled", "Ev", "critical zone", "margin", "verdict")
+#: how the governing condition is marked, and what the mark means
+GOVERNS_MARK = "▸"
+GOVERNS_NOTE = ("▸ governing condition: the one that needs the most intake relative to the "
+                "intake scheduled for it (largest Vot / scheduled)")
+
+
+def condition_rows(s, units: str) -> list[tuple[bool, list[str]]]:
+    """One row per design condition of system ``s`` (none without conditions), as plain text:
+    whether it governs, then the cells of :data:`CONDITION_HEAD` (amounts without units)."""
+    out = []
+    for c in s.conditions:
+        t = c.trail
+        vot = Amount(t.value("Vot"), "airflow") if "Vot" in t else None
+        scheduled = Amount(t.value("Vot_design"), "airflow") if "Vot_design" in t else None
+        ev = t.value("Ev") if "Ev" in t else None
+        cells = [c.id,
+                 "no intake suffices" if vot and math.isinf(vot.value) else _bare(vot, units),
+                 _bare(scheduled, units),
+                 "–" if ev is None else formatting.number(ev, "fraction"),
+                 c.critical_zone or "–", margin(vot, scheduled, units), c.verdict]
+        out.append((c.id == s.condition, cells))
+    return out
+
+
+def _bare(a: Amount | None, system: str) -> str:
+    return "–" if a is None else formatting.number(units.to_display(a.value, a.kind, system), a.kind)

@@ -81,11 +81,26 @@ def _system(s: SystemResult, system: str) -> list[str]:
             f"    outdoor-air intake: required Vot {formatting.amount(required, 'airflow', system)}"
             f" · scheduled {formatting.amount(provided, 'airflow', system)}"
             f" · margin {shared.margin(Amount(required, 'airflow'), Amount(provided, 'airflow'), system)}")
+    lines += _condition_rows(s, system)
     lines.append("")
     lines += _zone_rows(s, system)
     lines += _dilution_rows(s, system)
     lines += _contaminant_rows(s, system)
     return lines
+
+
+def _condition_rows(s: SystemResult, system: str) -> list[str]:
+    """The design conditions, the governing one marked (nothing for a system without any)."""
+    rows = shared.condition_rows(s, system)
+    if not rows:
+        return []
+    q = units.label("airflow", system)
+    head = ["", "condition", f"Vot {q}", f"scheduled {q}", "Ev", "critical zone", "margin",
+            "verdict"]
+    body = [[shared.GOVERNS_MARK if governs else "", *(clean(c) for c in cells[:-1]),
+             cells[-1].upper() if cells[-1] == "fail" else cells[-1]] for governs, cells in rows]
+    return ["", f"    design conditions ({len(rows)}): {clean(s.condition)} governs"] + [
+        "  " + line for line in _table([head, *body], right={2, 3, 4})]
 
 
 def _contaminant_rows(s: SystemResult, system: str) -> list[str]:
@@ -194,6 +209,8 @@ def render(report: Report) -> str:
                    "table gives no density)")
     out.append(f"    gets: outdoor air the zone receives at the scheduled intake (Voz_delivered; "
                "see the zone's trail for how)")
+    if any(s.conditions for s in report.systems):
+        out.append("    " + shared.GOVERNS_NOTE)
     if any(s.critical_zone for s in report.systems):
         out.append("    ◂ critical zone (lowest Evz; for the table method, largest Zpz)")
     out.append("")
