@@ -204,6 +204,13 @@ DistributionRef = Annotated[str, Field(min_length=1, description="A row id of th
 DistributionModes = Annotated[list[DistributionRef | StatedDistribution], Field(min_length=1)]
 
 
+_VPZ = ("Zone primary airflow Vpz at the design condition analysed (a mapping: per design "
+        "condition). [cfm or L/s]")
+_VOT = "Scheduled minimum outdoor-air intake Vot (a mapping: per design condition). [cfm or L/s]"
+_VPS = ("System primary airflow Vps at the condition analysed; default ΣVpz (a mapping: per "
+        "design condition). [cfm or L/s]")
+
+
 class Zone(_Model):
     """One ventilation zone (a space or group of spaces with one set of requirements)."""
 
@@ -230,8 +237,7 @@ class Zone(_Model):
     ez_basis: by_condition(EzBasis) | None = Field(
         None, description="Why the explicit Ez applies (a mapping: per design condition). [–]")
     primary_airflow: by_condition(Q(
-        "airflow", "Zone primary airflow Vpz at the design condition analysed (a mapping: per "
-        "design condition). [cfm or L/s]", positive=True)) | None = None
+        "airflow", _VPZ, positive=True)) | None = Field(None, description=_VPZ)
     ep: float | None = Field(None, gt=0, le=1, allow_inf_nan=False,
                              description="Primary air fraction of zone supply Ep (secondary "
                                          "recirculation); default 1. [–]")
@@ -305,11 +311,9 @@ class System(_Model):
         description="Design conditions the system operates at (ids of your choosing, e.g. "
                     "[cooling, heating]); fields given as a mapping from these ids take one "
                     "value per condition, and each condition is evaluated. [–]")
-    outdoor_air: by_condition(Q("airflow", "Scheduled minimum outdoor-air intake Vot (a "
-                                           "mapping: per design condition). [cfm or L/s]"))
-    supply_airflow: by_condition(Q(
-        "airflow", "System primary airflow Vps at the condition analysed; default ΣVpz. "
-                   "[cfm or L/s]", positive=True)) | None = None
+    outdoor_air: by_condition(Q("airflow", _VOT)) = Field(description=_VOT)
+    supply_airflow: by_condition(Q("airflow", _VPS, positive=True)) | None = Field(
+        None, description=_VPS)
     population: by_condition(People) | None = Field(
         None, description="System population Ps; default ΣPz (a mapping: per design "
                           "condition). [people]")
