@@ -101,6 +101,45 @@ def test_a_kind_without_its_evaluation_is_an_internal_error_not_another_kind(
     assert "has no evaluation registered" in capsys.readouterr().err
 
 
+def test_a_new_requirement_kind_is_its_entries_and_its_evaluation(tmp_path, monkeypatch):
+    """DEVELOPERS.md's recipe, end to end: a kind in the schema, in KINDS and in EVALUATORS
+    (here a cap on a zone's design occupants) is read from a pack and evaluated."""
+    import copy
+
+    from airgate import check
+    from airgate.evaluation.findings import Amount
+    from airgate.evaluation.requirement_kinds.common import Behaviour
+    from airgate.models.requirements import RequirementKind
+    from airgate.readers import packschema
+
+    published = packschema.schema("rule-pack")
+    patched = copy.deepcopy(published)
+    requirement = patched["$defs"]["requirement"]
+    requirement["properties"]["kind"]["enum"].append("max-occupants")
+    requirement["properties"]["max_people"] = {"type": "number", "exclusiveMinimum": 0}
+    original = packschema.schema
+    monkeypatch.setattr(packschema, "schema",
+                        lambda name="rule-pack": patched if name == "rule-pack" else original(name))
+
+    def evaluate(run, req, t):
+        pz, most = t.z.trail.value("Pz"), req.params["max_people"]
+        if pz <= most:
+            run.record(req, t.subject, "pass", t.emitter)
+            return
+        run.record(req, t.subject, "fail", t.emitter, run.finding(
+            req, t.subject, f"{req.message}: {pz:g} people", t.where, system=t.system.id,
+            zone=t.zone_id, required=Amount(most, "people"), provided=Amount(pz, "people")))
+
+    monkeypatch.setitem(KINDS, "max-occupants",
+                        RequirementKind("max-occupants", "zone", {"max_people": None}))
+    monkeypatch.setitem(EVALUATORS, "max-occupants", Behaviour(evaluate=evaluate))
+    pack = _amending_pack(tmp_path, "max-occupants", "        max_people: 3\n")
+    report = check(_demo_like(tmp_path), pack)
+    found = [f for f in report.findings if f.rule == "new-rule"]
+    assert [(f.severity, f.subject, f.provided.value) for f in found] == [("fail", "RTU-1/101", 5)]
+    assert [(o.rule, o.verdict) for o in report.requirements] == [("new-rule", "fail")]
+
+
 # --- system kinds -------------------------------------------------------------------------------
 
 def test_system_kinds_one_vocabulary():
