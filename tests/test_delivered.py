@@ -188,3 +188,14 @@ def test_trail_arithmetic_checks_in_both_unit_systems(capsys, monkeypatch, tmp_p
     # the default population shows its per-1000 ft² (per-100 m²) factor
     out = _run(capsys, monkeypatch, "explain", str(path), "--zone", "201")
     assert ("density·Az / 1000" if units == "IP" else "density·Az / 100") in out
+
+
+def test_margin_is_worked_out_in_the_evaluation():
+    # Common practice: margin = provided − required, and that over the requirement.
+    from airgate.evaluation.findings import Amount, margin
+
+    m = margin(Amount(2244.0, "airflow"), Amount(1900.0, "airflow"))
+    assert m.difference == pytest.approx(-344.0) and m.relative == pytest.approx(-344 / 2244)
+    assert margin(Amount(0.0, "airflow"), Amount(5.0, "airflow")).relative is None
+    assert margin(Amount(float("inf"), "airflow"), Amount(5.0, "airflow")) is None
+    assert margin(None, Amount(5.0, "airflow")) is None

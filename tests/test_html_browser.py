@@ -147,3 +147,28 @@ def test_browser_driver_sees_console_errors(page, tmp_path):
     assert any("console.error" in p for p in problems)
     assert any("exception" in p for p in problems)
 
+
+
+def test_summarised_report_shows_what_fails_on_the_first_screen(page, tmp_path):
+    # A schedule above the size rule (docs/report-format.md): 60 invented outdoor-air systems of
+    # four offices, one zone scheduled 100 cfm where it needs 110 cfm (ANSI/ASHRAE 62.1-2019
+    # Section 6.2.4, Table 6.2.2.1 office rates: 5·10 + 0.06·1000 = 110 cfm).
+    import yaml
+
+    from test_html_report import _large
+
+    schedule = tmp_path / "large.yaml"
+    schedule.write_text(yaml.safe_dump(_large(60), sort_keys=False), encoding="utf-8")
+    report = tmp_path / "large.html"
+    _render([str(schedule)], report)
+    page.open(report)
+    seen = page.evaluate(FIRST_SCREEN)
+    assert page.problems() == []
+    assert seen["stamp"] == "FAIL" and seen["stampBox"]["bottom"] <= HEIGHT
+    texts = [r["text"] for r in seen["rows"]]
+    assert len(texts) == 1 and "DOAS-59/Z239" in texts[0] and "-10.0 cfm (-9.1 %)" in texts[0]
+    assert seen["rows"][0]["visible"] and seen["rows"][0]["box"]["bottom"] <= HEIGHT
+    # the failing zone's trail and the system's, and the collapsed table of passing zones
+    assert seen["details"] == 3
+    assert "Systems that pass" in seen["body"]
+    page.screenshot(_shots(tmp_path) / "summarised-report-first-screen.png")

@@ -9,6 +9,8 @@ gates the run only under ``--fail-on declared``.
 
 from __future__ import annotations
 
+import math
+
 from dataclasses import dataclass, field
 
 SEVERITY_RANK = {"fail": 0, "warning": 1, "info": 2}
@@ -23,6 +25,24 @@ class Amount:
 
     value: float
     kind: str
+
+
+@dataclass(frozen=True)
+class Margin:
+    """What is provided beyond what is required: ``provided − required`` in the internal unit of
+    the amounts' kind, and that as a share of the requirement (None where it is not positive)."""
+
+    difference: float
+    relative: float | None
+
+
+def margin(required: Amount | None, provided: Amount | None) -> Margin | None:
+    """The margin of ``provided`` over ``required``; None where either is missing or nothing
+    can meet the requirement (an infinite requirement). Writers show it; they never work it out."""
+    if required is None or provided is None or math.isinf(required.value):
+        return None
+    diff = provided.value - required.value
+    return Margin(diff, diff / required.value if required.value > 0 else None)
 
 
 @dataclass(frozen=True)

@@ -6,11 +6,11 @@ plain text: each writer escapes them for its own format.
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 from airgate import formatting, units
 from airgate.evaluation.checks import DECLARED_CHECKS, what_it_verifies
+from airgate.evaluation import findings
 from airgate.evaluation.findings import DECLARED, Amount, WaiverMark
 from airgate.evaluation.report import Report
 from airgate.evaluation.waivers import WaiverStatus
@@ -26,24 +26,23 @@ def amount(a: Amount | None, units: str) -> str:
 
 
 def margin(required: Amount | None, provided: Amount | None, units: str) -> str:
-    """``-344 cfm (-15.3 %)``: provided − required, absolute and relative to required."""
-    if required is None or provided is None or math.isinf(required.value):
+    """``-344 cfm (-15.3 %)``: provided − required, absolute and relative to required
+    (the evaluation's :func:`~airgate.evaluation.findings.margin`, formatted)."""
+    m = findings.margin(required, provided)
+    if m is None:
         return "–"
-    diff = provided.value - required.value
-    text = formatting.amount(diff, required.kind, units)
-    if diff > 0:
+    text = formatting.amount(m.difference, required.kind, units)
+    if m.difference > 0:
         text = "+" + text
-    if required.value > 0:
-        text += f" ({formatting.percent(diff / required.value)})"
+    if m.relative is not None:
+        text += f" ({formatting.percent(m.relative)})"
     return text
 
 
 def relative_margin(required: Amount | None, provided: Amount | None) -> float | None:
     """(provided − required) / required, or None where it is not defined."""
-    if required is None or provided is None or not required.value > 0 \
-            or math.isinf(required.value):
-        return None
-    return (provided.value - required.value) / required.value
+    m = findings.margin(required, provided)
+    return None if m is None else m.relative
 
 
 #: heading of the section of declared findings, in every format
