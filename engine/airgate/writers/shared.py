@@ -6,6 +6,7 @@ plain text: each writer escapes them for its own format.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 from airgate import formatting, units
