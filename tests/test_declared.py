@@ -113,6 +113,10 @@ def test_every_format_shows_declared_findings_after_the_code_findings(tmp_path):
     assert html.index('id="r1-failing"') < html.index('id="r1-declared"')
     failing = html[html.index('id="r1-failing"'):html.index('id="r1-declared"')]
     assert "concentration-limit" not in failing
+    declared = html[html.index('id="r1-declared"'):]
+    declared = declared[:declared.index("</section>")]
+    assert '<span class="badge warning">missed</span>' in declared
+    assert 'class="badge fail"' not in declared
     sarif = json.loads(check(path, "--format", "sarif")[1])
     results = sarif["runs"][0]["results"]
     assert [r["properties"]["basis"] for r in results] == ["code", "declared"]

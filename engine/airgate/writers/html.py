@@ -115,8 +115,10 @@ class _View:
     # --- findings ---------------------------------------------------------------------------
 
     def item(self, f: Finding) -> dict:
-        state = "waived" if f.waived else f.severity
-        return {"state": state, "subject": f.subject, "name": self.names.get(f.subject, ""),
+        # a declared limit missed is shown in amber as "missed": it is not a code failure
+        state = "waived" if f.waived else "warning" if f.declared else f.severity
+        return {"state": state, "label": "missed" if f.declared and not f.waived else None,
+                "subject": f.subject, "name": self.names.get(f.subject, ""),
                 "rule": f.rule, "required": self.amount(f.required),
                 "provided": self.amount(f.provided), "margin": self.margin(f.required, f.provided),
                 "message": f.message, "waived": shared.waived_line(f.waiver) if f.waiver else "",
