@@ -109,3 +109,17 @@ def test_chunks_stream_the_page(large_report):
     rest = list(parts)
     assert len(rest) > 10  # written system by system, not as one string
     assert "".join([first, *rest]).rstrip().endswith("</html>")
+
+
+def test_design_conditions_are_shown_with_the_governing_one(tmp_path):
+    # The heating condition of tests/test_conditions.py: Vot by the hand calculation there
+    # (ANSI/ASHRAE 62.1-2019 Section 6.2.5 and Appendix A), about 194 cfm, governs.
+    from test_conditions import EZ_WARM, _hand, _run, _vav
+
+    report = _run(tmp_path, [_vav()])
+    out = html.render(gather([report], [], "fail"))
+    assert "Design conditions (2): <b>heating</b> governs" in out
+    row = next(line for line in out.splitlines() if "<td>▸ heating</td>" in line)
+    vot = _hand([400, 800], EZ_WARM)["Vot"]
+    assert f'<td class="n">{vot:,.0f}</td>' in row and "badge fail" in row
+    assert "<td>cooling</td>" in out

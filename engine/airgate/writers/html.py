@@ -209,6 +209,8 @@ class _View:
             "id": s.id, "name": s.name or "", "kind": s.kind, "method": s.method or "",
             "verdict": s.verdict, "required": self.amount(req), "scheduled": self.amount(prov),
             "margin": self.margin(req, prov), "params": params, "critical": s.critical_zone or "",
+            "conditions": self.conditions(s), "condition": getattr(s, "condition", None) or "",
+            "airflow_unit": units.label("airflow", self.u),
             "checks": (self.check_row(c) for c in cases
                        if not (c.required is None and c.provided is None and c.status == "pass")
                        and (not self.summarised or c.status != "pass")),
@@ -224,6 +226,11 @@ class _View:
                                 "--zone or the JSON report gives any of them." if left_out
                                 else ""),
         }
+
+    def conditions(self, s: SystemResult) -> list[dict]:
+        """The design conditions of the system, the governing one marked (none without)."""
+        return [{"governs": governs, "id": cells[0], "cells": cells[1:-1], "verdict": cells[-1]}
+                for governs, cells in shared.condition_rows(s, self.u)]
 
     def quiet_note(self, cases: list, quiet: int) -> str:
         passing = sum(1 for c in cases if c.status == "pass") - quiet
