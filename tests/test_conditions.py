@@ -236,3 +236,48 @@ def test_adding_a_condition_never_lowers_the_required_intake(cool, heat, oa):
     assert v2 >= v1 * (1 - 1e-12) or math.isinf(v2)
     # and the governing figure is the largest of the conditions' (one intake scheduled)
     assert v2 == max(c.trail.value("Vot") for c in r2.systems[0].conditions)
+
+
+# --- the other writers and explain --------------------------------------------------------------
+
+def _cli(tmp_path: Path, *args: str):
+    import subprocess
+    import sys
+
+    from conftest import subprocess_env
+    path = tmp_path / "s.yaml"
+    path.write_text(yaml.safe_dump(schedule([_vav()]), sort_keys=False), encoding="utf-8")
+    return subprocess.run([sys.executable, "-m", "airgate", *args, str(path)], cwd=tmp_path,
+                          capture_output=True, text=True, env=subprocess_env())
+
+
+def test_markdown_html_junit_sarif_name_the_condition(tmp_path):
+    from airgate.evaluation.batch import Batch
+    from airgate.writers import html, junit, markdown, sarif
+
+    report = _run(tmp_path, [_vav()])
+    batch = Batch([report])
+    md = markdown.render(batch)
+    row = next(line for line in md.splitlines() if "▸ **heating**" in line)
+    assert "194" in row and "0.876" in row and "FAIL" in row
+    page = "".join(html.render(batch))
+    assert "▸ heating" in page
+    assert "[heating] outdoor-air intake" in "".join(junit.render(batch))
+    log = json.loads("".join(sarif.render(batch)))
+    intake = [r for r in log["runs"][0]["results"] if r["ruleId"] == "system-intake"]
+    assert [r["properties"]["condition"] for r in intake] == ["heating"]
+
+
+def test_explain_condition(tmp_path):
+    out = _cli(tmp_path, "explain", "--system", "AHU-1", "--condition", "cooling")
+    assert out.returncode == 0, out.stderr
+    assert "at design condition cooling: not the governing condition (heating governs)" in out.stdout
+    # cooling: Vot = Vou / Ev = 170 / 1.0 (hand calculation above)
+    assert "Vot" in out.stdout and "170 cfm" in out.stdout
+    assert "[heating]" not in out.stdout  # the findings of another condition are left out
+    gov = _cli(tmp_path, "explain", "--zone", "201")
+    assert "at design condition heating: the governing condition" in gov.stdout
+    assert "0.876" in gov.stdout  # Evz of zone 201 at heating
+    bad = _cli(tmp_path, "explain", "--zone", "201", "--condition", "cool")
+    assert bad.returncode == 2 and "has no condition 'cool'" in bad.stderr
+    assert "Traceback" not in bad.stderr

@@ -33,6 +33,27 @@ def pick(report, zone_id: str | None, system_id: str | None):
     return system, system.zones
 
 
+def at_condition(system, zones, condition: str):
+    """(system, zones) as evaluated at design ``condition`` (``--condition``): the condition's own
+    figures, zones and verdicts; usage error when the system lists no such condition."""
+    import dataclasses
+
+    found = next((c for c in system.conditions if c.id == condition), None)
+    if found is None:
+        if not system.conditions:
+            raise UsageError(f"system '{system.id}' lists no design conditions",
+                             hint="leave out --condition")
+        ids = [c.id for c in system.conditions]
+        close = nearest(condition, ids)
+        raise UsageError(f"system '{system.id}' has no condition '{condition}'"
+                         + (f"; did you mean {', '.join(close)}?" if close else ""), allowed=ids)
+    wanted = {z.id for z in zones}
+    view = dataclasses.replace(system, trail=found.trail, zones=found.zones, method=found.method,
+                               critical_zone=found.critical_zone, verdict=found.verdict,
+                               condition=found.id)
+    return view, [z for z in found.zones if z.id in wanted]
+
+
 def add_rules_path(parser) -> None:
     """``--rules-path DIR`` (repeatable): folders of rule packs searched after the built-in ones."""
     parser.add_argument("--rules-path", action="append", default=[], metavar="DIR",

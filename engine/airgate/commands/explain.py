@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import argparse
 
-from airgate.commands.common import add_output, add_subject, emit, pick
+from airgate.commands.common import add_output, add_subject, at_condition, emit, pick
 from airgate.errors import EXIT_PASS
 
 
@@ -14,6 +14,8 @@ def register(sub) -> None:
                                    "(--system), step by step, with each equation, its values "
                                    "and its source.")
     add_subject(e)
+    e.add_argument("--condition", metavar="ID",
+                   help="design condition of the system to explain (default: the governing one)")
     add_output(e)
 
 
@@ -23,6 +25,8 @@ def run(args: argparse.Namespace) -> int:
 
     report = check(args.file, args.rules, search=args.rules_path)
     system, zones = pick(report, args.zone, args.system)
+    if args.condition is not None:
+        system, zones = at_condition(system, zones, args.condition)
     if args.zone is not None:
         emit(args.output, explain.zone(report, system, zones[0]))
     else:

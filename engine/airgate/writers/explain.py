@@ -50,17 +50,31 @@ def trail_lines(trail: Trail, system: str, indent: str = "  ") -> list[str]:
     return out
 
 
-def _findings(report: Report, subject_prefix: str, exact: bool) -> list[str]:
+def _findings(report: Report, subject_prefix: str, exact: bool,
+              condition: str | None = None) -> list[str]:
     out = []
     for f in report.findings:
         mine = f.subject == subject_prefix or (not exact and f.subject.startswith(subject_prefix + "/"))
-        if mine:
+        if mine and f.condition in (None, condition):
             label = "MISSED (declared limit)" if f.declared else f.severity.upper()
             out.append(f"  {label} [{f.rule}] {clean(f.subject)}: {clean(f.message)}")
             out.append(f"      {f.source} · at {clean(f.location)}")
             if f.waiver is not None:
                 out.append(f"      {clean(shared.waived_line(f.waiver))}")
     return out or ["  none"]
+
+
+def _condition_line(report: Report, s: SystemResult) -> list[str]:
+    """Which design condition is shown (nothing for a system without conditions)."""
+    if s.condition is None:
+        return []
+    listed = report.system(s.id)
+    governing = listed.condition if listed is not None else s.condition
+    others = [c.id for c in (listed.conditions if listed else []) if c.id != s.condition]
+    what = "the governing condition" if s.condition == governing else (
+        f"not the governing condition ({clean(governing)} governs)")
+    return [f"  at design condition {clean(s.condition)}: {what}"
+            + (f"; also {', '.join(clean(o) for o in others)} (--condition ID)" if others else "")]
 
 
 def zone(report: Report, s: SystemResult, z: ZoneResult) -> str:
@@ -70,6 +84,7 @@ def zone(report: Report, s: SystemResult, z: ZoneResult) -> str:
         f"{head} — {clean(z.space)} ({z.space_label}) — {z.verdict.upper()}",
         f"  served by {clean(s.id)} ({s.kind}); written at {clean(z.location)}",
         f"  rule pack {report.pack.id} ({report.units} report units)",
+        *_condition_line(report, s),
         "",
     ]
     out += trail_lines(z.trail, system)
@@ -79,7 +94,8 @@ def zone(report: Report, s: SystemResult, z: ZoneResult) -> str:
     for cid, t in sorted(z.contaminants.items()):
         out += ["", f"  {clean(cid)} (well-mixed mass balance, every removal mechanism)"]
         out += trail_lines(t, system)
-    out += ["", "Findings"] + _findings(report, f"{s.id}/{z.id}", exact=True)
+    out += ["", "Findings"] + _findings(report, f"{s.id}/{z.id}", exact=True,
+                                        condition=s.condition)
     out += ["", *[f"Caution: {c}" for c in report.cautions[:1]]]
     return "\n".join(out) + "\n"
 
@@ -89,7 +105,7 @@ def system_(report: Report, s: SystemResult) -> str:
     head = f"System {clean(s.id)}" + (f" “{clean(s.name)}”" if s.name else "")
     out = [f"{head} — {s.kind}" + (f", {s.method} Ev" if s.method else "") +
            f" — {s.verdict.upper()}", f"  written at {clean(s.location)}",
-           f"  rule pack {report.pack.id}", ""]
+           f"  rule pack {report.pack.id}", *_condition_line(report, s), ""]
     for z in s.zones:
         out.append(f"  Zone {clean(z.id)}" + (f" “{clean(z.name)}”" if z.name else "") +
                    f" — {clean(z.space)} — {z.verdict.upper()}")
@@ -97,6 +113,6 @@ def system_(report: Report, s: SystemResult) -> str:
         out.append("")
     out.append(f"  System {clean(s.id)}")
     out += trail_lines(s.trail, system, indent="    ")
-    out += ["", "Findings"] + _findings(report, s.id, exact=False)
+    out += ["", "Findings"] + _findings(report, s.id, exact=False, condition=s.condition)
     out += ["", *[f"Caution: {c}" for c in report.cautions[:1]]]
     return "\n".join(out) + "\n"

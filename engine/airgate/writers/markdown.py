@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import re
 
-from airgate import __version__
+from airgate import __version__, units
 from airgate.evaluation.batch import Batch
 from airgate.evaluation.findings import DECLARED, Amount, Finding
 from airgate.evaluation.report import Report, SystemResult
@@ -63,6 +63,23 @@ def _systems_table(report: Report) -> list[str]:
                    f"{md(shared.amount(prov, u))} | {md(shared.margin(req, prov, u))} | "
                    f"{_verdict(s.verdict)} |")
     return out
+
+
+def _conditions_table(report: Report) -> list[str]:
+    """The design conditions of the systems that list them, the governing one marked."""
+    u = report.units
+    rows = [(s, governs, cells) for s in report.systems
+            for governs, cells in shared.condition_rows(s, u)]
+    if not rows:
+        return []
+    q = units.label("airflow", u)
+    out = [f"| system | condition | Vot {q} | scheduled {q} | Ev | critical zone | margin | "
+           "verdict |", "|---|---|---:|---:|---:|---|---:|---|"]
+    for s, governs, cells in rows:
+        cid = f"{shared.GOVERNS_MARK} **{md(cells[0])}**" if governs else md(cells[0])
+        out.append(f"| {md(s.id)} | {cid} | " + " | ".join(md(c) for c in cells[1:-1])
+                   + f" | {_verdict(cells[-1])} |")
+    return out + ["", md(shared.GOVERNS_NOTE), ""]
 
 
 def _items_table(report: Report, items: list[Finding]) -> list[str]:
@@ -144,7 +161,7 @@ def _report(report: Report, level: str = "###") -> list[str]:
            f"{report.waived_count()} waived"
            + (f" · {report.declared_count()} declared limits missed"
               if report.declared_count() else ""), ""]
-    out += (_systems_table(report) + [""] + _failing(report) + _declared(report)
+    out += (_systems_table(report) + [""] + _conditions_table(report) + _failing(report) + _declared(report)
             + _waived(report) + _notes(report))
     return out
 

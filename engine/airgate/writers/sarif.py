@@ -56,8 +56,11 @@ def uri(path: str) -> str:
     return quote(p.as_posix())
 
 
-def fingerprint(rule: str, subject: str) -> str:
-    return hashlib.sha256(f"{rule}\x1f{subject}".encode("utf-8", "replace")).hexdigest()[:32]
+def fingerprint(rule: str, subject: str, condition: str | None = None) -> str:
+    """The result's identity across runs: rule and subject, and the design condition where the
+    system lists conditions (the same check may fail at several)."""
+    key = f"{rule}\x1f{subject}" + ("" if condition is None else f"\x1f{condition}")
+    return hashlib.sha256(key.encode("utf-8", "replace")).hexdigest()[:32]
 
 
 def _physical(loc: Location, artifacts: dict[str, int]) -> dict[str, Any]:
@@ -144,12 +147,13 @@ def _result(report: Report, f: Finding, rule_index: dict[str, int],
         "message": {"text": _s(text)},
         "locations": [{"physicalLocation": _physical(f.location, artifacts),
                        "logicalLocations": [logical]}],
-        "partialFingerprints": {FINGERPRINT: fingerprint(f.rule, f.subject)},
+        "partialFingerprints": {FINGERPRINT: fingerprint(f.rule, f.subject, f.condition)},
         "suppressions": [_suppression(f, artifacts)] if f.waiver is not None else [],
         "properties": {"subject": _s(f.subject), "severity": f.severity, "basis": f.basis,
                        "required": shared.amount(f.required, u),
                        "provided": shared.amount(f.provided, u), "source": _s(f.source),
-                       "rulePack": report.pack.id},
+                       "rulePack": report.pack.id,
+                       **({} if f.condition is None else {"condition": _s(f.condition)})},
     }
     return out
 
