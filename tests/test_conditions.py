@@ -281,3 +281,29 @@ def test_explain_condition(tmp_path):
     bad = _cli(tmp_path, "explain", "--zone", "201", "--condition", "cool")
     assert bad.returncode == 2 and "has no condition 'cool'" in bad.stderr
     assert "Traceback" not in bad.stderr
+
+
+def test_explicit_ez_and_stated_distribution_per_condition(tmp_path):
+    """Heating Ez 0.8 given as an explicit value on one zone and as stated conditions (warm air
+    20 °F above the room, ceiling supply and return: Table 6-4, from memory) on the other; the
+    figures are those of the hand calculation above."""
+    warm = {"supply": "ceiling", "return": "ceiling", "mode": "heating",
+            "temperature_difference": "20 delta_degF"}
+    zones = [
+        _zone("201", {"cooling": 1000, "heating": 400}, air_distribution=None,
+              ez={"cooling": 1.0, "heating": 0.8}, ez_basis="Table 6-4 rows, cool and warm air"),
+        _zone("202", {"cooling": 1000, "heating": 800},
+              air_distribution={"cooling": COOL, "heating": warm}),
+    ]
+    zones[0].pop("air_distribution")
+    report = _run(tmp_path, [_vav(outdoor_air={"cooling": "300 cfm", "heating": "300 cfm"},
+                                  zones=zones)])
+    s = report.systems[0]
+    heat = _hand([400, 800], EZ_WARM)
+    assert s.condition == "heating"
+    by_id = {c.id: c for c in s.conditions}
+    assert by_id["heating"].trail.value("Ev") == pytest.approx(heat["Ev"], rel=1e-9)
+    assert by_id["heating"].trail.value("Vot") / CFM == pytest.approx(heat["Vot"], rel=1e-6)
+    assert [z.trail.value("Ez") for z in by_id["heating"].zones] == [0.8, 0.8]
+    assert [z.trail.value("Ez") for z in by_id["cooling"].zones] == [1.0, 1.0]
+    assert [c.verdict for c in s.conditions] == ["pass", "pass"]
