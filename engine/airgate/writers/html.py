@@ -305,16 +305,20 @@ class _View:
 
     def provenance(self) -> dict:
         r, u = self.r, self.u
-        values: dict[tuple[str, str, str], dict[str, None]] = {}
+        raw: dict[tuple[str, float, str, str], dict[str, None]] = {}
         cited: dict[str, dict[str, None]] = {}
         for subject, trail in _all_trails(r):
             for step in trail.steps.values():
                 if step.origin in ("table", "explicit", "assumed"):
-                    key = (step.symbol, formatting.amount(step.value, step.kind, u),
+                    key = (step.symbol, step.value, step.kind,
                            step.source or step.note or _ORIGIN[step.origin])
-                    values.setdefault(key, {})[subject] = None  # ordered set
+                    raw.setdefault(key, {})[subject] = None  # ordered set
                 elif step.formula and step.source and step.origin == "computed":
                     cited.setdefault(step.source, {})[step.symbol] = None
+        # one row per value as shown (each distinct value formatted once)
+        values: dict[tuple[str, str, str], dict[str, None]] = {}
+        for (sym, value, kind, src), subjects in raw.items():
+            values.setdefault((sym, formatting.amount(value, kind, u), src), {}).update(subjects)
         cap = USED_FOR_LIMIT if self.summarised else None
         rows = [{"symbol": sym, "value": val, "source": src, "used_for": _listed(subs, cap)}
                 for (sym, val, src), subs in values.items()]
