@@ -168,6 +168,8 @@ def test_without_conditions_no_condition_keys(tmp_path):
     (lambda s: s.pop("conditions"),
      ("systems", 0, "zones", 0, "primary_airflow"), "lists no conditions"),
     (lambda s: s.update(conditions=["a", "a"]), ("systems", 0, "conditions"), "listed twice"),
+    (lambda s: s.update(conditions=["supply", "heating"]), ("systems", 0, "conditions"),
+     "'supply' cannot name a condition"),
     (lambda s: s.update(conditions=[str(k) for k in range(9)]), ("systems", 0, "conditions"),
      "at most 8"),
 ])

@@ -337,6 +337,9 @@ class System(_Model):
     @field_validator("conditions")
     @classmethod
     def _unique_conditions(cls, items: list[str] | None) -> list[str] | None:
+        if items is not None and "supply" in items:
+            raise ValueError("'supply' cannot name a condition: it is the key of a stated air "
+                             "distribution; choose another id")
         if items is not None and len(set(items)) != len(items):
             twice = sorted({c for c in items if items.count(c) > 1})
             raise ValueError(f"condition '{twice[0]}' is listed twice")
