@@ -29,6 +29,10 @@ KNOWN_CHECKS: dict[str, str] = {
     "diversity-above-one": "system population Ps above ΣPz",
     "zone-air-sum": "outdoor-air system: zone outdoor air sums above the intake",
     "short-term-averaging": "population may be averaged over T = 3v/Vbz where the peak is brief",
+    "natural-opening-area": "natural ventilation: openable area ≥ the pack's fraction of Az",
+    "natural-depth": "natural ventilation: zone depth ≤ the pack's multiple of the ceiling height",
+    "natural-mechanical-system": "natural ventilation: a mechanical system also, unless the "
+                                 "openings are permanently open or the zone is unconditioned",
 }
 
 #: check id → what it verifies, for limits the schedule declares (never listed in a pack)

@@ -221,7 +221,7 @@ def analyse(system: System, ctxs: list[ZoneContext], result: SystemResult, sched
 
     ``tables``: the data tables (filter efficiency by MERV from ``merv-efficiency``).
     """
-    if math.isinf(result.trail.value("Vot")):
+    if not kind_of(system).intake or math.isinf(result.trail.value("Vot")):
         return
     for index, c in enumerate(schedule.contaminants):
         filt = filter_efficiency(system, c, tables[MERV_TABLE])

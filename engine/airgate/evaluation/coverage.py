@@ -64,8 +64,9 @@ def _value(trail, symbol: str) -> float | None:
 
 def _system_checks(system: System, result: SystemResult) -> Iterator[tuple]:
     t = result.trail
-    yield ("system-intake", ("outdoor_air",), _amount(_value(t, "Vot"), "airflow"),
-           _amount(_value(t, "Vot_design"), "airflow"))
+    if kind_of(system).intake:
+        yield ("system-intake", ("outdoor_air",), _amount(_value(t, "Vot"), "airflow"),
+               _amount(_value(t, "Vot_design"), "airflow"))
     yield from kind_of(system).system_checks(system, result)
     if system.is_recirculating:
         yield "air-class-mixing", (), None, None
@@ -75,7 +76,8 @@ def _zone_checks(system: System, z: ZoneResult, result: SystemResult,
                  pack: RulePack) -> Iterator[tuple]:
     zt = z.trail
     yield "space-without-rates", (), None, None
-    yield "air-distribution-assumed", (), None, None
+    if kind_of(system).intake:
+        yield "air-distribution-assumed", (), None, None
     yield "population-without-density", (), None, None
     yield from kind_of(system).zone_checks(system, z, result, pack)
     if system.is_recirculating:

@@ -445,7 +445,7 @@ def analyse(system: System, ctxs: list[ZoneContext], result: SystemResult, sched
     ``occupant-co2-generation`` where the zone states none.
     """
     out: list[ZoneResult] = []
-    if math.isinf(result.trail.value("Vot")):
+    if not kind_of(system).intake or math.isinf(result.trail.value("Vot")):
         return out
     if kind_of(system).coupled:
         _multiple_zone(system, ctxs, result, schedule, emitter, out, tables[CO2_TABLE])

@@ -62,7 +62,8 @@ def _bind_all(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
                               if getattr(zone, name) is not None}
                     ctxs.append(ZoneContext(zone=zone, path=path, location=_location(loaded, path),
                                             category=cat, ez=ez, subject=f"{system.id}/{zone.id}",
-                                            system_id=system.id, fields=fields))
+                                            system_id=system.id, fields=fields,
+                                            mechanical=kind_of(system).intake))
         out.append(by_condition)
         errors.extend(kind_of(stated).check_inputs(loaded, pack, i))
     raise_all(_unique(errors))

@@ -27,6 +27,8 @@ class ZoneContext:
     system_id: str
     #: where each stated field was written (area, occupants, ...) for the trail's sources
     fields: dict[str, Location] = field(default_factory=dict)
+    #: the zone's system has a mechanical intake (its air distribution matters)
+    mechanical: bool = True
 
     def where(self, name: str) -> str:
         return str(self.fields.get(name, self.location))
@@ -91,7 +93,7 @@ def evaluate_zone(ctx: ZoneContext, pack: RulePack, emitter: Emitter) -> ZoneRes
               source=ctx.ez.source)
     trail.add("Voz", zone_rates.zone_outdoor_airflow(vbz, ctx.ez.ez), "airflow",
               formula="{Vbz} / {Ez}", source=pack.cite("zone_outdoor_airflow"))
-    if ctx.ez.origin == "assumed":
+    if ctx.ez.origin == "assumed" and ctx.mechanical:
         emitter.emit("air-distribution-assumed", ctx.subject,
                      f"air distribution not stated; Ez {ctx.ez.ez:.1f} assumed ({ctx.ez.note}) — "
                      "state air_distribution or an explicit ez with its basis",

@@ -17,6 +17,32 @@ if TYPE_CHECKING:
 
 
 @dataclass(frozen=True)
+class CitedValue:
+    """One value of a pack with its source and provenance."""
+
+    value: float
+    source: Source
+    provenance: str
+    notes: str = ""
+
+    def cite(self) -> str:
+        return f"{self.source.cite()} ({self.provenance})"
+
+
+@dataclass(frozen=True)
+class NaturalVentilationRules:
+    """The natural ventilation procedure's limits (ANSI/ASHRAE 62.1-2019 Section 6.4).
+
+    ``openable_fraction``: least openable area per net occupiable floor area [–];
+    ``depth_ratio``: by opening arrangement, the greatest depth of the naturally ventilated floor
+    as a multiple of the ceiling height H [–].
+    """
+
+    openable_fraction: CitedValue
+    depth_ratio: dict[str, CitedValue]
+
+
+@dataclass(frozen=True)
 class Source:
     """Where a value comes from: document, edition, table and/or section."""
 
@@ -232,6 +258,8 @@ class RulePack:
     #: the options the pack declares, and those chosen when it was loaded
     options: dict[str, PackOption] = field(default_factory=dict)
     chosen: dict[str, str] = field(default_factory=dict)
+    #: the natural ventilation procedure's limits; None: the pack has none
+    natural_ventilation: NaturalVentilationRules | None = None
 
     def cite(self, key: str) -> str:
         """Citation of an equation key, with its provenance (e.g. for a trail step)."""

@@ -206,9 +206,28 @@ DistributionModes = Annotated[list[DistributionRef | StatedDistribution], Field(
 
 _VPZ = ("Zone primary airflow Vpz at the design condition analysed (a mapping: per design "
         "condition). [cfm or L/s]")
-_VOT = "Scheduled minimum outdoor-air intake Vot (a mapping: per design condition). [cfm or L/s]"
+_VOT = ("Scheduled minimum outdoor-air intake Vot (a mapping: per design condition); required, "
+        "except on a natural system, which has none. [cfm or L/s]")
 _VPS = ("System primary airflow Vps at the condition analysed; default ΣVpz (a mapping: per "
         "design condition). [cfm or L/s]")
+
+
+class NaturalVentilation(_Model):
+    """The openings of a naturally ventilated zone (ANSI/ASHRAE 62.1-2019 Section 6.4)."""
+
+    openable_area: Q("area", "Openable area of the openings to the outdoors. [ft² or m²]")
+    arrangement: Literal["single-sided", "double-sided", "corner"] = Field(
+        description="Where the openings are: on one wall only, on opposite walls, or on two "
+                    "walls meeting at a corner. [–]")
+    depth: Q("length", "Distance from the openings to the farthest point of the naturally "
+                       "ventilated floor (for opposite openings, between them). [ft or m]",
+             positive=True)
+    permanently_open: bool = Field(
+        False, description="The openings are permanently open (an exception to the mechanical "
+                           "system Section 6.4 otherwise also asks for). [–]")
+    conditioned: bool = Field(
+        True, description="The zone has heating or cooling equipment; false is an exception to "
+                          "the mechanical system Section 6.4 otherwise also asks for. [–]")
 
 
 class Zone(_Model):
@@ -260,6 +279,8 @@ class Zone(_Model):
                     "[L/s per person]")
     air_class: Literal[1, 2, 3, 4] | None = Field(
         None, description="Air class, where it differs from the category's. [–]")
+    natural_ventilation: NaturalVentilation | None = Field(
+        None, description="Openings to the outdoors (zones of a natural system). [–]")
     notes: str | None = Field(None, description="Free text. [–]")
 
     @model_validator(mode="after")
@@ -288,6 +309,7 @@ class SystemKindRules:
 
     one_zone: bool  #: serves exactly one zone
     recirculates: bool  #: recirculates return air unless the schedule says otherwise
+    intake: bool = True  #: has a scheduled mechanical outdoor-air intake (``outdoor_air``)
 
 
 #: the system kinds a schedule may name; each has its evaluation registered under the same name
@@ -296,6 +318,7 @@ SYSTEM_KINDS: dict[str, SystemKindRules] = {
     "single-zone": SystemKindRules(one_zone=True, recirculates=True),
     "outdoor-air": SystemKindRules(one_zone=False, recirculates=False),
     "multiple-zone": SystemKindRules(one_zone=False, recirculates=True),
+    "natural": SystemKindRules(one_zone=False, recirculates=False, intake=False),
 }
 
 
@@ -305,13 +328,14 @@ class System(_Model):
     id: Id
     name: str | None = Field(None, description="Air system name. [–]")
     kind: Literal[tuple(SYSTEM_KINDS)] = Field(
-        description="single-zone, 100 % outdoor-air, or multiple-zone recirculating. [–]")
+        description="single-zone, 100 % outdoor-air, multiple-zone recirculating, or natural "
+                    "(openings to the outdoors, no intake). [–]")
     conditions: list[Id] | None = Field(
         None, min_length=1, max_length=MAX_CONDITIONS,
         description="Design conditions the system operates at (ids of your choosing, e.g. "
                     "[cooling, heating]); fields given as a mapping from these ids take one "
                     "value per condition, and each condition is evaluated. [–]")
-    outdoor_air: by_condition(Q("airflow", _VOT)) = Field(description=_VOT)
+    outdoor_air: by_condition(Q("airflow", _VOT)) | None = Field(None, description=_VOT)
     supply_airflow: by_condition(Q("airflow", _VPS, positive=True)) | None = Field(
         None, description=_VPS)
     population: by_condition(People) | None = Field(
@@ -332,6 +356,14 @@ class System(_Model):
         if SYSTEM_KINDS[self.kind].one_zone and len(self.zones) != 1:
             raise cross_field("kind", f"a single-zone system serves exactly one zone, this one "
                                       f"lists {len(self.zones)}; use kind: multiple-zone")
+        if SYSTEM_KINDS[self.kind].intake and self.outdoor_air is None:
+            raise cross_field("outdoor_air", f"a {self.kind} system needs outdoor_air, its "
+                                             "scheduled minimum outdoor-air intake, such as "
+                                             "'850 cfm' or '400 L/s'")
+        if not SYSTEM_KINDS[self.kind].intake and self.outdoor_air is not None:
+            raise cross_field("outdoor_air", f"a {self.kind} system has no mechanical intake: "
+                                             "remove outdoor_air, or describe the mechanical "
+                                             "system as a system of its own")
         return self
 
     @field_validator("conditions")

@@ -52,6 +52,8 @@ SCALARS = ("pack", "id", "title", "document", "edition", "jurisdiction", "effect
 #: what a layered pack must not restate at the top level
 TABLES = ("occupancy", "air_distribution", "ventilation_efficiency", "checks", "requirements",
           "equations", "options")
+#: tables a layered pack inherits unchanged and has no amend operation for
+INHERITED = ("natural_ventilation",)
 
 
 @dataclass(frozen=True)
@@ -258,7 +260,7 @@ def read(path: Path, roots: Sequence[Root], *, expected_id: str | None = None,
 def _no_restated_tables(single: PackDocument) -> None:
     data = single.data
     if "extends" in data:
-        for key in TABLES:
+        for key in (*TABLES, *INHERITED):
             if key in data:
                 how = (f"amend it under 'amend: {{{key}: {{change: ..., add: ..., retire: ...}}}}'"
                        if key in COLLECTIONS else "it is inherited from the base unchanged")
@@ -298,6 +300,9 @@ def materialize(data: dict[str, Any]) -> None:
             _fill(entry.get("source"), document, edition)
     for option in data.get("options", {}).values():
         _fill(option.get("source"), document, edition)
+    natural = data.get("natural_ventilation", {})
+    for entry in [natural.get("openable_area", {}), *natural.get("depth", [])]:
+        _fill(entry.get("source"), document, edition)
     for eq in data.get("equations", {}).values():
         _fill(eq, document, edition)
         eq.setdefault("provenance", data["provenance"])

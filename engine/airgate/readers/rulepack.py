@@ -22,8 +22,10 @@ from airgate.models.rules import (
     AirDistributionRow,
     Bound,
     Check,
+    CitedValue,
     DetailedEv,
     Equation,
+    NaturalVentilationRules,
     OccupancyCategory,
     Retired,
     RulePack,
@@ -320,6 +322,22 @@ def _retired(doc: Any) -> dict[str, dict[str, Retired]]:
             for coll, entries in getattr(doc, "retired", {}).items()}
 
 
+def _natural(data: dict[str, Any]) -> NaturalVentilationRules | None:
+    """The ``natural_ventilation`` table: fractions and ratios, the same in I-P and SI."""
+    nv = data.get("natural_ventilation")
+    if nv is None:
+        return None
+
+    def cited(raw: dict[str, Any], value: float) -> CitedValue:
+        return CitedValue(value=float(value), source=_source(raw["source"], data),
+                          provenance=raw["provenance"], notes=raw.get("notes", ""))
+
+    area = nv["openable_area"]
+    return NaturalVentilationRules(
+        openable_fraction=cited(area, area["fraction"]),
+        depth_ratio={row["arrangement"]: cited(row, row["ratio"]) for row in nv["depth"]})
+
+
 def build(doc: Any) -> RulePack:
     """Build the typed pack from a schema-valid document (options resolved), checking references."""
     data = doc.data
@@ -361,4 +379,5 @@ def build(doc: Any) -> RulePack:
         lineage=tuple(lineage), retired=retired,
         requirements=build_requirements(doc, data, system, categories, configurations, checks,
                                         retired),
+        natural_ventilation=_natural(data),
     )

@@ -137,6 +137,8 @@ class _View:
     def chart(self) -> tuple[dict | None, str]:
         u, bars, left_out = self.u, [], 0
         for s in self.r.systems:
+            if "Vot" not in s.trail:
+                continue  # natural ventilation: no airflow is computed for its zones
             for z in s.zones:
                 if self.summarised and f"{s.id}/{z.id}" not in self.attention \
                         and z.verdict != "fail":
@@ -174,7 +176,9 @@ class _View:
 
     # --- systems ----------------------------------------------------------------------------
 
-    def intake(self, s: SystemResult) -> tuple[Amount, Amount]:
+    def intake(self, s: SystemResult) -> tuple[Amount | None, Amount | None]:
+        if "Vot" not in s.trail:
+            return None, None  # natural ventilation: no intake
         return Amount(s.trail.value("Vot"), "airflow"), Amount(s.trail.value("Vot_design"),
                                                                "airflow")
 
@@ -208,6 +212,7 @@ class _View:
         return {
             "id": s.id, "name": s.name or "", "kind": s.kind, "method": s.method or "",
             "verdict": s.verdict, "required": self.amount(req), "scheduled": self.amount(prov),
+            "intake": req is not None,
             "margin": self.margin(req, prov), "params": params, "critical": s.critical_zone or "",
             "conditions": self.conditions(s), "condition": getattr(s, "condition", None) or "",
             "airflow_unit": units.label("airflow", self.u),
@@ -250,10 +255,13 @@ class _View:
     _COLUMNS = [("Az", "area"), ("Pz", "people"), ("Vbz", "airflow"), ("Ez", "fraction"),
                 ("Voz", "airflow")]
     _EXTRA = {"multiple-zone": [("Vpz", "airflow"), ("Zpz", "fraction"), ("Evz", "fraction")],
-              "outdoor-air": [("Voz_design", "airflow")]}
+              "outdoor-air": [("Voz_design", "airflow")],
+              "natural": [("A_open_min", "area"), ("A_open", "area"), ("depth_max", "length"),
+                          ("depth", "length")]}
 
     def columns(self, s: SystemResult) -> list[tuple[str, str]]:
-        return self._COLUMNS + self._EXTRA.get(s.kind, []) + [("Voz_delivered", "airflow")]
+        delivered = [] if s.kind == "natural" else [("Voz_delivered", "airflow")]
+        return self._COLUMNS + self._EXTRA.get(s.kind, []) + delivered
 
     def zone_row(self, s: SystemResult, z: ZoneResult) -> dict:
         return {"id": z.id, "name": z.name or "", "space": z.space_label,

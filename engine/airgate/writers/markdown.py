@@ -57,8 +57,12 @@ def _systems_table(report: Report) -> list[str]:
     out = ["| system | kind | required Vot | scheduled | margin | verdict |",
            "|---|---|---:|---:|---:|---|"]
     for s in report.systems:
-        req, prov = _intake(s)
         name = md(s.id) + (f" {md(s.name)}" if s.name else "")
+        if "Vot" not in s.trail:
+            out.append(f"| {name} | {md(s.kind)} | no intake (natural ventilation) | – | – | "
+                       f"{_verdict(s.verdict)} |")
+            continue
+        req, prov = _intake(s)
         out.append(f"| {name} | {md(s.kind)} | {md(shared.amount(req, u))} | "
                    f"{md(shared.amount(prov, u))} | {md(shared.margin(req, prov, u))} | "
                    f"{_verdict(s.verdict)} |")

@@ -42,7 +42,12 @@ def _zone_rows(s: SystemResult, system: str) -> list[str]:
     multi = s.kind == "multiple-zone" and any("Vpz" in z.trail for z in s.zones)
     if multi:
         head += [f"Vpz {q}", "Zpz", "Evz"]
-    head += [f"gets {q}", "verdict"]
+    natural = s.kind == "natural"
+    if natural:
+        ln = units.label("length", system)
+        head += [f"open min {a}", f"open {a}", f"depth max {ln}", f"depth {ln}", "verdict"]
+    else:
+        head += [f"gets {q}", "verdict"]
     rows = [head]
     for z in s.zones:
         t = z.trail
@@ -52,7 +57,11 @@ def _zone_rows(s: SystemResult, system: str) -> list[str]:
         if multi:
             crit = "◂" if s.critical_zone == z.id else ""
             row += [_num(t, "Vpz", system), _num(t, "Zpz", system), _num(t, "Evz", system) + crit]
-        row += [_num(t, "Voz_delivered", system), z.verdict.upper() if z.verdict == "fail" else z.verdict]
+        if natural:
+            row += [_num(t, sym, system) for sym in ("A_open_min", "A_open", "depth_max", "depth")]
+        else:
+            row.append(_num(t, "Voz_delivered", system))
+        row.append(z.verdict.upper() if z.verdict == "fail" else z.verdict)
         rows.append(row)
     return _table(rows, right=set(range(2, len(head) - 1)))
 
@@ -72,6 +81,12 @@ def _system(s: SystemResult, system: str) -> list[str]:
         parts.append(f"Ev {_num(t, 'Ev', system)}" + (f" (critical zone {clean(s.critical_zone)})"
                                                if s.critical_zone else ""))
         lines.append("    " + " · ".join(parts))
+    if "Vot" not in t:
+        lines.append("    no outdoor-air intake: natural ventilation through openings; openable area "
+                     "and depth checked per zone (Voz for reference)")
+        lines.append("")
+        lines += _zone_rows(s, system)
+        return lines
     required, provided = t.value("Vot"), t.value("Vot_design")
     if math.isinf(required):
         lines.append("    outdoor-air intake: no intake suffices (Ev ≤ 0) · scheduled "

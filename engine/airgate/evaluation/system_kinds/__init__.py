@@ -9,13 +9,14 @@ never compares a kind's name itself.
 
 from __future__ import annotations
 
-from airgate.evaluation.system_kinds import multiple_zone, outdoor_air, single_zone
+from airgate.evaluation.system_kinds import multiple_zone, natural, outdoor_air, single_zone
 from airgate.evaluation.system_kinds.common import SystemKind
 
 SYSTEM_KINDS: dict[str, SystemKind] = {
     single_zone.KIND.name: single_zone.KIND,
     outdoor_air.KIND.name: outdoor_air.KIND,
     multiple_zone.KIND.name: multiple_zone.KIND,
+    natural.KIND.name: natural.KIND,
 }
 
 

@@ -47,3 +47,6 @@ class SystemKind:
     system_checks: Callable[..., Iterator[tuple]] = _no_checks
     zone_checks: Callable[..., Iterator[tuple]] = _no_checks
     summary: str = ""
+    #: the kind has a scheduled mechanical intake (``Vot``, ``Vot_design`` in its trail, CO2 and
+    #: contaminant balances on it); False: no intake, no balance (natural ventilation)
+    intake: bool = True
