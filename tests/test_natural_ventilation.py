@@ -171,7 +171,7 @@ def test_every_format_and_explain_show_the_natural_figures(tmp_path):
             assert zone["values"]["A_open_min"]["value"] == pytest.approx(36, rel=1e-6)
             assert zone["values"]["depth_max"]["value"] == pytest.approx(20, rel=1e-6)
             assert zone["verdict"] == "fail"
-    out = subprocess.run([sys.executable, "-m", "airgate", "explain", str(path), "NV-1/z"],
+    out = subprocess.run([sys.executable, "-m", "airgate", "explain", str(path), "--zone", "z"],
                          capture_output=True, text=True, env=env, cwd=tmp_path)
     assert out.returncode in (0, 1), out.stderr
     for symbol in ("A_open_min", "depth_max", "natural-opening-area"):
