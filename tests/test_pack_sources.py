@@ -144,7 +144,8 @@ def test_ev_table_rows_equal_the_new_york_state_code_up_to_0_55():
 
 def _count_from_file(pack_id: str) -> dict[str, int]:
     """Values by provenance counted from the pack file itself (YAML, not the loader): each row's
-    Rp, Ra, density (where not null) and air class, each Ez, each number of an Ev method."""
+    Rp, Ra, density (where not null) and air class, each Ez, the natural ventilation fraction and
+    depth ratios, each number of an Ev method."""
     import yaml
 
     from airgate.readers.rulepack import builtin_rules_dir
@@ -163,6 +164,10 @@ def _count_from_file(pack_id: str) -> dict[str, int]:
     for row in air["configurations"]:
         p = row.get("provenance", air["provenance"])
         counts[p] = counts.get(p, 0) + 1
+    natural = data.get("natural_ventilation")
+    if natural is not None:
+        for entry in [natural["openable_area"], *natural["depth"]]:
+            counts[entry["provenance"]] = counts.get(entry["provenance"], 0) + 1
     for method in data.get("ventilation_efficiency", {}).get("methods", {}).values():
         n = sum(k in method for k in ("breakpoint", "slope", "intercept", "above_breakpoint",
                                       "vav_minimum_primary_ratio"))

@@ -289,7 +289,7 @@ class RulePack:
         """How many of the pack's table values are ``published``, ``derived``, ``from memory`` …
 
         Counted: each occupancy row's Rp, Ra, default density (where the table gives one) and
-        air class; each Ez; each number of an Ev method (slope, intercept, breakpoint, the value
+        air class; each Ez; the natural ventilation fraction and depth ratios; each number of an Ev method (slope, intercept, breakpoint, the value
         above it, the VAV ratio; each table row's Ev and the value above the last row); each
         numeric parameter of a requirement. Equations are forms, not values, and not counted.
         """
@@ -305,6 +305,10 @@ class RulePack:
                 add(c.provenance_of(name))
         for r in self.configurations.values():
             add(r.provenance)
+        if self.natural_ventilation is not None:
+            nv = self.natural_ventilation
+            for v in (nv.openable_fraction, *nv.depth_ratio.values()):
+                add(v.provenance)
         for m in self.methods.values():
             if isinstance(m, SimplifiedEv):
                 add(m.provenance, 4 + (m.vav_minimum_primary_ratio is not None))

@@ -180,12 +180,28 @@ def pack_summary(pack: RulePack, doc: Any = None) -> str:
             extra = ": " + ", ".join(f"≤{z:g} → {e:g}" for z, e in m.rows) + (
                 f", above: {m.above_last}")
         out.append(f"  {name}{extra}  [{m.source.cite()}; {m.provenance}]")
+    out += _natural(pack)
     out += ["", "Checks"]
     for c in pack.checks.values():
         out.append(f"  {c.id:34} {c.severity:8} {c.title}")
     out += _requirements(pack, data.get("requirements", [])) + _retired(pack)
     out += ["", GOVERN, "", provenance_line(pack.value_provenance_counts())]
     return "\n".join(out) + "\n"
+
+
+def _natural(pack) -> list[str]:
+    """The natural ventilation procedure's limits, where the pack has them."""
+    nv = pack.natural_ventilation
+    if nv is None:
+        return []
+    area = nv.openable_fraction
+    out = ["", "Natural ventilation",
+           f"  openable area ≥ {area.value:g} × net occupiable floor area  "
+           f"[{area.source.cite()}; {area.provenance}]"]
+    for arrangement, v in nv.depth_ratio.items():
+        out.append(f"  {arrangement} openings: depth ≤ {v.value:g} × ceiling height  "
+                   f"[{v.source.cite()}; {v.provenance}]")
+    return out
 
 
 def provenance_line(counts: dict[str, int]) -> str:
