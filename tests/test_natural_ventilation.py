@@ -176,3 +176,19 @@ def test_every_format_and_explain_show_the_natural_figures(tmp_path):
     assert out.returncode in (0, 1), out.stderr
     for symbol in ("A_open_min", "depth_max", "natural-opening-area"):
         assert symbol in out.stdout
+
+
+def test_a_pack_giving_an_arrangement_two_depth_limits_is_refused(tmp_path):
+    import yaml
+
+    from airgate.readers.rulepack import builtin_rules_dir, load_pack
+
+    data = yaml.safe_load((builtin_rules_dir() / "ashrae-62.1-2019.yaml").read_text("utf-8"))
+    data["id"] = "twice"
+    data["natural_ventilation"]["depth"].append(dict(data["natural_ventilation"]["depth"][0]))
+    path = tmp_path / "twice.yaml"
+    path.write_text(yaml.safe_dump(data, sort_keys=False), encoding="utf-8")
+    with pytest.raises(AirgateError) as err:
+        load_pack(str(path))
+    assert "single-sided openings are given a depth limit twice" in str(err.value)
+    assert err.value.field == ("natural_ventilation", "depth", 3, "arrangement")

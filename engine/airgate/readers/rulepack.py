@@ -322,11 +322,21 @@ def _retired(doc: Any) -> dict[str, dict[str, Retired]]:
             for coll, entries in getattr(doc, "retired", {}).items()}
 
 
-def _natural(data: dict[str, Any]) -> NaturalVentilationRules | None:
-    """The ``natural_ventilation`` table: fractions and ratios, the same in I-P and SI."""
+def _natural(doc: Any, data: dict[str, Any]) -> NaturalVentilationRules | None:
+    """The ``natural_ventilation`` table: fractions and ratios, the same in I-P and SI; an
+    opening arrangement listed twice is a pack error."""
     nv = data.get("natural_ventilation")
     if nv is None:
         return None
+    seen: dict[str, int] = {}
+    for i, row in enumerate(nv["depth"]):
+        if row["arrangement"] in seen:
+            raise doc.error(
+                RulePackError, f"{row['arrangement']} openings are given a depth limit twice "
+                f"(first at index {seen[row['arrangement']]})",
+                ("natural_ventilation", "depth", i, "arrangement"),
+                hint="give each opening arrangement one row")
+        seen[row["arrangement"]] = i
 
     def cited(raw: dict[str, Any], value: float) -> CitedValue:
         return CitedValue(value=float(value), source=_source(raw["source"], data),
@@ -379,5 +389,5 @@ def build(doc: Any) -> RulePack:
         lineage=tuple(lineage), retired=retired,
         requirements=build_requirements(doc, data, system, categories, configurations, checks,
                                         retired),
-        natural_ventilation=_natural(data),
+        natural_ventilation=_natural(doc, data),
     )
