@@ -44,6 +44,10 @@ def test_names_come_from_the_environment():
     ("max(1, 2", "ends too early", 9),
     ("a ** 2", "unexpected '*'", 4),
     ("exp(1)", "unknown function 'exp'", 1),
+    # a constant that is infinite as a float, or beyond the range numbers are read in
+    # (docs/limits.md), is refused where it is written
+    ("Vbz * 1e999", "the number 1e999 is out of the range airgate reads", 7),
+    ("2 * 1e-400", "the number 1e-400 is out of the range airgate reads", 5),
 ])
 def test_refused_with_the_column(text, message, column):
     with pytest.raises(fx.FormulaError) as info:

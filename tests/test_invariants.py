@@ -31,18 +31,26 @@ ROWS = sorted(PACK.configurations)
 FT = 0.3048
 CFM = 0.3048**3 * 1000 / 60
 
+
+
+def from_zero(top: float) -> st.SearchStrategy[float]:
+    """0, or a value from 1e-9 to ``top``: a schedule's own numbers lie in the range airgate
+    reads (docs/limits.md: magnitudes from 1e-15 to 1e15, or 0)."""
+    return st.one_of(st.just(0.0), st.floats(1e-9, top))
+
+
 zone_st = st.fixed_dictionaries({
     "space": st.sampled_from(SPACES),
     "area": st.floats(50, 20000),
-    "occupants": st.one_of(st.none(), st.floats(0, 400)),
+    "occupants": st.one_of(st.none(), from_zero(400)),
     "row": st.sampled_from(ROWS),
     "vpz": st.floats(50, 20000),
-    "oa": st.floats(0, 5000),
+    "oa": from_zero(5000),
     "height": st.one_of(st.none(), st.floats(7, 30)),
 })
 system_st = st.fixed_dictionaries({
     "kind": st.sampled_from(["single-zone", "outdoor-air", "multiple-zone"]),
-    "intake": st.floats(0, 30000),
+    "intake": from_zero(30000),
     "method": st.sampled_from(["simplified", "detailed"]),
     "zones": st.lists(zone_st, min_size=1, max_size=6),
 })

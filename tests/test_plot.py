@@ -43,3 +43,29 @@ def test_unknown_extension_and_missing_series(tmp_path, capsys):
     assert main(["plot", str(path), "--system", "DOAS-1", "-o", str(tmp_path / "y.png")]) == 2
     assert "occupancy profile" in capsys.readouterr().err
     assert not (tmp_path / "y.png").exists()
+
+
+@pytest.mark.parametrize("name", [r"$\foo{x}$", "$" + "x^{" * 300 + "1" + "}" * 300 + "$",
+                                  "_hidden", "cost $5 and $6", "\x1b[2J\u202eroom"],
+                         ids=["unknown-command", "deep-nesting", "underscore", "dollars",
+                              "controls"])
+def test_zone_names_are_drawn_literally(name, tmp_path, capsys):
+    # matplotlib reads $…$ as mathtext (matplotlib docs, "Writing mathematical expressions"):
+    # an unknown command is an error and deep nesting exhausts its parser. A name is drawn as
+    # written instead; the contract is exit 0 and the name's text in the picture.
+    import yaml
+
+    data = yaml.safe_load(DEMO.read_text(encoding="utf-8"))
+    zone = data["systems"][2]["zones"][0]
+    zone["name"] = name
+    data["project"]["name"] = name
+    path = tmp_path / "named.yaml"
+    path.write_text(yaml.safe_dump(data), encoding="utf-8")
+    out = tmp_path / "named.svg"
+    code = main(["plot", str(path), "--zone", str(zone["id"]), "-o", str(out)])
+    err = capsys.readouterr().err
+    assert code == 0, err
+    svg = out.read_text(encoding="utf-8")
+    assert "\x1b" not in svg and "\u202e" not in svg
+    if name.startswith("cost"):
+        assert "cost $5 and $6" in svg  # matplotlib writes each text beside its glyphs

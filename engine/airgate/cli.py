@@ -16,6 +16,7 @@ from airgate import __version__
 from airgate.commands import COMMANDS
 from airgate.writers.output import Interrupted
 from airgate.errors import EXIT_INPUT, AirgateError, OutputError
+from airgate.escaping import terminal
 
 EXIT_INTERNAL = 3
 
@@ -77,7 +78,9 @@ def main(argv: Sequence[str] | None = None) -> int:
     except Exception as exc:  # a bug: say so briefly; AIRGATE_DEBUG=1 shows the traceback
         if os.environ.get("AIRGATE_DEBUG"):
             raise
-        sys.stderr.write(f"airgate: internal error: {type(exc).__name__}: {exc}\n"
+        detail = terminal(exc)  # it may quote input: escaped, and short
+        detail = detail if len(detail) <= 300 else detail[:300] + " …(cut)"
+        sys.stderr.write(f"airgate: internal error: {type(exc).__name__}: {detail}\n"
                          "  this is a bug in airgate; rerun with AIRGATE_DEBUG=1 and report it\n")
         return EXIT_INTERNAL
 

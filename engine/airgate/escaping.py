@@ -54,6 +54,12 @@ def invisible(text: object) -> str:
     return _INVISIBLE.sub(_escape, s) if _INVISIBLE.search(s) else s
 
 
+def lines(rows: list[str]) -> str:
+    """Lines of a listing joined for a terminal, each escaped with :func:`terminal` (a line
+    break inside one is shown as ``\\n``, never starts a line of its own)."""
+    return "".join(terminal(row) + "\n" for row in rows)
+
+
 def excerpt(value: object, limit: int = EXCERPT) -> str:
     """A short quoted piece of ``value`` for a message: its ``repr`` for text, cut to ``limit``
     characters with ``…`` and escaped for a terminal (``'root:x:0:0:…'``)."""

@@ -45,6 +45,8 @@ from functools import lru_cache
 
 import pint
 
+from airgate.escaping import excerpt
+
 IP = "IP"
 SI = "SI"
 UNIT_SYSTEMS = (IP, SI)
@@ -214,9 +216,29 @@ _UNIT_EXPR = re.compile(rf"^{_UNIT_NAME}(?:\s*[*/ ]\s*{_UNIT_NAME})*$")
 _THOUSANDS = re.compile(r"^[-+]?[0-9]{1,3}(?:,[0-9]{3})+(?:\.[0-9]*)?(?:\s|$)")
 
 
-def _finite(value: float, raw: object) -> float:
+#: The range of magnitudes airgate reads, as written and in internal units (docs/limits.md):
+#: far beyond any building, and narrow enough that no product or quotient of two or three such
+#: values overflows or underflows a float. Zero is always allowed.
+MAX_MAGNITUDE = 1e15
+MIN_MAGNITUDE = 1e-15
+
+
+def in_range(value: float) -> bool:
+    """Whether a finite ``value`` is zero or has a magnitude airgate reads."""
+    return value == 0 or MIN_MAGNITUDE <= abs(value) <= MAX_MAGNITUDE
+
+
+def range_text() -> str:
+    return f"magnitudes from {MIN_MAGNITUDE:g} to {MAX_MAGNITUDE:g}, or 0"
+
+
+def _finite(value: float, raw: object, kind: str | None = None) -> float:
     if not math.isfinite(value):
-        raise QuantityError(f"{raw!r} is not a finite number")
+        raise QuantityError(f"{excerpt(raw)} is not a finite number")
+    if not in_range(value):
+        where = f" ({KINDS[kind].internal.replace('**', '^')})" if kind else ""
+        raise QuantityError(f"{excerpt(raw)} is out of the range airgate reads: "
+                            f"{range_text()}{where}; no building has such a value")
     return value
 
 
@@ -268,18 +290,21 @@ def parse(raw: object, kind: str, system: str) -> float:
     k = KINDS[kind]
     if isinstance(raw, bool) or not isinstance(raw, (int, float, str)):
         raise QuantityError(f"expected a number or a quantity such as {k.example}, got {raw!r}")
+    if isinstance(raw, int) and abs(raw) > MAX_MAGNITUDE:  # float() would overflow
+        raise QuantityError(f"{excerpt(raw)} is out of the range airgate reads: {range_text()}; "
+                            "no building has such a value")
     if isinstance(raw, (int, float)):
-        return to_internal(_finite(float(raw), raw), kind, system)
+        return _finite(to_internal(_finite(float(raw), raw), kind, system), raw, kind)
     value, unit = _read_text(raw, kind)
     _finite(value, raw)
     if not unit:
-        return to_internal(value, kind, system)
+        return _finite(to_internal(value, kind, system), raw, kind)
     try:
         factor = _unit_factor(unit, k.internal)
     except Exception:  # noqa: BLE001 - the full conversion below says what is wrong
         factor = None
     if factor is not None:
-        return _finite(value * factor, raw)
+        return _finite(value * factor, raw, kind)
     ureg = registry()
     try:
         q = ureg.Quantity(value, unit)
@@ -297,7 +322,7 @@ def parse(raw: object, kind: str, system: str) -> float:
             f"{raw!r} has units of {q.units:~} ({q.dimensionality}); "
             f"expected {_article(kind)} such as {k.example}{_people_hint(q, kind, raw)}"
         ) from exc
-    return _finite(converted, raw)
+    return _finite(converted, raw, kind)
 
 
 @lru_cache(maxsize=1024)

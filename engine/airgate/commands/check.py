@@ -16,6 +16,7 @@ from pathlib import Path
 from airgate.commands.common import add_output, add_rules, input_suffixes
 from airgate.errors import (EXIT_FAIL, EXIT_PASS, AirgateError, ErrorGroup, ScheduleError,
                             UsageError, raise_all)
+from airgate.escaping import terminal
 from airgate.readers import document
 from airgate.readers.importers import IMPORTERS
 
@@ -139,7 +140,7 @@ class _Progress:
         width = 24
         filled = width * done // self.total
         bar = "█" * filled + "·" * (width - filled)
-        sys.stderr.write(f"\r\033[Kchecking {bar} {done}/{self.total} {name[-40:]}")
+        sys.stderr.write(f"\r\033[Kchecking {bar} {done}/{self.total} {terminal(name[-40:])}")
         sys.stderr.flush()
 
     def close(self) -> None:

@@ -8,6 +8,7 @@ from pathlib import Path
 
 from airgate.commands.common import add_output, emit, input_suffixes
 from airgate.errors import EXIT_PASS
+from airgate.escaping import terminal
 
 
 def register(sub) -> None:
@@ -49,9 +50,9 @@ def run(args: argparse.Namespace) -> int:
     text = schedule_yaml.render(loaded.doc.data, origins, header)
     emit(args.output, text)
     if isinstance(loaded, ImportedSchedule):
-        sys.stderr.write(loaded.summary.text() + "\n")
+        sys.stderr.write(terminal(loaded.summary.text()) + "\n")
         for note in loaded.notes:
-            sys.stderr.write(f"note: {note}\n")
+            sys.stderr.write(f"note: {terminal(note)}\n")
     return EXIT_PASS
 
 

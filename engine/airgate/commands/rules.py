@@ -7,6 +7,7 @@ import sys
 
 from airgate.commands.common import add_format, add_output, add_rules_path, emit
 from airgate.errors import EXIT_FAIL, EXIT_PASS, UsageError
+from airgate.escaping import terminal
 
 ACTIONS = ["list", "show ID", "validate PATH", "test [PATH]", "diff A B"]
 #: output formats of ``rules show --resolved`` and ``rules diff``: text (YAML for --resolved), JSON
@@ -149,7 +150,8 @@ def _validate(args) -> int:
         extra = f"; extends {' → '.join(doc.lineage[1:])}" if doc.extends else ""
         if declared:
             extra += f"; {len(combos)} option combinations"
-        sys.stdout.write(f"ok  {doc.pack_id} ({doc.file}): {', '.join(parts)}{extra}\n")
+        sys.stdout.write(terminal(f"ok  {doc.pack_id} ({doc.file}): {', '.join(parts)}{extra}")
+                         + "\n")
     return EXIT_PASS
 
 

@@ -17,6 +17,7 @@ the pack is loaded (:func:`check_dimensions`), not when a building is checked.
 
 from __future__ import annotations
 
+import math
 import re
 from collections.abc import Mapping
 from dataclasses import dataclass
@@ -149,7 +150,12 @@ class _Parser:
     def atom(self) -> Node:
         kind, text, column = self.take()
         if kind == "number":
-            return Num(float(text))
+            value = float(text)
+            underflow = value == 0 and re.search("[1-9]", re.split("[eE]", text)[0])
+            if not (math.isfinite(value) and units.in_range(value)) or underflow:
+                raise FormulaError(f"the number {text} is out of the range airgate reads "
+                                   f"({units.range_text()})", column)
+            return Num(value)
         if kind == "name":
             nxt = self.peek()
             if nxt is not None and nxt[:2] == ("op", "("):

@@ -53,7 +53,7 @@ def _on_piece(c_start, lam, source_rate, tau, out=None):
         out = np.empty((tau.shape[0],) + c0.shape)
     c0, lam, s = c0.ravel(), lam.ravel(), s.ravel()
     flat = out.reshape(out.shape[0], -1)
-    linear = ~(np.abs(s) < lam * 1e300)  # λ = 0 or s/λ out of range
+    linear = ~(np.abs(s) * 1e-300 < lam)  # λ = 0 or s/λ out of range (no overflow at any λ)
     c_ss = np.where(linear, 0.0, s) / np.where(linear, 1.0, lam)
     falling = ~linear & (c0 > c_ss)
     for cols, base, kernel in ((np.flatnonzero(falling), c_ss, np.exp),

@@ -12,9 +12,8 @@ field being read when it happened.
 from __future__ import annotations
 
 import json
-import os
+import math
 import re
-import stat
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -23,8 +22,13 @@ import yaml
 
 from airgate.errors import AirgateError, Path_
 from airgate.readers import limits as L  # the limits (docs/limits.md), read when used
-from airgate.readers.limits import (AliasBudget, current_budget, limit_error, read_at_most,
-                                    size_text, utf8_len)
+from airgate.readers.limits import AliasBudget, current_budget, limit_error, utf8_len
+from airgate.readers.textfile import (  # noqa: F401 - the readers' file functions, here too
+    followable, read_bytes, read_text)
+
+#: Digits of a whole number read exactly; a longer one is read as infinite and refused by the
+#: schedule reader where it is written (Python's int() refuses more than 4,300 digits)
+MAX_DIGITS = 4000
 
 _MERGE_TAG = "tag:yaml.org,2002:merge"
 
@@ -68,6 +72,8 @@ class _Rules:
         text = self.construct_scalar(node)  # type: ignore[attr-defined]
         sign = -1 if text.startswith("-") else 1
         digits = text.lstrip("+-")
+        if len(digits) > MAX_DIGITS:  # int() would refuse it, with no position
+            return math.copysign(math.inf, sign)  # the schedule reader refuses it, as written
         if digits.startswith("0o"):
             return sign * int(digits[2:], 8)
         if digits.startswith("0x"):
@@ -274,70 +280,6 @@ class _Builder:
         return out
 
 
-def _line_column(raw: bytes, offset: int) -> tuple[int, int]:
-    """1-based line and column of byte ``offset`` (the column counts bytes)."""
-    line = raw[:offset].count(b"\n") + 1
-    return line, offset - (raw.rfind(b"\n", 0, offset) + 1) + 1
-
-
-def followable(path: Path | str, error_cls: type[AirgateError]) -> Path:
-    """``path`` with its symbolic links followed, or an error naming it (a loop of links)."""
-    try:
-        return Path(path).resolve()
-    except (OSError, RuntimeError):  # RuntimeError: Python before 3.13 on a symlink loop
-        raise error_cls("the path cannot be followed (a loop of symbolic links?)",
-                        file=str(path), hint="give the path of the file itself") from None
-
-
-def read_bytes(path: Path, error_cls: type[AirgateError]) -> bytes:
-    """Read a file within the size limit, or raise an error naming it (any reader's first step).
-
-    A regular file larger than the limit is refused before it is read; anything else (a pipe,
-    a device such as /dev/zero, standard input) is read only up to one byte past the limit."""
-    name = str(path)
-    try:
-        with open(path, "rb") as handle:
-            info = os.fstat(handle.fileno())
-            if stat.S_ISDIR(info.st_mode):
-                raise IsADirectoryError
-            if stat.S_ISREG(info.st_mode) and info.st_size > L.MAX_BYTES:
-                raise _too_large(name, error_cls)
-            raw = read_at_most(handle, L.MAX_BYTES + 1)
-    except FileNotFoundError:
-        raise error_cls("file not found", file=name) from None
-    except IsADirectoryError:
-        raise error_cls("is a directory, expected a file", file=name) from None
-    except OSError as exc:
-        raise error_cls(f"cannot read file: {exc.strerror or exc}", file=name) from None
-    if len(raw) > L.MAX_BYTES:
-        raise _too_large(name, error_cls)
-    return raw
-
-
-def _too_large(name: str, error_cls: type[AirgateError]) -> AirgateError:
-    return error_cls(f"file is larger than the {size_text(L.MAX_BYTES)} limit", file=name,
-                     hint="split the file, or raise AIRGATE_MAX_BYTES (docs/limits.md)")
-
-
-def read_text(path: Path, error_cls: type[AirgateError]) -> str:
-    """Read a UTF-8 file (a byte-order mark is allowed) or raise an error naming it."""
-    name = str(path)
-    raw = read_bytes(path, error_cls)
-    if b"\x00" in raw:
-        line, column = _line_column(raw, raw.index(b"\x00"))
-        raise error_cls("file is binary (contains NUL bytes), expected YAML or JSON text",
-                        file=name, line=line, column=column,
-                        hint="give the schedule or rule pack as a text file")
-    try:
-        return raw.decode("utf-8-sig")
-    except UnicodeDecodeError as exc:
-        line, column = _line_column(raw, exc.start)
-        raise error_cls(
-            f"file is not UTF-8 text (byte 0x{raw[exc.start]:02x} at offset {exc.start})",
-            file=name, line=line, column=column, hint="save the file as UTF-8",
-        ) from None
-
-
 class _PathTracker:
     """Follows YAML parser events to know which field is being read (for syntax errors)."""
 
@@ -488,6 +430,13 @@ class _Constant:
         self.name = name
 
 
+def _json_int(text: str) -> int | float:
+    """A JSON integer; one too long to be a value is infinite, refused by the schedule reader."""
+    if len(text.lstrip("-")) <= MAX_DIGITS:
+        return int(text)
+    return -math.inf if text.startswith("-") else math.inf
+
+
 def _json_pairs(pairs: list[tuple[str, Any]]) -> dict[str, Any]:
     out: dict[str, Any] = {}
     for key, value in pairs:
@@ -551,19 +500,21 @@ def _same_problem(problem: tuple[str, Path_, str] | None, exc: AirgateError) -> 
 def parse_json(text: str, file: str, error_cls: type[AirgateError]) -> Document:
     """Parse strict JSON; positions come from a YAML composition of the same text if possible."""
     try:
-        data = json.loads(text, object_pairs_hook=_json_pairs, parse_constant=_Constant)
+        data = json.loads(text, object_pairs_hook=_json_pairs, parse_constant=_Constant,
+                          parse_int=_json_int)
     except json.JSONDecodeError as exc:
         raise _json_decode_error(exc, text, file, error_cls) from None
     except RecursionError:
         raise limit_error(error_cls, "depth", file, ()) from None
     problem = _walk_json(data)
     try:
-        positions = _json_positions(text, file, error_cls).positions
+        composed = _json_positions(text, file, error_cls)
+        positions, texts = composed.positions, composed.texts
     except AirgateError as exc:
         if _same_problem(problem, exc):
             raise exc from None  # the YAML reading located the same duplicate key or limit
-        positions = {}
-    doc = Document(file=file, data=data, positions=positions)
+        positions, texts = {}, {}
+    doc = Document(file=file, data=data, positions=positions, texts=texts)
     if problem is None:
         return doc
     what, path, detail = problem

@@ -26,6 +26,7 @@ from pydantic import BaseModel
 
 from airgate import units
 from airgate.errors import nearest
+from airgate.readers.document import MAX_DIGITS
 
 
 class CellError(ValueError):
@@ -273,6 +274,11 @@ def convert(col: Column, value: Any, unit: str | None = None) -> Any:
     if isinstance(value, str):
         value = value.strip()
     kind = col.kind
+    if kind not in ("id", "text") and isinstance(value, str) and _is_number(value) \
+            and sum(c.isdigit() for c in value) > MAX_DIGITS:
+        raise CellError(f"a number of {sum(c.isdigit() for c in value)} digits is out of the "
+                        f"range airgate reads: {units.range_text()}",
+                        hint="no building has such a value: check the number and its units")
     if kind in ("id", "text"):
         if isinstance(value, bool):
             return value if kind == "id" else str(value).lower()

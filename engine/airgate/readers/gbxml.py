@@ -493,4 +493,11 @@ def read(path: str | Path) -> ImportedSchedule:
                             + (f" in namespace {root.ns}" if root.ns else ""), file=name,
                             line=root.line, column=root.column,
                             hint=f"a gbXML file starts with <gbXML xmlns=\"{NAMESPACE}\" …>")
-    return _Reader(root, path).read()
+    foreign = root.prune(root.ns)
+    loaded = _Reader(root, path).read()
+    if foreign:
+        first = foreign[0]
+        loaded.notes.append(
+            f"{name}:{first.line}: {len(foreign)} element{'s' if len(foreign) != 1 else ''} in "
+            f"other namespaces not read as gbXML (first <{first.tag}> in {first.ns})")
+    return loaded

@@ -30,6 +30,7 @@ from typing import Any
 from airgate import units
 from airgate.errors import ScheduleError
 from airgate.readers import fields as F
+from airgate.readers import step
 from airgate.readers.document import read_bytes
 from airgate.readers.sources import Builder, ImportedSchedule, Origin
 
@@ -66,6 +67,8 @@ class _Reader:
         self.lines = lines
         self.b = Builder(file=self.file, source=path.name)
         self.system = units.SI
+        #: the element whose properties were read last (where a structural error is reported)
+        self.current = None
 
     # -- places ---------------------------------------------------------------------------------
 
@@ -82,6 +85,7 @@ class _Reader:
 
     def props(self, element) -> dict[str, dict[str, _Prop]]:
         """Property sets and quantity sets of ``element``; its own win over its type's."""
+        self.current = element
         out: dict[str, dict[str, _Prop]] = {}
         own, typed = [], []
         for rel in getattr(element, "IsDefinedBy", None) or ():
@@ -98,14 +102,29 @@ class _Reader:
                 for p in pdef.HasProperties or ():
                     if p.is_a("IfcPropertySingleValue") and p.NominalValue is not None:
                         v = p.NominalValue
-                        target[p.Name] = _Prop(v.wrappedValue, v.is_a(), p, p.Unit, pdef.Name)
+                        if self._plain(getattr(v, "wrappedValue", v), p, element, pdef.Name):
+                            target[p.Name] = _Prop(v.wrappedValue, v.is_a(), p, p.Unit,
+                                                   pdef.Name)
             elif pdef.is_a("IfcElementQuantity"):
                 for q in pdef.Quantities or ():
                     attr, measure = _QUANTITY_VALUES.get(q.is_a(), (None, None))
-                    if attr is not None and getattr(q, attr) is not None:
+                    if attr is not None and getattr(q, attr) is not None \
+                            and self._plain(getattr(q, attr), q, element, pdef.Name):
                         target[q.Name] = _Prop(getattr(q, attr), measure, q,
                                                getattr(q, "Unit", None), pdef.Name)
         return out
+
+    def _plain(self, value: Any, prop, element, pset: str) -> bool:
+        """Whether a property's value is a number, text or truth value; an entity where a
+        value belongs (``IFCPROPERTYSINGLEVALUE('x',$,#12,$)``) is an error at the property."""
+        if isinstance(value, (bool, int, float, str)):
+            return True
+        what = (f"the entity {self.label(value)}" if hasattr(value, "is_a")
+                else type(value).__name__)
+        self.b.error(self.origin(prop, element, f"{pset}.{prop.Name}"),
+                     f"the property's value is {what}, not a value",
+                     hint="give the property a value such as IFCLABEL('…') or a measure")
+        return False
 
     def value(self, col: F.Column, prop: _Prop, owner, path: tuple = ()) -> Any:
         """A property as a schedule value; measures converted from the model's units."""
@@ -364,23 +383,18 @@ class _Reader:
                      note="peak occupancy")
         elif "AreaPerOccupant" in occ and "area" in node:
             per = self.value(F.column_for("area", "zone"), occ["AreaPerOccupant"], space)
-            if per is not None:
+            if per is not None and not units.parse(per, "area", self.system) > 0:
+                b.error(self.origin(occ["AreaPerOccupant"].entity, space, "AreaPerOccupant"),
+                        "AreaPerOccupant must be greater than zero", field=base + (
+                            "occupants",), hint="give the floor area per occupant, or "
+                        "OccupancyNumber")
+            elif per is not None:
                 count = units.parse(node["area"], "area", self.system) / units.parse(
                     per, "area", self.system)
                 b.put(base + ("occupants",), float(f"{count:.10g}"), self.origin(
                     occ["AreaPerOccupant"].entity, space, "AreaPerOccupant").with_note(
                         "area ÷ AreaPerOccupant"))
         self.airgate_set(props, "Airgate_Zone", "zone", base, space, skip=("system",))
-
-
-def _entity_lines(data: bytes) -> dict[int, int]:
-    """Entity id → line of the file where it is written (``#12=IFCSPACE(…)``)."""
-    out: dict[int, int] = {}
-    for number, line in enumerate(data.splitlines(), start=1):
-        m = re.match(rb"\s*#(\d+)\s*=", line)
-        if m:
-            out.setdefault(int(m[1]), number)
-    return out
 
 
 def read(path: str | Path) -> ImportedSchedule:
@@ -395,6 +409,7 @@ def read(path: str | Path) -> ImportedSchedule:
         raise ScheduleError("the IFC file ends too early: END-ISO-10303-21; is missing",
                             file=name, line=data.count(b"\n") + 1,
                             hint="the file ends too early; export the model again")
+    lines = step.scan(data, name)  # syntax, duplicate ids and dangling references, located
     try:
         import ifcopenshell
     except ImportError:
@@ -405,4 +420,16 @@ def read(path: str | Path) -> ImportedSchedule:
     except Exception as exc:  # the parser's own errors: a damaged or truncated file
         raise ScheduleError(f"not a readable IFC file ({type(exc).__name__}: {exc})", file=name,
                             hint="export the model as IFC again") from None
-    return _Reader(model, path, _entity_lines(data)).read()
+    reader = _Reader(model, path, lines)
+    try:
+        return reader.read()
+    except (AttributeError, TypeError, IndexError, RuntimeError) as exc:
+        # an attribute holding what IFC does not allow there (an entity of another type, a
+        # list for a single value): a model airgate cannot read, said where it was reading
+        at = reader.current
+        raise ScheduleError(
+            "the IFC model's structure is not what the IFC schema allows near "
+            + (reader.label(at) if at is not None else "its start")
+            + f" ({type(exc).__name__})", file=name,
+            line=lines.get(at.id()) if at is not None else None,
+            hint="check the model with an IFC validator and export it again") from None

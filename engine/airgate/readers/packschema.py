@@ -16,6 +16,7 @@ from typing import Any
 
 import jsonschema
 
+from airgate import units
 from airgate.errors import RulePackError, nearest
 from airgate.escaping import EXCERPT, excerpt
 
@@ -41,8 +42,13 @@ def pack_schema() -> dict[str, Any]:
 
 
 def non_finite(data: Any, path: tuple = ()) -> tuple | None:
-    """The path of the first NaN or infinite number (JSON Schema lets them pass), or None."""
-    if isinstance(data, float) and not math.isfinite(data):
+    """The path of the first NaN or infinite number (JSON Schema lets them pass), or of one out
+    of the range airgate reads (docs/limits.md), or None."""
+    if isinstance(data, bool):
+        return None
+    if isinstance(data, int) and abs(data) > units.MAX_MAGNITUDE:
+        return path  # also beyond any float
+    if isinstance(data, (int, float)) and not (math.isfinite(data) and units.in_range(data)):
         return path
     items = data.items() if isinstance(data, dict) else (
         enumerate(data) if isinstance(data, list) else ())
@@ -68,6 +74,13 @@ def _quoted_short(message: str, instance: Any) -> str:
     return message.replace(whole, excerpt(instance))
 
 
+def _numeral(doc: Any, path: tuple) -> str:
+    """The number as the pack's file wrote it ('' when unknown or not a plain numeral)."""
+    source = getattr(doc, "doc", None)
+    text = getattr(source, "texts", {}).get(tuple(path), "") if source is not None else ""
+    return text if text[:1].isdigit() or text[:1] in "+-." and text[1:2].isdigit() else ""
+
+
 def validate(doc: Any, name: str = "rule-pack", error_cls: type = RulePackError) -> None:
     """Check ``doc.data`` against a published schema; raise on the most relevant error.
 
@@ -75,8 +88,16 @@ def validate(doc: Any, name: str = "rule-pack", error_cls: type = RulePackError)
     """
     bad = non_finite(doc.data)
     if bad is not None:
-        raise doc.error(error_cls, "must be a finite number, got "
-                        f"{get(doc.data, bad)!r}", bad, hint="give the table value as a number")
+        value = get(doc.data, bad)
+        if isinstance(value, float) and not math.isfinite(value) and not _numeral(doc, bad):
+            raise doc.error(error_cls, f"must be a finite number, got {value!r}", bad,
+                            hint="give the table value as a number")
+        shown = _numeral(doc, bad) or excerpt(value)
+        if len(shown) > 20:
+            shown = f"a number of {sum(c.isdigit() for c in shown)} digits"
+        raise doc.error(error_cls, f"{shown} is out of the range airgate reads: "
+                        f"{units.range_text()}", bad, hint="give the table value in the pack's "
+                        "units; no table of a ventilation standard holds such a value")
     validator = jsonschema.Draft202012Validator(schema(name))
     error = jsonschema.exceptions.best_match(validator.iter_errors(doc.data))
     if error is None:

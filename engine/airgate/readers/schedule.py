@@ -6,13 +6,16 @@ wrong and what is allowed.
 
 from __future__ import annotations
 
+import math
 import re
 from pathlib import Path
 from typing import Any
 
 from pydantic import BaseModel, ValidationError
 
+from airgate import units
 from airgate.errors import AirgateError, ScheduleError, nearest, raise_all
+from airgate.escaping import excerpt
 from airgate.models.schedule import (
     SYSTEM_CONDITION_FIELDS,
     ZONE_CONDITION_FIELDS,
@@ -108,12 +111,38 @@ def _shown(value: Any) -> str:
     """A value as the message shows it: short, and in the document's own words."""
     if isinstance(value, bool):
         return str(value).lower()
-    if isinstance(value, dict):
-        return "a mapping"
-    if isinstance(value, list):
-        return "a list"
-    text = repr(value)
-    return text if len(text) <= 60 else text[:57] + "..."
+    return excerpt(value)
+
+
+_NUMERAL = re.compile(r"[-+]?[0-9]+(?:\.[0-9]*)?(?:[eE][-+]?[0-9]+)?")
+
+
+def _out_of_range(doc: Document) -> list[AirgateError]:
+    """Numbers outside the range airgate reads (docs/limits.md), each at its position; a whole
+    number too long to read arrives here as infinity and is described by its digits."""
+    errors: list[AirgateError] = []
+    todo: list[tuple[Any, Path_]] = [(doc.data, ())]
+    while todo and len(errors) < MAX_ERRORS:
+        value, path = todo.pop()
+        if isinstance(value, dict):
+            todo.extend((v, path + (k,)) for k, v in value.items())
+        elif isinstance(value, list):
+            todo.extend((v, path + (i,)) for i, v in enumerate(value))
+        elif isinstance(value, (int, float)) and not isinstance(value, bool):
+            text = doc.texts.get(path, "")
+            if isinstance(value, int) and abs(value) > units.MAX_MAGNITUDE:
+                pass  # beyond any float: out of range (math.isfinite would overflow)
+            elif math.isfinite(value) and units.in_range(value) or \
+                    not math.isfinite(value) and not _NUMERAL.fullmatch(text):
+                continue  # in range; or .inf / .nan as written, refused by the model
+            digits = sum(c.isdigit() for c in text)
+            what = (f"a number of {digits} digits" if digits > 20
+                    else text if text else _shown(value))
+            errors.append(doc.error(ScheduleError, f"{what} is out of the range airgate reads: "
+                                    f"{units.range_text()}", path,
+                                    hint="no building has such a value: check the number "
+                                         "and its units"))
+    return errors
 
 
 def _describe(err: dict[str, Any], path: Path_) -> tuple[str, list[str], str | None]:
@@ -290,6 +319,7 @@ def validate(doc: Document) -> Schedule:
                         ("schedule",), hint="add 'schedule: 1' as the first line")
     system = _units(doc)
     _as_written(doc, data, (), Schedule)
+    raise_all(_out_of_range(doc))
     errors = _duplicate_ids(doc)
     try:
         model = Schedule.model_validate(data, context={"units": system})

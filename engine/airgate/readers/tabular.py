@@ -20,6 +20,7 @@ from __future__ import annotations
 
 import csv
 import io
+import re
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -172,7 +173,8 @@ def read_xlsx(path: str | Path) -> ImportedSchedule:
         raise ScheduleError(f"file is larger than the {limits.size_text(limits.MAX_BYTES)} "
                             "limit", file=name,
                             hint="split the file, or raise AIRGATE_MAX_BYTES (docs/limits.md)")
-    extents = workbook_guard.check(path, name, MAX_ROWS, MAX_COLUMNS)
+    extents = workbook_guard.check(path, name, MAX_ROWS, MAX_COLUMNS)  # sheets, by title
+    _no_dtd(path, name)  # the other XML parts, at the line and column
     try:
         book = openpyxl.load_workbook(path, read_only=True, data_only=False, keep_links=False)
     except Exception as exc:  # zip, XML or format problems all mean "not a workbook"
@@ -211,6 +213,37 @@ def read_xlsx(path: str | Path) -> ImportedSchedule:
     loaded = _read(tables, name, path.name)
     loaded.notes[:0] = notes
     return loaded
+
+
+#: bytes of each XML part of a workbook searched for a document type declaration (it can only
+#: stand in the prolog, before the first element)
+_PROLOG = 64 * 1024
+_DTD = re.compile(rb"<!(DOCTYPE|ENTITY)", re.IGNORECASE)
+
+
+def _no_dtd(path: Path, name: str) -> None:
+    """Refuse a workbook whose XML parts declare a DTD or entities (the gbXML rule), at the
+    part, line and column where the declaration stands."""
+    import zipfile
+
+    try:
+        with zipfile.ZipFile(path) as z:
+            for info in z.infolist():
+                if not info.filename.lower().endswith((".xml", ".rels", ".vml")):
+                    continue
+                with z.open(info) as part:
+                    head = part.read(_PROLOG)
+                m = _DTD.search(head)
+                if m is not None:
+                    line = head.count(b"\n", 0, m.start()) + 1
+                    column = m.start() - (head.rfind(b"\n", 0, m.start()) + 1) + 1
+                    raise ScheduleError(
+                        f"the workbook part declares a DTD or an entity (<!{m[1].decode()} …>); "
+                        "airgate reads no DTDs, so no entities can be expanded",
+                        file=f"{name}[{info.filename}]", line=line, column=column,
+                        hint="save the workbook again from the spreadsheet as .xlsx")
+    except (zipfile.BadZipFile, OSError, RuntimeError, NotImplementedError):
+        return  # not a readable zip: openpyxl says so next
 
 
 def _sheet_table(sheet, key: str, file: str, source: str,

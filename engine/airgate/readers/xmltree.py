@@ -46,6 +46,19 @@ class Element:
                 yield node
             todo.extend(reversed(node.children))
 
+    def prune(self, ns: str) -> list[Element]:
+        """Remove, at any depth, the elements of a namespace other than ``ns`` (with all they
+        hold); return them. A document may carry other vocabularies: they are not its own."""
+        removed: list[Element] = []
+        todo = [self]
+        while todo:
+            node = todo.pop()
+            keep = [c for c in node.children if c.ns == ns]
+            removed += [c for c in node.children if c.ns != ns]
+            node.children = keep
+            todo.extend(keep)
+        return sorted(removed, key=lambda e: (e.line, e.column))
+
     def child_text(self, tag: str) -> str | None:
         node = self.find(tag)
         return node.text.strip() if node is not None else None
@@ -79,7 +92,9 @@ def parse(data: bytes, file: str, what: str = "XML") -> Element:
             raise _Refused(f"nesting deeper than {MAX_DEPTH} levels; the depth limit stops it "
                            "here")
         ns, _, local = name.rpartition(" ")
-        node = Element(local, ns, {k.rpartition(" ")[2]: v for k, v in attrs.items()},
+        # attributes without a prefix are the element's own; a prefixed one keeps its
+        # namespace in its key ("NS name"), so it never stands in for an unprefixed one
+        node = Element(local, ns, dict(attrs),
                        parser.CurrentLineNumber, parser.CurrentColumnNumber + 1)
         if stack:
             stack[-1].children.append(node)

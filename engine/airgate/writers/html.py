@@ -29,6 +29,7 @@ from jinja2 import Environment, PackageLoader, StrictUndefined
 from markupsafe import Markup
 
 from airgate import __version__, formatting, units
+from airgate.escaping import invisible
 from airgate.evaluation.batch import Batch
 from airgate.evaluation.findings import DECLARED, Amount, Finding
 from airgate.evaluation.report import Report, SystemResult, ZoneResult
@@ -52,9 +53,12 @@ _ORIGIN = {"schedule": "schedule", "table": "rule pack", "computed": "computed",
 
 
 def _finalize(value: object) -> object:
-    """Every ``{{ value }}`` of a template: control characters become U+FFFD before escaping."""
-    if isinstance(value, str) and not isinstance(value, Markup):
-        return _CONTROL.sub("\ufffd", value)
+    """Every ``{{ value }}`` of a template: control characters become U+FFFD before escaping,
+    bidirectional controls are shown as ``\\u202e`` (:func:`airgate.escaping.invisible`)."""
+    if isinstance(value, Markup):
+        return Markup(invisible(value))  # ASCII text in place of a character: still safe
+    if isinstance(value, str):
+        return invisible(_CONTROL.sub("\ufffd", value))
     return value
 
 

@@ -18,6 +18,7 @@ import xml.etree.ElementTree as ET
 from pathlib import PurePath
 
 from airgate import __version__
+from airgate.escaping import invisible
 from airgate.evaluation.batch import Batch
 from airgate.evaluation.coverage import CheckCase
 from airgate.evaluation.findings import DECLARED
@@ -30,8 +31,9 @@ _NOT_XML = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ud800-\udfff\ufffe\uffff]")
 
 
 def xml_text(value: object) -> str:
-    """Text safe to put in an XML document (ElementTree escapes the markup characters)."""
-    return _NOT_XML.sub("\ufffd", str(value))
+    """Text safe to put in an XML document (ElementTree escapes the markup characters);
+    bidirectional controls shown as ``\\u202e`` (:func:`airgate.escaping.invisible`)."""
+    return invisible(_NOT_XML.sub("\ufffd", str(value)))
 
 
 def _el(parent: ET.Element, tag: str, text: str | None = None, **attrs: object) -> ET.Element:

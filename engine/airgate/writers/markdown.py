@@ -11,6 +11,7 @@ from __future__ import annotations
 import re
 
 from airgate import __version__, units
+from airgate.escaping import invisible
 from airgate.evaluation.batch import Batch
 from airgate.evaluation.findings import DECLARED, Amount, Finding
 from airgate.evaluation.report import Report, SystemResult
@@ -32,7 +33,7 @@ def md(text: object, line_start: bool = False) -> str:
 
     ``line_start``: the text opens a line, where '#', '-', '+' and '1.' would start a block.
     """
-    s = _CONTROL.sub("\ufffd", str(text)).replace("\r", " ").replace("\n", " ")
+    s = invisible(_CONTROL.sub("\ufffd", str(text))).replace("\r", " ").replace("\n", " ")
     s = _SPECIAL.sub(r"\\\1", "".join(_HTML.get(ch, ch) for ch in s))
     return _LINE_START.sub(_line_start, s, count=1) if line_start else s
 

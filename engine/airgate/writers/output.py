@@ -38,6 +38,7 @@ from pathlib import Path
 from typing import Union
 
 from airgate.errors import OutputError
+from airgate.escaping import invisible
 
 #: A rendered output: text, its pieces in order (written without joining them), or bytes.
 Body = Union[str, bytes, Iterable[str]]
@@ -86,13 +87,15 @@ _ENCODER = json.JSONEncoder(indent=2, ensure_ascii=False, allow_nan=False)
 
 def json_chunks(data: object) -> Iterator[str]:
     """The pieces of ``json.dumps(data, indent=2, ensure_ascii=False, allow_nan=False)`` and a
-    final newline: the indented form, byte for byte, produced piece by piece. :class:`Lazy`
+    final newline: the indented form, byte for byte, produced piece by piece — except that the
+    bidirectional controls and line separators, which can only stand inside a JSON string, are
+    written as their JSON escapes (``\\u202e``): the same data, shown visibly. :class:`Lazy`
     lists and :class:`Streamed` objects in ``data`` are produced while they are written: memory
     holds one item of a lazy list at a time."""
     if isinstance(data, (Lazy, Streamed)):
-        yield from _streamed(data, 0)
+        yield from map(invisible, _streamed(data, 0))
     else:
-        yield from _ENCODER.iterencode(data)
+        yield from map(invisible, _ENCODER.iterencode(data))
     yield "\n"
 
 

@@ -7,6 +7,7 @@ from typing import Any
 
 from airgate.api.packdiff import Change, PackDiff
 from airgate.api.packtests import PackResult
+from airgate.escaping import lines
 from airgate.writers.packs import GOVERN
 
 DIFF_VERSION = 1
@@ -55,7 +56,7 @@ def diff_text(d: PackDiff) -> str:
     c = d.counts()
     out += ["", f"{c['added']} added, {c['removed']} removed, {c['changed']} changed"
                 if any(c.values()) else "no differences", "", GOVERN]
-    return "\n".join(out) + "\n"
+    return lines(out)
 
 
 def diff_json(d: PackDiff) -> dict[str, Any]:
@@ -98,4 +99,4 @@ def tests_text(results: list[PackResult]) -> str:
     ok = all(r.ok for r in results)
     out += ["", f"Result: {'PASS' if ok else 'FAIL'} — {len(results)} packs, {cases} cases, "
                 f"{expectations} expectations; {failed} failed"]
-    return "\n".join(out) + "\n"
+    return lines(out)

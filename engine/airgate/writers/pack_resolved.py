@@ -11,6 +11,7 @@ from collections.abc import Iterator
 from typing import Any
 
 from airgate.errors import format_path
+from airgate.escaping import lines
 from airgate.readers.layering import PackDocument
 
 Path_ = tuple[str | int, ...]
@@ -110,7 +111,7 @@ def resolved_yaml(doc: PackDocument, data: Any = None) -> str:
     head.append("# each value is followed by the pack (and line) it comes from")
     writer = _Yaml(doc, data)
     writer.mapping(data, (), 0)
-    return "\n".join(head + writer.lines) + "\n"
+    return lines(head + writer.lines)
 
 
 def resolved_json(doc: PackDocument, data: Any = None) -> dict[str, Any]:

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from typing import Any
 
+from airgate.escaping import lines
 from airgate.models.requirements import Selector
 from airgate.models.rules import RulePack, SimplifiedEv, TableEv
 from airgate.readers.options import is_choice
@@ -186,7 +187,7 @@ def pack_summary(pack: RulePack, doc: Any = None) -> str:
         out.append(f"  {c.id:34} {c.severity:8} {c.title}")
     out += _requirements(pack, data.get("requirements", [])) + _retired(pack)
     out += ["", GOVERN, "", provenance_line(pack.value_provenance_counts())]
-    return "\n".join(out) + "\n"
+    return lines(out)
 
 
 def _natural(pack) -> list[str]:
@@ -217,4 +218,4 @@ def pack_list(rows: list[tuple[str, str, str, str, str]]) -> str:
     for pack_id, units, extends, title, where in rows:
         ext = f" (extends {extends})" if extends else ""
         out.append(f"{pack_id:36} {units}  {title}{ext}{where}")
-    return "\n".join(out) + "\n"
+    return lines(out)

@@ -13,11 +13,21 @@ from pathlib import Path
 from typing import TYPE_CHECKING
 
 from airgate.errors import UsageError
+from airgate.escaping import terminal
 
 if TYPE_CHECKING:  # the command line reads FORMATS without loading the engine
     from airgate.evaluation.report import Report, SystemResult, ZoneResult
 
 FORMATS = {".png": "png", ".svg": "svg"}
+
+
+def text(value: object) -> str:
+    """Input text as matplotlib must draw it: literally. A ``$`` would start mathtext
+    (``$\\foo{x}$`` is an error, deep ``^{}`` nesting exhausts the parser), so every ``$`` is
+    escaped; control and bidirectional characters are shown as escapes (``\\x1b``); a label
+    starting with ``_``, which matplotlib leaves out of a legend, gets a leading space."""
+    out = terminal(value).replace("$", r"\$")
+    return " " + out if out.startswith("_") else out
 
 
 def _pyplot():
@@ -48,7 +58,6 @@ def plot(report: Report, system: SystemResult, zones: list[ZoneResult], output: 
     in picture format ``fmt`` (one of the values of :data:`FORMATS`; default: from the file's
     extension)."""
     from airgate.writers.output import write_atomic
-    from airgate.writers.text import clean
 
     suffix = Path(output).suffix.lower()
     if fmt is None and suffix not in FORMATS:
@@ -61,7 +70,7 @@ def plot(report: Report, system: SystemResult, zones: list[ZoneResult], output: 
     fig, (ax, occ) = plt.subplots(2, 1, figsize=(9, 6), sharex=True,
                                   gridspec_kw={"height_ratios": [3, 1]})
     for z in zones:
-        label = f"{clean(z.id)} {clean(z.name or '')}".strip()
+        label = text(f"{z.id} {z.name or ''}".strip())
         ax.plot(z.series.times, z.series.ppm, label=label, linewidth=1.6)
         occ.step(z.series.times, z.series.occupancy, where="post", linewidth=1.2, label=label)
     first = zones[0].dilution
@@ -71,7 +80,7 @@ def plot(report: Report, system: SystemResult, zones: list[ZoneResult], output: 
         ax.axhline(first.value("C_limit"), color="tab:red", linestyle="--", linewidth=1.2,
                    label=f"limit {first.value('C_limit'):.0f} ppm")
     ax.set_ylabel("CO2 [ppm]")
-    ax.set_title(f"{clean(report.project_name)} — {clean(system.id)}: CO2 from occupants over "
+    ax.set_title(f"{text(report.project_name)} — {text(system.id)}: CO2 from occupants over "
                  "the design day (well-mixed)", fontsize=10)
     ax.grid(True, alpha=0.3)
     ax.legend(fontsize=8, loc="upper left")

@@ -15,6 +15,7 @@ from typing import Any
 from pydantic import BaseModel
 
 from airgate.errors import ScheduleError
+from airgate.escaping import BIDI_AND_SEPARATORS, terminal
 from airgate.models.profiles import Profile
 from airgate.models.schedule import Project, StatedDistribution, System, Zone
 from airgate.readers import fields as F
@@ -23,8 +24,9 @@ from airgate.readers.document import parse_yaml
 #: what a YAML stream may not hold raw (the YAML 1.2 printable set, as PyYAML reads it)
 _UNPRINTABLE = re.compile(
     "[^\x09\x0A\x0D\x20-\x7E\x85\xA0-\uD7FF\uE000-\uFFFD\U00010000-\U0010FFFF]")
-#: escaped inside quotes: the unprintable, and what YAML folds as a line break
-_ESCAPE = re.compile(f"{_UNPRINTABLE.pattern}|[\x85\u2028\u2029]")
+#: escaped inside quotes: the unprintable, what YAML folds as a line break, and the
+#: bidirectional controls (shown visibly, as in every report)
+_ESCAPE = re.compile(f"{_UNPRINTABLE.pattern}|[\x85{BIDI_AND_SEPARATORS}]")
 _FLOW_PLAIN = re.compile(r"[A-Za-z0-9_][A-Za-z0-9_ .()/'°²³µ·×-]*(?<! )")
 _YAML11_WORDS = {"yes", "no", "on", "off", "y", "n", "null", "true", "false", "~"}
 _PLAIN_KEY = re.compile(r"^[A-Za-z_][A-Za-z0-9_.-]*$")
@@ -50,7 +52,7 @@ def _plain_ok(text: str) -> bool:
         return False
     if text[0] in "'\"!&*%|>{[]},#?:`" or " #" in text or ": " in text or text.endswith(":"):
         return False
-    if _UNPRINTABLE.search(text) or not text.isprintable() or text.lower() in _YAML11_WORDS:
+    if _ESCAPE.search(text) or not text.isprintable() or text.lower() in _YAML11_WORDS:
         return False  # control characters; words other YAML readers take for booleans or null
     try:
         doc = parse_yaml(f"k: {text}\n", "<value>", ScheduleError)
@@ -113,7 +115,7 @@ class _Out:
         if o is None:
             return ""
         text = f"from {o.source}" + (f" ({o.note})" if o.note else "")
-        return "  # " + text.replace("\n", " ")
+        return "  # " + terminal(text)  # a line break of any kind would end the comment
 
     def line(self, indent: int, text: str, path: tuple | None = None,
              nearest: bool = False) -> None:
@@ -140,8 +142,8 @@ def render(data: dict[str, Any], origins: dict[tuple, Any] | None = None,
     """The schedule ``data`` as YAML text; ``origins`` (path → Origin) become comments."""
     out = _Out(origins or {})
     for text in header or []:
-        for part in text.splitlines() or [""]:
-            out.lines.append(("# " + part).rstrip())
+        for part in text.split("\n"):
+            out.lines.append(("# " + terminal(part)).rstrip())
     out.line(0, f"schedule: {scalar(data.get('schedule', 1))}")
     out.line(0, "project:", ("project",))
     _fields(out, data.get("project") or {}, "project", ("project",), 2)

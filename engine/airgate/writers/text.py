@@ -7,16 +7,17 @@ import re
 
 from airgate import __version__, formatting, units
 from airgate.evaluation.findings import DECLARED, Amount
+from airgate.escaping import terminal
 from airgate.evaluation.report import Report, SystemResult
 from airgate.writers import shared
 
-_CONTROL = re.compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f]")
 WIDTH = 100
 
 
 def clean(text: object) -> str:
-    """Input text made safe for a terminal: control characters become '?'."""
-    return _CONTROL.sub("?", str(text))
+    """Input text made safe for a terminal: control, bidirectional and separator characters
+    shown as escapes (``\\x1b``, ``\\u202e``; :func:`airgate.escaping.terminal`)."""
+    return terminal(text)
 
 
 def _num(trail, symbol: str, system: str) -> str:
