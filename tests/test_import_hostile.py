@@ -96,3 +96,21 @@ def test_a_workbook_part_with_a_dtd_is_refused_where_it_stands(tmp_path, capsys)
     assert code == 2 and out == ""
     assert f"{target}[xl/styles.xml]:2:1: schedule error: " in err, err
     assert "declares a DTD or an entity" in err
+
+
+def test_a_sheet_with_a_dtd_is_refused_with_its_place_in_the_xml(tmp_path, capsys):
+    need("openpyxl")
+    from importing import demo_xlsx
+
+    source = demo_xlsx(tmp_path)
+    target = tmp_path / "sheet-dtd.xlsx"
+    with zipfile.ZipFile(source) as z, zipfile.ZipFile(target, "w") as out:
+        for name in z.namelist():
+            data = z.read(name)
+            if name == "xl/worksheets/sheet1.xml":
+                data = b'<?xml version="1.0"?>\n\n<!DOCTYPE w [<!ENTITY e "x">]>\n' + data
+            out.writestr(name, data)
+    code, out, err = _run(capsys, ["check", target])
+    assert code == 2 and out == ""
+    assert "the workbook declares a document type (DTD)" in err
+    assert "[Project]: schedule error: " in err and "(line 3, column " in err, err

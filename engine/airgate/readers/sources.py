@@ -17,6 +17,7 @@ from pathlib import Path
 from typing import Any
 
 from airgate.errors import AirgateError, ErrorGroup, ScheduleError
+from airgate.escaping import lines
 from airgate.readers.document import Document, Path_
 from airgate.readers.importers import REFUSED, importer_for
 from airgate.readers.schedule import LoadedSchedule, validate
@@ -117,7 +118,7 @@ class SummarisedError(AirgateError):
         self.summary = summary
 
     def render(self) -> str:
-        return super().render() + "\n" + self.summary
+        return super().render() + "\n" + lines(self.summary.split("\n")).rstrip("\n")
 
 
 class ImportFailed(ErrorGroup):

@@ -127,8 +127,10 @@ def _parser(start=None, end=None, text=None) -> expat.XMLParserType:
     parser = expat.ParserCreate(namespace_separator=" ")
 
     def refuse(*_args) -> None:
-        raise _Stop("the workbook declares a document type (DTD), which no workbook needs",
-                    hint="save the file again from the spreadsheet as .xlsx")
+        # where in the part's XML (a sheet's rows and columns do not apply before its cells)
+        raise _Stop("the workbook declares a document type (DTD), which no workbook needs "
+                    f"(line {parser.CurrentLineNumber}, column {parser.CurrentColumnNumber + 1} "
+                    "of the part's XML)", hint="save the file again from the spreadsheet as .xlsx")
 
     parser.StartDoctypeDeclHandler = refuse
     parser.EntityDeclHandler = refuse
