@@ -55,9 +55,7 @@ _ORIGIN = {"schedule": "schedule", "table": "rule pack", "computed": "computed",
 def _finalize(value: object) -> object:
     """Every ``{{ value }}`` of a template: control characters become U+FFFD before escaping,
     bidirectional controls are shown as ``\\u202e`` (:func:`airgate.escaping.invisible`)."""
-    if isinstance(value, Markup):
-        return Markup(invisible(value))  # ASCII text in place of a character: still safe
-    if isinstance(value, str):
+    if isinstance(value, str) and not isinstance(value, Markup):
         return invisible(_CONTROL.sub("\ufffd", value))
     return value
 
