@@ -216,3 +216,19 @@ def test_docs_csv_example_checks(tmp_path, capsys):
     assert main(["check", str(tmp_path / "annex.zones.csv")]) == 0
     out = capsys.readouterr().out
     assert "RTU-7" in out and "170" in out  # Vbz = 5 × 10 + 0.12 × 1000 cfm
+
+
+def test_natural_ventilation_columns(tmp_path):
+    # a natural system: no intake; the openings per zone (ANSI/ASHRAE 62.1-2019 Section 6.4)
+    zones = ("System,Zone,Space type,Area [ft2],Height [ft],Openable area [ft2],"
+             "Opening arrangement,Depth [ft],Permanently open,Conditioned\n"
+             "NV-1,118,office-space,900,10,36,corner,40,false,false\n")
+    path = _write(tmp_path, zones)
+    (tmp_path / "annex.systems.csv").write_text("System,Kind\nNV-1,natural\n", encoding="utf-8")
+    system = read_any(path).model.systems[0]
+    nv = system.zones[0].natural_ventilation
+    assert system.kind == "natural" and system.outdoor_air is None
+    assert nv.openable_area == pytest.approx(36 * 0.3048**2)  # 1 ft = 0.3048 m (NIST SP 811)
+    assert nv.depth == pytest.approx(40 * 0.3048)
+    assert nv.arrangement == "corner"
+    assert nv.permanently_open is False and nv.conditioned is False

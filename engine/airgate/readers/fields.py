@@ -105,6 +105,11 @@ ZONE_COLUMNS = (
     Column("activity", "Activity", "text"),
     Column("co2_generation", "CO2 generation", "number"),
     Column("air_class", "Air class", "integer"),
+    Column("natural_ventilation.openable_area", "Openable area", "quantity", "area"),
+    Column("natural_ventilation.arrangement", "Opening arrangement", "text"),
+    Column("natural_ventilation.depth", "Depth", "quantity", "length"),
+    Column("natural_ventilation.permanently_open", "Permanently open", "bool"),
+    Column("natural_ventilation.conditioned", "Conditioned", "bool"),
     Column("notes", "Notes", "text"),
 )
 
