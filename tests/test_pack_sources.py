@@ -145,7 +145,7 @@ def test_ev_table_rows_equal_the_new_york_state_code_up_to_0_55():
 def _count_from_file(pack_id: str) -> dict[str, int]:
     """Values by provenance counted from the pack file itself (YAML, not the loader): each row's
     Rp, Ra, density (where not null) and air class, each Ez, the natural ventilation fraction and
-    depth ratios, each number of an Ev method."""
+    depth ratios, each number of an Ev method, each exhaust row's rates and air class."""
     import yaml
 
     from airgate.readers.rulepack import builtin_rules_dir
@@ -173,6 +173,13 @@ def _count_from_file(pack_id: str) -> dict[str, int]:
                                       "vav_minimum_primary_ratio"))
         if n:
             counts[method["provenance"]] = counts.get(method["provenance"], 0) + n
+    ex = data.get("exhaust", {"rows": []})
+    for row in ex["rows"]:
+        own = row.get("provenance", ex.get("provenance", data["provenance"]))
+        for name in ("rate", "continuous", "intermittent", "air_class"):
+            if name in row:
+                p = row.get("value_provenance", {}).get(name, own)
+                counts[p] = counts.get(p, 0) + 1
     return counts
 
 

@@ -2,7 +2,7 @@
 
 Both packs are compared as resolved documents (a layered pack merged with its base), entry by
 entry: occupancy categories, air-distribution configurations, ventilation-efficiency methods,
-checks, requirements, equations and options, plus the pack's own fields. An entry is added,
+checks, requirements, equations, options and exhaust rows, plus the pack's own fields. An entry is added,
 removed (with the reason where the newer pack retired it) or changed, field by field (nested
 fields as dotted paths, e.g. ``when.throw_velocity.le``). Values are compared as written in each
 pack; when the packs' unit systems differ the result says so.
@@ -27,6 +27,7 @@ SECTIONS: tuple[tuple[str, str, tuple[str, ...], str], ...] = (
     ("requirements", "requirements", ("requirements",), "list"),
     ("equations", "equations", ("equations",), "map"),
     ("options", "options", ("options",), "map"),
+    ("exhaust", "exhaust rows", ("exhaust", "rows"), "list"),
 )
 #: the pack's own fields compared (and the table settings)
 PACK_FIELDS = ("title", "document", "edition", "units", "jurisdiction", "effective", "provenance",

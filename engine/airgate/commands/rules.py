@@ -145,8 +145,9 @@ def _validate(args) -> int:
         counts = (("occupancy categories", pack.categories),
                   ("air distribution rows", pack.configurations),
                   ("Ev methods", pack.methods), ("checks", pack.checks),
-                  ("requirements", pack.requirements))
-        parts = [f"{what} {len(items)}" for what, items in counts]
+                  ("requirements", pack.requirements), ("exhaust rows", pack.exhaust))
+        parts = [f"{what} {len(items)}" for what, items in counts
+                 if items or what != "exhaust rows"]
         extra = f"; extends {' → '.join(doc.lineage[1:])}" if doc.extends else ""
         if declared:
             extra += f"; {len(combos)} option combinations"

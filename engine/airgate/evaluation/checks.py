@@ -33,6 +33,8 @@ KNOWN_CHECKS: dict[str, str] = {
     "natural-depth": "natural ventilation: zone depth ≤ the pack's multiple of the ceiling height",
     "natural-mechanical-system": "natural ventilation: a mechanical system also, unless the "
                                  "openings are permanently open or the zone is unconditioned",
+    "zone-exhaust": "a zone's scheduled exhaust airflow ≥ the minimum exhaust rate of its row",
+    "exhaust-fan-airflow": "an exhaust fan's scheduled airflow ≥ the exhaust its zones schedule",
 }
 
 #: check id → what it verifies, for limits the schedule declares (never listed in a pack)

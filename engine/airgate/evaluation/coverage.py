@@ -75,6 +75,10 @@ def _system_checks(system: System, result: SystemResult) -> Iterator[tuple]:
 def _zone_checks(system: System, z: ZoneResult, result: SystemResult,
                  pack: RulePack) -> Iterator[tuple]:
     zt = z.trail
+    if not kind_of(system).supplies:  # an exhaust fan's zone: its exhaust only
+        yield ("zone-exhaust", ("exhaust", "airflow"), _amount(_value(zt, "Ve"), "airflow"),
+               _amount(_value(zt, "Ve_design"), "airflow"))
+        return
     yield "space-without-rates", (), None, None
     if kind_of(system).intake:
         yield "air-distribution-assumed", (), None, None
@@ -82,6 +86,9 @@ def _zone_checks(system: System, z: ZoneResult, result: SystemResult,
     yield from kind_of(system).zone_checks(system, z, result, pack)
     if system.is_recirculating:
         yield "air-class-recirculation", (), None, None
+    if "Ve" in zt:
+        yield ("zone-exhaust", ("exhaust", "airflow"), _amount(_value(zt, "Ve"), "airflow"),
+               _amount(_value(zt, "Ve_design"), "airflow"))
     limits = [z.dilution] if z.dilution is not None else []
     limits += list(z.contaminants.values())
     if any("C_limit" in t for t in limits):

@@ -16,6 +16,7 @@ from airgate.evaluation import (
     contaminants,
     coverage,
     dilution,
+    exhaust,
     systems,
     waivers,
 )
@@ -38,9 +39,10 @@ def _location(loaded: LoadedSchedule, path: tuple) -> Location:
 
 
 def _bind_all(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
-              run: RequirementRun | None = None) -> list[dict[str | None, list[ZoneContext]]]:
+              run: RequirementRun | None = None) -> list[dict[str | None, list]]:
     """Every zone bound to the pack at every design condition of its system: per system, the
-    zone contexts of each condition (one unnamed condition for a system without any)."""
+    zone contexts of each condition (one unnamed condition for a system without any); a zone
+    of an exhaust fan is bound to its exhaust row only (:class:`exhaust.FanZone`)."""
     errors: list[AirgateError] = []
     out = []
     for i, stated in enumerate(loaded.model.systems):
@@ -50,20 +52,33 @@ def _bind_all(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
             ctxs = by_condition.setdefault(cond, [])
             for j, zone in enumerate(system.zones):
                 path = ("systems", i, "zones", j)
+                if not kind_of(system).supplies:  # an exhaust fan's zone: its exhaust row only
+                    row = bind.collect(errors, exhaust.bind_fan_zone, loaded, pack, zone, path)
+                    if row is not None:
+                        ctxs.append(exhaust.FanZone(zone, path, _location(loaded, path), row,
+                                                    f"{system.id}/{zone.id}", system.id))
+                    continue
                 cat = bind.collect(errors, bind.category, loaded, pack, zone, path)
                 key = (cond,) if isinstance(stated.zones[j].air_distribution, dict) else ()
                 ez = bind.collect(errors, bind.air_distribution, loaded, pack, zone, path, key)
                 bind.collect(errors, bind.dilution_refs, loaded, zone, path, tables)
+                exhaust_row = bind.collect(errors, exhaust.bind, loaded, pack, zone, path)
                 if cat is not None and ez is not None and run is not None:  # pack requirements
                     cat, ez = bind.collect(errors, run.adjust, i, j, cat, ez, zone) or (None, None)
                 if cat is not None and ez is not None:
                     fields = {name: _location(loaded, conditions.keyed(path + (name,), cond))
                               for name in ("area", "occupants", "bedrooms")
                               if getattr(zone, name) is not None}
+                    if zone.exhaust is not None:
+                        fields.update({f"exhaust.{name}": _location(loaded, path + ("exhaust", name))
+                                       for name in ("airflow", "fixtures")
+                                       if getattr(zone.exhaust, name) is not None})
                     ctxs.append(ZoneContext(zone=zone, path=path, location=_location(loaded, path),
                                             category=cat, ez=ez, subject=f"{system.id}/{zone.id}",
                                             system_id=system.id, fields=fields,
-                                            mechanical=kind_of(system).intake))
+                                            mechanical=kind_of(system).intake,
+
+                                            exhaust=exhaust_row))
         out.append(by_condition)
         errors.extend(kind_of(stated).check_inputs(loaded, pack, i))
     raise_all(_unique(errors))
@@ -111,6 +126,22 @@ def _evaluate_system(loaded: LoadedSchedule, pack: RulePack, emitter: Emitter, i
     return system, ctxs, result, where
 
 
+def _exhaust_fan(loaded: LoadedSchedule, pack: RulePack, emitter: Emitter, i: int,
+                 ctxs: list) -> SystemResult:
+    """An exhaust fan: each zone's exhaust against its row, the fan against its zones (no
+    intake, air classes, dilution or requirements: it supplies nothing)."""
+    system = loaded.model.systems[i]
+    kind = kind_of(system)
+    locate = lambda path: _location(loaded, path)  # noqa: E731
+    zones = [exhaust.fan_zone(ctx, emitter, locate) for ctx in ctxs]
+    result = SystemResult(id=system.id, name=system.name, kind=system.kind,
+                          location=_location(loaded, ("systems", i)), trail=Trail(), zones=zones,
+                          supplies=False)
+    kind.evaluate(system, ctxs, zones, result, pack, emitter,
+                  locate(("systems", i, kind.located_field)), locate)
+    return result
+
+
 def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
              extra_waivers: Sequence[waivers.WaiverEntry] = (),
              as_of: dt.date | None = None) -> Report:
@@ -132,6 +163,11 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
     results = []
     governed = []  # each system at its governing condition
     for i, by_condition in enumerate(bound):
+        stated = loaded.model.systems[i]
+        if not kind_of(stated).supplies:  # an exhaust fan: its zones' exhaust and its airflow
+            results.append(_exhaust_fan(loaded, pack, emitter, i, by_condition[None]))
+            governed.append(stated)
+            continue
         system, ctxs, result, where = _evaluate_system(loaded, pack, emitter, i, by_condition)
         governed.append(system)
         systems.air_classes(system, ctxs, emitter, where)

@@ -35,6 +35,9 @@ class ZoneResult:
     series: object | None = None
     #: declared contaminants: id → trail (same zones as the CO2 analysis)
     contaminants: dict[str, Trail] = field(default_factory=dict)
+    #: the exhaust table row the zone's exhaust was checked against (its trail holds Ve and
+    #: Ve_design); None: the zone states no exhaust
+    exhaust: str | None = None
 
 
 @dataclass
@@ -62,6 +65,9 @@ class SystemResult:
     method: str | None = None
     critical_zone: str | None = None
     verdict: str = "pass"
+    #: the system supplies air (False: an exhaust fan, whose trail holds ΣVe, ΣVe_design and
+    #: V_fan instead of an intake, and whose zones' trails hold only their exhaust)
+    supplies: bool = True
     #: what the evaluation of this system wants a reader to know (the report lists them)
     notes: list[str] = field(default_factory=list)
     #: the governing design condition (None: the system lists no conditions); the trail, zones,

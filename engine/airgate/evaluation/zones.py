@@ -4,12 +4,13 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
+from airgate.evaluation import exhaust
 from airgate.evaluation.bind import EzChoice
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.findings import Location
 from airgate.evaluation.report import ZoneResult
 from airgate.evaluation.trail import Trail, unit_factor
-from airgate.models.rules import OccupancyCategory, RulePack
+from airgate.models.rules import ExhaustRow, OccupancyCategory, RulePack
 from airgate.models.schedule import Zone
 from airgate.procedures import dwelling, zone_rates
 
@@ -29,6 +30,8 @@ class ZoneContext:
     fields: dict[str, Location] = field(default_factory=dict)
     #: the zone's system has a mechanical intake (its air distribution matters)
     mechanical: bool = True
+    #: the row of the pack's exhaust table the zone's exhaust names (None: no exhaust stated)
+    exhaust: ExhaustRow | None = None
 
     def where(self, name: str) -> str:
         return str(self.fields.get(name, self.location))
@@ -103,5 +106,10 @@ def evaluate_zone(ctx: ZoneContext, pack: RulePack, emitter: Emitter) -> ZoneRes
                      f"'{cat.id}' ({cat.label}) has no outdoor air rates in the table; "
                      "no outdoor air is required by this procedure",
                      ctx.location, system=ctx.system_id, zone=zone.id)
+    if ctx.exhaust is not None:
+        exhaust.evaluate(trail, zone, ctx.exhaust, emitter, subject=ctx.subject,
+                         system_id=ctx.system_id, airflow_at=ctx.fields["exhaust.airflow"],
+                         fixtures_at=ctx.fields.get("exhaust.fixtures", ctx.location))
     return ZoneResult(id=zone.id, name=zone.name, space=cat.id, space_label=cat.label,
-                      location=ctx.location, trail=trail, air_class=ctx.air_class)
+                      location=ctx.location, trail=trail, air_class=ctx.air_class,
+                      exhaust=ctx.exhaust.id if ctx.exhaust is not None else None)

@@ -116,6 +116,55 @@ class OccupancyCategory:
         return f"{self.source.cite()}, row '{self.label}' ({self.provenance_of(name)})"
 
 
+#: what an exhaust row's rate is counted per, and how a report names one such unit
+EXHAUST_PER: dict[str, str] = {
+    "floor-area": "floor area",
+    "water-closet-or-urinal": "water closet or urinal",
+    "showerhead": "showerhead",
+    "kitchen": "kitchen",
+}
+
+
+@dataclass(frozen=True)
+class ExhaustRow:
+    """One row of the minimum exhaust rates table.
+
+    Per floor area the rates are [L/s per m²]; per counted unit (water closet or urinal,
+    showerhead, dwelling kitchen) they are [L/s per unit]. A row gives one ``rate`` or both a
+    ``continuous`` and an ``intermittent`` rate.
+    """
+
+    id: str
+    label: str
+    per: str  #: a key of :data:`EXHAUST_PER`
+    rates: dict[str, float]  #: ``rate`` or ``continuous`` and ``intermittent`` [internal units]
+    air_class: int  #: air class 1–4 [–]
+    provenance: str
+    source: Source
+    notes: str = ""
+    #: the row as printed in the pack, in the pack's own units
+    printed: dict[str, float] = field(default_factory=dict)
+    #: provenance of single values where it differs from the row's
+    value_provenance: dict[str, str] = field(default_factory=dict)
+
+    @property
+    def per_area(self) -> bool:
+        return self.per == "floor-area"
+
+    def rate_for(self, operation: str) -> tuple[str, float]:
+        """The column that applies to ``operation`` (continuous | intermittent) and its rate."""
+        if "rate" in self.rates:
+            return "rate", self.rates["rate"]
+        return operation, self.rates[operation]
+
+    def provenance_of(self, name: str) -> str:
+        return self.value_provenance.get(name, self.provenance)
+
+    def cite(self, name: str) -> str:
+        """Citation of one value of the row (``rate``, ``continuous``, ``intermittent``)."""
+        return f"{self.source.cite()}, row '{self.label}' ({self.provenance_of(name)})"
+
+
 @dataclass(frozen=True)
 class Bound:
     """A condition range on a stated quantity, in internal units."""
@@ -260,6 +309,8 @@ class RulePack:
     chosen: dict[str, str] = field(default_factory=dict)
     #: the natural ventilation procedure's limits; None: the pack has none
     natural_ventilation: NaturalVentilationRules | None = None
+    #: minimum exhaust rates by row id (empty: the pack has no exhaust table)
+    exhaust: dict[str, ExhaustRow] = field(default_factory=dict)
 
     def cite(self, key: str) -> str:
         """Citation of an equation key, with its provenance (e.g. for a trail step)."""
@@ -289,7 +340,7 @@ class RulePack:
         """How many of the pack's table values are ``published``, ``derived``, ``from memory`` …
 
         Counted: each occupancy row's Rp, Ra, default density (where the table gives one) and
-        air class; each Ez; the natural ventilation fraction and depth ratios; each number of an Ev method (slope, intercept, breakpoint, the value
+        air class; each Ez; the natural ventilation fraction and depth ratios; each exhaust row's rates and air class; each number of an Ev method (slope, intercept, breakpoint, the value
         above it, the VAV ratio; each table row's Ev and the value above the last row); each
         numeric parameter of a requirement. Equations are forms, not values, and not counted.
         """
@@ -309,6 +360,9 @@ class RulePack:
             nv = self.natural_ventilation
             for v in (nv.openable_fraction, *nv.depth_ratio.values()):
                 add(v.provenance)
+        for e in self.exhaust.values():
+            for name in (*e.rates, "air_class"):
+                add(e.provenance_of(name))
         for m in self.methods.values():
             if isinstance(m, SimplifiedEv):
                 add(m.provenance, 4 + (m.vav_minimum_primary_ratio is not None))

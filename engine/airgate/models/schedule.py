@@ -74,8 +74,9 @@ People = Annotated[
 ]
 
 
-def cross_field(field: str, message: str) -> PydanticCustomError:
-    """A rule between fields, reported at ``field`` (the reader appends it to the location)."""
+def cross_field(field: str | tuple, message: str) -> PydanticCustomError:
+    """A rule between fields, reported at ``field`` (the reader appends it to the location; a
+    tuple is a path below the model, such as ``("zones", 0, "area")``)."""
     return PydanticCustomError("cross_field", message, {"field": field})
 
 
@@ -207,7 +208,7 @@ DistributionModes = Annotated[list[DistributionRef | StatedDistribution], Field(
 _VPZ = ("Zone primary airflow Vpz at the design condition analysed (a mapping: per design "
         "condition). [cfm or L/s]")
 _VOT = ("Scheduled minimum outdoor-air intake Vot (a mapping: per design condition); required, "
-        "except on a natural system, which has none. [cfm or L/s]")
+        "except on a natural system or an exhaust fan, which have none. [cfm or L/s]")
 _VPS = ("System primary airflow Vps at the condition analysed; default ΣVpz (a mapping: per "
         "design condition). [cfm or L/s]")
 
@@ -230,12 +231,35 @@ class NaturalVentilation(_Model):
                           "the mechanical system Section 6.4 otherwise also asks for. [–]")
 
 
+def _fixture_count(value: Any) -> Any:
+    if isinstance(value, bool):
+        raise ValueError("expected a number of fixtures, got a true/false value")
+    if isinstance(value, float) and value.is_integer():
+        return int(value)
+    return value
+
+
+class ZoneExhaust(_Model):
+    """Air exhausted from a zone, checked against a row of the pack's minimum exhaust rates."""
+
+    category: str = Field(min_length=1, description="A row id of the pack's exhaust table. [–]")
+    airflow: Q("airflow", "Scheduled exhaust airflow from the zone. [cfm or L/s]")
+    fixtures: Annotated[int, BeforeValidator(_fixture_count)] | None = Field(
+        None, ge=0, le=100000, description="What a per-unit row counts: water closets and "
+                                           "urinals, showerheads, or kitchens. [–]")
+    operation: Literal["continuous", "intermittent"] = Field(
+        "continuous", description="The exhaust runs continuously, or only while the space is "
+                                  "in use (the row's intermittent rate). [–]")
+
+
 class Zone(_Model):
     """One ventilation zone (a space or group of spaces with one set of requirements)."""
 
     id: Id
     name: str | None = Field(None, description="Room or zone name. [–]")
-    space: str = Field(min_length=1, description="Occupancy category id of the rule pack. [–]")
+    space: str | None = Field(
+        None, min_length=1, description="Occupancy category id of the rule pack; required in "
+                                        "a supply system, absent under an exhaust fan. [–]")
     area: Q("area", "Zone floor area Az (net occupiable). [ft² or m²]", positive=True)
     occupants: by_condition(People) | None = Field(
         None, description="Zone population Pz; default: table density × Az; a mapping "
@@ -281,6 +305,9 @@ class Zone(_Model):
         None, description="Air class, where it differs from the category's. [–]")
     natural_ventilation: NaturalVentilation | None = Field(
         None, description="Openings to the outdoors (zones of a natural system). [–]")
+    exhaust: ZoneExhaust | None = Field(
+        None, description="Exhaust from the zone, checked against the pack's minimum exhaust "
+                          "rates. [–]")
     notes: str | None = Field(None, description="Free text. [–]")
 
     @model_validator(mode="after")
@@ -310,6 +337,9 @@ class SystemKindRules:
     one_zone: bool  #: serves exactly one zone
     recirculates: bool  #: recirculates return air unless the schedule says otherwise
     intake: bool = True  #: has a scheduled mechanical outdoor-air intake (``outdoor_air``)
+    #: supplies air to its zones (needs outdoor_air, and space on every zone); False:
+    #: an exhaust fan, whose zones state only what is exhausted from them
+    supplies: bool = True
 
 
 #: the system kinds a schedule may name; each has its evaluation registered under the same name
@@ -319,6 +349,7 @@ SYSTEM_KINDS: dict[str, SystemKindRules] = {
     "outdoor-air": SystemKindRules(one_zone=False, recirculates=False),
     "multiple-zone": SystemKindRules(one_zone=False, recirculates=True),
     "natural": SystemKindRules(one_zone=False, recirculates=False, intake=False),
+    "exhaust": SystemKindRules(one_zone=False, recirculates=False, intake=False, supplies=False),
 }
 
 
@@ -328,14 +359,16 @@ class System(_Model):
     id: Id
     name: str | None = Field(None, description="Air system name. [–]")
     kind: Literal[tuple(SYSTEM_KINDS)] = Field(
-        description="single-zone, 100 % outdoor-air, multiple-zone recirculating, or natural "
-                    "(openings to the outdoors, no intake). [–]")
+        description="single-zone, 100 % outdoor-air, multiple-zone recirculating, natural "
+                    "(openings to the outdoors, no intake), or an exhaust fan. [–]")
     conditions: list[Id] | None = Field(
         None, min_length=1, max_length=MAX_CONDITIONS,
         description="Design conditions the system operates at (ids of your choosing, e.g. "
                     "[cooling, heating]); fields given as a mapping from these ids take one "
                     "value per condition, and each condition is evaluated. [–]")
     outdoor_air: by_condition(Q("airflow", _VOT)) | None = Field(None, description=_VOT)
+    airflow: Q("airflow", "Scheduled airflow of an exhaust fan, checked against the exhaust "
+                          "its zones schedule. [cfm or L/s]") | None = None
     supply_airflow: by_condition(Q("airflow", _VPS, positive=True)) | None = Field(
         None, description=_VPS)
     population: by_condition(People) | None = Field(
@@ -353,7 +386,8 @@ class System(_Model):
 
     @model_validator(mode="after")
     def _kind_fits(self) -> System:
-        if SYSTEM_KINDS[self.kind].one_zone and len(self.zones) != 1:
+        rules = SYSTEM_KINDS[self.kind]
+        if rules.one_zone and len(self.zones) != 1:
             raise cross_field("kind", f"a single-zone system serves exactly one zone, this one "
                                       f"lists {len(self.zones)}; use kind: multiple-zone")
         if SYSTEM_KINDS[self.kind].intake and self.outdoor_air is None:
@@ -364,6 +398,13 @@ class System(_Model):
             raise cross_field("outdoor_air", f"a {self.kind} system has no mechanical intake: "
                                              "remove outdoor_air, or describe the mechanical "
                                              "system as a system of its own")
+        if not rules.supplies:
+            return self
+        # a supplied zone's occupancy category (an exhaust fan's zones have none)
+        for j, zone in enumerate(self.zones):
+            if zone.space is None:
+                raise cross_field(("zones", j, "space"), "missing required field 'space' "
+                                  "(occupancy category id of the rule pack)")
         return self
 
     @field_validator("conditions")

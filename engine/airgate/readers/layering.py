@@ -8,7 +8,7 @@ lies inside one of these roots.
 A layered pack (``extends: BASE``) restates none of its base's tables. It amends them under
 ``amend:`` with explicit operations — ``change`` (set fields of an entry), ``add`` (new entries)
 and ``retire`` (remove an entry, with a reason) — on occupancy categories, air-distribution
-configurations, ventilation-efficiency methods, checks and requirements. Adding an id the base
+configurations, ventilation-efficiency methods, checks, requirements and exhaust rows. Adding an id the base
 already has, or changing or retiring one it lacks, is an error; so is a cycle of ``extends``.
 
 The merge works on documents: the base's data is copied, the amendments applied, and the result
@@ -43,6 +43,7 @@ COLLECTIONS: dict[str, tuple[Path_, str, str]] = {
                                "ventilation efficiency method"),
     "checks": (("checks",), "list", "check"),
     "requirements": (("requirements",), "list", "requirement"),
+    "exhaust": (("exhaust", "rows"), "list", "exhaust row"),
 }
 #: tables whose default entry an amendment may set (amend.TABLE.default)
 DEFAULTS = ("air_distribution", "ventilation_efficiency")
@@ -51,7 +52,7 @@ SCALARS = ("pack", "id", "title", "document", "edition", "jurisdiction", "effect
            "provenance")
 #: what a layered pack must not restate at the top level
 TABLES = ("occupancy", "air_distribution", "ventilation_efficiency", "checks", "requirements",
-          "equations", "options")
+          "equations", "options", "exhaust")
 #: tables a layered pack inherits unchanged and has no amend operation for
 INHERITED = ("natural_ventilation",)
 
@@ -288,7 +289,8 @@ def materialize(data: dict[str, Any]) -> None:
     must keep citing the base's document, so its defaults are made explicit before the merge.
     """
     document, edition = data["document"], data["edition"]
-    for table, rows in (("occupancy", "categories"), ("air_distribution", "configurations")):
+    for table, rows in (("occupancy", "categories"), ("air_distribution", "configurations"),
+                        ("exhaust", "rows")):
         if table in data:
             _fill(data[table].get("source"), document, edition)
             for row in data[table].get(rows, []):

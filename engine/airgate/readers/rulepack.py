@@ -25,6 +25,7 @@ from airgate.models.rules import (
     CitedValue,
     DetailedEv,
     Equation,
+    ExhaustRow,
     NaturalVentilationRules,
     OccupancyCategory,
     Retired,
@@ -234,6 +235,35 @@ def _categories(doc: Any, data: dict[str, Any], system: str) -> dict[str, Occupa
     return out
 
 
+_EXHAUST_UNITS = {"IP": {"per_area": "cfm/ft2", "per_unit": "cfm"},
+                  "SI": {"per_area": "L/s/m2", "per_unit": "L/s"}}
+
+
+def _exhaust(doc: Any, data: dict[str, Any], system: str) -> dict[str, ExhaustRow]:
+    """The minimum exhaust rates table in internal units: per area [L/s per m²], per counted
+    unit [L/s]."""
+    ex = data.get("exhaust")
+    if ex is None:
+        return {}
+    for key, unit in ex["units"].items():
+        if unit != _EXHAUST_UNITS[system][key]:
+            raise doc.error(RulePackError, f"'{unit}' does not belong to a pack in {system} units",
+                            ("exhaust", "units", key), allowed=[_EXHAUST_UNITS[system][key]])
+    table_source = _source(ex["source"], data)
+    _unique(doc, ex["rows"], ("exhaust", "rows"))
+    out = {}
+    for row in ex["rows"]:
+        kind = "airflow_per_area" if row["per"] == "floor-area" else "airflow"
+        printed = {k: row[k] for k in ("rate", "continuous", "intermittent") if k in row}
+        out[row["id"]] = ExhaustRow(
+            id=row["id"], label=row["label"], per=row["per"],
+            rates={k: units.to_internal(v, kind, system) for k, v in printed.items()},
+            air_class=row["air_class"], provenance=row.get("provenance", ex["provenance"]),
+            source=_source(row.get("source"), data, table_source), notes=row.get("notes", ""),
+            printed=printed, value_provenance=dict(row.get("value_provenance", {})))
+    return out
+
+
 _BOUND_KINDS = {
     "temperature_difference": "temperature_difference",
     "jet_velocity": "velocity",
@@ -390,4 +420,5 @@ def build(doc: Any) -> RulePack:
         requirements=build_requirements(doc, data, system, categories, configurations, checks,
                                         retired),
         natural_ventilation=_natural(doc, data),
+        exhaust=_exhaust(doc, data, system),
     )

@@ -187,7 +187,8 @@ def _error_path(doc: Document, err: dict[str, Any]) -> Path_:
         return _clean_path(doc.data, loc[:-1]) + (loc[-1],)
     path = _clean_path(doc.data, loc)
     if err["type"] == "cross_field":
-        path += (err["ctx"]["field"],)
+        field = err["ctx"]["field"]
+        path += tuple(field) if isinstance(field, (tuple, list)) else (field,)
     return path
 
 

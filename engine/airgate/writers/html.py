@@ -222,8 +222,11 @@ class _View:
                        if not (c.required is None and c.provided is None and c.status == "pass")
                        and (not self.summarised or c.status != "pass")),
             "quiet": self.quiet_note(cases, quiet),
-            "zone_head": [f"{sym} {units.label(k, self.u)}".strip() for sym, k in self.columns(s)],
-            "zone_rows": (self.zone_row(s, z) for z in s.zones),
+            "zone_head": [f"{sym} {units.label(k, self.u)}".strip() for sym, k in self.columns(s)]
+            if s.supplies else [],
+            "zone_rows": (self.zone_row(s, z) for z in s.zones) if s.supplies else (),
+            "fan": "" if s.supplies else shared.fan_line(s, self.u),
+            "exhaust": shared.exhaust_rows(s, self.u),
             "co2": [f for f in (self.co2(s, z) for z in shown_zones) if f is not None],
             "trails": self.trails(s, shown_zones),
             "trails_left_out": (f"{left_out:,} of the zones above are listed without their "

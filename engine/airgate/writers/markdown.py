@@ -48,8 +48,10 @@ def _verdict(v: str) -> str:
     return "**FAIL**" if v == "fail" else "pass"
 
 
-def _intake(s: SystemResult) -> tuple[Amount, Amount]:
+def _intake(s: SystemResult) -> tuple[Amount | None, Amount | None]:
     t = s.trail
+    if not s.supplies:  # an exhaust fan takes in no outdoor air (its zones: the exhaust table)
+        return None, None
     return Amount(t.value("Vot"), "airflow"), Amount(t.value("Vot_design"), "airflow")
 
 
@@ -85,6 +87,21 @@ def _conditions_table(report: Report) -> list[str]:
         out.append(f"| {md(s.id)} | {cid} | " + " | ".join(md(c) for c in cells[1:-1])
                    + f" | {_verdict(cells[-1])} |")
     return out + ["", md(shared.GOVERNS_NOTE), ""]
+
+
+def _exhaust_table(report: Report) -> list[str]:
+    rows = [(s, r) for s in report.systems for r in shared.exhaust_rows(s, report.units)]
+    if not rows:
+        return []
+    fans = [f"- {md(s.id)}: {md(shared.fan_line(s, report.units))}" for s in report.systems
+            if not s.supplies]
+    out = ["Exhaust (minimum exhaust rates):", "", *fans, *([""] if fans else []),
+           "| zone | exhaust category | fixtures | required Ve | scheduled | margin |",
+           "|---|---|---:|---:|---:|---:|"]
+    for s, (zone, category, count, req, prov, mar) in rows:
+        out.append(f"| {md(s.id)}/{md(zone)} | {md(category)} | {count} | {md(req)} | "
+                   f"{md(prov)} | {md(mar)} |")
+    return out + [""]
 
 
 def _items_table(report: Report, items: list[Finding]) -> list[str]:
@@ -166,7 +183,8 @@ def _report(report: Report, level: str = "###") -> list[str]:
            f"{report.waived_count()} waived"
            + (f" · {report.declared_count()} declared limits missed"
               if report.declared_count() else ""), ""]
-    out += (_systems_table(report) + [""] + _conditions_table(report) + _failing(report) + _declared(report)
+    out += (_systems_table(report) + [""] + _conditions_table(report) + _exhaust_table(report)
+            + _failing(report) + _declared(report)
             + _waived(report) + _notes(report))
     return out
 

@@ -6,7 +6,7 @@ from typing import Any
 
 from airgate.escaping import lines
 from airgate.models.requirements import Selector
-from airgate.models.rules import RulePack, SimplifiedEv, TableEv
+from airgate.models.rules import EXHAUST_PER, RulePack, SimplifiedEv, TableEv
 from airgate.readers.options import is_choice
 
 
@@ -143,6 +143,20 @@ def _requirements(pack: RulePack, raw: list[dict]) -> list[str]:
     return out
 
 
+def _exhaust(pack: RulePack) -> list[str]:
+    if not pack.exhaust:
+        return []
+    area, unit = ("cfm/ft²", "cfm") if pack.units == "IP" else ("L/s·m²", "L/s")
+    first = next(iter(pack.exhaust.values())).source
+    out = ["", f"Minimum exhaust rates ({', '.join(p for p in (first.table, first.section) if p)})"]
+    for r in pack.exhaust.values():
+        per = f"{area}" if r.per_area else f"{unit} per {EXHAUST_PER[r.per]}"
+        rates = " / ".join(f"{v:g}" for v in r.printed.values())
+        cols = "" if "rate" in r.printed else " (continuous / intermittent)"
+        out.append(f"  {r.id:40} {rates} {per}{cols}  class {r.air_class}  {r.provenance}")
+    return out
+
+
 def _retired(pack: RulePack) -> list[str]:
     if not pack.retired:
         return []
@@ -185,6 +199,7 @@ def pack_summary(pack: RulePack, doc: Any = None) -> str:
     out += ["", "Checks"]
     for c in pack.checks.values():
         out.append(f"  {c.id:34} {c.severity:8} {c.title}")
+    out += _exhaust(pack)
     out += _requirements(pack, data.get("requirements", [])) + _retired(pack)
     out += ["", GOVERN, "", provenance_line(pack.value_provenance_counts())]
     return lines(out)

@@ -13,12 +13,42 @@ from airgate import formatting, units
 from airgate.evaluation.checks import DECLARED_CHECKS, what_it_verifies
 from airgate.evaluation import findings
 from airgate.evaluation.findings import DECLARED, Amount, WaiverMark
-from airgate.evaluation.report import Report
+from airgate.evaluation.report import Report, SystemResult
 from airgate.evaluation.waivers import WaiverStatus
 from airgate.models.rules import RulePack
 
 #: how each waiver state is labelled for people
 STATE_LABEL = {"applied": "applied", "expired": "EXPIRED", "unmatched": "UNMATCHED"}
+
+
+def exhaust_rows(s: SystemResult, units: str) -> list[tuple[str, str, str, str, str, str]]:
+    """The zones of ``s`` with exhaust: zone id, exhaust row id, units counted (``–`` for a
+    per-area row), required ``Ve``, scheduled ``Ve_design`` and the margin, as evaluated."""
+    out = []
+    for z in s.zones:
+        if z.exhaust is None:
+            continue
+        t = z.trail
+        req, prov = Amount(t.value("Ve"), "airflow"), Amount(t.value("Ve_design"), "airflow")
+        count = formatting.number(t.value("Ne"), "count") if "Ne" in t else "–"
+        out.append((z.id, z.exhaust, count, amount(req, units), amount(prov, units),
+                    margin(req, prov, units)))
+    return out
+
+
+def fan_line(s: SystemResult, units: str) -> str:
+    """An exhaust fan's sums as evaluated: its zones' minimum ΣVe, their scheduled ΣVe_design
+    and the fan's scheduled airflow with its margin over ΣVe_design."""
+    t = s.trail
+    need, sched = Amount(t.value("ΣVe"), "airflow"), Amount(t.value("ΣVe_design"), "airflow")
+    text = (f"zones need ΣVe {amount(need, units)} · zones scheduled ΣVe_design "
+            f"{amount(sched, units)}")
+    if "V_fan" in t:
+        fan = Amount(t.value("V_fan"), "airflow")
+        text += f" · fan {amount(fan, units)} · margin {margin(sched, fan, units)}"
+    else:
+        text += " · fan airflow not scheduled"
+    return text
 
 
 def amount(a: Amount | None, units: str) -> str:

@@ -82,6 +82,9 @@ def _system(s: SystemResult, system: str) -> list[str]:
         parts.append(f"Ev {_num(t, 'Ev', system)}" + (f" (critical zone {clean(s.critical_zone)})"
                                                if s.critical_zone else ""))
         lines.append("    " + " · ".join(parts))
+    if not s.supplies:  # an exhaust fan: its zones' exhaust only
+        lines.append(f"    exhaust: {shared.fan_line(s, system)}")
+        return lines + _exhaust_rows(s, system)
     if "Vot" not in t:
         lines.append("    no outdoor-air intake: natural ventilation through openings; openable area "
                      "and depth checked per zone (Voz for reference)")
@@ -100,6 +103,7 @@ def _system(s: SystemResult, system: str) -> list[str]:
     lines += _condition_rows(s, system)
     lines.append("")
     lines += _zone_rows(s, system)
+    lines += _exhaust_rows(s, system)
     lines += _dilution_rows(s, system)
     lines += _contaminant_rows(s, system)
     return lines
@@ -117,6 +121,15 @@ def _condition_rows(s: SystemResult, system: str) -> list[str]:
              cells[-1].upper() if cells[-1] == "fail" else cells[-1]] for governs, cells in rows]
     return ["", f"    design conditions ({len(rows)}): {clean(s.condition)} governs"] + [
         "  " + line for line in _table([head, *body], right={2, 3, 4})]
+
+
+def _exhaust_rows(s: SystemResult, system: str) -> list[str]:
+    rows = shared.exhaust_rows(s, system)
+    if not rows:
+        return []
+    head = ["zone", "exhaust category", "Ne", "required Ve", "scheduled", "margin"]
+    return (["", "    exhaust (minimum exhaust rates; Ne: fixtures counted)"]
+            + _table([head] + [[clean(c) for c in r] for r in rows], right={2, 3, 4, 5}))
 
 
 def _contaminant_rows(s: SystemResult, system: str) -> list[str]:
@@ -219,7 +232,7 @@ def render(report: Report) -> str:
     for s in report.systems:
         out += _system(s, system)
         out.append("")
-    zones = [z for s in report.systems for z in s.zones]
+    zones = [z for s in report.systems if s.supplies for z in s.zones]
     if any(z.trail["Pz"].origin != "schedule" for z in zones):
         out.append("    * Pz not stated in the schedule: default density × Az (or 0 where the "
                    "table gives no density)")

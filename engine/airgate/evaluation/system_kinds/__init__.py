@@ -9,7 +9,13 @@ never compares a kind's name itself.
 
 from __future__ import annotations
 
-from airgate.evaluation.system_kinds import multiple_zone, natural, outdoor_air, single_zone
+from airgate.evaluation.system_kinds import (
+    exhaust,
+    multiple_zone,
+    natural,
+    outdoor_air,
+    single_zone,
+)
 from airgate.evaluation.system_kinds.common import SystemKind
 
 SYSTEM_KINDS: dict[str, SystemKind] = {
@@ -17,6 +23,7 @@ SYSTEM_KINDS: dict[str, SystemKind] = {
     outdoor_air.KIND.name: outdoor_air.KIND,
     multiple_zone.KIND.name: multiple_zone.KIND,
     natural.KIND.name: natural.KIND,
+    exhaust.KIND.name: exhaust.KIND,
 }
 
 

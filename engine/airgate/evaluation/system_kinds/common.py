@@ -50,3 +50,8 @@ class SystemKind:
     #: the kind has a scheduled mechanical intake (``Vot``, ``Vot_design`` in its trail, CO2 and
     #: contaminant balances on it); False: no intake, no balance (natural ventilation)
     intake: bool = True
+    #: supplies air to its zones: False for an exhaust fan, whose zones are only exhausted (no
+    #: category, Ez, intake, dilution or requirements)
+    supplies: bool = True
+    #: the system field its findings point at when they concern the system as a whole
+    located_field: str = "outdoor_air"
