@@ -354,3 +354,20 @@ def test_what_each_kind_needs_is_a_located_input_error(tmp_path, edit, field, te
     assert out.returncode == 2 and not out.stdout  # the bad-input contract: exit 2
     assert f"{path}:" in out.stderr and f": {field}: " in out.stderr and text in out.stderr
     assert "Traceback" not in out.stderr
+
+
+def test_a_zone_exhaust_is_reported_once_whatever_the_design_conditions(evaluate):
+    # 240 ft² × 0.30 cfm/ft² = 72 cfm (kitchenettes; from memory); the exhaust does not change
+    # between the system's cooling and heating conditions, so one finding, at no condition.
+    data = schedule([{
+        "id": "AHU-1", "kind": "multiple-zone", "conditions": ["cooling", "heating"],
+        "outdoor_air": "900 cfm",
+        "zones": [{"id": "201", "space": "office-space", "area": "4000 ft2", "occupants": 20,
+                   "air_distribution": "ceiling-supply-cool",
+                   "primary_airflow": {"cooling": "2000 cfm", "heating": "1000 cfm"}},
+                  _zone("202", "240 ft2", {"category": "kitchenettes", "airflow": "50 cfm"},
+                        primary_airflow="250 cfm")]}])
+    r = evaluate(data)
+    (f,) = [f for f in r.findings if f.rule == "zone-exhaust"]
+    assert f.condition is None and f.required.value / CFM == pytest.approx(72, rel=REL)
+    assert r.zone("202")[1].verdict == "fail"

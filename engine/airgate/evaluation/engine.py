@@ -113,7 +113,13 @@ def _evaluate_system(loaded: LoadedSchedule, pack: RulePack, emitter: Emitter, i
         result = SystemResult(id=system.id, name=system.name, kind=system.kind, location=where,
                               trail=Trail(), zones=zones)
         kind_of(system).evaluate(system, ctxs, zones, result, pack, emitter, intake_at, locate)
+        # a zone's exhaust is the same at every condition: reported once, at none in particular
+        found = emitter.findings[start:]
+        held = [f for f in found if f.rule in exhaust.CONDITION_FREE]
+        emitter.findings[start:] = [f for f in found if f.rule not in exhaust.CONDITION_FREE]
         conditions.tag(emitter.findings, start, cond)
+        if not runs:
+            emitter.findings.extend(held)
         runs.append((cond, system, ctxs, result))
     k = conditions.governing([r[3] for r in runs])
     cond, system, ctxs, result = runs[k]

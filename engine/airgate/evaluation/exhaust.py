@@ -22,6 +22,10 @@ from airgate.models.rules import EXHAUST_PER, ExhaustRow, RulePack
 from airgate.models.schedule import Zone
 
 
+#: checks of a zone's exhaust, which no design condition changes (reported once per zone)
+CONDITION_FREE = frozenset({"zone-exhaust"})
+
+
 def bind(loaded: LoadedSchedule, pack: RulePack, zone: Zone, path: Path_) -> ExhaustRow | None:
     """The exhaust row a zone names (None: the zone states no exhaust).
 
