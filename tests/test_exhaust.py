@@ -335,11 +335,11 @@ def test_exhaust_fan_in_every_report_format(tmp_path):
     (lambda d: d["systems"][1]["zones"][0].update(space="office-space"),
      "systems[1].zones[0].space", "'space' describes supply air"),
     (lambda d: d["systems"][1].update(outdoor_air="100 cfm"),
-     "systems[1].outdoor_air", "'outdoor_air' describes supply air"),
+     "systems[1].outdoor_air", "a exhaust system has no mechanical intake"),
     (lambda d: d["systems"][1]["zones"][0].pop("exhaust"),
      "systems[1].zones[0].exhaust", "a zone of an exhaust fan needs exhaust"),
     (lambda d: d["systems"][0].pop("outdoor_air"),
-     "systems[0].outdoor_air", "missing required field 'outdoor_air'"),
+     "systems[0].outdoor_air", "a single-zone system needs outdoor_air"),
     (lambda d: d["systems"][0]["zones"][0].pop("space"),
      "systems[0].zones[0].space", "missing required field 'space'"),
 ])
