@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import argparse
 import datetime as dt
+import re
 import sys
 from pathlib import Path
 
@@ -22,6 +23,21 @@ from airgate.readers.importers import IMPORTERS
 
 #: the files of a folder that are checked: YAML/JSON schedules (not imports)
 SCHEDULE_SUFFIXES = IMPORTERS["schedule"].suffixes
+
+#: how airgate's own JSON reports begin (writers.json_report: the version key, then the generator)
+_REPORT_HEAD = re.compile(rb'\A\s*\{\s*"(?:report|batch)_version"\s*:\s*\d+\s*,\s*'
+                          rb'"generator"\s*:\s*"airgate ')
+
+
+def is_report(path: Path) -> bool:
+    """Whether a file in a folder is one of airgate's own JSON reports (not a schedule)."""
+    if path.suffix.lower() != ".json":
+        return False
+    try:
+        with open(path, "rb") as f:
+            return bool(_REPORT_HEAD.match(f.read(512)))
+    except OSError:
+        return False  # read (and refused, located) as a schedule
 
 
 def register(sub) -> None:
@@ -99,13 +115,21 @@ def _destinations(args: argparse.Namespace) -> list[tuple[str, str | None]]:
 
 def schedules(paths: list[str]) -> list[str]:
     """The schedule files named, folders expanded to their *.yaml, *.yml and *.json files
-    (not recursive, sorted by name); each file once, in the order given."""
+    (not recursive, sorted by name); each file once, in the order given. A folder's files that
+    are airgate's own JSON reports are skipped, each with a note on standard error."""
     out: list[str] = []
     for p in paths:
         path = Path(p)
         if path.is_dir():
-            found = sorted(str(f) for f in path.iterdir()
-                           if f.is_file() and f.suffix.lower() in SCHEDULE_SUFFIXES)
+            found = []
+            for f in sorted(path.iterdir(), key=str):
+                if not (f.is_file() and f.suffix.lower() in SCHEDULE_SUFFIXES):
+                    continue
+                if is_report(f):
+                    sys.stderr.write(f"note: skipped {terminal(str(f))}: an airgate report, "
+                                     "not a schedule\n")
+                    continue
+                found.append(str(f))
             if not found:
                 raise UsageError(f"folder {p} holds no schedule (*.yaml, *.yml, *.json)",
                                  field=("PATH",))
