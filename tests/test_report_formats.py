@@ -198,7 +198,7 @@ def test_markdown_is_sized_for_a_comment_and_lists_failing_items(capsys, monkeyp
     _, out, _ = run(capsys, monkeypatch, "check", DEMO_ARG, "--format", "markdown")
     assert len(out) < 20_000  # PR comments allow 65,536 characters (common code hosts)
     assert "| AHU-3/203 | zone-limits-ev | 365 cfm | 300 cfm | -64.8 cfm (-17.8 %) |" in out
-    assert out.index("Failing items") < out.index("notes</summary>")
+    assert out.index("Failing items") < out.index("info findings</summary>")
 
 
 def test_html_is_self_contained(capsys, monkeypatch):

@@ -46,3 +46,9 @@ def percent(fraction: float) -> str:
     if math.isinf(fraction) or math.isnan(fraction):
         return "n/a"
     return f"{fraction * 100:+.1f} %"
+
+
+def count(n: int, word: str, words: str | None = None) -> str:
+    """``1, "warning"`` → ``1 warning``; ``2, "warning"`` → ``2 warnings`` (``words`` for an
+    irregular plural)."""
+    return f"{n:,} {word if n == 1 else (words or word + 's')}"

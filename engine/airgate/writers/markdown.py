@@ -12,6 +12,7 @@ import re
 
 from airgate import __version__, units
 from airgate.escaping import invisible
+from airgate.formatting import count
 from airgate.evaluation.batch import Batch
 from airgate.evaluation.findings import DECLARED, Amount, Finding
 from airgate.evaluation.report import Report, SystemResult
@@ -166,7 +167,7 @@ def _notes(report: Report) -> list[str]:
     info = [f for f in report.code_findings if not f.waived and f.severity == "info"]
     if not info:
         return []
-    out = ["", f"<details><summary>{len(info)} notes</summary>", ""]
+    out = ["", f"<details><summary>{count(len(info), 'info finding')}</summary>", ""]
     out += [f"- {md(f.subject)} `{f.rule}` — {md(f.message)}" for f in info[:MAX_NOTES]]
     if len(info) > MAX_NOTES:
         out.append(f"- … and {len(info) - MAX_NOTES} more")
@@ -179,9 +180,9 @@ def _report(report: Report, level: str = "###") -> list[str]:
     out = [head, "",
            f"{md(report.schedule_file, line_start=True)} · rule pack {md(report.pack.id)} · {report.units} units",
            "",
-           f"{c['fail']} failing · {c['warning']} warnings · {c['info']} notes · "
+           f"{c['fail']} failing · {count(c['warning'], 'warning')} · {c['info']} info · "
            f"{report.waived_count()} waived"
-           + (f" · {report.declared_count()} declared limits missed"
+           + (f" · {count(report.declared_count(), 'declared limit')} missed"
               if report.declared_count() else ""), ""]
     out += (_systems_table(report) + [""] + _conditions_table(report) + _exhaust_table(report)
             + _failing(report) + _declared(report)
@@ -203,8 +204,8 @@ def render(batch: Batch) -> str:
     failing = sum(r.verdict == "fail" for r in batch.reports)
     out = [f"### airgate: {len(batch.reports)} schedules — {_verdict(batch.verdict)}", "",
            f"{failing} of {len(batch.reports)} schedules fail · {c['fail']} failing · "
-           f"{c['warning']} warnings · {c['info']} notes · {c['waived']} waived"
-           + (f" · {c['declared']} declared limits missed" if c["declared"] else ""), "",
+           f"{count(c['warning'], 'warning')} · {c['info']} info · {c['waived']} waived"
+           + (f" · {count(c['declared'], 'declared limit')} missed" if c["declared"] else ""), "",
            "| schedule | project | verdict | failing | warnings | waived |",
            "|---|---|---|---:|---:|---:|"]
     for r in batch.reports:

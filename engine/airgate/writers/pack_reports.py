@@ -8,6 +8,7 @@ from typing import Any
 from airgate.api.packdiff import Change, PackDiff
 from airgate.api.packtests import PackResult
 from airgate.escaping import lines
+from airgate.formatting import count
 from airgate.writers.packs import GOVERN
 
 DIFF_VERSION = 1
@@ -90,13 +91,13 @@ def tests_text(results: list[PackResult]) -> str:
         for c in r.cases:
             mark = "FAIL" if c.failures else "ok  "
             name = c.file.rsplit("/", 1)[-1]
-            out.append(f"  {mark}  {name} — {c.title} ({c.expectations} expectations)")
+            out.append(f"  {mark}  {name} — {c.title} ({count(c.expectations, 'expectation')})")
             out += [f"        {f}" for f in c.failures]
             failed += bool(c.failures)
         for p in r.problems:
             out.append(f"  FAIL  {p}")
         failed += len(r.problems)
     ok = all(r.ok for r in results)
-    out += ["", f"Result: {'PASS' if ok else 'FAIL'} — {len(results)} packs, {cases} cases, "
-                f"{expectations} expectations; {failed} failed"]
+    out += ["", f"Result: {'PASS' if ok else 'FAIL'} — {count(len(results), 'pack')}, "
+                f"{count(cases, 'case')}, {count(expectations, 'expectation')}; {failed} failed"]
     return lines(out)

@@ -6,6 +6,7 @@ import math
 import re
 
 from airgate import __version__, formatting, units
+from airgate.formatting import count
 from airgate.evaluation.findings import DECLARED, Amount
 from airgate.escaping import terminal
 from airgate.evaluation.report import Report, SystemResult
@@ -245,7 +246,7 @@ def render(report: Report) -> str:
     out.append("")
     c = report.counts()
     waived = report.waived_count()
-    out.append(f"Findings — {c['fail']} fail, {c['warning']} warning, {c['info']} info"
+    out.append(f"Findings — {c['fail']} fail, {count(c['warning'], 'warning')}, {c['info']} info"
                + (f", {waived} waived" if waived else ""))
     if not report.code_findings:
         out.append("    none")
@@ -254,8 +255,8 @@ def render(report: Report) -> str:
     out += _declared(report)
     out += _waivers(report)
     failing = sum(1 for s in report.systems if s.verdict == "fail")
-    out.append(f"Result: {report.verdict.upper()} — {failing} of {len(report.systems)} systems "
-               f"fail; {c['fail']} failing, {c['warning']} warning, {c['info']} info findings.")
+    out.append(f"Result: {report.verdict.upper()} — {failing} of "
+               f"{count(len(report.systems), 'system')} fail; {c['fail']} failing, {c['warning']} warning, {c['info']} info findings.")
     out.append("")
     out.append("Cautions")
     out += [f"  - {x}" for x in report.cautions]
