@@ -9,7 +9,7 @@ import shutil
 
 from airgate.cli import main
 
-from conftest import DEMO
+from conftest import CFM, DEMO
 
 
 def test_folder_with_its_own_json_reports_still_checks(tmp_path, capsys):
@@ -54,5 +54,36 @@ def test_markdown_names_info_findings_as_the_other_formats_do(capsys):
     """'info' in every format's counts (text, JSON, JUnit say info), never 'notes'."""
     main(["check", str(DEMO), "--format", "markdown"])
     out = capsys.readouterr().out
-    assert "0 warnings · 5 info · 0 waived" in out
-    assert "5 info findings</summary>" in out and "notes" not in out
+    n = re.search(r"0 warnings · (\d+) info · 0 waived", out).group(1)
+    assert f"{n} info findings</summary>" in out and "notes" not in out
+
+
+def test_no_averaging_note_for_a_zone_without_occupants(evaluate):
+    """ANSI/ASHRAE Standard 62.1-2019, Section 6.2.6.2 (from memory): the zone population may be
+    averaged over T; a zone with Pz = 0 has no population to average, so no note."""
+    data = _single({"space": "corridors", "occupants": 0, "profile": "brief", "height": "30 ft"})
+    r = evaluate(data)
+    assert not [f for f in r.findings if f.rule == "short-term-averaging"]
+
+
+def test_an_averaged_population_below_one_person_is_not_shown_as_zero(evaluate):
+    # Section 6.2.6.2 (from memory): Pz averaged over T. One person for 60 min of a
+    # T = 3·v/Vbz minutes window: Pz_avg = 60/T people (arithmetic, common practice).
+    data = _single({"occupants": 1, "profile": "brief", "height": "30 ft"})
+    r = evaluate(data)
+    (f,) = [f for f in r.findings if f.rule == "short-term-averaging"]
+    vbz = r.systems[0].zones[0].trail.value("Vbz") / CFM  # cfm
+    t_min = 3 * 2000 * 30 / vbz
+    assert f"averaged over T to {60 / t_min:.2g} people" in f.message
+    assert "0.0 people" not in f.message
+
+
+def _single(zone):
+    from conftest import schedule
+
+    z = {"id": "1", "space": "conference-meeting", "area": "2000 ft2", "occupants": 100,
+         "height": "10 ft", "air_distribution": "ceiling-supply-cool", **zone}
+    data = schedule([{"id": "S", "kind": "single-zone", "outdoor_air": "620 cfm",
+                      "zones": [z]}])
+    data["profiles"] = {"brief": {"weekday": {"10:00-11:00": 1.0}}}
+    return data

@@ -191,14 +191,17 @@ def _short_term(t: Trail, ctx: ZoneContext, z: ZoneResult, fractions: np.ndarray
           note="averaging time for short-term conditions (50·v/Vbz in SI, minutes)")
     best = largest_window_mean(fractions, t.value("T") / STEP_H)
     peak = float(np.max(fractions))
-    if peak > 0 and best < peak * (1 - 1e-9):
+    # a zone without occupants (Pz = 0, e.g. a corridor) has no population to average
+    if peak > 0 and z.trail.value("Pz") > 0 and best < peak * (1 - 1e-9):
         t.add("Pz_avg", best * z.trail.value("Pz"), "people", note="largest population averaged "
               "over any window of length T in the profile")
+        avg = t.value("Pz_avg")  # below one person, two significant figures (not "0.0")
+        shown = f"{avg:.1f}" if avg >= 1 else f"{avg:.2g}"
         emitter.emit("short-term-averaging", ctx.subject,
                      f"the profile's peak ({peak:.2f} × Pz) lasts less than T = "
                      f"{t.value('T') * 60:.0f} min; the population may be averaged over T to "
-                     f"{t.value('Pz_avg'):.1f} people (the design uses Pz)", ctx.location,
-                     system=ctx.system_id, zone=z.id)
+                     f"{shown} people (the design uses Pz)",
+                     ctx.location, system=ctx.system_id, zone=z.id)
 
 
 def largest_window_mean(fractions: np.ndarray, samples: float) -> float:
