@@ -87,3 +87,10 @@ def _single(zone):
                       "zones": [z]}])
     data["profiles"] = {"brief": {"weekday": {"10:00-11:00": 1.0}}}
     return data
+
+
+def test_html_names_info_findings_as_the_other_formats_do(capsys):
+    main(["check", str(DEMO), "--format", "html"])
+    out = capsys.readouterr().out
+    assert re.search(r'<li class="info"><b>\d+</b> info</li>', out)
+    assert "notes from the checks" not in out and re.search(r"\d+ info findings of the checks", out)

@@ -359,7 +359,7 @@ class _View:
         shown = info[:NOTES_LIMIT] if self.summarised else info
         more = len(info) - len(shown)
         return {"info": [self.item(f) for f in shown], "info_count": len(info),
-                "info_left_out": (f"{more:,} more notes are in the text and JSON reports."
+                "info_left_out": (f"{more:,} more info findings are in the text and JSON reports."
                                   if more else ""),
                 "report": list(self.r.notes)}
 
@@ -376,8 +376,9 @@ class _View:
             "units": r.units, "verdict": r.verdict, "caution": r.cautions[0],
             "airflow_unit": units.label("airflow", self.u),
             "tally": [{"cls": "fail", "n": c["fail"], "label": "failing"},
-                      {"cls": "warning", "n": c["warning"], "label": "warnings"},
-                      {"cls": "info", "n": c["info"], "label": "notes"},
+                      {"cls": "warning", "n": c["warning"],
+                       "label": "warning" if c["warning"] == 1 else "warnings"},
+                      {"cls": "info", "n": c["info"], "label": "info"},
                       {"cls": "waived", "n": r.waived_count(), "label": "waived"}],
             "failing_systems": sum(s.verdict == "fail" for s in r.systems),
             "n_systems": len(r.systems),
