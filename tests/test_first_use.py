@@ -94,3 +94,19 @@ def test_html_names_info_findings_as_the_other_formats_do(capsys):
     out = capsys.readouterr().out
     assert re.search(r'<li class="info"><b>\d+</b> info</li>', out)
     assert "notes from the checks" not in out and re.search(r"\d+ info findings of the checks", out)
+
+
+def test_the_contaminant_table_names_the_declared_amount(tmp_path, capsys):
+    """The steady-state column is headed by the contaminant's declared unit per m³ (the demo
+    declares its aerosol in quanta), and an unusual unit is shown as declared."""
+    import yaml
+
+    main(["check", str(DEMO)])
+    out = capsys.readouterr().out
+    assert "C_ss quanta/m³" in out and "C ss /m³" not in out
+    data = yaml.safe_load(DEMO.read_text(encoding="utf-8"))
+    data["contaminants"][0]["unit"] = "µg PM2.5"
+    path = tmp_path / "pm.yaml"
+    path.write_text(yaml.safe_dump(data, allow_unicode=True), encoding="utf-8")
+    main(["check", str(path)])
+    assert "C_ss µg PM2.5/m³" in capsys.readouterr().out

@@ -205,7 +205,8 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
     return Report(schedule_file=loaded.file, project_name=loaded.model.project.name, units=units,
                   pack=pack, systems=results, findings=findings, notes=notes, cautions=cautions,
                   waivers=statuses, waiver_date=waiver_date, cases=cases,
-                  requirements=run.outcomes)
+                  requirements=run.outcomes,
+                  contaminant_units={c.id: c.unit for c in loaded.model.contaminants})
 
 
 def _verdicts(results: list[SystemResult], findings) -> None:

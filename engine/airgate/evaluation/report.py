@@ -95,6 +95,8 @@ class Report:
     cases: list[CheckCase] = field(default_factory=list)
     #: every requirement of the pack on every subject it applies to (airgate.evaluation.requirements)
     requirements: list = field(default_factory=list)
+    #: the amount each declared contaminant is counted in (its ``unit``), by contaminant id
+    contaminant_units: dict[str, str] = field(default_factory=dict)
 
     @property
     def verdict(self) -> str:

@@ -68,7 +68,7 @@ def _zone_rows(s: SystemResult, system: str) -> list[str]:
     return _table(rows, right=set(range(2, len(head) - 1)))
 
 
-def _system(s: SystemResult, system: str) -> list[str]:
+def _system(s: SystemResult, system: str, amounts: dict[str, str]) -> list[str]:
     t = s.trail
     title = f"{clean(s.id)}" + (f" “{clean(s.name)}”" if s.name else "")
     kind = s.kind + (f", {s.method} Ev" if s.method else "")
@@ -106,7 +106,7 @@ def _system(s: SystemResult, system: str) -> list[str]:
     lines += _zone_rows(s, system)
     lines += _exhaust_rows(s, system)
     lines += _dilution_rows(s, system)
-    lines += _contaminant_rows(s, system)
+    lines += _contaminant_rows(s, system, amounts)
     return lines
 
 
@@ -133,12 +133,12 @@ def _exhaust_rows(s: SystemResult, system: str) -> list[str]:
             + _table([head] + [[clean(c) for c in r] for r in rows], right={2, 3, 4, 5}))
 
 
-def _contaminant_rows(s: SystemResult, system: str) -> list[str]:
+def _contaminant_rows(s: SystemResult, system: str, amounts: dict[str, str]) -> list[str]:
     ids = sorted({cid for z in s.zones for cid in z.contaminants})
     out: list[str] = []
     q = units.label("airflow", system)
     for cid in ids:
-        head = ["zone", "C ss /m³", f"clean air {q}", "per person", "eq. ACH", "peak", "24h avg"]
+        head = ["zone", f"C_ss {clean(amounts.get(cid, 'amount'))}/m³", f"clean air {q}", "per person", "eq. ACH", "peak", "24h avg"]
         rows = [head]
         for z in s.zones:
             t = z.contaminants.get(cid)
@@ -231,7 +231,7 @@ def render(report: Report) -> str:
     out += [f"note     : {n}" for n in report.notes]
     out.append("")
     for s in report.systems:
-        out += _system(s, system)
+        out += _system(s, system, report.contaminant_units)
         out.append("")
     zones = [z for s in report.systems if s.supplies for z in s.zones]
     if any(z.trail["Pz"].origin != "schedule" for z in zones):
