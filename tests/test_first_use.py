@@ -110,3 +110,13 @@ def test_the_contaminant_table_names_the_declared_amount(tmp_path, capsys):
     path.write_text(yaml.safe_dump(data, allow_unicode=True), encoding="utf-8")
     main(["check", str(path)])
     assert "C_ss µg PM2.5/m³" in capsys.readouterr().out
+
+
+def test_ez_has_one_precision_in_text_and_explain(capsys):
+    """Ez is shown to three decimals everywhere (explain and the JSON trail already do)."""
+    main(["check", str(DEMO)])
+    row = next(line for line in capsys.readouterr().out.splitlines()
+               if line.strip().startswith("203 "))
+    main(["explain", str(DEMO), "--zone", "203"])
+    assert "Ez            = 1.000" in capsys.readouterr().out
+    assert " 1.000 " in row and " 1.00 " not in row

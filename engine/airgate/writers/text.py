@@ -55,7 +55,7 @@ def _zone_rows(s: SystemResult, system: str) -> list[str]:
         t = z.trail
         pz = _num(t, "Pz", system) + ("*" if t["Pz"].origin != "schedule" else "")
         row = [clean(z.id), clean(z.space), _num(t, "Az", system), pz, _num(t, "Vbz", system),
-               f"{t.value('Ez'):.2f}", _num(t, "Voz", system)]
+               formatting.number(t.value('Ez'), "fraction"), _num(t, "Voz", system)]
         if multi:
             crit = "◂" if s.critical_zone == z.id else ""
             row += [_num(t, "Vpz", system), _num(t, "Zpz", system), _num(t, "Evz", system) + crit]
