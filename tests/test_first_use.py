@@ -120,3 +120,17 @@ def test_ez_has_one_precision_in_text_and_explain(capsys):
     main(["explain", str(DEMO), "--zone", "203"])
     assert "Ez            = 1.000" in capsys.readouterr().out
     assert " 1.000 " in row and " 1.00 " not in row
+
+
+def test_a_passing_junit_case_says_it_passed_before_what_the_check_looks_for(capsys):
+    """A check titled by what it finds reads as found unless the case says it passed first."""
+    import xml.etree.ElementTree as ET
+
+    main(["check", str(DEMO), "--format", "junit"])
+    root = ET.fromstring(capsys.readouterr().out)
+    cases = {c.get("name"): c for c in root.iter("testcase")}
+    out = cases["RTU-1/101 space-without-rates"].find("system-out").text.splitlines()
+    assert out[:2] == ["RTU-1/101 — space-without-rates: pass, nothing found",
+                       "check: The occupancy category requires no outdoor air in the table"]
+    failing = cases["AHU-3 system-intake"].find("failure").text.splitlines()
+    assert failing[0] == "AHU-3 — system-intake: fail"

@@ -53,7 +53,11 @@ def _failing(case: CheckCase, fail_on: tuple[str, ...]) -> bool:
 
 def _finding_lines(report: Report, case: CheckCase) -> list[str]:
     u = report.units
-    out = [f"{case.subject} — {case.rule}: {shared.check_title(report, case.rule)}"]
+    # the outcome first, then what the check looks for: a check titled by what it finds
+    # ("The occupancy category requires no outdoor air") must not read as found when it passed
+    outcome = "pass, nothing found" if case.status == "pass" else case.status
+    out = [f"{case.subject} — {case.rule}: {outcome}",
+           f"check: {shared.check_title(report, case.rule)}"]
     for f in case.findings:
         out.append(f"{f.severity}{' (waived)' if f.waived else ''}: {f.message}")
         if f.waiver is not None:
