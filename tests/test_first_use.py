@@ -134,3 +134,30 @@ def test_a_passing_junit_case_says_it_passed_before_what_the_check_looks_for(cap
                        "check: The occupancy category requires no outdoor air in the table"]
     failing = cases["AHU-3 system-intake"].find("failure").text.splitlines()
     assert failing[0] == "AHU-3 — system-intake: fail"
+
+
+def _bad(tmp_path, capsys, old, new):
+    text = DEMO.read_text(encoding="utf-8")
+    assert old in text
+    path = tmp_path / "bad.yaml"
+    path.write_text(text.replace(old, new, 1), encoding="utf-8")
+    assert main(["check", str(path)]) == 2
+    return capsys.readouterr().err
+
+
+def test_an_upper_case_unit_is_asked_about(tmp_path, capsys):
+    err = _bad(tmp_path, capsys, "outdoor_air: 950 cfm", "outdoor_air: 2600 CFM")
+    assert "unknown unit 'CFM' in '2600 CFM'; did you mean 'cfm'?" in err
+    assert "fix: write the unit in lower case: '2600 cfm'" in err
+
+
+def test_a_per_area_rate_where_an_airflow_is_expected_is_named_and_fixed(tmp_path, capsys):
+    err = _bad(tmp_path, capsys, "outdoor_air: 950 cfm", "outdoor_air: 0.12 cfm/ft2")
+    assert "'0.12 cfm/ft2' is an airflow per area (cfm/ft²); expected an airflow" in err
+    assert "[length]" not in err and "fix: give an airflow such as '850 cfm'" in err
+
+
+def test_a_negative_area_has_a_fix_line(tmp_path, capsys):
+    err = _bad(tmp_path, capsys, "area: 1500 ft2", "area: -1500 ft2")
+    assert "must be greater than zero, got '-1500 ft2'" in err
+    assert "fix: give a positive value, such as '5000 ft2'" in err

@@ -201,7 +201,12 @@ def _people_hint(q: pint.Quantity, kind: str, raw: str) -> str:
 
 
 class QuantityError(ValueError):
-    """A quantity that could not be read; the message says what is expected."""
+    """A quantity that could not be read; the message says what is expected, ``hint`` (where
+    there is one) what to write instead."""
+
+    def __init__(self, message: str, hint: str | None = None) -> None:
+        super().__init__(message)
+        self.hint = hint
 
 
 #: The longest quantity text read; anything longer is refused before it reaches pint.
@@ -310,19 +315,55 @@ def parse(raw: object, kind: str, system: str) -> float:
         q = ureg.Quantity(value, unit)
     except pint.UndefinedUnitError as exc:
         names = ", ".join(repr(n) for n in exc.unit_names) or repr(unit)
-        raise QuantityError(f"unknown unit {names} in {raw!r}; expected a quantity such as "
-                            f"{k.example}") from exc
+        close = _lower_case(unit, kind)
+        raise QuantityError(
+            f"unknown unit {names} in {raw!r}"
+            + (f"; did you mean '{close}'?" if close else
+               f"; expected a quantity such as {k.example}"),
+            hint=(f"write the unit in lower case: '{match_number(raw)} {close}'" if close
+                  else f"give {_article(kind)} such as {k.example}")) from exc
     except Exception as exc:  # pint raises several kinds for malformed unit expressions
         raise QuantityError(f"cannot read the unit of {raw!r}; expected a quantity such as "
                             f"{k.example}") from exc
     try:
         converted = float(q.to(k.internal).magnitude)
     except pint.DimensionalityError as exc:
+        found = _kind_of(q)
+        what = (f"is {_article(found)} ({q.units:~P})" if found
+                else f"has units of {q.units:~P}, which is no quantity airgate reads")
         raise QuantityError(
-            f"{raw!r} has units of {q.units:~} ({q.dimensionality}); "
-            f"expected {_article(kind)} such as {k.example}{_people_hint(q, kind, raw)}"
-        ) from exc
+            f"{raw!r} {what}; expected {_article(kind)}{_people_hint(q, kind, raw)}",
+            hint=f"give {_article(kind)} such as {k.example}") from exc
     return _finite(converted, raw, kind)
+
+
+def match_number(raw: str) -> str:
+    """The number a quantity text begins with, as written."""
+    m = _QUANTITY.match(raw.strip())
+    return m["number"] if m else raw.strip()
+
+
+def _lower_case(unit: str, kind: str) -> str | None:
+    """``unit`` in lower case when that is a unit of ``kind`` (``CFM`` → ``cfm``), else None."""
+    low = unit.lower()
+    if low == unit:
+        return None
+    try:
+        registry().Quantity(1.0, low).to(KINDS[kind].internal)
+    except Exception:  # noqa: BLE001 - not a unit, or not of this kind: no suggestion
+        return None
+    return low
+
+
+def _kind_of(q: pint.Quantity) -> str | None:
+    """The first kind (in :data:`KINDS` order) with the dimensions of ``q``, or None."""
+    ureg = registry()
+    for name, k in KINDS.items():
+        if name in ("gas_flow", "emission", "count", "concentration"):
+            continue  # same dimensions as airflow, rate, fraction: named by the first
+        if ureg.Quantity(1.0, k.internal).dimensionality == q.dimensionality:
+            return name
+    return None
 
 
 @lru_cache(maxsize=1024)

@@ -20,14 +20,14 @@ _QUANTITY_SCHEMA = {
 def _quantity(kind: str, *, positive: bool) -> BeforeValidator:
     def validate(value: Any, info: ValidationInfo) -> float:
         system = (info.context or {}).get("units", units.IP)
-        try:
-            x = units.parse(value, kind, system)
-        except units.QuantityError as exc:
-            raise ValueError(str(exc)) from None
+        x = units.parse(value, kind, system)  # a QuantityError carries its hint
+        example = units.KINDS[kind].example
         if positive and x <= 0:
-            raise ValueError(f"must be greater than zero, got {value!r}")
+            raise units.QuantityError(f"must be greater than zero, got {value!r}",
+                                      hint=f"give a positive value, such as {example}")
         if x < 0:
-            raise ValueError(f"must not be negative, got {value!r}")
+            raise units.QuantityError(f"must not be negative, got {value!r}",
+                                      hint=f"give zero or a positive value, such as {example}")
         return x
 
     return BeforeValidator(validate)

@@ -178,7 +178,7 @@ def _describe(err: dict[str, Any], path: Path_) -> tuple[str, list[str], str | N
     if "input" in err and kind.endswith(_SHOW_INPUT):
         msg += f", got {_shown(err['input'])}"
     hint = _FIELD_HINTS.get(str(path[-1])) if path and kind.endswith("_type") else None
-    return msg, [], hint
+    return msg, [], getattr(ctx.get("error"), "hint", None) or hint
 
 
 def _error_path(doc: Document, err: dict[str, Any]) -> Path_:
