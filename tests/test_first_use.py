@@ -161,3 +161,19 @@ def test_a_negative_area_has_a_fix_line(tmp_path, capsys):
     err = _bad(tmp_path, capsys, "area: 1500 ft2", "area: -1500 ft2")
     assert "must be greater than zero, got '-1500 ft2'" in err
     assert "fix: give a positive value, such as '5000 ft2'" in err
+
+
+def test_rules_validate_names_a_wrong_kind_of_value_in_a_packs_words(tmp_path, capsys):
+    """A list where a mapping belongs: the pack writer's words and a fix, not the schema's."""
+    import yaml
+
+    from airgate.readers.packschema import builtin_rules_dir
+
+    data = yaml.safe_load((builtin_rules_dir() / "ashrae-62.2-2019.yaml").read_text("utf-8"))
+    data["equations"] = ["Qtot = 0.03·Afloor + 7.5·(Nbr + 1)"]
+    path = tmp_path / "ashrae-62.2-2019.yaml"
+    path.write_text(yaml.safe_dump(data, allow_unicode=True), encoding="utf-8")
+    assert main(["rules", "validate", str(path)]) == 2
+    err = capsys.readouterr().err
+    assert "equations: expected a mapping, got a list" in err
+    assert "fix: write it as 'key: value' lines" in err and "of type" not in err

@@ -81,6 +81,32 @@ def _numeral(doc: Any, path: tuple) -> str:
     return text if text[:1].isdigit() or text[:1] in "+-." and text[1:2].isdigit() else ""
 
 
+#: a JSON Schema type as a pack writer reads it, and how to write it in YAML
+_TYPES = {"object": ("a mapping", "write it as 'key: value' lines indented under the field"),
+          "array": ("a list", "write it as a list, one '- ' item per line"),
+          "string": ("text", "write it as text (in quotes if it looks like a number)"),
+          "number": ("a number", "write a plain number, without units"),
+          "integer": ("a whole number", "write a whole number"),
+          "boolean": ("true or false", "write true or false"),
+          "null": ("nothing (null)", "leave the value empty")}
+
+
+def _type_message(wanted: Any, instance: Any) -> tuple[str, str | None]:
+    """'expected a mapping, got 3' and how to write it, for a JSON Schema ``type`` error."""
+    names = [wanted] if isinstance(wanted, str) else list(wanted)
+    words = [_TYPES.get(n, (n, None)) for n in names]
+    if isinstance(instance, bool) or instance is None:
+        got = json.dumps(instance)
+    elif isinstance(instance, dict):
+        got = "a mapping"
+    elif isinstance(instance, list):
+        got = "a list"
+    else:
+        got = excerpt(instance) if len(repr(instance)) > EXCERPT else repr(instance)
+    return (f"expected {' or '.join(w for w, _ in words)}, got {got}",
+            words[0][1] if len(words) == 1 else None)
+
+
 def validate(doc: Any, name: str = "rule-pack", error_cls: type = RulePackError) -> None:
     """Check ``doc.data`` against a published schema; raise on the most relevant error.
 
@@ -120,6 +146,9 @@ def validate(doc: Any, name: str = "rule-pack", error_cls: type = RulePackError)
             allowed = known
     elif error.validator == "enum":
         allowed = [json.dumps(v) for v in error.validator_value]
+    elif error.validator == "type":
+        message, hint = _type_message(error.validator_value, error.instance)
+        raise doc.error(error_cls, message, path, hint=hint)
     elif error.validator == "required" and isinstance(error.instance, dict):
         missing = [k for k in error.validator_value if k not in error.instance]
         if missing:
