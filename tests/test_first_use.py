@@ -177,3 +177,11 @@ def test_rules_validate_names_a_wrong_kind_of_value_in_a_packs_words(tmp_path, c
     err = capsys.readouterr().err
     assert "equations: expected a mapping, got a list" in err
     assert "fix: write it as 'key: value' lines" in err and "of type" not in err
+
+
+def test_explain_says_a_system_id_given_as_a_zone_is_a_system(capsys):
+    assert main(["explain", str(DEMO), "--zone", "AHU-3"]) == 2
+    err = capsys.readouterr().err
+    assert "'AHU-3' is a system, not a zone" in err and "fix: use --system AHU-3" in err
+    assert main(["explain", str(DEMO), "--system", "203"]) == 2
+    assert "fix: use --zone 203" in capsys.readouterr().err

@@ -25,10 +25,16 @@ def pick(report, zone_id: str | None, system_id: str | None):
     if zone_id is not None:
         found = report.zone(zone_id)
         if found is None:
+            if report.system(zone_id) is not None:
+                raise UsageError(f"'{zone_id}' is a system, not a zone", field=("--zone",),
+                                 hint=f"use --system {zone_id}")
             raise unknown("zone", zone_id, [z.id for s in report.systems for z in s.zones])
         return found[0], [found[1]]
     system = report.system(system_id)
     if system is None:
+        if report.zone(system_id) is not None:
+            raise UsageError(f"'{system_id}' is a zone, not a system", field=("--system",),
+                             hint=f"use --zone {system_id}")
         raise unknown("system", system_id, [s.id for s in report.systems])
     return system, system.zones
 
