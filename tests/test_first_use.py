@@ -185,3 +185,16 @@ def test_explain_says_a_system_id_given_as_a_zone_is_a_system(capsys):
     assert "'AHU-3' is a system, not a zone" in err and "fix: use --system AHU-3" in err
     assert main(["explain", str(DEMO), "--system", "203"]) == 2
     assert "fix: use --zone 203" in capsys.readouterr().err
+
+
+def test_a_short_single_zone_intake_says_how_far_to_raise_it(tmp_path, capsys):
+    """ANSI/ASHRAE Standard 62.1-2019, Section 6.2.3 (from memory): a single-zone system's
+    Vot = Voz. RTU-1 of the demo: Voz = (Rp·Pz + Ra·Az)/Ez = (5·120 + 0.06·2400)/0.8 = 930 cfm
+    (Table 6-1 legislative chambers Rp 5 cfm/person, Ra 0.06 cfm/ft², Table 6-4 Ez 0.8)."""
+    text = DEMO.read_text(encoding="utf-8").replace("outdoor_air: 950 cfm", "outdoor_air: 900 cfm", 1)
+    path = tmp_path / "short.yaml"
+    path.write_text(text, encoding="utf-8")
+    main(["check", str(path)])
+    out = capsys.readouterr().out
+    assert ("outdoor-air intake: 900 cfm provided, 930 cfm required (short by 30.0 cfm); "
+            "raise the intake to at least 930 cfm") in out

@@ -5,6 +5,10 @@ Each kind's own procedure is in :mod:`airgate.evaluation.system_kinds`.
 
 from __future__ import annotations
 
+import math
+
+from airgate import formatting
+
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.findings import Location
 from airgate.evaluation.report import SystemResult
@@ -15,7 +19,11 @@ from airgate.models.schedule import System
 
 def intake(trail: Trail, system: System, result: SystemResult, emitter: Emitter,
             where: Location, advice: str = "") -> None:
-    """``Vot_design`` (the scheduled intake) in the trail, compared with the required ``Vot``."""
+    """``Vot_design`` (the scheduled intake) in the trail, compared with the required ``Vot``;
+    a short intake says how far to raise it (``advice`` replaces that where a kind says more)."""
+    vot = trail.value("Vot")
+    if not advice and math.isfinite(vot):
+        advice = f"raise the intake to at least {formatting.amount(vot, 'airflow', emitter.units)}"
     trail.add("Vot_design", system.outdoor_air, "airflow", origin="schedule",
               note="scheduled minimum outdoor-air intake", source=str(where))
     emitter.compare("system-intake", system.id, "outdoor-air intake", trail.value("Vot"),
