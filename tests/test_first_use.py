@@ -198,3 +198,43 @@ def test_a_short_single_zone_intake_says_how_far_to_raise_it(tmp_path, capsys):
     out = capsys.readouterr().out
     assert ("outdoor-air intake: 900 cfm provided, 930 cfm required (short by 30.0 cfm); "
             "raise the intake to at least 930 cfm") in out
+
+
+def test_reports_state_the_gate_when_it_fails_a_passing_verdict(tmp_path, capsys):
+    """--fail-on warning with a stale waiver: the verdict passes, the exit status is 1, and
+    every report says the gate failed (text, Markdown, JSON; JUnit fails the waiver's case)."""
+    import jsonschema
+    import yaml
+
+    from airgate.readers.packschema import schema
+
+    data = yaml.safe_load(DEMO.read_text(encoding="utf-8"))
+    data["systems"] = data["systems"][:2]  # the two passing systems
+    path = tmp_path / "pass.yaml"
+    path.write_text(yaml.safe_dump(data), encoding="utf-8")
+    waivers = tmp_path / "waivers.yaml"
+    waivers.write_text(yaml.safe_dump({"waivers": [{
+        "rule": "system-intake", "subject": "RTU-1", "reason": "invented for the test",
+        "approved_by": "demo reviewer (fictional)", "expires": "2030-01-01"}]}), encoding="utf-8")
+    args = ["check", str(path), "--waivers", str(waivers), "--fail-on", "warning"]
+    outs = {f: tmp_path / f"r.{f}" for f in ("text", "markdown", "json", "junit")}
+    assert main(args + [x for f, o in outs.items() for x in ("--format", f"{f}:{o}")]) == 1
+    gate = "Gate (--fail-on fail,warning): FAIL, the outcome the exit status gives"
+    text = outs["text"].read_text(encoding="utf-8")
+    assert "Result: PASS" in text and gate in text
+    assert f"**{gate}**" in outs["markdown"].read_text(encoding="utf-8")
+    doc = json.loads(outs["json"].read_text(encoding="utf-8"))
+    assert doc["verdict"] == "pass" and doc["gate"] == {"fail_on": ["fail", "warning"],
+                                                        "outcome": "fail"}
+    jsonschema.validate(doc, schema("report"))
+    assert 'failures="1"' in outs["junit"].read_text(encoding="utf-8")
+    # without --fail-on beyond fail, the verdict is the gate's outcome: no gate line
+    assert main(["check", str(path), "--format", "json"]) == 0
+    assert "gate" not in json.loads(capsys.readouterr().out)
+    # a run of several: the run's summary says it too
+    assert main(["check", str(path), str(DEMO), "--waivers", str(waivers), "--fail-on",
+                 "warning", "--format", "json"]) == 1
+    assert json.loads(capsys.readouterr().out)["gate"]["outcome"] == "fail"
+    assert main(["check", str(path), str(path.with_name("pass.yaml")), str(DEMO),
+                 "--fail-on", "warning"]) == 1
+    assert "Gate (--fail-on fail,warning): FAIL" in capsys.readouterr().out.split("Run summary")[1]

@@ -70,6 +70,18 @@ class Batch:
             return True
         return self.fails_on("warning") and bool(c["warning"] or self.stale_waivers())
 
+    @property
+    def gate(self) -> str:
+        """``fail`` when the run fails the gate (:meth:`gate_fails`: the exit status 1 unless
+        --exit-zero), else ``pass``."""
+        return "fail" if self.gate_fails() else "pass"
+
+    @property
+    def gate_beyond_verdict(self) -> bool:
+        """Whether ``--fail-on`` names more than ``fail``, so that the gate can fail a run whose
+        verdict passes (reports then state the gate's outcome beside the verdict)."""
+        return self.fail_on != ("fail",)
+
     def cautions(self) -> list[str]:
         """The safety caution, then every pack caution of the run once, in order."""
         out = [SAFETY_CAUTION]

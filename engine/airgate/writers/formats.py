@@ -49,16 +49,16 @@ def _json(batch: Batch, series_step: int = 0) -> Body:
     from airgate.writers import json_report
 
     if batch.single:
-        return json_report.chunks(batch.reports[0], series_step)
+        return json_report.chunks(batch.reports[0], series_step, json_report.gate(batch))
     return json_report.batch_chunks(batch, series_step)
 
 
 def _text(batch: Batch, series_step: int = 0) -> str:
-    from airgate.writers import text
+    from airgate.writers import shared, text
     from airgate.writers.text import clean
 
     if batch.single:
-        return text.render(batch.reports[0])
+        return text.render(batch.reports[0], gate=shared.gate_line(batch))
     n = len(batch.reports)
     parts = []
     for i, r in enumerate(batch.reports, 1):
@@ -89,7 +89,9 @@ def _text_summary(batch: Batch) -> str:
                 f"fail; {c['fail']} failing, {c['warning']} warning, {c['info']} info, "
                 f"{c['waived']} waived findings"
                 + (f"; {c['declared']} declared limits missed (not a verdict)"
-                   if c["declared"] else "") + ".", "", "Cautions"]
+                   if c["declared"] else "") + "."]
+    gate = shared.gate_line(batch)
+    out += ([gate] if gate else []) + ["", "Cautions"]
     out += [f"  - {x}" for x in batch.cautions()[:1]]
     return "\n".join(out) + "\n"
 

@@ -149,7 +149,16 @@ def to_dict(report: Report, series_step: int = 0) -> dict[str, Any]:
     return _report(report, series_step, lazy=False)
 
 
-def _report(report: Report, series_step: int, lazy: bool) -> dict[str, Any]:
+def gate(batch) -> dict[str, Any] | None:
+    """The gate of the run when ``--fail-on`` names more than ``fail`` (else the verdict is the
+    gate's outcome): the levels and the outcome the exit status gives."""
+    if not batch.gate_beyond_verdict:
+        return None
+    return {"fail_on": list(batch.fail_on), "outcome": batch.gate}
+
+
+def _report(report: Report, series_step: int, lazy: bool,
+            gated: dict[str, Any] | None = None) -> dict[str, Any]:
     """The report; ``lazy``: systems, zones and findings are made while they are written
     (output.Lazy), so memory holds one zone at a time, not the whole portfolio."""
     system = report.units
@@ -159,6 +168,7 @@ def _report(report: Report, series_step: int, lazy: bool) -> dict[str, Any]:
         "report_version": REPORT_VERSION,
         "generator": f"airgate {__version__}",
         "verdict": report.verdict,
+        **({"gate": gated} if gated else {}),
         "schedule": {"file": report.schedule_file, "project": report.project_name,
                      "units": system},
         "rules": {"id": pack.id, "title": pack.title, "document": pack.document,
@@ -175,9 +185,11 @@ def _report(report: Report, series_step: int, lazy: bool) -> dict[str, Any]:
     })
 
 
-def chunks(report: Report, series_step: int = 0) -> Iterator[str]:
-    """:func:`render` piece by piece, each zone's data made as it is written."""
-    return json_chunks(_report(report, series_step, lazy=True))
+def chunks(report: Report, series_step: int = 0, gated: dict[str, Any] | None = None
+           ) -> Iterator[str]:
+    """:func:`render` piece by piece, each zone's data made as it is written; ``gated``: the
+    run's :func:`gate`, where there is one."""
+    return json_chunks(_report(report, series_step, lazy=True, gated=gated))
 
 
 def render(report: Report, series_step: int = 0) -> str:
@@ -204,6 +216,7 @@ def _batch_dict(batch, series_step: int, lazy: bool = False) -> dict[str, Any]:
         "batch_version": BATCH_VERSION,
         "generator": f"airgate {__version__}",
         "verdict": batch.verdict,
+        **({"gate": gate(batch)} if gate(batch) else {}),
         "summary": {"schedules": len(batch.reports),
                     "failing_schedules": sum(r.verdict == "fail" for r in batch.reports),
                     **batch.counts()},

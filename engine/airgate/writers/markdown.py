@@ -174,7 +174,7 @@ def _notes(report: Report) -> list[str]:
     return out + ["", "</details>"]
 
 
-def _report(report: Report, level: str = "###") -> list[str]:
+def _report(report: Report, level: str = "###", gate: str | None = None) -> list[str]:
     c = report.counts()
     head = (f"{level} airgate: {md(report.project_name)} — {_verdict(report.verdict)}")
     out = [head, "",
@@ -184,6 +184,8 @@ def _report(report: Report, level: str = "###") -> list[str]:
            f"{report.waived_count()} waived"
            + (f" · {count(report.declared_count(), 'declared limit')} missed"
               if report.declared_count() else ""), ""]
+    if gate:
+        out += [f"**{md(gate)}**", ""]
     out += (_systems_table(report) + [""] + _conditions_table(report) + _exhaust_table(report)
             + _failing(report) + _declared(report)
             + _waived(report) + _notes(report))
@@ -199,13 +201,14 @@ def render(batch: Batch) -> str:
     """The Markdown comment for the run."""
     if batch.single:
         r = batch.reports[0]
-        return "\n".join(_report(r) + _cautions(r.cautions)) + "\n"
+        return "\n".join(_report(r, gate=shared.gate_line(batch)) + _cautions(r.cautions)) + "\n"
     c = batch.counts()
     failing = sum(r.verdict == "fail" for r in batch.reports)
     out = [f"### airgate: {len(batch.reports)} schedules — {_verdict(batch.verdict)}", "",
            f"{failing} of {len(batch.reports)} schedules fail · {c['fail']} failing · "
            f"{count(c['warning'], 'warning')} · {c['info']} info · {c['waived']} waived"
            + (f" · {count(c['declared'], 'declared limit')} missed" if c["declared"] else ""), "",
+           *([f"**{md(shared.gate_line(batch))}**", ""] if shared.gate_line(batch) else []),
            "| schedule | project | verdict | failing | warnings | waived |",
            "|---|---|---|---:|---:|---:|"]
     for r in batch.reports:

@@ -179,3 +179,12 @@ def condition_rows(s, units: str) -> list[tuple[bool, list[str]]]:
 
 def _bare(a: Amount | None, system: str) -> str:
     return "–" if a is None else formatting.number(units.to_display(a.value, a.kind, system), a.kind)
+
+
+def gate_line(batch) -> str | None:
+    """``Gate (--fail-on fail,warning): FAIL, the exit status of the run`` when ``--fail-on``
+    names more than ``fail`` (else the verdict is the gate's outcome), or None."""
+    if not batch.gate_beyond_verdict:
+        return None
+    return (f"Gate (--fail-on {batch.fail_on_label}): {batch.gate.upper()}, the outcome the "
+            "exit status gives")

@@ -208,7 +208,7 @@ def _waivers(report: Report) -> list[str]:
     return out + [""]
 
 
-def render(report: Report) -> str:
+def render(report: Report, gate: str | None = None) -> str:
     system = report.units
     pack = report.pack
     out = [
@@ -257,6 +257,8 @@ def render(report: Report) -> str:
     failing = sum(1 for s in report.systems if s.verdict == "fail")
     out.append(f"Result: {report.verdict.upper()} — {failing} of "
                f"{count(len(report.systems), 'system')} fail; {c['fail']} failing, {c['warning']} warning, {c['info']} info findings.")
+    if gate:
+        out.append(gate)
     out.append("")
     out.append("Cautions")
     out += [f"  - {x}" for x in report.cautions]
