@@ -238,3 +238,34 @@ def test_reports_state_the_gate_when_it_fails_a_passing_verdict(tmp_path, capsys
     assert main(["check", str(path), str(path.with_name("pass.yaml")), str(DEMO),
                  "--fail-on", "warning"]) == 1
     assert "Gate (--fail-on fail,warning): FAIL" in capsys.readouterr().out.split("Run summary")[1]
+
+
+def test_plot_draws_the_rise_to_steady_state_where_a_zone_has_no_profile(tmp_path, capsys):
+    """Well-mixed zone from the outdoor level at design occupancy (common practice, the CMFR
+    transient): C(t) = C_ss + (C_out − C_ss)·exp(−Q·t/V), Q in m³/h, V in m³."""
+    import math
+
+    import pytest
+    import yaml
+
+    pytest.importorskip("matplotlib")
+    from airgate.api.core import check
+
+    data = yaml.safe_load(DEMO.read_text(encoding="utf-8"))
+    for z in data["systems"][1]["zones"]:
+        z.pop("profile", None)
+    path = tmp_path / "noprofile.yaml"
+    path.write_text(yaml.safe_dump(data), encoding="utf-8")
+    out = tmp_path / "rise.svg"
+    assert main(["plot", str(path), "--system", "DOAS-1", "-o", str(out)]) == 0
+    assert "rise to steady state at design occupancy" in out.read_text(encoding="utf-8")
+    z = check(str(path)).systems[1].zones[0]
+    assert z.series is None and z.rise is not None
+    d = z.dilution
+    c_out, c_ss = d.value("C_out"), d.value("C_ss")
+    q_m3h = d.value("Q_oa") * 3.6  # L/s → m³/h (3600 s/h ÷ 1000 L/m³)
+    i = 60  # one hour, minute samples
+    expected = c_ss + (c_out - c_ss) * math.exp(-q_m3h * 1.0 / d.value("V"))
+    assert z.rise.times[i] == pytest.approx(1.0)
+    assert z.rise.ppm[i] == pytest.approx(expected, rel=1e-9)
+    assert z.rise.ppm[0] == pytest.approx(c_out) and z.rise.occupancy.min() == 1.0

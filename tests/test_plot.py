@@ -37,11 +37,12 @@ def test_unknown_extension_and_missing_series(tmp_path, capsys):
 
     data = yaml.safe_load(DEMO.read_text(encoding="utf-8"))
     for z in data["systems"][1]["zones"]:
-        z.pop("profile", None)
-    path = tmp_path / "noprofile.yaml"
+        for key in ("height", "volume"):  # no volume: no CO2 analysis to draw
+            z.pop(key, None)
+    path = tmp_path / "novolume.yaml"
     path.write_text(yaml.safe_dump(data), encoding="utf-8")
     assert main(["plot", str(path), "--system", "DOAS-1", "-o", str(tmp_path / "y.png")]) == 2
-    assert "occupancy profile" in capsys.readouterr().err
+    assert "give the zone a height or volume" in capsys.readouterr().err
     assert not (tmp_path / "y.png").exists()
 
 

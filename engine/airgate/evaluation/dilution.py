@@ -286,6 +286,20 @@ def _day_series_single(t: Trail, breaks, fractions, name: str) -> Series:
     return Series(DAY_TIMES, ppm, _sample_fractions(breaks, fractions, _RUN_TIMES), name)
 
 
+#: what a rise series is, in place of a profile's name
+RISE = "rise to steady state at design occupancy from the outdoor level (no occupancy profile)"
+
+
+def _rise_single(t: Trail) -> Series:
+    """CO2 from the outdoor level at midnight, design occupancy all day: the rise towards the
+    steady state C_ss, exact (one piece of the piecewise solution)."""
+    sol = dilution.piecewise_solution(np.array([0.0, 24.0]), np.array([PPM * t.value("G")]),
+                                      t.value("V"), t.value("Q_oa"), t.value("C_out"),
+                                      outdoor_concentration=t.value("C_out"))
+    ppm = np.asarray(dilution.evaluate_piecewise(sol, DAY_TIMES), dtype=float)
+    return Series(DAY_TIMES, ppm, np.ones_like(DAY_TIMES), RISE)
+
+
 def _limit(t: Trail, ctx: ZoneContext, schedule: Schedule, emitter: Emitter) -> None:
     """The schedule's own CO2 limit (basis ``declared``: it changes no code verdict)."""
     limit = schedule.project.co2_limit
@@ -325,6 +339,8 @@ def _single_path(system, ctxs, result, schedule, emitter, out, table) -> None:
         _dcv(t, z, emitter.units)
         _capacity(t, z, q, result.notes)
         pieces = _profile_pieces(schedule, ctx)
+        if pieces is None and t.value("Q_oa") > 0:
+            z.rise = _rise_single(t)
         if pieces is not None and t.value("Q_oa") > 0:
             z.series = _day_series_single(t, *pieces, ctx.zone.profile)
             _short_term(t, ctx, z, z.series.occupancy[:-1], emitter)

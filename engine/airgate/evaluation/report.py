@@ -33,6 +33,9 @@ class ZoneResult:
     #: CO2 dilution trail and design-day series, where the zone's volume is known
     dilution: Trail | None = None
     series: object | None = None
+    #: without an occupancy profile: CO2 rising from the outdoor level to the steady state at
+    #: design occupancy over a day (what ``airgate plot`` draws in place of the design day)
+    rise: object | None = None
     #: declared contaminants: id → trail (same zones as the CO2 analysis)
     contaminants: dict[str, Trail] = field(default_factory=dict)
     #: the exhaust table row the zone's exhaust was checked against (its trail holds Ve and

@@ -46,10 +46,16 @@ def _pyplot():
 def _zones(report: Report, system: SystemResult, zones: list[ZoneResult]) -> list[ZoneResult]:
     usable = [z for z in zones if z.series is not None]
     if not usable:
+        usable = [z for z in zones if z.rise is not None]  # no profile: the rise
+    if not usable:
         which = zones[0].id if len(zones) == 1 else system.id
         raise UsageError(f"no design-day CO2 series for {which}: give the zone a height or "
                          "volume and an occupancy profile")
     return usable
+
+
+def _series(z: ZoneResult):
+    return z.series if z.series is not None else z.rise
 
 
 def plot(report: Report, system: SystemResult, zones: list[ZoneResult], output: str,
@@ -71,8 +77,9 @@ def plot(report: Report, system: SystemResult, zones: list[ZoneResult], output: 
                                   gridspec_kw={"height_ratios": [3, 1]})
     for z in zones:
         label = text(f"{z.id} {z.name or ''}".strip())
-        ax.plot(z.series.times, z.series.ppm, label=label, linewidth=1.6)
-        occ.step(z.series.times, z.series.occupancy, where="post", linewidth=1.2, label=label)
+        series = _series(z)
+        ax.plot(series.times, series.ppm, label=label, linewidth=1.6)
+        occ.step(series.times, series.occupancy, where="post", linewidth=1.2, label=label)
     first = zones[0].dilution
     ax.axhline(first.value("C_out"), color="0.5", linestyle=":", linewidth=1,
                label=f"outdoor {first.value('C_out'):.0f} ppm")
@@ -80,8 +87,10 @@ def plot(report: Report, system: SystemResult, zones: list[ZoneResult], output: 
         ax.axhline(first.value("C_limit"), color="tab:red", linestyle="--", linewidth=1.2,
                    label=f"limit {first.value('C_limit'):.0f} ppm")
     ax.set_ylabel("CO2 [ppm]")
+    what = ("the design day" if zones[0].series is not None else
+            f"a day: {_series(zones[0]).profile}")
     ax.set_title(f"{text(report.project_name)} — {text(system.id)}: CO2 from occupants over "
-                 "the design day (well-mixed)", fontsize=10)
+                 f"{what} (well-mixed)", fontsize=10)
     ax.grid(True, alpha=0.3)
     ax.legend(fontsize=8, loc="upper left")
     occ.set_ylabel("occupancy [× Pz]")
