@@ -184,7 +184,7 @@ def test_a_run_of_several_counts_declared_limits_apart(tmp_path):
     assert doc["summary"]["fail"] == 0 and doc["summary"]["declared"] == 1
     assert check(missed, met, "--fail-on", "declared")[0] == 1
     text = check(missed, met)[1]
-    assert "1 declared limits missed" in text.split("Run summary")[1]
+    assert "1 declared limit missed" in text.split("Run summary")[1]
 
 
 def test_a_declared_limit_that_cannot_be_checked_is_noted(tmp_path):

@@ -237,7 +237,13 @@ def test_reports_state_the_gate_when_it_fails_a_passing_verdict(tmp_path, capsys
     assert json.loads(capsys.readouterr().out)["gate"]["outcome"] == "fail"
     assert main(["check", str(path), str(path.with_name("pass.yaml")), str(DEMO),
                  "--fail-on", "warning"]) == 1
-    assert "Gate (--fail-on fail,warning): FAIL" in capsys.readouterr().out.split("Run summary")[1]
+    summary = capsys.readouterr().out.split("Run summary")[1]
+    assert "Gate (--fail-on fail,warning): FAIL" in summary
+    assert "0 warnings ·" in summary and "0 warning ·" not in summary
+    assert main(["check", str(path), "--waivers", str(waivers), "--fail-on", "warning",
+                 "--format", "sarif"]) == 1
+    run = json.loads(capsys.readouterr().out)["runs"][0]
+    assert run["properties"]["gate"] == {"failOn": ["fail", "warning"], "outcome": "fail"}
 
 
 def test_plot_draws_the_rise_to_steady_state_where_a_zone_has_no_profile(tmp_path, capsys):

@@ -67,6 +67,7 @@ def _text(batch: Batch, series_step: int = 0) -> str:
 
 
 def _text_summary(batch: Batch) -> str:
+    from airgate.formatting import count
     from airgate.writers import shared
     from airgate.writers.text import clean
 
@@ -76,9 +77,9 @@ def _text_summary(batch: Batch) -> str:
     for r in batch.reports:
         c = r.counts()
         out.append(f"  {r.verdict.upper():<5} {clean(r.schedule_file):<{width}}  "
-                   f"{c['fail']} fail · {c['warning']} warning · {c['info']} info · "
+                   f"{c['fail']} fail · {count(c['warning'], 'warning')} · {c['info']} info · "
                    f"{r.waived_count()} waived"
-                   + (f" · {r.declared_count()} declared limits missed"
+                   + (f" · {count(r.declared_count(), 'declared limit')} missed"
                       if r.declared_count() else ""))
     if batch.waivers:
         out += ["", "Waivers of the waivers file"]
@@ -88,7 +89,7 @@ def _text_summary(batch: Batch) -> str:
     out += ["", f"Result: {batch.verdict.upper()} — {failing} of {len(batch.reports)} schedules "
                 f"fail; {c['fail']} failing, {c['warning']} warning, {c['info']} info, "
                 f"{c['waived']} waived findings"
-                + (f"; {c['declared']} declared limits missed (not a verdict)"
+                + (f"; {count(c['declared'], 'declared limit')} missed (not a verdict)"
                    if c["declared"] else "") + "."]
     gate = shared.gate_line(batch)
     out += ([gate] if gate else []) + ["", "Cautions"]

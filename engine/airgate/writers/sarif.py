@@ -210,6 +210,8 @@ def _log(batch: Batch, lazy: bool) -> dict[str, Any]:
                            "waiversJudgedOn": r.waiver_date}
                           for r in batch.reports],
             "verdict": batch.verdict,
+            **({"gate": {"failOn": list(batch.fail_on), "outcome": batch.gate}}
+               if batch.gate_beyond_verdict else {}),
             "cautions": [_s(c) for c in batch.cautions()]},
     })
     return obj({"$schema": SCHEMA_URI, "version": "2.1.0",
