@@ -275,3 +275,20 @@ def test_plot_draws_the_rise_to_steady_state_where_a_zone_has_no_profile(tmp_pat
     assert z.rise.times[i] == pytest.approx(1.0)
     assert z.rise.ppm[i] == pytest.approx(expected, rel=1e-9)
     assert z.rise.ppm[0] == pytest.approx(c_out) and z.rise.occupancy.min() == 1.0
+
+
+def test_a_waivers_file_reports_structure_and_unknown_checks_in_one_round(tmp_path, capsys):
+    import yaml
+
+    waivers = tmp_path / "waivers.yaml"
+    waivers.write_text(yaml.safe_dump({"waivers": [
+        {"rule": "sytem-intake", "subject": "AHU-3", "reason": "r", "approved_by": "a"},
+        {"rule": "system-intake", "subject": "AHU-3", "reason": "r", "approvedby": "a"}]},
+        sort_keys=False), encoding="utf-8")
+    two = tmp_path / "two.yaml"
+    shutil.copy(DEMO, two)
+    assert main(["check", str(DEMO), str(two), "--waivers", str(waivers)]) == 2
+    err = capsys.readouterr().err
+    assert "waivers[0].rule: unknown check id 'sytem-intake'; did you mean 'system-intake'?" in err
+    assert "waivers[1].approvedby: unknown field 'approvedby'" in err
+    assert err.count("unknown check id") == 1  # once, though two schedules were evaluated

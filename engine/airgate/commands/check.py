@@ -141,6 +141,28 @@ def schedules(paths: list[str]) -> list[str]:
     return [f for f in out if not (f in seen or seen.add(f))]
 
 
+def _waivers(paths: list[str]):
+    """The entries of the waivers files and their structural problems: the well-formed entries
+    are still evaluated, so that an unknown check id (known only with the rule pack) is
+    reported in the same round as a missing field."""
+    from airgate.evaluation.waivers import from_file
+    from airgate.readers.waivers import read_waivers_partly
+
+    entries, errors = [], []
+    for w in paths:
+        loaded, where, problems = read_waivers_partly(w)
+        errors += problems
+        if loaded is not None:
+            entries += from_file(loaded, where)
+    return entries, errors
+
+
+def _unique(errors: list[AirgateError]) -> list[AirgateError]:
+    """Each problem once (a waivers file's unknown check id is found with every schedule)."""
+    seen: set[str] = set()
+    return [e for e in errors if not (str(e.render()) in seen or seen.add(str(e.render())))]
+
+
 def _as_of(text: str | None) -> dt.date | None:
     if text is None:
         return None
@@ -195,7 +217,6 @@ def _evaluate(files: list[str], args, entries, as_of):
 
 
 def run(args: argparse.Namespace) -> int:
-    from airgate.api.core import load_waivers
     from airgate.evaluation.batch import gather
     from airgate.writers import formats, output
 
@@ -208,8 +229,14 @@ def run(args: argparse.Namespace) -> int:
     if any(document.followable(f, ScheduleError) in written for f in [*files, *args.waivers]):
         raise UsageError("a report would overwrite one of the schedules or waivers files "
                          "read", field=("--format",))
-    entries = [e for w in args.waivers for e in load_waivers(w)]
-    reports = _evaluate(files, args, entries, as_of)
+    entries, waiver_errors = _waivers(args.waivers)
+    try:
+        reports = _evaluate(files, args, entries, as_of)
+    except ErrorGroup as exc:
+        raise_all(_unique(waiver_errors + list(exc.errors)))
+    except AirgateError as exc:
+        raise_all(_unique(waiver_errors + [exc]))
+    raise_all(waiver_errors)
     batch = gather(reports, entries, args.fail_on)
     # every regular file of the run appears together or not at all; streams (standard
     # output, devices, pipes) are written in place before the files are moved into place

@@ -65,9 +65,9 @@ class WaiverStatus:
 
 
 def _entries(waivers: Sequence[Waiver], locate, file: str, origin: str,
-             base: tuple) -> list[WaiverEntry]:
+             base: tuple, where: Sequence[int] | None = None) -> list[WaiverEntry]:
     out = []
-    for i, w in enumerate(waivers):
+    for i, w in zip(range(len(waivers)) if where is None else where, waivers):
         path = base + (i,)
         out.append(WaiverEntry(waiver=w, location=Location(file, *locate(path)),
                                rule_location=Location(file, *locate(path + ("rule",))),
@@ -80,9 +80,11 @@ def from_schedule(loaded) -> list[WaiverEntry]:
     return _entries(loaded.model.waivers, loaded.doc.locate, loaded.file, SCHEDULE, ("waivers",))
 
 
-def from_file(loaded) -> list[WaiverEntry]:
-    """The waivers of a file read by :func:`airgate.readers.waivers.read_waivers`."""
-    return _entries(loaded.waivers, loaded.doc.locate, loaded.doc.file, FILE, ("waivers",))
+def from_file(loaded, where: Sequence[int] | None = None) -> list[WaiverEntry]:
+    """The waivers of a file read by :func:`airgate.readers.waivers.read_waivers`; ``where``:
+    their positions in the file's list, when only some of its entries were read."""
+    return _entries(loaded.waivers, loaded.doc.locate, loaded.doc.file, FILE, ("waivers",),
+                    where)
 
 
 def rule_errors(entries: Iterable[WaiverEntry], known: Iterable[str]) -> list[AirgateError]:

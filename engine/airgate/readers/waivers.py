@@ -12,7 +12,7 @@ from typing import Any
 
 from pydantic import ValidationError
 
-from airgate.errors import AirgateError, nearest, raise_all
+from airgate.errors import AirgateError, ErrorGroup, nearest, raise_all
 from airgate.models.waivers import Waiver, WaiversFile
 from airgate.readers.document import Document, Path_, load
 
@@ -79,3 +79,30 @@ def read_waivers(path: str | Path) -> LoadedWaivers:
         raise_all([_error(doc, e) for e in exc.errors(include_url=False)][:25])
         raise  # pragma: no cover - raise_all raised
     return LoadedWaivers(waivers=list(model.waivers), doc=doc)
+
+
+def read_waivers_partly(path: str | Path) -> tuple[LoadedWaivers | None, list[int],
+                                                     list[AirgateError]]:
+    """A waivers file's well-formed entries, their positions in its list, and every
+    structural problem, so that a caller can report the problems together with those the
+    well-formed entries have (an unknown check id is known only with the rule pack).
+    ``(None, [], errors)`` when the file is not a list of waivers at all."""
+    try:
+        loaded = read_waivers(path)
+        return loaded, list(range(len(loaded.waivers))), []
+    except ErrorGroup as exc:
+        errors = list(exc.errors)
+    except AirgateError as exc:
+        errors = [exc]
+    doc = load(path, AirgateError)
+    items = doc.data.get("waivers") if isinstance(doc.data, dict) else None
+    if not isinstance(items, list):
+        return None, [], errors
+    kept, where = [], []
+    for i, raw in enumerate(items):
+        try:
+            kept.append(Waiver.model_validate(raw))
+            where.append(i)
+        except ValidationError:
+            continue
+    return LoadedWaivers(waivers=kept, doc=doc), where, errors
