@@ -158,7 +158,15 @@ class ErrorGroup(AirgateError):
 
 
 def raise_all(errors: Sequence[AirgateError]) -> None:
-    """Raise the one error, or a group of them; do nothing when there are none."""
+    """Raise the one error, or a group of them; do nothing when there are none.
+
+    An error found more than once (the same place, field and message: an unknown space type met at
+    every design condition, say) is reported once.
+    """
+    unique: dict[tuple, AirgateError] = {}
+    for e in errors:
+        unique.setdefault((e.file, e.line, e.column, e.field, e.message), e)
+    errors = list(unique.values())
     if len(errors) == 1:
         raise errors[0]
     if errors:

@@ -81,20 +81,9 @@ def _bind_all(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
                                             exhaust=exhaust_row))
         out.append(by_condition)
         errors.extend(kind_of(stated).check_inputs(loaded, pack, i))
-    raise_all(_unique(errors))
+    raise_all(errors)
     return out
 
-
-def _unique(errors: list[AirgateError]) -> list[AirgateError]:
-    """An input error repeated at several conditions (an unknown space, say) is reported once."""
-    seen: set = set()
-    out = []
-    for e in errors:
-        key = (e.field, e.message)
-        if key not in seen:
-            seen.add(key)
-            out.append(e)
-    return out
 
 
 def _evaluate_system(loaded: LoadedSchedule, pack: RulePack, emitter: Emitter, i: int,

@@ -328,7 +328,7 @@ def validate(doc: Document) -> Schedule:
         # pydantic reports duplicate ids too, at 'systems'; keep the located ones only
         found = [e for e in _errors_from_validation(exc, doc)
                  if not (e.field == ("systems",) and "duplicate" in e.message)]
-        raise_all(_dedupe(found + errors))
+        raise_all(found + errors)
         raise doc.error(ScheduleError, f"the schedule is not valid: {exc}", ()) from None
     raise_all(errors + _condition_errors(model, doc))
     return model
@@ -381,16 +381,6 @@ def _kind_of(value: Any) -> str:
         return "a single text value"
     return f"a single value ({_shown(value)})"
 
-
-def _dedupe(errors: list[AirgateError]) -> list[AirgateError]:
-    seen = set()
-    out = []
-    for e in errors:
-        key = (e.field, e.message)
-        if key not in seen:
-            seen.add(key)
-            out.append(e)
-    return out
 
 
 def read_schedule(path: Path | str) -> LoadedSchedule:
