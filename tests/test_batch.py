@@ -58,7 +58,7 @@ def test_junit_gathers_every_schedule_in_one_document(folder, capsys):
     suites = root.findall("testsuite")
     assert len(suites) == 2
     assert int(root.get("tests")) == sum(int(s.get("tests")) for s in suites)
-    assert [s.get("failures") for s in suites] == ["2", "0"]
+    assert [s.get("failures") for s in suites] == ["3", "0"]  # the demo: AHU-3 twice, EF-1
 
 
 def test_sarif_gathers_every_schedule_in_one_run(folder, capsys):

@@ -41,11 +41,12 @@ def test_demo_golden(capsys, monkeypatch, name, args):
 
 
 def test_demo_fails_exactly_at_the_deliberate_zone(capsys, monkeypatch):
-    # The demo's one deliberately failing zone is 203 on AHU-3 (fixtures/demo, invented data).
+    # The demo's deliberately failing zones are 203 on AHU-3 and the janitor closet 121 on
+    # exhaust fan EF-1 (fixtures/demo, invented data; the schedule's header says so).
     from airgate import check
 
     report = check(DEMO)
     failing_zones = [(s.id, z.id) for s in report.systems for z in s.zones if z.verdict == "fail"]
-    assert failing_zones == [("AHU-3", "203")]
-    assert [s.verdict for s in report.systems] == ["pass", "pass", "fail"]
+    assert failing_zones == [("AHU-3", "203"), ("EF-1", "121")]
+    assert [s.verdict for s in report.systems] == ["pass", "pass", "fail", "fail"]
     assert len(report.systems) >= 3 and len(report.systems[2].zones) >= 8

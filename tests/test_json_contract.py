@@ -12,8 +12,13 @@ from airgate.cli import main
 from conftest import DEMO
 
 SYSTEM_VALUES = {"multiple-zone": {"Vot", "Vot_design", "Ps", "D", "Vou", "Vps", "Xs", "Ev"},
-                 "single-zone": {"Vot", "Vot_design"}, "outdoor-air": {"Vot", "Vot_design"}}
+                 "single-zone": {"Vot", "Vot_design"}, "outdoor-air": {"Vot", "Vot_design"},
+                 # an exhaust fan (docs/report-format.md, "Which keys appear"); the demo's EF-1
+                 # states its airflow, so V_fan is there too
+                 "exhaust": {"sum_Ve", "sum_Ve_design", "V_fan"}}
 ZONE_VALUES = {"Pz", "Az", "Rp", "Ra", "Ez", "Vbz", "Voz"}
+#: a zone of an exhaust fan: no supply figures, its exhaust row's
+EXHAUST_ZONE_VALUES = {"Az", "Re", "Ve", "Ve_design"}
 
 
 @pytest.fixture(scope="module")
@@ -47,7 +52,11 @@ def test_systems_and_zones(report):
         for z in s["zones"]:
             assert {"id", "name", "space", "verdict", "values"} <= set(z)
             need = ZONE_VALUES | ({"Vpz", "Zpz", "Evz"} if s["kind"] == "multiple-zone" else set())
+            if s["kind"] == "exhaust":
+                need = EXHAUST_ZONE_VALUES
+                assert not {"Vbz", "Voz", "Pz"} & set(z["values"])
             assert need <= set(z["values"])
+    assert "exhaust" in {s["kind"] for s in report["systems"]}  # the demo has an exhaust fan
 
 
 def test_values_have_units_a_stock_pint_registry_parses(report):
@@ -60,12 +69,12 @@ def test_values_have_units_a_stock_pint_registry_parses(report):
         for key, v in s["values"].items():
             assert set(v) == {"value", "unit"}
             q = ureg.Quantity(1, v["unit"]) if v["unit"] else None
-            if key in ("Vot", "Vot_design", "Vou", "Vps"):
+            if key in ("Vot", "Vot_design", "Vou", "Vps", "sum_Ve", "sum_Ve_design", "V_fan"):
                 assert q.dimensionality == airflow
             if key in ("D", "Xs", "Ev"):
                 assert v["unit"] == ""
         for z in s["zones"]:
-            for key in ("Vbz", "Voz"):
+            for key in ("Ve", "Ve_design") if s["kind"] == "exhaust" else ("Vbz", "Voz"):
                 assert ureg.Quantity(1, z["values"][key]["unit"]).dimensionality == airflow
             assert ureg.Quantity(1, z["values"]["Az"]["unit"]).dimensionality == \
                 ureg.Quantity(1, "m**2").dimensionality

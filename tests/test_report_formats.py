@@ -171,8 +171,11 @@ def test_junit_parses_back_with_one_case_per_check(capsys, monkeypatch):
     assert len(set(names)) == len(names)  # one case per check and subject
     assert "RTU-1 system-intake" in names  # passes are cases too
     failed = [c for c in cases if c.find("failure") is not None]
-    assert int(suite.get("failures")) == len(failed) == 2
+    assert int(suite.get("failures")) == len(failed) == 3
     text = {c.get("name"): c.find("failure").text for c in failed}
+    # janitor closet 121: 1.00 cfm/ft² (the pack's row) × 48 ft² = 48 cfm against 40 scheduled
+    closet = text["EF-1/121 zone-exhaust"]
+    assert "required: 48.0 cfm" in closet and "provided: 40.0 cfm" in closet
     body = text["AHU-3/203 zone-limits-ev"]
     assert "required: 365 cfm" in body and "provided: 300 cfm" in body
     assert "source: ANSI/ASHRAE Standard 62.1, 2019 edition" in body
@@ -186,12 +189,13 @@ def test_junit_waived_case_is_skipped_and_warnings_fail_only_when_asked(capsys, 
     suite = ET.fromstring(out.encode("utf-8")).find("testsuite")
     case = next(c for c in suite.iter("testcase") if c.get("name") == "AHU-3 system-intake")
     assert case.find("skipped") is not None and "approved by" in case.find("skipped").get("message")
-    assert suite.get("skipped") == "1" and suite.get("failures") == "1"
+    # failing: 203 (its waiver expired) and the janitor closet 121 (the file does not waive it)
+    assert suite.get("skipped") == "1" and suite.get("failures") == "2"
     _, out, _ = run(capsys, monkeypatch, "check", DEMO_ARG, "--format", "junit", *WAIVED,
                     "--fail-on", "warning")
     suite = ET.fromstring(out.encode("utf-8")).find("testsuite")
     # the expired and the unmatched waiver are stale: failures under --fail-on warning
-    assert suite.get("failures") == "3"
+    assert suite.get("failures") == "4"
 
 
 def test_markdown_is_sized_for_a_comment_and_lists_failing_items(capsys, monkeypatch):
@@ -264,3 +268,4 @@ def test_html_with_waivers_shows_every_outcome(capsys, monkeypatch):
         assert text in section
     failing = out[out.index('id="r1-failing"'):out.index('id="r1-air"')]
     assert "AHU-3/203" in failing and "system-intake" not in failing  # waived: not in "fails"
+    assert "EF-1/121" in failing  # not waived by the demo's file

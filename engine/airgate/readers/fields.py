@@ -75,6 +75,7 @@ SYSTEM_COLUMNS = (
     Column("kind", "Kind", "text"),
     Column("outdoor_air", "Outdoor air", "quantity", "airflow", ("outdoor air intake",)),
     Column("supply_airflow", "Supply airflow", "quantity", "airflow"),
+    Column("airflow", "Fan airflow", "quantity", "airflow", ("exhaust fan airflow",)),
     Column("population", "Population", "people"),
     Column("ventilation_efficiency", "Ventilation efficiency", "text", aliases=("ev method",)),
     Column("variable_air_volume", "Variable air volume", "bool", aliases=("vav",)),
@@ -110,6 +111,10 @@ ZONE_COLUMNS = (
     Column("natural_ventilation.depth", "Depth", "quantity", "length"),
     Column("natural_ventilation.permanently_open", "Permanently open", "bool"),
     Column("natural_ventilation.conditioned", "Conditioned", "bool"),
+    Column("exhaust.category", "Exhaust category", "text", aliases=("exhaust row",)),
+    Column("exhaust.airflow", "Exhaust airflow", "quantity", "airflow"),
+    Column("exhaust.fixtures", "Exhaust fixtures", "integer"),
+    Column("exhaust.operation", "Exhaust operation", "text"),
     Column("notes", "Notes", "text"),
 )
 

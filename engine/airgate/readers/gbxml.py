@@ -11,7 +11,9 @@ What is read (the full mapping is in ``docs/importing.md``):
   outdoor air of a zone that holds one space;
 - ``AirLoop`` → a system: ``Name`` is its id, ``systemType`` gives the kind where it is clear,
   the ``Economizer``'s ``MinFlow`` (or, for a 100 % outdoor-air system, the ``Fan``'s
-  ``RatedFlow``) the minimum outdoor-air intake;
+  ``RatedFlow``) the minimum outdoor-air intake; an ``Exhaust`` loop is an exhaust fan, its
+  ``Fan``'s ``RatedFlow`` the fan airflow (gbXML has no element for a space's exhaust airflow:
+  ``airgate.exhaust.…`` lines give it);
 - ``Schedule`` / ``WeekSchedule`` / ``DaySchedule`` → occupancy profiles;
 - what gbXML cannot say (the Ez configuration, Ps, the Ev method, the rule pack …) is written in
   a ``Description`` as ``airgate.FIELD: value`` lines, one per field.
@@ -52,6 +54,7 @@ SYSTEM_KINDS = {
                      "VAVReheatFan", "VAVIndoorPackagedCabinet", "MultiZone", "PackagedMultiZone",
                      "CeilingBypassVariableAirVolume", "ConstantVolumeTerminalReheat"),
                     "multiple-zone"),
+    "Exhaust": "exhaust",
 }
 
 #: gbXML spaceType → occupancy category id of the built-in packs (airgate's mapping, common
@@ -291,8 +294,9 @@ class _Reader:
         elif kind is None:
             b.at(base + ("kind",), self.origin(loop))
         equipment = loop.findall("AirLoopEquipment")
-        if "outdoor_air" not in system:
-            self._intake(loop, equipment, kind, base)
+        field = "airflow" if kind == "exhaust" else "outdoor_air"
+        if field not in system:
+            self._intake(loop, equipment, kind, base + (field,))
         for eq in equipment:
             kind_eq = eq.attrib.get("equipmentType", "")
             if kind_eq in ("Economizer", "Fan") + _TERMINALS:
@@ -303,26 +307,32 @@ class _Reader:
         return i
 
     def _intake(self, loop: Element, equipment: list[Element], kind: str | None,
-                base: tuple) -> None:
+                path: tuple) -> None:
+        """The minimum outdoor-air intake (``outdoor_air``) of an air loop, or the airflow of
+        an exhaust fan (``airflow``, the ``Fan``'s ``RatedFlow``), at ``path``."""
         econ = [e for e in equipment if e.attrib.get("equipmentType") == "Economizer"]
         fans = [e for e in equipment if e.attrib.get("equipmentType") == "Fan"]
+        if kind == "exhaust":
+            econ = []
         pick, tag = (econ, "MinFlow") if econ else (
-            (fans, "RatedFlow") if kind == "outdoor-air" else ([], ""))
+            (fans, "RatedFlow") if kind in ("outdoor-air", "exhaust") else ([], ""))
         if len(pick) > 1:
             self.b.error(self.origin(pick[1]), f"the air loop has {len(pick)} "
-                         f"{pick[0].attrib['equipmentType']} elements; the intake is ambiguous",
-                         field=base + ("outdoor_air",),
-                         hint="state it as airgate.outdoor_air: in the AirLoop's Description")
+                         f"{pick[0].attrib['equipmentType']} elements; the "
+                         + ("fan airflow" if kind == "exhaust" else "intake") + " is ambiguous",
+                         field=path, hint=f"state it as airgate.{path[-1]}: in the AirLoop's "
+                                          "Description")
             return
         flow = pick[0].find(tag) if pick else None
         if flow is None:
-            self.b.at(base + ("outdoor_air",), self.origin(pick[0] if pick else loop))
+            self.b.at(path, self.origin(pick[0] if pick else loop))
             return
-        got = self.quantity(flow, FLOW_UNITS, None, pick[0], base + ("outdoor_air",))
+        got = self.quantity(flow, FLOW_UNITS, None, pick[0], path)
         if got:
             what = ("the economizer's minimum outdoor airflow" if econ
+                    else "the exhaust fan's rated airflow" if kind == "exhaust"
                     else "the supply fan of a 100 % outdoor-air system")
-            self.b.put(base + ("outdoor_air",), got[0], got[1].with_note(what))
+            self.b.put(path, got[0], got[1].with_note(what))
 
     def _space(self, space: Element, zone: Element | None, zones_of: dict[str, list[Element]],
                base: tuple, terminals_used: set[str]) -> None:

@@ -12,7 +12,9 @@ mapping is in ``docs/importing.md``):
   (``IfcRelServicesBuildings``) or groups them directly or through ``IfcZone``\\ s
   (``IfcRelAssignsToGroup``), and each ``IfcZone`` that carries an ``Airgate_System`` set; the
   intake may come from ``Pset_UnitaryEquipmentTypeAirConditioningUnit.OutsideAirFlowrate`` of
-  the system's unitary equipment;
+  the system's unitary equipment; a system of type ``EXHAUST`` is an exhaust fan, its airflow
+  ``Pset_FanTypeCommon.NominalAirFlowRate`` of its ``IfcFan`` (IFC has no standard property for
+  a space's exhaust airflow: ``Airgate_Zone.exhaust`` gives it);
 - what IFC has no standard property for: the sets ``Airgate_Project``, ``Airgate_Profiles``
   (``NAME.weekday`` = ``"07:30-08:30=0.3; …"``), ``Airgate_System`` and ``Airgate_Zone``, one
   property per schedule field, named as in the schedule.
@@ -29,6 +31,7 @@ from typing import Any
 
 from airgate import units
 from airgate.errors import ScheduleError
+from airgate.models.schedule import SYSTEM_KINDS
 from airgate.readers import fields as F
 from airgate.readers import step
 from airgate.readers.document import read_bytes
@@ -321,11 +324,18 @@ class _Reader:
             b.put(base + ("name",), long_name, self.origin(entity, what="LongName"))
         self.airgate_set(props, "Airgate_System", "system", base, entity)
         node = b.data["systems"][base[1]]
+        if "kind" not in node and getattr(entity, "PredefinedType", None) == "EXHAUST":
+            b.put(base + ("kind",), "exhaust", self.origin(entity, what="PredefinedType")
+                  .with_note("an EXHAUST distribution system: an exhaust fan"))
         if "kind" not in node:
             b.error(self.origin(entity), "the system's kind is not stated", field=base + ("kind",),
-                    hint="add the property kind (single-zone, outdoor-air or multiple-zone) to "
-                         "its Airgate_System property set")
-        if "outdoor_air" in node:
+                    hint="add the property kind (single-zone, outdoor-air, multiple-zone, "
+                         "natural or exhaust) to its Airgate_System property set")
+        rules = SYSTEM_KINDS.get(node.get("kind"))
+        if rules is not None and not rules.supplies:
+            self._fan_airflow(equipment, base, node)
+            return
+        if "outdoor_air" in node or (rules is not None and not rules.intake):
             return
         found = [(eq, p) for eq in equipment for name, ps in self.props(eq).items()
                  if name == "Pset_UnitaryEquipmentTypeAirConditioningUnit"
@@ -340,6 +350,24 @@ class _Reader:
                 field=base + ("outdoor_air",),
                 hint="add outdoor_air to its Airgate_System set, or OutsideAirFlowrate "
                      "(Pset_UnitaryEquipmentTypeAirConditioningUnit) to its one unit")
+
+    def _fan_airflow(self, equipment: list, base: tuple, node: dict) -> None:
+        """An exhaust fan's airflow: ``Pset_FanTypeCommon.NominalAirFlowRate`` of the one
+        ``IfcFan`` grouped in the system, unless ``Airgate_System.airflow`` states it (it is
+        optional: without it the fan is not checked against its zones)."""
+        if "airflow" in node:
+            return
+        found = [(eq, p) for eq in equipment for name, ps in self.props(eq).items()
+                 if name == "Pset_FanTypeCommon"
+                 for key, p in ps.items() if key == "NominalAirFlowRate"]
+        if len(found) == 1:
+            self.put(base + ("airflow",), F.column_for("airflow", "system"), found[0][1],
+                     found[0][0], note="nominal airflow of the system's fan")
+        elif found:
+            self.b.error(self.origin(found[1][0]), f"{len(found)} fans of the exhaust system "
+                         "state NominalAirFlowRate; the fan airflow is ambiguous",
+                         field=base + ("airflow",),
+                         hint="add airflow to the system's Airgate_System set")
 
     def _space(self, space, base: tuple) -> None:
         b = self.b

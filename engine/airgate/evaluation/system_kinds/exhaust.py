@@ -34,7 +34,8 @@ def exhaust_fan(system: System, ctxs: list, zones: list[ZoneResult], result: Sys
     scheduled to exhaust; ``V_fan`` [L/s]: the fan's scheduled airflow, ≥ ΣVe_design.
     """
     trail = result.trail
-    cite = next((z.trail["Ve"].source for z in zones), "")
+    # the sum draws on the rows of every zone: it cites the table, each zone's Ve its row
+    cite = "; ".join(dict.fromkeys(pack.exhaust[z.exhaust].source.cite() for z in zones))
     trail.add("ΣVe", sum(z.trail.value("Ve") for z in zones), "airflow",
               note="sum of the zones' minimum exhaust airflows", source=cite)
     total = trail.add("ΣVe_design", sum(z.trail.value("Ve_design") for z in zones), "airflow",
