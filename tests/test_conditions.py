@@ -309,3 +309,18 @@ def test_explicit_ez_and_stated_distribution_per_condition(tmp_path):
     assert [z.trail.value("Ez") for z in by_id["heating"].zones] == [0.8, 0.8]
     assert [z.trail.value("Ez") for z in by_id["cooling"].zones] == [1.0, 1.0]
     assert [c.verdict for c in s.conditions] == ["pass", "pass"]
+
+
+def test_detailed_ev_needs_every_conditions_primary_airflow(tmp_path):
+    """A null primary airflow at one condition is a located input error (the detailed method
+    needs Vpz for every zone, 62.1-2019 Normative Appendix A), not a failed evaluation."""
+    zone = _zone("201", {"cooling": 1000, "heating": 400})
+    zone["primary_airflow"]["cooling"] = None
+    with pytest.raises(AirgateError) as err:
+        _run(tmp_path, [_vav(zones=[zone, _zone("202", {"cooling": 1000, "heating": 800})])])
+    found = err.value.errors if hasattr(err.value, "errors") else [err.value]
+    assert [(e.field, e.message) for e in found] == [
+        (("systems", 0, "zones", 0, "primary_airflow", "cooling"),
+         "the detailed Ev method needs primary_airflow (Vpz) for every zone; zone '201' gives "
+         "none at condition 'cooling'")]
+    assert found[0].line is not None

@@ -31,6 +31,10 @@ def register(sub) -> None:
     t.add_argument("--units", choices=UNIT_SYSTEMS,
                    help=f"unit system of the headers: {', '.join(UNIT_SYSTEMS)} (default: the "
                         "pack's)")
+    t.add_argument("--conditions", metavar="ID,ID",
+                   help="design conditions (e.g. cooling,heating): adds a column per condition "
+                        "for each field that may differ by condition, such as 'Primary airflow "
+                        "@heating [cfm]' (docs/importing.md)")
 
 
 def run(args: argparse.Namespace) -> int:
@@ -39,7 +43,13 @@ def run(args: argparse.Namespace) -> int:
 
     pack = load_pack(args.rules, search=args.rules_path)
     system = args.units or pack.units
-    tables = workbook.template_tables(system, args.rules)
+    conditions = tuple(dict.fromkeys(
+        c.strip() for c in (args.conditions or "").split(",") if c.strip()))
+    bad = [c for c in conditions if "[" in c or "]" in c or "@" in c or c.startswith(" ")]
+    if bad:
+        raise UsageError(f"--conditions: {bad[0]!r} cannot be a condition id in a header",
+                         hint="use ids without brackets or '@', e.g. --conditions cooling,heating")
+    tables = workbook.template_tables(system, args.rules, conditions)
     out = Path(args.output)
     if args.format == "xlsx":
         if out.suffix.lower() != ".xlsx":

@@ -42,8 +42,9 @@ class CellError(ValueError):
 class Column:
     """One importable field: its schedule name, documented header and kind of value.
 
-    ``kind`` is ``id``, ``text``, ``quantity``, ``people``, ``number``, ``integer``, ``bool``,
-    ``distribution``, ``items``, ``time`` or ``value`` (any other schedule field, by its name: a
+    ``kind`` is ``id``, ``ids`` (a list of ids: ``cooling, heating``), ``text``, ``quantity``,
+    ``people``, ``number``, ``integer``, ``bool``, ``distribution``, ``items``, ``time`` or
+    ``value`` (any other schedule field, by its name: a
     number, a text, or a YAML flow value such as ``{merv: 13}``); ``quantity`` columns name the
     unit kind of :data:`airgate.units.KINDS` in ``unit``. A dotted ``field`` (``filter.merv``)
     fills a field of a nested mapping.
@@ -73,6 +74,7 @@ SYSTEM_COLUMNS = (
     Column("id", "System", "id", aliases=("system id",)),
     Column("name", "Name", "text"),
     Column("kind", "Kind", "text"),
+    Column("conditions", "Conditions", "ids", aliases=("design conditions",)),
     Column("outdoor_air", "Outdoor air", "quantity", "airflow", ("outdoor air intake",)),
     Column("supply_airflow", "Supply airflow", "quantity", "airflow"),
     Column("airflow", "Fan airflow", "quantity", "airflow", ("exhaust fan airflow",)),
@@ -158,9 +160,12 @@ def header_unit_text(column: Column, system: str) -> str | None:
     return None
 
 
-def header_label(column: Column, system: str) -> str:
+def header_label(column: Column, system: str, condition: str | None = None) -> str:
+    """The header airgate writes for ``column`` (at ``condition``): ``Primary airflow @heating
+    [cfm]``."""
     unit = header_unit_text(column, system)
-    return f"{column.header} [{unit}]" if unit else column.header
+    name = column.header if condition is None else f"{column.header} {CONDITION_MARK}{condition}"
+    return f"{name} [{unit}]" if unit else name
 
 
 def _takes_text(model: type[BaseModel], field: str) -> bool:
@@ -217,14 +222,75 @@ def header_name(text: str) -> str:
 
 
 def match_header(text: str, columns: tuple[Column, ...], model: type[BaseModel] | None = None,
-                 skip: tuple[str, ...] = ()) -> tuple[Column, str | None]:
-    """The column a header names and the unit in its brackets; CellError when unknown."""
+                 skip: tuple[str, ...] = (), level: str | None = None
+                 ) -> tuple[Column, str | None, str | None]:
+    """The column a header names, the unit in its brackets and the design condition after
+    ``@`` (``Primary airflow @heating [cfm]``); CellError when unknown, or when the column's
+    field cannot be given per condition at ``level`` (``system``, ``zone``)."""
     m = _HEADER.match(text)
     if not m or not m["name"]:
-        raise CellError(f"header {text!r} is not of the form 'Name' or 'Name [unit]'",
-                        hint="write the column name, optionally followed by a unit in brackets")
-    col = find_column(m["name"], columns, model, skip)
-    return col, _header_unit(col, m["unit"])
+        raise CellError(f"header {text!r} is not of the form 'Name', 'Name [unit]' or "
+                        "'Name @condition [unit]'",
+                        hint="write the column name, optionally followed by @ and a design "
+                             "condition, then a unit in brackets")
+    name, condition = split_condition(m["name"])
+    col = find_column(name, columns, model, skip)
+    if condition is not None:
+        per_condition(col, level)
+    try:
+        unit = _header_unit(col, m["unit"])
+    except CellError as exc:
+        fields = CONDITION_FIELDS.get(level or "", ())
+        if condition is None and col.field in fields and m["unit"] is not None:
+            exc.hint = (f"{exc.hint}; a value per design condition is written "
+                        f"'{col.header} @{m['unit'].strip()}'" + (
+                            f" (with its unit: '{col.header} @{m['unit'].strip()} "
+                            f"[{UNIT_TEXT[col.unit][0]}]')" if col.kind == "quantity" else ""))
+        raise
+    return col, unit, condition
+
+
+#: the mark between a field and a design condition in a header or an annotation
+#: (``Primary airflow @heating``, ``airgate.primary_airflow@heating: 950 cfm``)
+CONDITION_MARK = "@"
+
+
+def split_condition(name: str) -> tuple[str, str | None]:
+    """A column or field name and the design condition it names: ``Primary airflow @heating``
+    → ``('Primary airflow', 'heating')``, ``Area`` → ``('Area', None)``."""
+    base, mark, condition = name.partition(CONDITION_MARK)
+    if not mark:
+        return name, None
+    base, condition = base.strip(), condition.strip()
+    if not base or not condition:
+        raise CellError(f"{name.strip()!r} does not name a field and a design condition",
+                        hint="write the field, @ and the condition id, e.g. "
+                             "'Primary airflow @heating'")
+    return base, condition
+
+
+def _condition_fields() -> dict[str, tuple[str, ...]]:
+    from airgate.models.schedule import SYSTEM_CONDITION_FIELDS, ZONE_CONDITION_FIELDS
+
+    return {"system": SYSTEM_CONDITION_FIELDS, "zone": ZONE_CONDITION_FIELDS}
+
+
+#: level → the fields a system or zone may give per design condition
+CONDITION_FIELDS = _condition_fields()
+#: table → the level of its rows, for the tables whose fields may be given per condition
+TABLE_LEVELS = {"systems": "system", "zones": "zone"}
+
+
+def per_condition(col: Column, level: str | None) -> None:
+    """CellError unless ``col``'s field may be given per design condition at ``level``."""
+    fields = CONDITION_FIELDS.get(level or "", ())
+    if col.field in fields:
+        return
+    where = {"system": "a system", "zone": "a zone"}.get(level or "")
+    raise CellError(f"'{col.header}' cannot be given per design condition" + (
+        f"; the fields of {where} that can: {', '.join(fields)}" if where else
+        "; only fields of systems and zones can"),
+        hint="remove '@…' from the name: a plain value applies to every condition")
 
 
 def _header_unit(col: Column, unit: str | None) -> str | None:
@@ -313,8 +379,12 @@ def convert(col: Column, value: Any, unit: str | None = None) -> Any:
         if isinstance(value, str) and _is_number(value):
             return float(value)
         return value
-    if isinstance(value, str) and value[:1] in "[{" and kind in ("value", "distribution", "items"):
+    if isinstance(value, str) and value[:1] in "[{" and kind in ("value", "distribution", "items",
+                                                                 "ids"):
         return flow_value(value)
+    if kind == "ids":
+        text = number_text(value) if isinstance(value, (int, float)) else str(value)
+        return [part.strip() for part in re.split(r"[,;]", text) if part.strip()]
     if kind in ("people", "value"):
         if isinstance(value, str) and _is_number(value) and not (kind == "value" and col.text):
             number = float(value)
@@ -456,14 +526,15 @@ def neutralise(text: str) -> str:
     return "'" + text if text.startswith(FORMULA_START) else text
 
 
-_ANNOTATION = re.compile(r"^\s*airgate\.([A-Za-z_][A-Za-z0-9_.]*)\s*:\s?(.*?)\s*$")
+_ANNOTATION = re.compile(r"^\s*airgate\.([A-Za-z_][A-Za-z0-9_.]*(?:\s*@[^:]*)?)\s*:\s?(.*?)\s*$")
 
 
 def annotations(text: str | None) -> tuple[list[str], list[tuple[str, str, int]]]:
     """Split a description into its free lines and its ``airgate.FIELD: value`` lines.
 
-    Returns the free lines and ``(field, value, line offset)`` for each annotation; a line that
-    starts with ``airgate.`` but is not ``airgate.FIELD: value`` is returned with field ``""``.
+    Returns the free lines and ``(field, value, line offset)`` for each annotation (``field``
+    may name a design condition: ``primary_airflow@heating``); a line that starts with
+    ``airgate.`` but is not ``airgate.FIELD: value`` is returned with field ``""``.
     """
     free: list[str] = []
     notes: list[tuple[str, str, int]] = []
@@ -476,6 +547,16 @@ def annotations(text: str | None) -> tuple[list[str], list[tuple[str, str, int]]
         elif line.strip():
             free.append(line.strip())
     return free, notes
+
+
+def column_at(name: str, level: str) -> tuple[Column, str | None]:
+    """The column and design condition of an annotation or property named ``FIELD`` or
+    ``FIELD@CONDITION`` at ``level``; CellError when unknown or not per condition."""
+    field, condition = split_condition(name)
+    col = column_for(field, level)
+    if condition is not None:
+        per_condition(col, level)
+    return col, condition
 
 
 def column_for(field: str, level: str) -> Column:

@@ -139,12 +139,15 @@ class _Reader:
             if name in skip:
                 continue
             try:
-                col = F.column_for(name, level) if level != "schedule" else _schedule_column(name)
+                col, condition = (F.column_at(name, level) if level != "schedule"
+                                  else (_schedule_column(name), None))
                 converted = F.convert(col, value)
             except F.CellError as exc:
                 self.b.error(where, exc.message, hint=exc.hint, field=base + (name,))
                 continue
-            if converted is not None:
+            if condition is not None:  # empty: no value at that condition
+                self.b.put_condition(base + (col.field,), condition, converted, where)
+            elif converted is not None:
                 self.b.put(base + tuple(col.field.split(".")), converted, where)
         return free
 

@@ -168,12 +168,19 @@ class _Reader:
             if field in skip:
                 continue
             try:
-                col = F.column_for(field, level)
+                col, condition = F.column_at(field, level)
             except F.CellError as exc:
                 self.b.error(self.origin(prop.entity, owner, prop.what), exc.message,
                              hint=exc.hint, field=base + (field,))
                 continue
-            self.put(base + tuple(col.field.split(".")), col, prop, owner)
+            if condition is None:
+                self.put(base + tuple(col.field.split(".")), col, prop, owner)
+                continue
+            path = base + (col.field,)
+            converted = self.value(col, prop, owner, path)
+            if converted is not None:
+                self.b.put_condition(path, condition, converted,
+                                     self.origin(prop.entity, owner, prop.what))
 
     # -- the model ------------------------------------------------------------------------------
 
@@ -335,8 +342,9 @@ class _Reader:
         if rules is not None and not rules.supplies:
             self._fan_airflow(equipment, base, node)
             return
-        if "outdoor_air" in node or (rules is not None and not rules.intake):
-            return
+        if "outdoor_air" in node or base + ("outdoor_air",) in b.by_condition or (
+                rules is not None and not rules.intake):
+            return  # stated in the Airgate_System set (also per design condition), or no intake
         found = [(eq, p) for eq in equipment for name, ps in self.props(eq).items()
                  if name == "Pset_UnitaryEquipmentTypeAirConditioningUnit"
                  for key, p in ps.items() if key == "OutsideAirFlowrate"]

@@ -366,7 +366,8 @@ def _condition_errors(model: Schedule, doc: Document) -> list[AirgateError]:
                     ScheduleError, f"{path[-1]} has no value for condition "
                     f"{', '.join(repr(c) for c in missing)}", path, allowed=list(named),
                     hint="give a value for every condition the system lists (null where an "
-                    "optional field does not apply), or one plain value for all"))
+                    "optional field does not apply; in a table, an empty cell in a column of "
+                    "that condition), or one plain value for all"))
             if path[-1] == "outdoor_air" and any(value.get(c) is None for c in named):
                 out.append(doc.error(
                     ScheduleError, "outdoor_air needs a value at every condition", path,

@@ -151,17 +151,12 @@ class Builder:
     rejected: set[Any] = field(default_factory=set)
     #: fields whose whole column could not be read (already reported): no "missing" message
     quiet: set[str] = field(default_factory=set)
+    #: field path → design condition → (value, origin); ``None``: given empty at that condition
+    by_condition: dict[Path_, dict[str, tuple[Any, Origin]]] = field(default_factory=dict)
 
     def put(self, path: Path_, value: Any, origin: Origin | None) -> None:
         """Set ``value`` at ``path`` (creating mappings and lists on the way), keep its origin."""
-        node: Any = self.data
-        for part, nxt in zip(path[:-1], path[1:]):
-            if isinstance(node, list):
-                while len(node) <= part:
-                    node.append({} if not isinstance(nxt, int) else [])
-                node = node[part]
-            else:
-                node = node.setdefault(part, [] if isinstance(nxt, int) else {})
+        node = self._node(path[:-1], path[-1])
         if isinstance(node, list):
             while len(node) <= path[-1]:
                 node.append(None)
@@ -170,6 +165,55 @@ class Builder:
             node[path[-1]] = value
         if origin is not None:
             self.origins[tuple(path)] = origin
+
+    def put_condition(self, path: Path_, condition: str, value: Any, origin: Origin) -> None:
+        """The value of the field at ``path`` at one design condition (a ``Primary airflow
+        @heating`` cell, an ``airgate.primary_airflow@heating:`` line); ``None`` when it was
+        left empty. :meth:`finish` gathers them into the field's per-condition mapping."""
+        self.by_condition.setdefault(tuple(path), {})[condition] = (value, origin)
+
+    def _gather_conditions(self) -> None:
+        """Each field given per condition becomes a mapping over its system's conditions. A
+        plain value of the same field applies to every condition not given; a condition given
+        empty (and not by the plain value) is ``null``; a condition named nowhere is left out,
+        so the schedule reader reports it missing, and one the system does not list is kept
+        when it has a value, so it is reported unknown."""
+        for path, given in self.by_condition.items():
+            if all(value is None for value, _ in given.values()):
+                continue  # nothing stated per condition: the plain value (if any) stands
+            listed = self._node(path[:2]).get("conditions")
+            listed = [c for c in listed if isinstance(c, str)] if isinstance(listed, list) else []
+            parent = self._node(path[:-1])
+            plain = parent.get(path[-1])
+            has_plain = plain is not None and not isinstance(plain, dict)
+            mapping: dict[str, Any] = {}
+            for condition in listed + [c for c in given if c not in listed]:
+                value, where = given.get(condition, (None, None))
+                if value is None and condition not in listed:
+                    continue
+                if value is None and has_plain:
+                    value, where = plain, self.origins.get(tuple(path))
+                elif value is None and where is None:
+                    continue  # named nowhere: reported missing
+                mapping[condition] = value
+                if where is not None:
+                    self.origins[tuple(path) + (condition,)] = where
+            # the mapping is located at its first value given per condition
+            self.origins[tuple(path)] = next(w for v, w in given.values() if v is not None)
+            parent[path[-1]] = mapping
+
+    def _node(self, path: Path_, last: Any = "") -> Any:
+        """The mapping or list at ``path`` (a list where the next part, ``last`` after the
+        path, is an index), made on the way when missing."""
+        node: Any = self.data
+        for part, nxt in zip(path, (*path[1:], last)):
+            if isinstance(node, list):
+                while len(node) <= part:
+                    node.append({} if not isinstance(nxt, int) else [])
+                node = node[part]
+            else:
+                node = node.setdefault(part, [] if isinstance(nxt, int) else {})
+        return node
 
     def at(self, path: Path_, origin: Origin) -> None:
         """Record where ``path`` would be written, without a value (for 'missing' messages)."""
@@ -201,6 +245,7 @@ class Builder:
 
     def finish(self) -> ImportedSchedule:
         """Validate the collected data; raise every problem together, with the room counts."""
+        self._gather_conditions()
         doc = ImportedDocument(file=self.file, data=self.data, origins=self.origins,
                                positions={p: (o.line, o.column) for p, o in self.origins.items()
                                           if o.line is not None})

@@ -297,7 +297,8 @@ def _rows(table: Table, b: Builder, room_table: bool = False) -> list[_Row]:
         return []
     columns, model, skip = _COLUMNS[table.name]
     header, *body = table.rows
-    cols: dict[int, tuple[F.Column, str | None, str]] = {}
+    #: column number → (column, header unit, header, key: the field, with ``@condition``)
+    cols: dict[int, tuple[F.Column, str | None, str, str]] = {}
     seen: dict[str, Cell] = {}
     before = len(b.errors)
     for cell in header:
@@ -307,20 +308,23 @@ def _rows(table: Table, b: Builder, room_table: bool = False) -> list[_Row]:
                     hint="the first row of each table names its columns")
             continue
         try:
-            col, unit = F.match_header(cell.value, columns, model, skip)
+            col, unit, condition = F.match_header(cell.value, columns, model, skip,
+                                                  F.TABLE_LEVELS.get(table.name))
         except F.CellError as exc:
             b.error(where, exc.message, hint=exc.hint)
             try:  # a known column with a bad unit: its cells are lost, not "missing"
-                b.quiet.add(F.find_column(F.header_name(cell.value), columns, model, skip).field)
+                name = F.split_condition(F.header_name(cell.value))[0]
+                b.quiet.add(F.find_column(name, columns, model, skip).field)
             except F.CellError:
                 pass
             continue
-        if col.field in seen:
-            b.error(where, f"column '{col.header}' is given twice (first in column "
-                    f"{column_letter(seen[col.field].column)})", hint="keep one of them")
+        key = col.field if condition is None else f"{col.field}{F.CONDITION_MARK}{condition}"
+        if key in seen:
+            b.error(where, f"column '{F.header_name(cell.value).strip()}' is given twice (first "
+                    f"in column {column_letter(seen[key].column)})", hint="keep one of them")
             continue
-        seen[col.field] = cell
-        cols[cell.column] = (col, unit, cell.value.strip())
+        seen[key] = cell
+        cols[cell.column] = (col, unit, cell.value.strip(), key)
     header_bad = len(b.errors) > before  # a column could not be read: every room misses it
     out = []
     for row in body:
@@ -336,7 +340,7 @@ def _rows(table: Table, b: Builder, room_table: bool = False) -> list[_Row]:
                             hint="name the column in the header row, or clear the cell",
                             room=(table.name, row[0].row) if room_table else None)
                 continue
-            col, unit, label = cols[cell.column]
+            col, unit, label, key = cols[cell.column]
             where = table.origin(cell, label)
             if cell.formula and col.kind not in ("text",):
                 b.error(where, f"the cell holds a formula ({cell.value}); airgate never "
@@ -352,11 +356,10 @@ def _rows(table: Table, b: Builder, room_table: bool = False) -> list[_Row]:
                 r.bad = True
                 continue
             if value is not None:
-                r.values[col.field] = (value, where)
-        for number, (col, _, label) in cols.items():
-            if col.field not in r.values:
-                r.blanks[col.field] = table.origin(Cell(None, row[0].row, number, row[0].line),
-                                                   label)
+                r.values[key] = (value, where)
+        for number, (col, _, label, key) in cols.items():
+            if key not in r.values:
+                r.blanks[key] = table.origin(Cell(None, row[0].row, number, row[0].line), label)
         out.append(r)  # a cell that could not be read is reported; the row stays
     return out
 
@@ -383,12 +386,19 @@ def _list_table(table: Table, name: str, b: Builder) -> None:
 
 
 def _put_row(b: Builder, base: tuple, row: _Row, skip: tuple[str, ...] = ()) -> None:
-    """Put a row's values under ``base``; a dotted field (filter.merv) fills a nested mapping."""
+    """Put a row's values under ``base``; a dotted field (filter.merv) fills a nested mapping,
+    a field at a design condition (``primary_airflow@heating``) one value of its mapping."""
     for name, (value, where) in row.values.items():
-        if name not in skip:
+        field, _, condition = name.partition(F.CONDITION_MARK)
+        if condition:
+            b.put_condition(base + (field,), condition, value, where)
+        elif name not in skip:
             b.put(base + tuple(name.split(".")), value, where)
     for name, where in row.blanks.items():
-        if name not in skip:
+        field, _, condition = name.partition(F.CONDITION_MARK)
+        if condition:
+            b.put_condition(base + (field,), condition, None, where)
+        elif name not in skip:
             b.at(base + tuple(name.split(".")), where)
 
 

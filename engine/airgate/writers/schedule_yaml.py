@@ -73,6 +73,8 @@ def scalar(value: Any, in_flow: bool = False) -> str:
     Inside a flow collection (``in_flow``) only plain words, numbers, units and brackets stay
     unquoted.
     """
+    if value is None:
+        return "null"  # a field given no value at a design condition
     if isinstance(value, bool):
         return "true" if value else "false"
     if isinstance(value, (int, float)):
@@ -132,8 +134,15 @@ def _fields(out: _Out, node: dict[str, Any], model: str | type[BaseModel], path:
             continue
         prefix = first_prefix if first else " " * len(first_prefix)
         sub = "stated" if key == "air_distribution" else None
-        out.line(indent, f"{prefix}{_key(key)}: {flow(value, sub)}", path + (key,),
-                 nearest=first and nearest_first)
+        if key in F.CONDITION_FIELDS.get(model, ()) and isinstance(value, dict) \
+                and "supply" not in value:  # one line per design condition, with its origin
+            out.line(indent, f"{prefix}{_key(key)}:")
+            for condition, at in value.items():
+                out.line(indent + len(prefix) + 2, f"{_key(condition)}: {flow(at, sub)}",
+                         path + (key, condition))
+        else:
+            out.line(indent, f"{prefix}{_key(key)}: {flow(value, sub)}", path + (key,),
+                     nearest=first and nearest_first)
         first = False
 
 

@@ -39,6 +39,8 @@ def _cell(col: F.Column, value: Any, system: str) -> Any:
         return F.format_distribution(value)
     if col.kind == "items" and not _nested(value):
         return F.format_items(value)
+    if col.kind == "ids" and isinstance(value, list) and not _nested(value):
+        return ", ".join(str(v) for v in value)
     if isinstance(value, (dict, list)):
         from airgate.writers.schedule_yaml import flow
         return flow(value)
@@ -76,7 +78,8 @@ def _flat(record: dict[str, Any], key: str) -> dict[str, Any]:
     return out
 
 
-def _table(key: str, records: list[dict[str, Any]], system: str, every: bool) -> list[list[Any]]:
+def _table(key: str, records: list[dict[str, Any]], system: str, every: bool,
+           conditions: tuple[str, ...] = ()) -> list[list[Any]]:
     records = [_flat(r, key) for r in records]
     documented = {c.field for c in _COLUMNS[key]}
     model = _MODELS.get(key)
@@ -87,9 +90,39 @@ def _table(key: str, records: list[dict[str, Any]], system: str, every: bool) ->
     cols = [c for c in _COLUMNS[key]
             if every or c.field in _ALWAYS.get(key, ()) or any(c.field in r for r in records)]
     cols += extra
-    rows = [[F.header_label(c, system) for c in cols]]
-    rows += [[_cell(c, r.get(c.field), system) for c in cols] for r in records]
+    slots: list[tuple[F.Column, str | None]] = []  # a column at each condition given
+    for c in cols:
+        shown = _conditions_of(key, c.field, records, conditions)
+        if not shown or every or c.field in _ALWAYS.get(key, ()) or any(
+                c.field in r and not _by_condition(r[c.field]) for r in records):
+            slots.append((c, None))
+        slots += [(c, condition) for condition in shown]
+    rows = [[F.header_label(c, system, condition) for c, condition in slots]]
+    rows += [[_cell(c, _at(r.get(c.field), condition), system) for c, condition in slots]
+             for r in records]
     return rows
+
+
+def _by_condition(value: Any) -> bool:
+    """Whether a value is given per design condition (a stated distribution has ``supply``)."""
+    return isinstance(value, dict) and "supply" not in value
+
+
+def _at(value: Any, condition: str | None) -> Any:
+    """A field's cell in its plain column (``condition`` None) or at one design condition."""
+    if condition is None:
+        return None if _by_condition(value) else value
+    return value.get(condition) if _by_condition(value) else None
+
+
+def _conditions_of(key: str, field: str, records: list[dict[str, Any]],
+                   conditions: tuple[str, ...]) -> list[str]:
+    """The design conditions at which ``field`` gets a column (``Primary airflow @heating``):
+    those the records give it at, in order of appearance, after ``conditions``."""
+    if field not in F.CONDITION_FIELDS.get(F.TABLE_LEVELS.get(key, ""), ()):
+        return []
+    given = (c for r in records if _by_condition(r.get(field)) for c in r[field])
+    return list(dict.fromkeys((*conditions, *given)))
 
 
 def schedule_tables(data: dict[str, Any], every: bool = False) -> Tables:
@@ -126,12 +159,13 @@ def schedule_tables(data: dict[str, Any], every: bool = False) -> Tables:
     return out
 
 
-def template_tables(system: str, rules: str | None) -> Tables:
-    """Empty tables with every column, its unit, and the project row started."""
+def template_tables(system: str, rules: str | None, conditions: tuple[str, ...] = ()) -> Tables:
+    """Empty tables with every column, its unit, and the project row started; with
+    ``conditions``, a column per condition for each field that may differ by condition."""
     project = {"units": system, **({"rules": rules} if rules else {})}
     return {"project": _table("project", [project], system, True),
-            "systems": _table("systems", [], system, True),
-            "zones": _table("zones", [], system, True),
+            "systems": _table("systems", [], system, True, conditions),
+            "zones": _table("zones", [], system, True, conditions),
             "profiles": _table("profiles", [], system, True),
             **{name: _table(name, [], system, True) for name in _LISTS}}
 
@@ -185,7 +219,8 @@ def xlsx_bytes(tables: Tables, pack=None) -> bytes:
             return
         for c, head in enumerate(tables[key][0], start=1):
             try:
-                col, _ = F.match_header(str(head), _COLUMNS[key], _MODELS.get(key))
+                col, _, _ = F.match_header(str(head), _COLUMNS[key], _MODELS.get(key),
+                                           level=F.TABLE_LEVELS.get(key))
             except F.CellError:
                 continue
             if col.field == field:

@@ -10,7 +10,7 @@ import numpy as np
 
 from airgate import formatting
 from airgate.errors import AirgateError
-from airgate.evaluation import delivered
+from airgate.evaluation import conditions, delivered
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.findings import Amount, Location
 from airgate.evaluation.report import SystemResult, ZoneResult
@@ -20,7 +20,7 @@ from airgate.evaluation.trail import Trail
 from airgate.evaluation.zones import ZoneContext
 from airgate.models.loaded import LoadedSchedule
 from airgate.models.rules import DetailedEv, RulePack, SimplifiedEv, TableEv
-from airgate.models.schedule import System
+from airgate.models.schedule import System, at_condition
 from airgate.procedures import efficiency as eff
 
 
@@ -267,10 +267,12 @@ def _inputs(loaded: LoadedSchedule, pack: RulePack, i: int) -> list[AirgateError
         return []
     return [
         loaded.error(f"the {name} Ev method needs primary_airflow (Vpz) for every zone; "
-                     f"zone '{zone.id}' gives none", ("systems", i, "zones", j, "primary_airflow"),
+                     f"zone '{zone.id}' gives none" + (f" at condition '{c}'" if c else ""),
+                     conditions.keyed(("systems", i, "zones", j, "primary_airflow"), c),
                      hint="add primary_airflow, or use ventilation_efficiency: simplified if "
                      "the pack allows it")
-        for j, zone in enumerate(system.zones) if zone.primary_airflow is None
+        for j, zone in enumerate(system.zones) for c in conditions.names(system)
+        if at_condition(zone.primary_airflow, c) is None
     ]
 
 
