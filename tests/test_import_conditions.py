@@ -122,18 +122,6 @@ def test_an_empty_condition_cell_is_no_value_at_that_condition(tmp_path):
     assert z.primary_airflow == pytest.approx(900 * CFM)  # plain: every condition
 
 
-def test_a_condition_without_a_column_is_missing_not_empty(tmp_path, capsys):
-    """As in YAML, every condition is named: a column left out is not taken for 'none'."""
-    zones = ("System,Zone,Space type,Area [ft2],Occupants,Air distribution @cooling,"
-             "Ez @heating,Ez basis @heating,Primary airflow [cfm]\n"
-             f"AHU-1,201,office-space,1000,5,{COOL},0.8,warm air at the ceiling,900\n")
-    err = _refused(tmp_path, capsys, zones)
-    assert "annex.zones.csv:2:6: schedule error: systems[0].zones[0].air_distribution: " \
-           "air_distribution has no value for condition 'heating'" in err
-    assert "annex.zones.csv:2:7: " in err and "ez has no value for condition 'cooling'" in err
-    assert "an empty cell in a column of that condition" in err
-
-
 def test_condition_columns_left_empty_leave_the_plain_value(tmp_path):
     """A system without conditions beside one with them: its rows leave the condition cells
     empty and keep their plain values."""
@@ -163,14 +151,27 @@ def test_bad_condition_headers_are_located(tmp_path, capsys, header, cell, words
     assert words in err
 
 
-def test_unknown_and_missing_conditions_are_located_at_the_cells(tmp_path, capsys):
-    zones = ("System,Zone,Space type,Area [ft2],Occupants,Air distribution,"
-             "Primary airflow @cooling [cfm],Primary airflow @warm [cfm]\n"
-             f"AHU-1,201,office-space,1000,5,{COOL},1000,400\n")
-    err = _refused(tmp_path, capsys, zones)
-    assert "annex.zones.csv:2:8: schedule error: systems[0].zones[0].primary_airflow.warm: " \
-           "unknown condition 'warm' (cell H2" in err
-    assert "annex.zones.csv:2:7: " in err and "no value for condition 'heating'" in err
+@pytest.mark.parametrize("head, row, expected", [
+    # as in YAML, every condition is named: a column left out is not taken for "none"
+    ("Air distribution @cooling,Ez @heating,Ez basis @heating,Primary airflow [cfm]",
+     f"{COOL},0.8,warm air at the ceiling,900",
+     ["annex.zones.csv:2:6: schedule error: systems[0].zones[0].air_distribution: "
+      "air_distribution has no value for condition 'heating'",
+      "annex.zones.csv:2:7: schedule error: systems[0].zones[0].ez: ez has no value for "
+      "condition 'cooling'", "an empty cell in a column of that condition"]),
+    ("Air distribution,Primary airflow @cooling [cfm],Primary airflow @warm [cfm]",
+     f"{COOL},1000,400",
+     ["annex.zones.csv:2:8: schedule error: systems[0].zones[0].primary_airflow.warm: "
+      "unknown condition 'warm' (cell H2",
+      "annex.zones.csv:2:7: schedule error: systems[0].zones[0].primary_airflow: "
+      "primary_airflow has no value for condition 'heating'"]),
+])
+def test_missing_and_unknown_conditions_are_located_at_the_cells(tmp_path, capsys, head, row,
+                                                                 expected):
+    err = _refused(tmp_path, capsys, f"System,Zone,Space type,Area [ft2],Occupants,{head}\n"
+                                     f"AHU-1,201,office-space,1000,5,{row}\n")
+    for text in expected:
+        assert text in err
 
 
 def test_a_condition_column_on_a_system_without_conditions_is_an_error(tmp_path, capsys):
