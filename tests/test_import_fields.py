@@ -42,7 +42,7 @@ def test_a_date_where_a_value_belongs_is_an_error():
 
 @pytest.mark.parametrize("text", ["Area [ft2]", "area [ft²]", "AREA[m2]", "area"])
 def test_header_forms(text):
-    col, _ = F.match_header(text, F.ZONE_COLUMNS)
+    col, _, _ = F.match_header(text, F.ZONE_COLUMNS)
     assert col.field == "area"
 
 
