@@ -162,7 +162,7 @@ def test_every_command_and_argument_has_help():
 
 
 # the commands that read rule packs for a schedule or a template: --rules and --rules-path
-PACK_READERS = {("airgate", c) for c in ("check", "explain", "plot", "template")}
+PACK_READERS = {("airgate", c) for c in ("check", "compare", "explain", "plot", "template")}
 
 
 def test_format_output_and_rules_options_are_spelled_alike_everywhere():
@@ -180,13 +180,15 @@ def test_format_output_and_rules_options_are_spelled_alike_everywhere():
             assert "--rules-path" in options, path  # packs named by id are found on the path
         if "--rules" in options:
             assert "--rules-path" in options, path
-    assert sorted(seen_format) == [("check",), ("plot",), ("rules", "diff"),
+    assert sorted(seen_format) == [("check",), ("compare",), ("plot",), ("rules", "diff"),
                                    ("rules", "show"), ("template",)]
 
 
 @pytest.mark.parametrize("module, name, path, option", [
     ("airgate.writers.formats", "FORMATS", ("check",), "--format"),
     ("airgate.evaluation.gate", "FAIL_ON", ("check",), "--fail-on"),
+    ("airgate.writers.formats", "COMPARE_FORMATS", ("compare",), "--format"),
+    ("airgate.evaluation.gate", "FAIL_ON", ("compare",), "--fail-on"),
     ("airgate.commands.rules", "FORMATS", ("rules", "show"), "--format"),
     ("airgate.commands.rules", "FORMATS", ("rules", "diff"), "--format"),
     ("airgate.commands.template", "FORMATS", ("template",), "--format"),
@@ -366,14 +368,15 @@ def test_readme_lists_the_choices_the_commands_take():
     from airgate.evaluation.batch import FAIL_ON
     from airgate.units import UNIT_SYSTEMS
     from airgate.writers import plot
-    from airgate.writers.formats import FORMATS
+    from airgate.writers.formats import COMPARE_FORMATS, FORMATS
 
     readme = (ROOT / "README.md").read_text(encoding="utf-8")
     rows = {m.group(1): m.group(0) for m in re.finditer(r"^\| `airgate (\w+)[^\n]*", readme, re.M)}
-    assert {"check", "explain", "import", "plot", "rules", "schema"} <= set(rows)
+    assert {"check", "compare", "explain", "import", "plot", "rules", "schema"} <= set(rows)
     bar = "\\|"  # a | inside a Markdown table cell
     assert all(name in rows["check"] for name in FORMATS)
     assert "--fail-on " + bar.join(FAIL_ON) in rows["check"]
+    assert "--format " + bar.join(COMPARE_FORMATS) in rows["compare"]
     assert "--format " + bar.join(template.FORMATS) in rows["import"]
     assert "--units " + bar.join(UNIT_SYSTEMS) in rows["import"]
     assert "--format " + bar.join(sorted(set(plot.FORMATS.values()))) in rows["plot"]

@@ -35,6 +35,7 @@ _LAZY = {
     "check": "airgate.api.core",
     "load_waivers": "airgate.api.core",
     "Report": "airgate.api.core",
+    "compare": "airgate.api.compare",
     "AirgateError": "airgate.errors",
     "ErrorGroup": "airgate.errors",
 }

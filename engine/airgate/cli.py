@@ -1,4 +1,4 @@
-"""Command line: ``airgate check | explain | import | plot | rules | schema | template``.
+"""Command line: ``airgate check | compare | explain | import | plot | rules | schema | template``.
 
 Each command lives in :mod:`airgate.commands` (``register`` adds its arguments, ``run`` does it).
 Exit codes: 0 all pass, 1 a failing finding, 2 input or usage error, 3 internal error.

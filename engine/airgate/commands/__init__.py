@@ -3,4 +3,4 @@
 ``airgate.cli`` assembles them in the order of :data:`COMMANDS`.
 """
 
-COMMANDS = ("check", "explain", "import_", "plot", "rules", "schema", "template")
+COMMANDS = ("check", "compare", "explain", "import_", "plot", "rules", "schema", "template")

@@ -141,7 +141,7 @@ def schedules(paths: list[str]) -> list[str]:
     return [f for f in out if not (f in seen or seen.add(f))]
 
 
-def _waivers(paths: list[str]):
+def waiver_entries(paths: list[str]):
     """The entries of the waivers files and their structural problems: the well-formed entries
     are still evaluated, so that an unknown check id (known only with the rule pack) is
     reported in the same round as a missing field."""
@@ -163,7 +163,7 @@ def _unique(errors: list[AirgateError]) -> list[AirgateError]:
     return [e for e in errors if not (str(e.render()) in seen or seen.add(str(e.render())))]
 
 
-def _as_of(text: str | None) -> dt.date | None:
+def as_of_date(text: str | None) -> dt.date | None:
     if text is None:
         return None
     try:
@@ -223,13 +223,13 @@ def run(args: argparse.Namespace) -> int:
     if args.series_step < 0:
         raise UsageError("--series-step takes a number of minutes, 0 or more")
     targets = _destinations(args)
-    as_of = _as_of(args.as_of)
+    as_of = as_of_date(args.as_of)
     files = schedules(args.paths)
     written = {Path(d).resolve() for _, d in targets if d is not None}
     if any(document.followable(f, ScheduleError) in written for f in [*files, *args.waivers]):
         raise UsageError("a report would overwrite one of the schedules or waivers files "
                          "read", field=("--format",))
-    entries, waiver_errors = _waivers(args.waivers)
+    entries, waiver_errors = waiver_entries(args.waivers)
     try:
         reports = _evaluate(files, args, entries, as_of)
     except ErrorGroup as exc:

@@ -8,10 +8,12 @@ import json
 from airgate.commands.common import add_output, emit
 from airgate.errors import EXIT_PASS
 
-#: the published schemas: the schedule, a rule pack, a pack test case, the JSON report
-SCHEMAS = ("schedule", "rules", "pack-test", "report")
+#: the published schemas: the schedule, a rule pack, a pack test case, the JSON report, the
+#: JSON comparison (airgate compare)
+SCHEMAS = ("schedule", "rules", "pack-test", "report", "compare")
 #: schemas kept as files under rules/schema/
-_FILES = {"pack-test": "pack-test.schema.json", "report": "report.schema.json"}
+_FILES = {"pack-test": "pack-test.schema.json", "report": "report.schema.json",
+          "compare": "compare.schema.json"}
 
 
 def register(sub) -> None:

@@ -21,6 +21,7 @@ from airgate.errors import UsageError
 
 if TYPE_CHECKING:
     from airgate.evaluation.batch import Batch
+    from airgate.evaluation.compare import Comparison
     from airgate.writers.output import Body
 
 
@@ -108,6 +109,40 @@ FORMATS: dict[str, ReportFormat] = {f.name: f for f in (
 )}
 #: the usual file extension of each format
 EXTENSIONS = {name: f.extension for name, f in FORMATS.items()}
+
+
+@dataclass(frozen=True)
+class CompareFormat:
+    """One format of ``airgate compare``: its ``--format`` name, extension and writer."""
+
+    name: str
+    extension: str
+    #: ``(comparison, batch of NEW) → body``; the batch gives the gate's outcome
+    write: Callable[[Comparison, Batch], Body]
+
+
+def _compare(module: str, function: str) -> Callable[[Comparison, Batch], Body]:
+    def write(cmp: Comparison, batch: Batch) -> Body:
+        return getattr(importlib.import_module(f"airgate.writers.{module}"), function)(cmp, batch)
+    return write
+
+
+#: the formats of ``airgate compare`` by ``--format`` name; the first is the default
+COMPARE_FORMATS: dict[str, CompareFormat] = {f.name: f for f in (
+    CompareFormat("text", ".txt", _compare("compare", "text")),
+    CompareFormat("json", ".json", _compare("compare", "json_text")),
+    CompareFormat("markdown", ".md", _compare("compare", "markdown")),
+    CompareFormat("html", ".html", _compare("compare_html", "render")),
+)}
+
+
+def compare_stream(name: str, cmp: Comparison, batch: Batch) -> Body:
+    """A comparison in format ``name`` (a key of :data:`COMPARE_FORMATS`)."""
+    fmt = COMPARE_FORMATS.get(name)
+    if fmt is None:
+        raise UsageError(f"unknown comparison format '{name}'", allowed=list(COMPARE_FORMATS),
+                         field=("--format",))
+    return fmt.write(cmp, batch)
 
 
 def stream(name: str, batch: Batch, series_step: int = 0) -> Body:

@@ -1,0 +1,283 @@
+"""Two evaluations of one building compared: a resubmittal against the round before.
+
+``airgate compare OLD NEW`` (docs/compare.md) lists what a reviewer reads first in a new round:
+
+- the verdicts that changed (the schedule, each system, each zone; a subject only one side has is
+  ``None`` on the other);
+- the inputs that changed, field by field as written in each schedule, with where each side
+  wrote it (lists of entries with an ``id`` are matched by id, so reordering is no change);
+- the values that moved beyond a stated relative tolerance (:data:`VALUES`: the required and
+  scheduled intake, Ev, each zone's required and delivered outdoor air, exhaust) and the margins
+  (:data:`MARGINS`);
+- the findings resolved (in OLD, not in NEW) and new (in NEW, not in OLD), matched on basis,
+  rule, subject and design condition.
+
+Everything here is worked out from the two loaded schedules and their reports; nothing reads a
+file, and the writers (``airgate.writers.compare``) only format it.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from collections.abc import Iterator
+from dataclasses import dataclass, field
+from typing import Any
+
+from airgate.evaluation.findings import Finding, Location
+from airgate.evaluation.report import Report
+from airgate.models.loaded import LoadedSchedule
+
+#: the relative tolerance a value must move by to be listed, when none is given (1 %)
+DEFAULT_TOLERANCE = 0.01
+
+#: trail values compared per subject level (those a subject's trail holds on both sides)
+VALUES: dict[str, tuple[str, ...]] = {
+    "system": ("Vot", "Vot_design", "Ev", "V_fan"),
+    "zone": ("Voz", "Ve"),
+}
+#: margins compared per subject level: (required, provided) symbols; the margin is
+#: provided − required, and it moves when it changes by more than the tolerance times the
+#: larger of the two requirements
+MARGINS: dict[str, tuple[tuple[str, str], ...]] = {
+    "system": (("Vot", "Vot_design"),),
+    "zone": (("Voz", "Voz_delivered"), ("Ve", "Ve_design")),
+}
+MARGIN = "margin"  #: the symbol a margin is listed under: ``margin Vot_design − Vot``
+
+
+@dataclass(frozen=True)
+class VerdictChange:
+    """A subject whose verdict differs; ``None`` where one side does not have the subject."""
+
+    subject: str
+    level: str  #: ``schedule``, ``system`` or ``zone``
+    old: str | None
+    new: str | None
+
+
+@dataclass(frozen=True)
+class InputChange:
+    """One field of the schedule written differently (or only on one side).
+
+    ``old``/``new`` are the values as written (text; a mapping or list without ids as compact
+    JSON), ``None`` on the side that does not write the field.
+    """
+
+    subject: str  #: ``schedule``, a system id, or ``system/zone``
+    field: str  #: the field's path inside the subject, e.g. ``primary_airflow``, ``filter.merv``
+    old: str | None
+    new: str | None
+    old_at: Location | None
+    new_at: Location | None
+
+
+@dataclass(frozen=True)
+class ValueChange:
+    """A value of the evaluation (internal units of ``kind``) that moved beyond the tolerance."""
+
+    subject: str
+    symbol: str  #: a trail symbol, or ``margin Vot_design − Vot``
+    kind: str
+    old: float
+    new: float
+
+    @property
+    def change(self) -> float:
+        return self.new - self.old
+
+
+@dataclass
+class Comparison:
+    """What changed from ``old`` to ``new``: the reports, and the lists above."""
+
+    old: Report
+    new: Report
+    tolerance: float
+    verdicts: list[VerdictChange] = field(default_factory=list)
+    inputs: list[InputChange] = field(default_factory=list)
+    values: list[ValueChange] = field(default_factory=list)
+    resolved: list[Finding] = field(default_factory=list)
+    added: list[Finding] = field(default_factory=list)
+
+
+def compare(old_loaded: LoadedSchedule, old: Report, new_loaded: LoadedSchedule, new: Report,
+            tolerance: float = DEFAULT_TOLERANCE) -> Comparison:
+    """Compare two evaluated schedules (each with the loaded schedule it came from).
+
+    ``tolerance``: the relative change [–] a value must exceed to be listed
+    (``|new − old| > tolerance · max(|old|, |new|)``).
+    """
+    if not (tolerance >= 0 and math.isfinite(tolerance)):
+        raise ValueError(f"tolerance must be a finite number ≥ 0, got {tolerance!r}")
+    out = Comparison(old=old, new=new, tolerance=tolerance)
+    out.verdicts = verdict_changes(old, new)
+    out.inputs = list(input_changes(old_loaded, new_loaded))
+    out.values = value_changes(old, new, tolerance)
+    out.resolved, out.added = finding_changes(old, new)
+    return out
+
+
+# ----------------------------------------------------------------------------- verdicts
+def _subjects(report: Report) -> dict[str, tuple[str, str, Any]]:
+    """subject → (level, verdict, trail) for the systems and zones of a report, in order."""
+    out: dict[str, tuple[str, str, Any]] = {}
+    for s in report.systems:
+        out[s.id] = ("system", s.verdict, s.trail)
+        for z in s.zones:
+            out[f"{s.id}/{z.id}"] = ("zone", z.verdict, z.trail)
+    return out
+
+
+def _union(old: dict, new: dict) -> list[str]:
+    """The keys of ``new`` in its order, then those only ``old`` has, in its order."""
+    return list(new) + [k for k in old if k not in new]
+
+
+def verdict_changes(old: Report, new: Report) -> list[VerdictChange]:
+    """The schedule's verdict when it changed, then each system and zone whose verdict did."""
+    out = []
+    if old.verdict != new.verdict:
+        out.append(VerdictChange("schedule", "schedule", old.verdict, new.verdict))
+    a, b = _subjects(old), _subjects(new)
+    for subject in _union(a, b):
+        level = (b.get(subject) or a[subject])[0]
+        va = a[subject][1] if subject in a else None
+        vb = b[subject][1] if subject in b else None
+        if va != vb:
+            out.append(VerdictChange(subject, level, va, vb))
+    return out
+
+
+# ----------------------------------------------------------------------------- values
+def _moved(a: float, b: float, tolerance: float, scale: float | None = None) -> bool:
+    if not (math.isfinite(a) and math.isfinite(b)):
+        return a != b
+    ref = max(abs(a), abs(b)) if scale is None else scale
+    return abs(b - a) > tolerance * ref
+
+
+def value_changes(old: Report, new: Report, tolerance: float) -> list[ValueChange]:
+    """The values of :data:`VALUES` and the margins of :data:`MARGINS` that moved, per subject
+    both reports have, in NEW's order."""
+    a, b = _subjects(old), _subjects(new)
+    out = []
+    for subject in b:
+        if subject not in a:
+            continue
+        level, _, ta = a[subject]
+        tb = b[subject][2]
+        for symbol in VALUES[level]:
+            if symbol in ta and symbol in tb and ta[symbol].kind == tb[symbol].kind:
+                x, y = ta.value(symbol), tb.value(symbol)
+                if _moved(x, y, tolerance):
+                    out.append(ValueChange(subject, symbol, tb[symbol].kind, x, y))
+        for req, prov in MARGINS[level]:
+            if not all(s in t for s in (req, prov) for t in (ta, tb)):
+                continue
+            ma = ta.value(prov) - ta.value(req)
+            mb = tb.value(prov) - tb.value(req)
+            scale = max(abs(ta.value(req)), abs(tb.value(req)))
+            if math.isfinite(scale) and _moved(ma, mb, tolerance, scale):
+                out.append(ValueChange(subject, f"{MARGIN} {prov} − {req}", tb[prov].kind,
+                                       ma, mb))
+    return out
+
+
+# ----------------------------------------------------------------------------- findings
+def finding_key(f: Finding) -> tuple:
+    """What makes two findings of two rounds the same finding."""
+    return (f.basis, f.rule, f.subject, f.condition)
+
+
+def finding_changes(old: Report, new: Report) -> tuple[list[Finding], list[Finding]]:
+    """(resolved: OLD's findings NEW does not have, new: NEW's findings OLD does not have),
+    each in its report's order."""
+    ka = {finding_key(f) for f in old.findings}
+    kb = {finding_key(f) for f in new.findings}
+    return ([f for f in old.findings if finding_key(f) not in kb],
+            [f for f in new.findings if finding_key(f) not in ka])
+
+
+# ----------------------------------------------------------------------------- inputs
+def _where(loaded: LoadedSchedule, path: tuple) -> Location:
+    origin = getattr(loaded.doc, "origin", None)  # an imported document: the cell's file
+    o = origin(path) if origin is not None else None
+    if o is not None:
+        return Location(o.file, o.line, o.column)
+    line, column = loaded.doc.locate(path)
+    return Location(loaded.file, line, column)
+
+
+def _text(value: Any) -> str:
+    """A value as written: text as is, numbers and booleans as YAML writes them, a mapping or
+    list as compact JSON with its keys sorted."""
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if value is None:
+        return "null"
+    if isinstance(value, (dict, list)):
+        return json.dumps(value, ensure_ascii=False, sort_keys=True, separators=(", ", ": "),
+                          default=str)
+    return str(value)
+
+
+def _by_id(items: Any) -> dict[str, int] | None:
+    """id → index when ``items`` is a list of mappings each with a distinct ``id``, else None."""
+    if not isinstance(items, list) or not items:
+        return None
+    ids = [str(x.get("id")) if isinstance(x, dict) and "id" in x else None for x in items]
+    if None in ids or len(set(ids)) != len(ids):
+        return None
+    return {i: n for n, i in enumerate(ids)}
+
+
+def _subject(parts: tuple) -> tuple[str, tuple]:
+    """(subject, field path inside it) of a named path: ``systems/AHU-3/zones/203/area`` →
+    (``AHU-3/203``, ``area``)."""
+    if len(parts) >= 2 and parts[0] == "systems":
+        rest = parts[2:]
+        if len(rest) >= 2 and rest[0] == "zones":
+            return f"{parts[1]}/{rest[1]}", rest[2:]
+        return str(parts[1]), rest
+    return "schedule", parts
+
+
+def _keys(a: Any, b: Any) -> tuple[dict, dict] | None:
+    """How the entries of two containers pair up: key → index (or key) in each, for two mappings,
+    or two lists of entries with ids; None for anything else (compared whole)."""
+    if isinstance(a, dict) and isinstance(b, dict):
+        return {k: k for k in a}, {k: k for k in b}
+    ia, ib = _by_id(a), _by_id(b)
+    return (ia, ib) if ia is not None and ib is not None else None
+
+
+def _walk(a: Any, b: Any, pa: tuple, pb: tuple, named: tuple) -> Iterator[tuple]:
+    """(named path, old path, new path, old value, new value) of every difference; a side that
+    does not have the field has ``None`` for its path."""
+    paired = _keys(a, b)
+    if paired is None:
+        if a != b or type(a) is not type(b):
+            yield named, pa, pb, a, b
+        return
+    ka, kb = paired
+    for key in _union(ka, kb):
+        here = named + (key,)
+        if key in ka and key in kb:
+            yield from _walk(a[ka[key]], b[kb[key]], pa + (ka[key],), pb + (kb[key],), here)
+        elif key in ka:
+            yield here, pa + (ka[key],), None, a[ka[key]], None
+        else:
+            yield here, None, pb + (kb[key],), None, b[kb[key]]
+
+
+def input_changes(old: LoadedSchedule, new: LoadedSchedule) -> Iterator[InputChange]:
+    """Every field written differently in the two schedules, in NEW's order (fields only OLD
+    writes after those of the same mapping). A system or zone only one side has is one change
+    with an empty field name."""
+    for named, pa, pb, a, b in _walk(old.doc.data, new.doc.data, (), (), ()):
+        subject, inner = _subject(named)
+        yield InputChange(subject, ".".join(str(p) for p in inner),
+                          None if pa is None else _text(a), None if pb is None else _text(b),
+                          None if pa is None else _where(old, pa),
+                          None if pb is None else _where(new, pb))
