@@ -29,6 +29,7 @@ from importing import demo_ifc, demo_xlsx
 
 APPROVALS = ROOT / "fixtures" / "demo" / "approvals" / "fernhollow-approvals.yaml"
 SECOND = ROOT / "fixtures" / "edge" / "bom.yaml"
+RECORD = ROOT / "fixtures" / "demo" / "review" / "round-1.yaml"
 DEMO_CSV = DEMO.with_suffix(".zones.csv")
 DEMO_GBXML = DEMO.with_suffix(".xml")
 QUILLBY = "ashrae-62.1-2019-quillby-bay"
@@ -69,8 +70,8 @@ def _commands(built: dict[str, Path]) -> list[list[str]]:
          *[f"--format={f}:out/one.{f}" for f in formats.FORMATS]],
         ["check", str(DEMO), str(SECOND), *waived,
          *[f"--format={f}:out/run.{f}" for f in formats.FORMATS]],
-        *[["compare", str(SECOND), str(DEMO), "--exit-zero", "--format", f,
-           "-o", f"out/compare.{f}"] for f in formats.COMPARE_FORMATS],
+        *[["compare", str(SECOND), str(DEMO), "--exit-zero", "--review", str(RECORD),
+           "--format", f, "-o", f"out/compare.{f}"] for f in formats.COMPARE_FORMATS],
         ["explain", str(DEMO), "--zone", "203", "-o", "out/explain-zone.txt"],
         ["explain", str(DEMO), "--system", "AHU-3", "-o", "out/explain-system.txt"],
         ["rules", "show", "en-16798-1-2019", "-o", "out/show.txt"],

@@ -34,6 +34,7 @@ _LAZY = {
     "evaluate": "airgate.api.core",
     "check": "airgate.api.core",
     "load_waivers": "airgate.api.core",
+    "load_review": "airgate.api.core",
     "Report": "airgate.api.core",
     "compare": "airgate.api.compare",
     "AirgateError": "airgate.errors",

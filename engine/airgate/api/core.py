@@ -15,9 +15,11 @@ from collections.abc import Mapping, Sequence
 from pathlib import Path
 from typing import Any
 
-from airgate.errors import RulePackError
+from airgate.errors import RulePackError, raise_all
 from airgate.evaluation import engine
 from airgate.evaluation import report as results
+from airgate.evaluation.checks import DECLARED_CHECKS, KNOWN_CHECKS
+from airgate.evaluation.review import CommentEntry, rule_errors, statuses
 from airgate.evaluation.waivers import WaiverEntry
 from airgate.models.loaded import LoadedSchedule
 from airgate.models.rules import RulePack
@@ -64,6 +66,17 @@ def load_waivers(path: str | Path) -> list[WaiverEntry]:
     return from_file(read_waivers(path))
 
 
+def load_review(path: str | Path) -> list[CommentEntry]:
+    """Read a reviewer's record (``--review``, docs/review.md): its comments, for the ``review``
+    argument of :func:`check` and :func:`evaluate`. Every problem is raised at once, located."""
+    from airgate.evaluation.review import from_file
+    from airgate.readers.review import read_review
+
+    loaded, where, errors = read_review(path)
+    raise_all(errors)
+    return from_file(loaded, where)
+
+
 def load_pack(id_or_path: str | Path, search: Search = None, *,
               options: Mapping[str, str] | None = None) -> RulePack:
     """Load a rule pack by built-in id (``ashrae-62.1-2019``) or file path, validated and built.
@@ -76,26 +89,33 @@ def load_pack(id_or_path: str | Path, search: Search = None, *,
 
 
 def evaluate(schedule: LoadedSchedule, pack: RulePack, *, waivers: Sequence[WaiverEntry] = (),
-             as_of: dt.date | None = None) -> Report:
+             as_of: dt.date | None = None, review: Sequence[CommentEntry] = ()) -> Report:
     """Evaluate ``schedule`` under ``pack``: findings, trails and verdicts.
 
     A pack with options must have been loaded with the schedule's choices
     (``load_pack(..., options=schedule.model.project.options)``); otherwise the difference is
     reported at the schedule's ``project.options``. ``waivers``: entries of a waivers file applied
-    after the schedule's own; expiry is judged on ``as_of`` (default today).
+    after the schedule's own; expiry is judged on ``as_of`` (default today). ``review``: the
+    comments of a reviewer's record (:func:`load_review`), each set against the findings in
+    ``Report.review``; a comment naming a check id the engine does not know is an input error.
     """
     _same_options(schedule, pack)
+    if review:
+        raise_all(rule_errors(review, [*KNOWN_CHECKS, *DECLARED_CHECKS, *pack.requirements]))
     report = Report.of(engine.evaluate(schedule, pack, datatables.BUILTIN, waivers, as_of))
+    report.review = statuses(report.findings, review)
     report.notes.extend(import_notes(schedule))  # rooms read/mapped/rejected; what was not mapped
     return report
 
 
 def check(path: str | Path, rules: str | None = None, *, search: Search = None,
-          waivers: Sequence[WaiverEntry] = (), as_of: dt.date | None = None) -> Report:
+          waivers: Sequence[WaiverEntry] = (), as_of: dt.date | None = None,
+          review: Sequence[CommentEntry] = ()) -> Report:
     """Read the schedule at ``path``, load its rule pack (or ``rules``) and evaluate it.
 
     The pack named in the schedule (``rules:``) is looked up relative to the schedule's folder;
     ``rules`` (as ``--rules`` on the command line) relative to the working directory.
+    ``review``: a reviewer's comments, as for :func:`evaluate`.
     """
     loaded = load_schedule(path)
     ref = rules or loaded.model.rules
@@ -103,7 +123,7 @@ def check(path: str | Path, rules: str | None = None, *, search: Search = None,
         raise loaded.error("no rule pack: give 'rules:' in the schedule or --rules", ("rules",),
                            hint="e.g. rules: ashrae-62.1-2019")
     pack = _pack(loaded, ref, from_option=bool(rules), search=tuple(search or ()))
-    return evaluate(loaded, pack, waivers=waivers, as_of=as_of)
+    return evaluate(loaded, pack, waivers=waivers, as_of=as_of, review=review)
 
 
 def _same_options(loaded: LoadedSchedule, pack: RulePack) -> None:

@@ -61,6 +61,8 @@ def register(sub) -> None:
                    help="a waivers file applied to every schedule (repeatable)")
     c.add_argument("--as-of", metavar="YYYY-MM-DD",
                    help="judge waiver expiry on this date (default: today)")
+    add_review(c, "a reviewer's record: comments on findings, shown in the text, Markdown and "
+                  "HTML reports against what each finding is now (one schedule)")
     c.add_argument("--fail-on", choices=FAIL_ON, action="append",
                    metavar="{" + ",".join(FAIL_ON) + "}",
                    help=f"what fails the run, repeatable: {', '.join(FAIL_ON)} (default "
@@ -157,6 +159,23 @@ def waiver_entries(paths: list[str]):
     return entries, errors
 
 
+def add_review(parser, what: str) -> None:
+    """``--review FILE``: a reviewer's record (docs/review.md)."""
+    parser.add_argument("--review", metavar="FILE", help=what)
+
+
+def review_entries(path: str | None):
+    """The comments of a reviewer's record and its structural problems (the well-formed
+    comments are still evaluated, so that an unknown check id is reported in the same round)."""
+    if path is None:
+        return [], []
+    from airgate.evaluation.review import from_file
+    from airgate.readers.review import read_review
+
+    loaded, where, problems = read_review(path)
+    return ([] if loaded is None else from_file(loaded, where)), problems
+
+
 def _unique(errors: list[AirgateError]) -> list[AirgateError]:
     """Each problem once (a waivers file's unknown check id is found with every schedule)."""
     seen: set[str] = set()
@@ -195,7 +214,7 @@ class _Progress:
             sys.stderr.flush()
 
 
-def _evaluate(files: list[str], args, entries, as_of):
+def _evaluate(files: list[str], args, entries, as_of, comments=()):
     from airgate.api.core import check
 
     reports, errors = [], []
@@ -204,7 +223,8 @@ def _evaluate(files: list[str], args, entries, as_of):
         for i, f in enumerate(files):
             progress.step(i, f)
             try:
-                reports.append(check(f, args.rules, waivers=entries, as_of=as_of, search=args.rules_path))
+                reports.append(check(f, args.rules, waivers=entries, as_of=as_of,
+                                     search=args.rules_path, review=comments))
             except ErrorGroup as exc:
                 errors += exc.errors
             except AirgateError as exc:
@@ -225,13 +245,19 @@ def run(args: argparse.Namespace) -> int:
     targets = _destinations(args)
     as_of = as_of_date(args.as_of)
     files = schedules(args.paths)
+    if args.review and len(files) > 1:
+        raise UsageError(f"--review takes the record of one schedule; {len(files)} are checked",
+                         field=("--review",), hint="check the schedule the record is about alone")
     written = {Path(d).resolve() for _, d in targets if d is not None}
-    if any(document.followable(f, ScheduleError) in written for f in [*files, *args.waivers]):
-        raise UsageError("a report would overwrite one of the schedules or waivers files "
-                         "read", field=("--format",))
+    read = [*files, *args.waivers, *([args.review] if args.review else [])]
+    if any(document.followable(f, ScheduleError) in written for f in read):
+        raise UsageError("a report would overwrite one of the schedules, waivers files or "
+                         "records read", field=("--format",))
     entries, waiver_errors = waiver_entries(args.waivers)
+    comments, review_errors = review_entries(args.review)
+    waiver_errors += review_errors
     try:
-        reports = _evaluate(files, args, entries, as_of)
+        reports = _evaluate(files, args, entries, as_of, comments)
     except ErrorGroup as exc:
         raise_all(_unique(waiver_errors + list(exc.errors)))
     except AirgateError as exc:

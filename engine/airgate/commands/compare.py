@@ -10,9 +10,10 @@ import argparse
 import math
 from pathlib import Path
 
-from airgate.commands.check import as_of_date, waiver_entries
+from airgate.commands.check import add_review, as_of_date, review_entries, waiver_entries
 from airgate.commands.common import add_output, add_rules, input_suffixes
-from airgate.errors import EXIT_FAIL, EXIT_PASS, ScheduleError, UsageError, raise_all
+from airgate.errors import (EXIT_FAIL, EXIT_PASS, AirgateError, ErrorGroup, ScheduleError,
+                            UsageError, raise_all)
 from airgate.readers import document
 
 
@@ -41,6 +42,8 @@ def register(sub) -> None:
                    help="a waivers file applied to both schedules (repeatable)")
     c.add_argument("--as-of", metavar="YYYY-MM-DD",
                    help="judge waiver expiry on this date (default: today)")
+    add_review(c, "a reviewer's record: each comment against NEW, those whose finding was "
+                  "resolved flagged for closing")
     c.add_argument("--fail-on", choices=FAIL_ON, action="append",
                    metavar="{" + ",".join(FAIL_ON) + "}",
                    help=f"what fails the run, repeatable: {', '.join(FAIL_ON)} (as for check, "
@@ -60,14 +63,21 @@ def run(args: argparse.Namespace) -> int:
     if args.output and not output.is_stream(args.output):
         target = Path(args.output).resolve()
         if any(document.followable(f, ScheduleError) == target
-               for f in (args.old, args.new, *args.waivers)):
+               for f in (args.old, args.new, *args.waivers, *filter(None, [args.review]))):
             raise UsageError("the comparison would overwrite one of the files read",
                              field=("-o",))
     as_of = as_of_date(args.as_of)
-    entries, waiver_errors = waiver_entries(args.waivers)
-    raise_all(waiver_errors)
-    cmp = compare(args.old, args.new, args.rules, search=args.rules_path, waivers=entries,
-                  as_of=as_of, tolerance=args.tolerance / 100)
+    entries, errors = waiver_entries(args.waivers)
+    comments, review_errors = review_entries(args.review)
+    errors += review_errors
+    try:
+        cmp = compare(args.old, args.new, args.rules, search=args.rules_path, waivers=entries,
+                      as_of=as_of, tolerance=args.tolerance / 100, review=comments)
+    except ErrorGroup as exc:
+        raise_all(errors + list(exc.errors))
+    except AirgateError as exc:
+        raise_all(errors + [exc])
+    raise_all(errors)
     batch = gather([cmp.new], entries, args.fail_on)
     output.write_atomic(args.output or output.STDOUT,
                         formats.compare_stream(args.format, cmp, batch))

@@ -10,7 +10,9 @@
   scheduled intake, Ev, each zone's required and delivered outdoor air, exhaust) and the margins
   (:data:`MARGINS`);
 - the findings resolved (in OLD, not in NEW) and new (in NEW, not in OLD), matched on basis,
-  rule, subject and design condition.
+  rule, subject and design condition;
+- with a reviewer's record, each comment against NEW, those whose finding was resolved flagged
+  for closing.
 
 Everything here is worked out from the two loaded schedules and their reports; nothing reads a
 file, and the writers (``airgate.writers.compare``) only format it.
@@ -20,12 +22,13 @@ from __future__ import annotations
 
 import json
 import math
-from collections.abc import Iterator
+from collections.abc import Iterator, Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
 from airgate.evaluation.findings import Finding, Location
 from airgate.evaluation.report import Report
+from airgate.evaluation.review import CommentEntry, CommentStatus, statuses
 from airgate.models.loaded import LoadedSchedule
 
 #: the relative tolerance a value must move by to be listed, when none is given (1 %)
@@ -99,14 +102,18 @@ class Comparison:
     values: list[ValueChange] = field(default_factory=list)
     resolved: list[Finding] = field(default_factory=list)
     added: list[Finding] = field(default_factory=list)
+    #: the reviewer's record against NEW, with the comments whose finding was resolved marked
+    review: list[CommentStatus] = field(default_factory=list)
 
 
 def compare(old_loaded: LoadedSchedule, old: Report, new_loaded: LoadedSchedule, new: Report,
-            tolerance: float = DEFAULT_TOLERANCE) -> Comparison:
+            tolerance: float = DEFAULT_TOLERANCE,
+            review: Sequence[CommentEntry] = ()) -> Comparison:
     """Compare two evaluated schedules (each with the loaded schedule it came from).
 
     ``tolerance``: the relative change [–] a value must exceed to be listed
-    (``|new − old| > tolerance · max(|old|, |new|)``).
+    (``|new − old| > tolerance · max(|old|, |new|)``). ``review``: a reviewer's comments, set
+    against NEW's findings; a comment whose finding was resolved is flagged for closing.
     """
     if not (tolerance >= 0 and math.isfinite(tolerance)):
         raise ValueError(f"tolerance must be a finite number ≥ 0, got {tolerance!r}")
@@ -115,6 +122,7 @@ def compare(old_loaded: LoadedSchedule, old: Report, new_loaded: LoadedSchedule,
     out.inputs = list(input_changes(old_loaded, new_loaded))
     out.values = value_changes(old, new, tolerance)
     out.resolved, out.added = finding_changes(old, new)
+    out.review = statuses(new.findings, review, out.resolved)
     return out
 
 

@@ -11,6 +11,7 @@ from airgate.models.rules import RulePack
 
 if TYPE_CHECKING:
     from airgate.evaluation.coverage import CheckCase
+    from airgate.evaluation.review import CommentStatus
     from airgate.evaluation.waivers import WaiverStatus
 
 SAFETY_CAUTION = (
@@ -100,6 +101,8 @@ class Report:
     requirements: list = field(default_factory=list)
     #: the amount each declared contaminant is counted in (its ``unit``), by contaminant id
     contaminant_units: dict[str, str] = field(default_factory=dict)
+    #: the reviewer's record given (``--review``), each comment against this report's findings
+    review: list[CommentStatus] = field(default_factory=list)
 
     @property
     def verdict(self) -> str:

@@ -44,6 +44,10 @@ class WaiverEntry:
         return WaiverMark(reason=self.waiver.reason, approved_by=self.waiver.approved_by,
                           expires=self.expires, location=self.location, origin=self.origin)
 
+    @property
+    def rule(self) -> str:
+        return self.waiver.rule
+
     def key(self) -> tuple:
         """Identity across the schedules of a batch."""
         return (self.origin, str(self.location), self.waiver.rule, self.waiver.subject)
@@ -87,12 +91,13 @@ def from_file(loaded, where: Sequence[int] | None = None) -> list[WaiverEntry]:
                     where)
 
 
-def rule_errors(entries: Iterable[WaiverEntry], known: Iterable[str]) -> list[AirgateError]:
-    """A waiver naming a check id the engine does not know is a typo: an input error."""
+def rule_errors(entries: Iterable, known: Iterable[str]) -> list[AirgateError]:
+    """A waiver (or any entry with ``rule``, ``rule_location``, ``field`` and ``origin``, such as
+    a reviewer's comment) naming a check id the engine does not know is a typo: an input error."""
     known = sorted(known)
     out: list[AirgateError] = []
     for e in entries:
-        rule = e.waiver.rule
+        rule = e.rule
         if rule in known:
             continue
         close = nearest(rule, known)

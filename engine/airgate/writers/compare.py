@@ -6,7 +6,7 @@ JSON, compare version 1 (docs/compare.md)::
 
     {"compare_version": 1, "generator": …, "old": {…}, "new": {…}, "tolerance": 0.01,
      "gate": {…}, "verdicts": […], "inputs": […], "values": […],
-     "findings": {"resolved": […], "new": […]}, "cautions": […]}
+     "findings": {"resolved": […], "new": […]}, "review": […], "cautions": […]}
 """
 
 from __future__ import annotations
@@ -105,6 +105,9 @@ def text(cmp: Comparison, batch) -> str:
         table(title, ["severity", "rule", "subject", "message"],
               [[f.severity.upper() if f.severity == "fail" else f.severity, f.rule, f.subject,
                 f.message] for f in found])
+    from airgate.writers.text import review_lines
+
+    out += review_lines(cmp.review)
     out += [result_line(cmp, batch), "", "Cautions"]
     out += [f"  - {clean(c)}" for c in cautions(cmp)[:1]]
     return "\n".join(out) + "\n"
@@ -145,6 +148,9 @@ def markdown(cmp: Comparison, batch) -> str:
     for title, found in (("Findings resolved", cmp.resolved), ("New findings", cmp.added)):
         table(title, ["severity", "rule", "subject", "message"],
               [[f.severity, f.rule, f.subject, f.message] for f in found])
+    from airgate.writers.markdown import review_table
+
+    out += review_table(cmp.review)[1:] + ([""] if cmp.review else [])
     out += [f"**{md(result_line(cmp, batch))}**", "", f"> {md(cautions(cmp)[0])}", ""]
     return "\n".join(out)
 
@@ -173,6 +179,16 @@ def _finding(f: Finding, units: str) -> dict[str, Any]:
             "location": _location(f.location), "waived": f.waived}
 
 
+def _comment(s) -> dict[str, Any]:
+    c = s.entry.comment
+    return {"id": c.id, "subject": c.subject, "rule": c.rule, "comment": c.comment,
+            "response": c.response, "status": c.status, "reviewer": c.reviewer,
+            "date": c.date.isoformat(), "location": _location(s.entry.location),
+            "finding": None if s.finding is None else {"severity": s.finding.severity,
+                                                       "waived": s.finding.waived},
+            "resolved": s.resolved, "to_close": s.to_close}
+
+
 def to_dict(cmp: Comparison, batch) -> dict[str, Any]:
     """The comparison as JSON data (compare version 1, docs/compare.md)."""
     from airgate.writers.json_report import value
@@ -195,6 +211,7 @@ def to_dict(cmp: Comparison, batch) -> dict[str, Any]:
                     "change": value(c.change, c.kind, u)} for c in cmp.values],
         "findings": {"resolved": [_finding(f, u) for f in cmp.resolved],
                      "new": [_finding(f, u) for f in cmp.added]},
+        "review": [_comment(s) for s in cmp.review],
         "cautions": cautions(cmp),
     }
 

@@ -7,7 +7,7 @@ from __future__ import annotations
 from airgate import __version__
 from airgate.evaluation.compare import Comparison
 from airgate.writers import compare as words
-from airgate.writers.html import environment
+from airgate.writers.html import environment, review_view
 
 
 def _mark(old: str | None, new: str | None) -> str:
@@ -45,4 +45,5 @@ def render(cmp: Comparison, batch) -> str:
     return environment().get_template("compare.html.j2").render(
         version=__version__, title=f"airgate compare — {cmp.new.project_name}",
         project=cmp.new.project_name, old=side(cmp.old), new=side(cmp.new),
-        result=words.result_line(cmp, batch), tables=tables, cautions=words.cautions(cmp))
+        result=words.result_line(cmp, batch), tables=tables, review=review_view(cmp.review),
+        cautions=words.cautions(cmp))

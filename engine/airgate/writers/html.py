@@ -395,7 +395,16 @@ class _View:
             "passing_zones": (self.passing_zone(s, z) for s in passing for z in s.zones),
             "systems": (self.system(s) for s in full),
             "waivers": self.waivers(), "provenance": self.provenance(), "notes": self.notes(),
+            "review": review_view(r.review),
         }
+
+
+def review_view(statuses) -> dict | None:
+    """The reviewer's record for a template (``macros.review_table``), or None without one."""
+    if not statuses:
+        return None
+    return {"title": shared.review_title(statuses), "head": shared.REVIEW_HEAD,
+            "rows": [{"cells": shared.comment_cells(s), "close": s.to_close} for s in statuses]}
 
 
 def _listed(subjects: dict[str, None], cap: int | None) -> str:

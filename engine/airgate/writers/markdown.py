@@ -188,7 +188,20 @@ def _report(report: Report, level: str = "###", gate: str | None = None) -> list
         out += [f"**{md(gate)}**", ""]
     out += (_systems_table(report) + [""] + _conditions_table(report) + _exhaust_table(report)
             + _failing(report) + _declared(report)
-            + _waived(report) + _notes(report))
+            + _waived(report) + review_table(report.review) + _notes(report))
+    return out
+
+
+def review_table(statuses) -> list[str]:
+    """The reviewer's record as a table (nothing without one)."""
+    if not statuses:
+        return []
+    out = ["", f"#### {md(shared.review_title(statuses))}", "",
+           "| " + " | ".join(shared.REVIEW_HEAD) + " |", "|" + "---|" * len(shared.REVIEW_HEAD)]
+    for s in statuses:
+        cells = [md(c) for c in shared.comment_cells(s)]
+        cells[-1] = f"**{cells[-1]}**" if s.to_close else cells[-1]
+        out.append("| " + " | ".join(cells) + " |")
     return out
 
 

@@ -188,3 +188,23 @@ def gate_line(batch) -> str | None:
         return None
     return (f"Gate (--fail-on {batch.fail_on_label}): {batch.gate.upper()}, the outcome the "
             "exit status gives")
+
+
+#: the columns of the reviewer's record, in every writer that shows it
+REVIEW_HEAD = ("ref", "subject", "rule", "status", "reviewer", "date", "comment", "response",
+               "finding now")
+
+
+def comment_cells(s) -> list[str]:
+    """One comment of the reviewer's record (a ``CommentStatus``) as the cells of
+    :data:`REVIEW_HEAD`, plain text."""
+    c = s.entry.comment
+    return [c.id or "–", c.subject, c.rule, c.status, c.reviewer, c.date.isoformat(), c.comment,
+            c.response or "–", s.state]
+
+
+def review_title(statuses) -> str:
+    """``Reviewer's record — 3 comments, 1 ready to close``."""
+    ready = sum(1 for s in statuses if s.to_close)
+    return (f"Reviewer's record — {formatting.count(len(statuses), 'comment')}"
+            + (f", {ready} ready to close" if ready else ""))

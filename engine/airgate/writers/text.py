@@ -21,6 +21,20 @@ def clean(text: object) -> str:
     return terminal(text)
 
 
+def review_lines(statuses) -> list[str]:
+    """The reviewer's record: each comment, its response and what its finding is now."""
+    if not statuses:
+        return []
+    out = [shared.review_title(statuses)]
+    for s in statuses:
+        ref, subject, rule, status, reviewer, day, comment, response, now = map(
+            clean, shared.comment_cells(s))
+        out += [f"    {ref}  {subject}  {rule}  [{status}]  {reviewer}, {day}",
+                f"        comment : {comment}", f"        response: {response}",
+                f"        now     : {now}"]
+    return out + [""]
+
+
 def _num(trail, symbol: str, system: str) -> str:
     if symbol not in trail:
         return "–"
@@ -254,6 +268,7 @@ def render(report: Report, gate: str | None = None) -> str:
     out.append("")
     out += _declared(report)
     out += _waivers(report)
+    out += review_lines(report.review)
     failing = sum(1 for s in report.systems if s.verdict == "fail")
     out.append(f"Result: {report.verdict.upper()} — {failing} of "
                f"{count(len(report.systems), 'system')} fail; {c['fail']} failing, {c['warning']} warning, {c['info']} info findings.")
