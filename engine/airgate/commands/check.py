@@ -40,8 +40,27 @@ def is_report(path: Path) -> bool:
         return False  # read (and refused, located) as a schedule
 
 
-def register(sub) -> None:
+def add_judgement(parser, applies_to: str, review: str, failing: str, judged: str = "") -> None:
+    """The options that judge an evaluation, spelled alike by ``check`` and ``compare``:
+    ``--waivers``, ``--as-of``, ``--review``, ``--fail-on`` and ``--exit-zero``."""
     from airgate.evaluation.gate import FAIL_ON
+
+    parser.add_argument("--waivers", action="append", default=[], metavar="FILE",
+                        help=f"a waivers file applied to {applies_to} (repeatable)")
+    parser.add_argument("--as-of", metavar="YYYY-MM-DD",
+                        help="judge waiver expiry on this date (default: today)")
+    parser.add_argument("--review", metavar="FILE", help=f"a reviewer's record: {review}")
+    parser.add_argument("--fail-on", choices=FAIL_ON, action="append",
+                        metavar="{" + ",".join(FAIL_ON) + "}",
+                        help=f"what fails the run, repeatable: {', '.join(FAIL_ON)} (default "
+                             f"{FAIL_ON[0]}: a failing code finding; warning: also warnings and "
+                             "stale waivers; declared: also limits the schedule declares for "
+                             f"itself and misses){judged}")
+    parser.add_argument("--exit-zero", action="store_true",
+                        help=f"exit 0 even when {failing} (input errors still exit 2)")
+
+
+def register(sub) -> None:
     from airgate.writers.formats import FORMATS
 
     c = sub.add_parser("check", help="evaluate schedules and report findings",
@@ -57,20 +76,8 @@ def register(sub) -> None:
                    help=f"report format: {', '.join(FORMATS)} (default: {next(iter(FORMATS))}); "
                         "NAME:FILE writes it to FILE; repeatable, one evaluation for all")
     add_output(c, "file for the one --format given without a file (default: standard output)")
-    c.add_argument("--waivers", action="append", default=[], metavar="FILE",
-                   help="a waivers file applied to every schedule (repeatable)")
-    c.add_argument("--as-of", metavar="YYYY-MM-DD",
-                   help="judge waiver expiry on this date (default: today)")
-    add_review(c, "a reviewer's record: comments on findings, shown in the text, Markdown and "
-                  "HTML reports against what each finding is now (one schedule)")
-    c.add_argument("--fail-on", choices=FAIL_ON, action="append",
-                   metavar="{" + ",".join(FAIL_ON) + "}",
-                   help=f"what fails the run, repeatable: {', '.join(FAIL_ON)} (default "
-                        f"{FAIL_ON[0]}: a failing code finding; warning: also warnings and "
-                        "stale waivers; declared: also limits the schedule declares for itself "
-                        "and misses)")
-    c.add_argument("--exit-zero", action="store_true",
-                   help="exit 0 even when findings fail (input errors still exit 2)")
+    add_judgement(c, "every schedule", "comments on findings, shown in the text, Markdown and "
+                  "HTML reports against what each finding is now (one schedule)", "findings fail")
     c.add_argument("--series-step", type=int, default=0, metavar="MINUTES",
                    help="JSON: include each zone's design-day CO2 series at this step")
 
@@ -157,11 +164,6 @@ def waiver_entries(paths: list[str]):
         if loaded is not None:
             entries += from_file(loaded, where)
     return entries, errors
-
-
-def add_review(parser, what: str) -> None:
-    """``--review FILE``: a reviewer's record (docs/review.md)."""
-    parser.add_argument("--review", metavar="FILE", help=what)
 
 
 def review_entries(path: str | None):

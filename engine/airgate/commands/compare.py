@@ -10,46 +10,34 @@ import argparse
 import math
 from pathlib import Path
 
-from airgate.commands.check import add_review, as_of_date, review_entries, waiver_entries
-from airgate.commands.common import add_output, add_rules, input_suffixes
+from airgate.commands.check import add_judgement, as_of_date, review_entries, waiver_entries
+from airgate.commands.common import add_format, add_output, add_rules, input_suffixes
 from airgate.errors import (EXIT_FAIL, EXIT_PASS, AirgateError, ErrorGroup, ScheduleError,
                             UsageError, raise_all)
 from airgate.readers import document
 
+HELP = "what changed between two revisions of a schedule"
+DESCRIPTION = ("Evaluate two revisions of a schedule and list what changed: verdicts, inputs "
+               "(with the line in each file), values that moved beyond a tolerance, findings "
+               "resolved and new. The exit status is that of 'check' on NEW.")
+
 
 def register(sub) -> None:
     from airgate.evaluation.compare import DEFAULT_TOLERANCE
-    from airgate.evaluation.gate import FAIL_ON
     from airgate.writers.formats import COMPARE_FORMATS
 
-    c = sub.add_parser("compare", help="what changed between two revisions of a schedule",
-                       description="Evaluate two revisions of a schedule and list what changed: "
-                                   "verdicts, inputs (with the line in each file), values that "
-                                   "moved beyond a tolerance, findings resolved and new. The "
-                                   "exit status is that of 'check' on NEW.")
+    c = sub.add_parser("compare", help=HELP, description=DESCRIPTION)
     c.add_argument("old", metavar="OLD", help=f"the earlier schedule ({input_suffixes()})")
     c.add_argument("new", metavar="NEW", help="the revised schedule")
     add_rules(c, help="rule pack id or path for both (overrides each schedule's 'rules:')")
-    c.add_argument("--format", choices=list(COMPARE_FORMATS), default=next(iter(COMPARE_FORMATS)),
-                   help=f"output format: {', '.join(COMPARE_FORMATS)} "
-                        f"(default: {next(iter(COMPARE_FORMATS))})")
+    add_format(c, list(COMPARE_FORMATS), next(iter(COMPARE_FORMATS)))
     add_output(c)
     c.add_argument("--tolerance", type=float, default=DEFAULT_TOLERANCE * 100,
                    metavar="PERCENT",
                    help="list a value when it moved by more than this share of itself "
                         f"(default: {DEFAULT_TOLERANCE * 100:g} %%)")
-    c.add_argument("--waivers", action="append", default=[], metavar="FILE",
-                   help="a waivers file applied to both schedules (repeatable)")
-    c.add_argument("--as-of", metavar="YYYY-MM-DD",
-                   help="judge waiver expiry on this date (default: today)")
-    add_review(c, "a reviewer's record: each comment against NEW, those whose finding was "
-                  "resolved flagged for closing")
-    c.add_argument("--fail-on", choices=FAIL_ON, action="append",
-                   metavar="{" + ",".join(FAIL_ON) + "}",
-                   help=f"what fails the run, repeatable: {', '.join(FAIL_ON)} (as for check, "
-                        "judged on NEW)")
-    c.add_argument("--exit-zero", action="store_true",
-                   help="exit 0 even when NEW fails (input errors still exit 2)")
+    add_judgement(c, "both schedules", "each comment against NEW, those whose finding was "
+                  "resolved flagged for closing", "NEW fails", "; judged on NEW")
 
 
 def run(args: argparse.Namespace) -> int:

@@ -7,23 +7,17 @@ and on which day. What each comment's finding has become is :mod:`airgate.evalua
 
 from __future__ import annotations
 
-import datetime as dt
-from typing import Annotated, Literal
+from typing import Literal
 
-from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, WithJsonSchema
+from pydantic import BaseModel, ConfigDict, Field
 
-from airgate.models.waivers import Subject, _iso_date
+from airgate.models.waivers import Subject, iso_date
 
 #: a comment's status, as the reviewer sets it: open (awaiting a response), responded (the
 #: designer answered; the reviewer has not closed it), closed
 STATUSES = ("open", "responded", "closed")
 
-Day = Annotated[
-    dt.date,
-    BeforeValidator(_iso_date),
-    WithJsonSchema({"type": "string", "format": "date",
-                    "description": "The day the comment was written, YYYY-MM-DD. [–]"}),
-]
+Day = iso_date("The day the comment was written, YYYY-MM-DD. [–]")
 
 
 class Comment(BaseModel):

@@ -46,12 +46,14 @@ Subject = Annotated[
     Field(min_length=1, max_length=401, pattern=_SUBJECT_PATTERN, description=_SUBJECT_TEXT),
 ]
 
-ExpiryDate = Annotated[
-    dt.date,
-    BeforeValidator(_iso_date),
-    WithJsonSchema({"type": "string", "format": "date",
-                    "description": "Last day the waiver applies, YYYY-MM-DD. [–]"}),
-]
+def iso_date(description: str) -> Any:
+    """A date field written as text ``YYYY-MM-DD``, published as a string of format date."""
+    return Annotated[dt.date, BeforeValidator(_iso_date),
+                     WithJsonSchema({"type": "string", "format": "date",
+                                     "description": description})]
+
+
+ExpiryDate = iso_date("Last day the waiver applies, YYYY-MM-DD. [–]")
 
 
 class Waiver(BaseModel):

@@ -11,6 +11,7 @@ JSON, compare version 1 (docs/compare.md)::
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from typing import Any
 
 from airgate import __version__, formatting
@@ -70,86 +71,91 @@ def result_line(cmp: Comparison, batch) -> str:
     return line + (f"; {gate}" if gate else "")
 
 
-# ----------------------------------------------------------------------------- text
-def text(cmp: Comparison, batch) -> str:
-    from airgate.writers.text import clean
+@dataclass(frozen=True)
+class Section:
+    """One table of the comparison, as plain text cells (each writer escapes and lays it out)."""
 
+    id: str
+    title: str
+    head: tuple[str, ...]
+    rows: list[list[str]]
+    #: each row's mark: the verdict or severity it reads as (``fail``, ``pass``) or ``""``
+    marks: list[str]
+
+
+def _finding_rows(found: list[Finding]) -> list[list[str]]:
+    return [[f.severity.upper() if f.severity == "fail" else f.severity, f.rule, f.subject,
+             f.message] for f in found]
+
+
+def sections(cmp: Comparison) -> list[Section]:
+    """The tables every format shows, in order."""
     u = cmp.new.units
-    out = [f"airgate {__version__} — comparison of two schedule revisions",
-           f"old : {clean(cmp.old.schedule_file)} — {verdict_word(cmp.old.verdict)} "
-           f"({clean(cmp.old.pack.id)})",
-           f"new : {clean(cmp.new.schedule_file)} — {verdict_word(cmp.new.verdict)} "
-           f"({clean(cmp.new.pack.id)})", ""]
-
-    def table(title: str, head: list[str], rows: list[list[str]]) -> None:
-        out.append(f"{title} ({len(rows)})")
-        if not rows:
-            out.extend(["  none", ""])
-            return
-        rows = [head] + [[clean(c) for c in r] for r in rows]
-        widths = [max(len(r[i]) for r in rows) for i in range(len(head) - 1)]
-        for r in rows:
-            out.append("  " + "  ".join(c.ljust(w) for c, w in zip(r, widths)) + "  " + r[-1])
-        out.append("")
-
-    table("Verdicts that changed", ["subject", "old", "new"],
-          [[c.subject, verdict_word(c.old), verdict_word(c.new)] for c in cmp.verdicts])
-    table("Inputs that changed", ["subject", "field", "old", "new", "where (old → new)"],
-          [[c.subject, field_name(c), cut(c.old), cut(c.new),
-            f"{at(c.old_at)} → {at(c.new_at)}"] for c in cmp.inputs])
-    table(f"Values that moved by more than {tolerance_text(cmp)}",
-          ["subject", "value", "old", "new", "change"],
-          [[c.subject, c.symbol, *value_cells(c, u)] for c in cmp.values])
-    for title, found, report in (("Findings resolved", cmp.resolved, cmp.old),
-                                 ("New findings", cmp.added, cmp.new)):
-        table(title, ["severity", "rule", "subject", "message"],
-              [[f.severity.upper() if f.severity == "fail" else f.severity, f.rule, f.subject,
-                f.message] for f in found])
-    from airgate.writers.text import review_lines
-
-    out += review_lines(cmp.review)
-    out += [result_line(cmp, batch), "", "Cautions"]
-    out += [f"  - {clean(c)}" for c in cautions(cmp)[:1]]
-    return "\n".join(out) + "\n"
+    finding_head = ("severity", "rule", "subject", "message")
+    return [
+        Section("verdicts", "Verdicts that changed", ("subject", "old", "new"),
+                [[c.subject, verdict_word(c.old), verdict_word(c.new)] for c in cmp.verdicts],
+                [c.new or "" for c in cmp.verdicts]),
+        Section("inputs", "Inputs that changed",
+                ("subject", "field", "old", "new", "where (old → new)"),
+                [[c.subject, field_name(c), cut(c.old), cut(c.new),
+                  f"{at(c.old_at)} → {at(c.new_at)}"] for c in cmp.inputs],
+                [""] * len(cmp.inputs)),
+        Section("values", f"Values that moved by more than {tolerance_text(cmp)}",
+                ("subject", "value", "old", "new", "change"),
+                [[c.subject, c.symbol, *value_cells(c, u)] for c in cmp.values],
+                [""] * len(cmp.values)),
+        Section("resolved", "Findings resolved", finding_head, _finding_rows(cmp.resolved),
+                ["pass"] * len(cmp.resolved)),
+        Section("new", "New findings", finding_head, _finding_rows(cmp.added),
+                ["fail" if f.severity == "fail" else "" for f in cmp.added]),
+    ]
 
 
 def at(loc: Location | None) -> str:
     return "–" if loc is None else str(loc)
 
 
+# ----------------------------------------------------------------------------- text
+def text(cmp: Comparison, batch) -> str:
+    from airgate.writers.text import clean, review_lines
+
+    out = [f"airgate {__version__} — comparison of two schedule revisions",
+           f"old : {clean(cmp.old.schedule_file)} — {verdict_word(cmp.old.verdict)} "
+           f"({clean(cmp.old.pack.id)})",
+           f"new : {clean(cmp.new.schedule_file)} — {verdict_word(cmp.new.verdict)} "
+           f"({clean(cmp.new.pack.id)})", ""]
+    for t in sections(cmp):
+        out.append(f"{t.title} ({len(t.rows)})")
+        if not t.rows:
+            out.extend(["  none", ""])
+            continue
+        rows = [list(t.head)] + [[clean(c) for c in r] for r in t.rows]
+        widths = [max(len(r[i]) for r in rows) for i in range(len(t.head) - 1)]
+        out += ["  " + "  ".join(c.ljust(w) for c, w in zip(r, widths)) + "  " + r[-1]
+                for r in rows]
+        out.append("")
+    out += review_lines(cmp.review)
+    out += [result_line(cmp, batch), "", "Cautions"]
+    out += [f"  - {clean(c)}" for c in cautions(cmp)[:1]]
+    return "\n".join(out) + "\n"
+
+
 # ----------------------------------------------------------------------------- Markdown
 def markdown(cmp: Comparison, batch) -> str:
-    from airgate.writers.markdown import md
+    from airgate.writers.markdown import md, review_table
 
-    u = cmp.new.units
     out = [f"### airgate compare: {md(cmp.new.project_name)} — "
            f"{verdict_word(cmp.old.verdict)} → **{verdict_word(cmp.new.verdict)}**", "",
            f"Old: {md(cmp.old.schedule_file)} · new: {md(cmp.new.schedule_file)}", ""]
-
-    def table(title: str, head: list[str], rows: list[list[str]]) -> None:
-        out.append(f"#### {title} ({len(rows)})")
+    for t in sections(cmp):
+        out += [f"#### {t.title} ({len(t.rows)})", ""]
+        if not t.rows:
+            out += ["None.", ""]
+            continue
+        out += ["| " + " | ".join(t.head) + " |", "|" + "---|" * len(t.head)]
+        out += ["| " + " | ".join(md(c) for c in r) + " |" for r in t.rows]
         out.append("")
-        if not rows:
-            out.extend(["None.", ""])
-            return
-        out.append("| " + " | ".join(head) + " |")
-        out.append("|" + "---|" * len(head))
-        out.extend("| " + " | ".join(md(c) for c in r) + " |" for r in rows)
-        out.append("")
-
-    table("Verdicts that changed", ["subject", "old", "new"],
-          [[c.subject, verdict_word(c.old), verdict_word(c.new)] for c in cmp.verdicts])
-    table("Inputs that changed", ["subject", "field", "old", "new", "where (old → new)"],
-          [[c.subject, field_name(c), cut(c.old), cut(c.new),
-            f"{at(c.old_at)} → {at(c.new_at)}"] for c in cmp.inputs])
-    table(f"Values that moved by more than {tolerance_text(cmp)}",
-          ["subject", "value", "old", "new", "change"],
-          [[c.subject, c.symbol, *value_cells(c, u)] for c in cmp.values])
-    for title, found in (("Findings resolved", cmp.resolved), ("New findings", cmp.added)):
-        table(title, ["severity", "rule", "subject", "message"],
-              [[f.severity, f.rule, f.subject, f.message] for f in found])
-    from airgate.writers.markdown import review_table
-
     out += review_table(cmp.review)[1:] + ([""] if cmp.review else [])
     out += [f"**{md(result_line(cmp, batch))}**", "", f"> {md(cautions(cmp)[0])}", ""]
     return "\n".join(out)

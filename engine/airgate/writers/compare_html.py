@@ -10,36 +10,10 @@ from airgate.writers import compare as words
 from airgate.writers.html import environment, review_view
 
 
-def _mark(old: str | None, new: str | None) -> str:
-    """The row class: a verdict that now fails reads as a failure, one that now passes as a pass."""
-    return {"fail": "fail", "pass": "pass"}.get(new or "", "") if old != new else ""
-
-
 def render(cmp: Comparison, batch) -> str:
-    u = cmp.new.units
-    tables = [
-        {"id": "verdicts", "title": "Verdicts that changed", "head": ["subject", "old", "new"],
-         "rows": [{"mark": _mark(c.old, c.new),
-                   "cells": [c.subject, words.verdict_word(c.old), words.verdict_word(c.new)]}
-                  for c in cmp.verdicts]},
-        {"id": "inputs", "title": "Inputs that changed",
-         "head": ["subject", "field", "old", "new", "where (old → new)"],
-         "rows": [{"mark": "", "cells": [c.subject, words.field_name(c), words.cut(c.old),
-                                         words.cut(c.new),
-                                         f"{words.at(c.old_at)} → {words.at(c.new_at)}"]}
-                  for c in cmp.inputs]},
-        {"id": "values", "title": f"Values that moved by more than {words.tolerance_text(cmp)}",
-         "head": ["subject", "value", "old", "new", "change"],
-         "rows": [{"mark": "", "cells": [c.subject, c.symbol, *words.value_cells(c, u)]}
-                  for c in cmp.values]},
-        {"id": "resolved", "title": "Findings resolved",
-         "head": ["severity", "rule", "subject", "message"],
-         "rows": [{"mark": "pass", "cells": [f.severity, f.rule, f.subject, f.message]}
-                  for f in cmp.resolved]},
-        {"id": "new", "title": "New findings", "head": ["severity", "rule", "subject", "message"],
-         "rows": [{"mark": f.severity if f.severity == "fail" else "",
-                   "cells": [f.severity, f.rule, f.subject, f.message]} for f in cmp.added]},
-    ]
+    tables = [{"id": t.id, "title": t.title, "head": t.head,
+               "rows": [{"mark": m, "cells": r} for r, m in zip(t.rows, t.marks)]}
+              for t in words.sections(cmp)]
     side = (lambda r: {"file": r.schedule_file, "rules": r.pack.id, "verdict": r.verdict,
                        "word": words.verdict_word(r.verdict)})
     return environment().get_template("compare.html.j2").render(
