@@ -5,8 +5,8 @@ Not a test. Run from the repository root:
     PYTHONPATH=engine python bench/bench_portfolio.py            # 1,000 and 10,000 zones
     PYTHONPATH=engine python bench/bench_portfolio.py 100000     # add sizes as arguments
 
-The portfolio is the invented demo building (fixtures/demo/fernhollow-civic-centre.yaml: 14
-zones on 3 systems, with occupancy profiles, an aerosol contaminant, a filter and an air
+The portfolio is the invented demo building (fixtures/demo/fernhollow-civic-centre.yaml: 17
+zones on 4 systems, with occupancy profiles, an aerosol contaminant, a filter and an air
 cleaner) repeated with renamed systems and zones until it holds at least N zones, written to
 one YAML schedule. Each size runs in a fresh process (``airgate check FILE --format text:…
 --format json:…``) so that start-up and peak memory are its own. Printed, all from this one
@@ -60,6 +60,9 @@ def portfolio(n_zones: int) -> dict:
             s["id"] = f"{system['id']}-{copy_no}"
             for zone in s["zones"]:
                 zone["id"] = f"{zone['id']}-{copy_no}"
+                makeup = (zone.get("exhaust") or {}).get("makeup")
+                if isinstance(makeup, dict):  # transferred from a zone of the same copy
+                    makeup["transfer_from"] = f"{makeup['transfer_from']}-{copy_no}"
             count += len(s["zones"])
             systems.append(s)
         copy_no += 1

@@ -35,6 +35,10 @@ KNOWN_CHECKS: dict[str, str] = {
                                  "openings are permanently open or the zone is unconditioned",
     "zone-exhaust": "a zone's scheduled exhaust airflow ≥ the minimum exhaust rate of its row",
     "exhaust-fan-airflow": "an exhaust fan's scheduled airflow ≥ the exhaust its zones schedule",
+    "makeup-transfer-class": "air transferred to an exhausted zone as makeup may be transferred "
+                             "there by its air class",
+    "makeup-transfer-use": "class 2 makeup air goes to a class 2 or 3 space of another use only "
+                           "where the uses are the same or similar",
 }
 
 #: check id → what it verifies, for limits the schedule declares (never listed in a pack)

@@ -72,12 +72,21 @@ def _system_checks(system: System, result: SystemResult) -> Iterator[tuple]:
         yield "air-class-mixing", (), None, None
 
 
+def _exhaust_checks(z: ZoneResult) -> Iterator[tuple]:
+    """A zone's exhaust against its row; the class of makeup air transferred to it."""
+    zt = z.trail
+    yield ("zone-exhaust", ("exhaust", "airflow"), _amount(_value(zt, "Ve"), "airflow"),
+           _amount(_value(zt, "Ve_design"), "airflow"))
+    if getattr(z.makeup, "source", None) == "transfer":
+        for rule in ("makeup-transfer-class", "makeup-transfer-use"):
+            yield rule, ("exhaust", "makeup", "transfer_from"), None, None
+
+
 def _zone_checks(system: System, z: ZoneResult, result: SystemResult,
                  pack: RulePack) -> Iterator[tuple]:
     zt = z.trail
     if not kind_of(system).supplies:  # an exhaust fan's zone: its exhaust only
-        yield ("zone-exhaust", ("exhaust", "airflow"), _amount(_value(zt, "Ve"), "airflow"),
-               _amount(_value(zt, "Ve_design"), "airflow"))
+        yield from _exhaust_checks(z)
         return
     yield "space-without-rates", (), None, None
     if kind_of(system).intake:
@@ -87,8 +96,7 @@ def _zone_checks(system: System, z: ZoneResult, result: SystemResult,
     if system.is_recirculating:
         yield "air-class-recirculation", (), None, None
     if "Ve" in zt:
-        yield ("zone-exhaust", ("exhaust", "airflow"), _amount(_value(zt, "Ve"), "airflow"),
-               _amount(_value(zt, "Ve_design"), "airflow"))
+        yield from _exhaust_checks(z)
     limits = [z.dilution] if z.dilution is not None else []
     limits += list(z.contaminants.values())
     if any("C_limit" in t for t in limits):

@@ -17,6 +17,7 @@ from airgate.evaluation import (
     coverage,
     dilution,
     exhaust,
+    makeup,
     systems,
     waivers,
 )
@@ -81,6 +82,7 @@ def _bind_all(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
                                             exhaust=exhaust_row))
         out.append(by_condition)
         errors.extend(kind_of(stated).check_inputs(loaded, pack, i))
+    errors.extend(makeup.check_inputs(loaded))
     raise_all(errors)
     return out
 
@@ -174,6 +176,8 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
         conditions.tag(emitter.findings, start, result.condition)
         results.append(result)
     model = loaded.model.model_copy(update={"systems": governed})
+    makeup_notes = makeup.check(loaded, pack, results, emitter,
+                                lambda path: _location(loaded, path))
     findings = sorted(emitter.findings, key=lambda f: f.sort_key())
     findings, statuses, waiver_date = waivers.review(findings, entries, pack, results, as_of)
     _verdicts(results, findings)
@@ -183,6 +187,7 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
     notes += dilution.unchecked_limits(model, results,
                                        lambda path: str(_location(loaded, path)))
     notes += [f"{s.id}: {note}" for s in results for note in s.notes]
+    notes += makeup_notes
     if pack.units != units:
         notes.append(f"The schedule is in {units} units and rule pack {pack.id} in {pack.units}; "
                      "the pack's table values were converted exactly (1 cfm = 0.471947 L/s, "

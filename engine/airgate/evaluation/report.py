@@ -42,6 +42,9 @@ class ZoneResult:
     #: the exhaust table row the zone's exhaust was checked against (its trail holds Ve and
     #: Ve_design); None: the zone states no exhaust
     exhaust: str | None = None
+    #: where the zone's makeup air comes from (``evaluation.makeup.Makeup``); None: the zone
+    #: states no exhaust, or not where its makeup comes from
+    makeup: object | None = None
 
 
 @dataclass

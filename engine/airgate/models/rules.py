@@ -146,6 +146,8 @@ class ExhaustRow:
     printed: dict[str, float] = field(default_factory=dict)
     #: provenance of single values where it differs from the row's
     value_provenance: dict[str, str] = field(default_factory=dict)
+    #: a toilet room: class 2 air may be transferred to it (62.1-2019 Section 5.16.3.2)
+    toilet_room: bool = False
 
     @property
     def per_area(self) -> bool:

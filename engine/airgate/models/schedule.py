@@ -239,6 +239,13 @@ def _fixture_count(value: Any) -> Any:
     return value
 
 
+class MakeupTransfer(_Model):
+    """Makeup air transferred from another zone of the schedule."""
+
+    transfer_from: Id = Field(description="Id of the zone the makeup air is transferred from "
+                                          "(its air class decides whether it may be). [–]")
+
+
 class ZoneExhaust(_Model):
     """Air exhausted from a zone, checked against a row of the pack's minimum exhaust rates."""
 
@@ -250,6 +257,10 @@ class ZoneExhaust(_Model):
     operation: Literal["continuous", "intermittent"] = Field(
         "continuous", description="The exhaust runs continuously, or only while the space is "
                                   "in use (the row's intermittent rate). [–]")
+    makeup: Literal["outdoor"] | MakeupTransfer | None = Field(
+        None, description="Where the exhausted air's makeup comes from: 'outdoor' (outdoor "
+                          "air) or {transfer_from: ZONE} (air transferred from another zone, "
+                          "checked against the air-class rules). [–]")
 
 
 class Zone(_Model):

@@ -117,6 +117,7 @@ ZONE_COLUMNS = (
     Column("exhaust.airflow", "Exhaust airflow", "quantity", "airflow"),
     Column("exhaust.fixtures", "Exhaust fixtures", "integer"),
     Column("exhaust.operation", "Exhaust operation", "text"),
+    Column("exhaust.makeup", "Exhaust makeup", "value", aliases=("makeup air",)),
     Column("notes", "Notes", "text"),
 )
 

@@ -260,7 +260,8 @@ def _exhaust(doc: Any, data: dict[str, Any], system: str) -> dict[str, ExhaustRo
             rates={k: units.to_internal(v, kind, system) for k, v in printed.items()},
             air_class=row["air_class"], provenance=row.get("provenance", ex["provenance"]),
             source=_source(row.get("source"), data, table_source), notes=row.get("notes", ""),
-            printed=printed, value_provenance=dict(row.get("value_provenance", {})))
+            printed=printed, value_provenance=dict(row.get("value_provenance", {})),
+            toilet_room=row.get("toilet_room", False))
     return out
 
 

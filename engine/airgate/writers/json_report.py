@@ -81,7 +81,7 @@ def _dilution(z: ZoneResult, system: str, step_minutes: int) -> dict[str, Any] |
 
 
 def _zone(z: ZoneResult, system: str, step_minutes: int = 0) -> dict[str, Any]:
-    return {
+    out = {
         "id": z.id, "name": z.name, "space": z.space, "space_label": z.space_label,
         "air_class": z.air_class, "verdict": z.verdict, "values": _values(z.trail, system),
         "location": _location(z.location), "trail": _trail(z.trail, system),
@@ -89,6 +89,11 @@ def _zone(z: ZoneResult, system: str, step_minutes: int = 0) -> dict[str, Any]:
         "contaminants": {cid: {"values": _values(t, system), "trail": _trail(t, system)}
                          for cid, t in sorted(z.contaminants.items())},
     }
+    if z.makeup is not None:  # only an exhausted zone that states its makeup
+        m = z.makeup
+        out["makeup"] = ({"from": "outdoor"} if m.source == "outdoor" else
+                         {"from": m.source, "zone": m.zone, "air_class": m.air_class})
+    return out
 
 
 def _system(s: SystemResult, system: str, step_minutes: int = 0,

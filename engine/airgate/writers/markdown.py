@@ -97,11 +97,11 @@ def _exhaust_table(report: Report) -> list[str]:
     fans = [f"- {md(s.id)}: {md(shared.fan_line(s, report.units))}" for s in report.systems
             if not s.supplies]
     out = ["Exhaust (minimum exhaust rates):", "", *fans, *([""] if fans else []),
-           "| zone | exhaust category | fixtures | required Ve | scheduled | margin |",
-           "|---|---|---:|---:|---:|---:|"]
-    for s, (zone, category, count, req, prov, mar) in rows:
+           "| zone | exhaust category | fixtures | required Ve | scheduled | margin | makeup |",
+           "|---|---|---:|---:|---:|---:|---|"]
+    for s, (zone, category, count, req, prov, mar, made) in rows:
         out.append(f"| {md(s.id)}/{md(zone)} | {md(category)} | {count} | {md(req)} | "
-                   f"{md(prov)} | {md(mar)} |")
+                   f"{md(prov)} | {md(mar)} | {md(made)} |")
     return out + [""]
 
 

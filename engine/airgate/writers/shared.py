@@ -21,9 +21,10 @@ from airgate.models.rules import RulePack
 STATE_LABEL = {"applied": "applied", "expired": "EXPIRED", "unmatched": "UNMATCHED"}
 
 
-def exhaust_rows(s: SystemResult, units: str) -> list[tuple[str, str, str, str, str, str]]:
+def exhaust_rows(s: SystemResult, units: str) -> list[tuple[str, ...]]:
     """The zones of ``s`` with exhaust: zone id, exhaust row id, units counted (``–`` for a
-    per-area row), required ``Ve``, scheduled ``Ve_design`` and the margin, as evaluated."""
+    per-area row), required ``Ve``, scheduled ``Ve_design``, the margin, as evaluated, and
+    where the makeup air comes from (``–``: not stated)."""
     out = []
     for z in s.zones:
         if z.exhaust is None:
@@ -32,7 +33,7 @@ def exhaust_rows(s: SystemResult, units: str) -> list[tuple[str, str, str, str, 
         req, prov = Amount(t.value("Ve"), "airflow"), Amount(t.value("Ve_design"), "airflow")
         count = formatting.number(t.value("Ne"), "count") if "Ne" in t else "–"
         out.append((z.id, z.exhaust, count, amount(req, units), amount(prov, units),
-                    margin(req, prov, units)))
+                    margin(req, prov, units), z.makeup.text() if z.makeup is not None else "–"))
     return out
 
 

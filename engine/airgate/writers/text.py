@@ -142,7 +142,7 @@ def _exhaust_rows(s: SystemResult, system: str) -> list[str]:
     rows = shared.exhaust_rows(s, system)
     if not rows:
         return []
-    head = ["zone", "exhaust category", "Ne", "required Ve", "scheduled", "margin"]
+    head = ["zone", "exhaust category", "Ne", "required Ve", "scheduled", "margin", "makeup"]
     return (["", "    exhaust (minimum exhaust rates; Ne: fixtures counted)"]
             + _table([head] + [[clean(c) for c in r] for r in rows], right={2, 3, 4, 5}))
 
