@@ -98,7 +98,9 @@ def _table(key: str, records: list[dict[str, Any]], system: str, every: bool,
             slots.append((c, None))
         slots += [(c, condition) for condition in shown]
     rows = [[F.header_label(c, system, condition) for c, condition in slots]]
-    rows += [[_cell(c, _at(r.get(c.field), condition), system) for c, condition in slots]
+    per_condition = set(F.CONDITION_FIELDS.get(F.TABLE_LEVELS.get(key, ""), ()))
+    rows += [[_cell(c, _at(r.get(c.field), condition) if c.field in per_condition
+                    else r.get(c.field), system) for c, condition in slots]
              for r in records]
     return rows
 
