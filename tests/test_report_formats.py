@@ -246,7 +246,8 @@ def test_several_formats_at_once(capsys, monkeypatch, tmp_path):
 
 
 @pytest.mark.parametrize("argv, text", [
-    (["--format", "pdf"], "unknown report format 'pdf'"),
+    (["--format", "docx"], "unknown report format 'docx'"),
+    (["--format", "pdf"], "the pdf format is written to a file"),
     (["--format", "json", "--format", "text"], "at most one format can go to standard output"),
     (["--format", "json:"], "give a file after the colon"),
     (["--format", "json:a.json", "--format", "sarif:a.json"], "same file"),

@@ -105,6 +105,14 @@ def _destinations(args: argparse.Namespace) -> list[tuple[str, str | None]]:
                              hint="write each as --format NAME:FILE")
         out[bare[0]] = (out[bare[0]][0], args.output)
     out = [(name, None if d == "-" else d) for name, d in out]  # '-': standard output
+    for name, d in out:
+        if FORMATS[name].binary and d is None:
+            raise UsageError(f"the {name} format is written to a file", field=("--format",),
+                             hint=f"e.g. --format {name}:report{FORMATS[name].extension}")
+    if any(name == "pdf" for name, _ in out):
+        from airgate.writers.pdf import chromium
+
+        chromium()  # missing: said now, before anything is evaluated
     to_stdout = [name for name, d in out if d is None]
     if len(to_stdout) > 1:
         raise UsageError("at most one format can go to standard output; "

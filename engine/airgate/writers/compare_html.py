@@ -4,7 +4,7 @@ what :mod:`airgate.evaluation.compare` worked out; it computes nothing."""
 
 from __future__ import annotations
 
-from airgate import __version__
+from airgate import __version__, units
 from airgate.evaluation.compare import Comparison
 from airgate.writers import compare as words
 from airgate.writers.html import environment, review_view
@@ -20,4 +20,4 @@ def render(cmp: Comparison, batch) -> str:
         version=__version__, title=f"airgate compare — {cmp.new.project_name}",
         project=cmp.new.project_name, old=side(cmp.old), new=side(cmp.new),
         result=words.result_line(cmp, batch), tables=tables, review=review_view(cmp.review),
-        cautions=words.cautions(cmp))
+        cautions=words.cautions(cmp), paper="letter" if cmp.new.units == units.IP else "A4")

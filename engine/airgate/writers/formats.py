@@ -3,7 +3,8 @@ schedules is written in each.
 
 text and markdown write each schedule's report in turn and close with a summary of the run; json
 writes a report object for one schedule and a batch wrapper around them for several; junit,
-sarif and html write one document for the whole run (docs/report-format.md).
+sarif and html write one document for the whole run, and pdf the html document printed
+(docs/report-format.md).
 
 :data:`FORMATS` is where ``--format`` takes its names (and its help) from. A new format is a
 writer module plus one :class:`ReportFormat` entry here. The writers are imported when a report
@@ -33,6 +34,8 @@ class ReportFormat:
     extension: str  #: the usual file extension (docs and the pre-commit example)
     #: ``(batch, series_step) → body``: the whole run, as text or pieces of text
     write: Callable[[Batch, int], Body]
+    #: bytes, not text: written to a file only (``--format NAME:FILE``)
+    binary: bool = False
 
 
 def _whole_run(module: str) -> Callable[[Batch, int], Body]:
@@ -106,6 +109,7 @@ FORMATS: dict[str, ReportFormat] = {f.name: f for f in (
     ReportFormat("sarif", ".sarif", _whole_run("sarif")),
     ReportFormat("markdown", ".md", _whole_run("markdown")),
     ReportFormat("html", ".html", _whole_run("html")),
+    ReportFormat("pdf", ".pdf", _whole_run("pdf"), binary=True),
 )}
 #: the usual file extension of each format
 EXTENSIONS = {name: f.extension for name, f in FORMATS.items()}

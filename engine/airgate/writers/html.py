@@ -465,7 +465,13 @@ def chunks(batch: Batch) -> Iterator[str]:
     return template.generate(
         version=__version__, title=title, overview=overview, articles=articles,
         links=[{"href": href, "text": text} for href, text in links],
-        cautions=batch.cautions())
+        cautions=batch.cautions(), paper=paper(batch))
+
+
+def paper(batch: Batch) -> str:
+    """The printed page: US letter for a run in I-P units, A4 otherwise (set in the page's print
+    stylesheet, so that printing does not depend on the printer's or the locale's default)."""
+    return "letter" if all(r.units == units.IP for r in batch.reports) else "A4"
 
 
 def render(batch: Batch) -> str:
