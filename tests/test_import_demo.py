@@ -15,8 +15,8 @@ from airgate.cli import main
 from airgate import check
 from airgate.readers.sources import read_any
 
-from importing import (DEMO_CSV, DEMO_GBXML, DEMO_YAML, comparable, demo_ifc, demo_xlsx,
-                       findings, gbxml_xsd, need)
+from importing import (DEMO_CSV, DEMO_DIR, DEMO_GBXML, DEMO_YAML, comparable, demo_ifc,
+                       demo_xlsx, findings, gbxml_xsd, need)
 
 
 @pytest.fixture(scope="module")
@@ -50,6 +50,25 @@ def test_committed_text_fixtures_are_what_the_generator_writes():
 
     for path, text in committed_files().items():
         assert path.read_text(encoding="utf-8") == text, f"{path.name}: rerun the generator"
+
+
+#: the samples a newcomer opens: the demo as a filled workbook and as an IFC model (committed)
+SAMPLES = {"xlsx": DEMO_DIR / "fernhollow-civic-centre.xlsx",
+           "ifc": DEMO_DIR / "fernhollow-civic-centre.ifc"}
+
+
+@pytest.mark.parametrize("fmt", SAMPLES)
+def test_committed_samples_are_in_step_with_the_yaml(sources, yaml_report, fmt):
+    """The committed workbook and model give the YAML demo's findings and figures, and read as
+    the schedule the generator writes from the YAML now (after changing the YAML, rerun
+    ``python fixtures/make_demo_imports.py``)."""
+    sample = SAMPLES[fmt]
+    fresh = _source(sources, fmt)
+    report = check(sample)
+    assert findings(report) == findings(yaml_report)
+    assert comparable(report) == comparable(yaml_report)
+    assert read_any(sample).model == read_any(fresh).model, \
+        f"{sample.name} is not what the generator writes: rerun fixtures/make_demo_imports.py"
 
 
 @pytest.mark.parametrize("fmt", FORMATS)
