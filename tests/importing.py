@@ -48,7 +48,8 @@ _AT = re.compile(r"^.+:\d+(:\d+)?$")
 def comparable(report, ignore_volume_origin: bool = False) -> dict:
     """The JSON report without what names the input file: locations, sources, notes.
 
-    Findings are sorted by rule and subject (their order follows file positions).
+    Findings are sorted by rule, subject and design condition (their order follows file
+    positions, and a format may hold one condition's value before the other's).
     """
     from airgate.writers import json_report
 
@@ -66,7 +67,8 @@ def comparable(report, ignore_volume_origin: bool = False) -> dict:
         return node
 
     data = strip(json.loads(json_report.render(report)))
-    data["findings"] = sorted(data["findings"], key=lambda f: (f["rule"], f["subject"]))
+    data["findings"] = sorted(data["findings"], key=lambda f: (f["rule"], f["subject"],
+                                                                  f.get("condition") or ""))
     return data
 
 

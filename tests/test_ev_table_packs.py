@@ -39,16 +39,20 @@ def test_interpolated_values(zp, ev):
 
 
 def test_the_demo_under_both_variants(evaluate):
-    # The demo's AHU-3 (invented) by the table method: largest Zp 0.620 (zone 203). Variant A:
-    # above 0.55, so the detailed calculation, Ev 0.609. Variant B: between 0.55 → 0.6 and
-    # 0.65 → 0.5, Ev = 0.6 − 0.1 × (0.620 − 0.55) / 0.1 = 0.530 (derived).
+    # The demo's AHU-3 (invented) by the table method, at each design condition. Cooling: largest
+    # Zp 186 / 600 = 0.310 (zone 203), within both tables: Ev = 0.9 − 0.1 × (0.310 − 0.25) / 0.1
+    # = 0.84 (derived, interpolated). Heating (Ez 0.8, 203 at its 300 cfm minimum): largest Zp
+    # 232.5 / 300 = 0.775, above both tables. Variant A sends it to the detailed calculation,
+    # Ev = 1 + Xs − Zp = 1 + 1366 / 4550 − 0.775 = 0.525; variant B gives Ev 0.3 above Zp 0.75.
     import yaml
 
     data = yaml.safe_load(DEMO.read_text(encoding="utf-8"))
     data["systems"][2]["ventilation_efficiency"] = "table"
-    for pack, ev in (("ashrae-62.1-2019-ev-table", 0.609), ("ashrae-62.1-2019-ev-table-extended",
-                                                             0.530)):
+    for pack, heating in (("ashrae-62.1-2019-ev-table", 0.525),
+                          ("ashrae-62.1-2019-ev-table-extended", 0.3)):
         report = evaluate(data, pack)
-        system = report.systems[2]
-        assert system.trail.value("max Zpz") == pytest.approx(0.620, abs=5e-4)
-        assert system.trail.value("Ev") == pytest.approx(ev, abs=5e-4)
+        by_id = {c.id: c.trail for c in report.systems[2].conditions}
+        assert by_id["cooling"].value("max Zpz") == pytest.approx(0.310, abs=5e-4)
+        assert by_id["cooling"].value("Ev") == pytest.approx(0.84, abs=5e-4)
+        assert by_id["heating"].value("max Zpz") == pytest.approx(0.775, abs=5e-4)
+        assert by_id["heating"].value("Ev") == pytest.approx(heating, abs=5e-4)

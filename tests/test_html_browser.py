@@ -83,12 +83,13 @@ def test_demo_report_renders_and_shows_what_fails_on_the_first_screen(page, tmp_
     assert seen["scrollY"] == 0 and seen["innerHeight"] == HEIGHT
     assert seen["stamp"] == "FAIL" and seen["stampVisible"]
     assert seen["stampBox"]["bottom"] <= HEIGHT
-    # the demo's failing items: AHU-3's intake, zone 203 and the janitor closet's exhaust
-    # (fixtures/demo, invented data; 48 cfm required, 40 scheduled: -8 cfm, -16.7 %)
+    # the demo's failing items: AHU-3's intake and zone 203 at the governing heating condition,
+    # and the janitor closet's exhaust (fixtures/demo, invented data; 48 cfm required, 40
+    # scheduled: -8 cfm, -16.7 %)
     texts = [r["text"] for r in seen["rows"]]
     assert len(texts) == 3
-    assert "AHU-3" in texts[0] and "-344 cfm (-15.3 %)" in texts[0]
-    assert "AHU-3/203" in texts[1] and "-64.8 cfm (-17.8 %)" in texts[1]
+    assert "AHU-3" in texts[0] and "-701 cfm (-26.9 %)" in texts[0] and "[heating]" in texts[0]
+    assert "AHU-3/203" in texts[1] and "-100.0 cfm (-25.0 %)" in texts[1]
     assert "EF-1/121" in texts[2] and "-8.00 cfm (-16.7 %)" in texts[2]
     for row in seen["rows"]:
         assert row["visible"] and row["box"]["bottom"] <= HEIGHT, row  # no scrolling needed

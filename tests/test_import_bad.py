@@ -120,10 +120,10 @@ XLSX_CASES = [
     # (sheet, row, column header, new value, field shown, texts)
     ("Zones", 9, "Area", -600, "systems[2].zones[2].area",
      ["must be greater than zero", "cell E9, column 'Area [ft2]'", "1 rejected"]),
-    ("Zones", 9, "Primary airflow", "=B9*2", None,
+    ("Zones", 9, "Primary airflow @heating", "=B9*2", None,
      ["the cell holds a formula (=B9*2); airgate never evaluates formulas", "paste values"]),
     ("Systems", 4, "Outdoor air", "1,900", "systems[2].outdoor_air",
-     ["thousands separator", "cell D4"]),
+     ["thousands separator", "cell E4"]),  # column E: Conditions is column D
     ("Zones", 3, "System", "DOAS-9", None, ["no system 'DOAS-9' in the Systems table",
                                              "did you mean 'DOAS-1'?"]),
     ("Zones", 4, "Zone", "__date__", None, ["the cell holds a date or time (2024-01-02",

@@ -75,7 +75,8 @@ def test_committed_samples_are_in_step_with_the_yaml(sources, yaml_report, fmt):
 def test_demo_in_each_format_gives_the_yaml_findings(sources, yaml_report, fmt):
     report = check(_source(sources, fmt))
     assert findings(report) == findings(yaml_report)
-    # 3 fail (AHU-3 intake, zone 203 Evz, janitor closet 121 exhaust 8 cfm short), 4 info
+    # 3 fail (AHU-3 intake and zone 203 Evz in the heating condition, janitor closet 121 exhaust
+    # 8 cfm short), 4 info
     assert len(report.findings) == len(yaml_report.findings) == 7
     assert comparable(report, ignore_volume_origin=fmt == "gbxml") == comparable(
         yaml_report, ignore_volume_origin=fmt == "gbxml")
@@ -113,11 +114,14 @@ def test_written_yaml_says_where_values_came_from(sources, tmp_path, capsys, fmt
 def test_workbook_findings_point_at_sheet_row_and_column(sources):
     path = _source(sources, "xlsx")
     report = check(path)
-    where = {f.subject: f.location for f in report.findings if f.rule == "zone-limits-ev"}
-    loc = where["AHU-3/203"]
-    # zone 203 is the 8th zone row (row 9); its primary airflow is column I of the Zones sheet
-    assert (loc.file, loc.line, loc.column) == (f"{path}[Zones]", 9, 9)
-    assert str(loc) == f"{path}[Zones]:9:9"
+    where = {f.subject: f for f in report.findings if f.rule == "zone-limits-ev"}
+    finding = where["AHU-3/203"]
+    loc = finding.location
+    # zone 203 is the 8th zone row (row 9); its heating primary airflow is column L of the Zones
+    # sheet (Primary airflow @heating, after the three Air distribution columns and @cooling)
+    assert finding.condition == "heating"
+    assert (loc.file, loc.line, loc.column) == (f"{path}[Zones]", 9, 12)
+    assert str(loc) == f"{path}[Zones]:9:12"
 
 
 def test_csv_xml_and_ifc_findings_point_into_the_source(sources):
@@ -128,7 +132,8 @@ def test_csv_xml_and_ifc_findings_point_into_the_source(sources):
         report = check(sources[fmt])
         intake[fmt] = next(f.location for f in report.findings if f.rule == "system-intake")
     assert intake["csv"].file.endswith("fernhollow-civic-centre.systems.csv")
-    assert (intake["csv"].line, intake["csv"].column) == (4, 4)  # AHU-3 row, Outdoor air
+    # AHU-3 row, Outdoor air (column E, after Conditions)
+    assert (intake["csv"].line, intake["csv"].column) == (4, 5)
     xml_lines = DEMO_GBXML.read_text(encoding="utf-8").splitlines()
     assert "<MinFlow" in xml_lines[intake["gbxml"].line - 1]  # the economizer's MinFlow
     if "ifc" in intake:

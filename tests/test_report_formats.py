@@ -116,10 +116,10 @@ def test_sarif_validates_against_the_schema(capsys, monkeypatch):
         assert region["startLine"] >= 1 and region["startColumn"] >= 1  # 1-based (SARIF §3.30)
         assert r["suppressions"] == []
     intake = next(r for r in results if r["ruleId"] == "system-intake")
-    # the schedule writes AHU-3's outdoor_air on line 96, column 18 (the fixture itself)
-    line = DEMO.read_text(encoding="utf-8").splitlines()[95]
-    assert line[17:].startswith("1900 cfm")
-    assert intake["locations"][0]["physicalLocation"]["region"] == {"startLine": 96,
+    # the schedule writes AHU-3's outdoor_air at column 18 of its line (the fixture itself)
+    lines = DEMO.read_text(encoding="utf-8").splitlines()
+    number = lines.index("    outdoor_air: 1900 cfm") + 1
+    assert intake["locations"][0]["physicalLocation"]["region"] == {"startLine": number,
                                                                     "startColumn": 18}
     for rule in run_["tool"]["driver"]["rules"]:
         assert rule["help"]["text"] and rule["properties"]["citation"]
@@ -177,7 +177,8 @@ def test_junit_parses_back_with_one_case_per_check(capsys, monkeypatch):
     closet = text["EF-1/121 zone-exhaust"]
     assert "required: 48.0 cfm" in closet and "provided: 40.0 cfm" in closet
     body = text["AHU-3/203 zone-limits-ev"]
-    assert "required: 365 cfm" in body and "provided: 300 cfm" in body
+    # zone 203 at the governing heating condition (the demo's 300 cfm heating minimum)
+    assert "required: 400 cfm" in body and "provided: 300 cfm" in body
     assert "source: ANSI/ASHRAE Standard 62.1, 2019 edition" in body
     assert "at: fixtures/demo/fernhollow-civic-centre.yaml:" in body
     cautions = [p.get("value") for p in suite.iter("property") if p.get("name") == "caution"]
@@ -201,7 +202,8 @@ def test_junit_waived_case_is_skipped_and_warnings_fail_only_when_asked(capsys, 
 def test_markdown_is_sized_for_a_comment_and_lists_failing_items(capsys, monkeypatch):
     _, out, _ = run(capsys, monkeypatch, "check", DEMO_ARG, "--format", "markdown")
     assert len(out) < 20_000  # PR comments allow 65,536 characters (common code hosts)
-    assert "| AHU-3/203 | zone-limits-ev | 365 cfm | 300 cfm | -64.8 cfm (-17.8 %) |" in out
+    assert "| AHU-3/203 | zone-limits-ev | 400 cfm | 300 cfm | -100.0 cfm (-25.0 %) |" in out
+    assert "| AHU-3 | ▸ **heating** | 2,601 | 1,900 | 0.525 | 203 |" in out  # governs
     assert out.index("Failing items") < out.index("info findings</summary>")
 
 
