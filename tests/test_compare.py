@@ -157,14 +157,13 @@ def test_input_changes_of_an_import_point_at_its_cells(tmp_path):
 
 
 def _demo_revision(tmp_path):
-    """The demo with zone 203's minimum primary airflow and AHU-3's intake raised (the fix the
-    demo's failing findings ask for): returns the copy and the lines changed."""
+    """The demo with zone 203's heating minimum primary airflow and AHU-3's intake raised (the
+    fix the demo's failing findings ask for): returns the copy and the lines changed."""
     text = DEMO.read_text(encoding="utf-8")
     lines = text.splitlines(keepends=True)
     at_203 = next(i for i, t in enumerate(lines) if re.match(r'\s*- id: "203"', t))
     primary = next(i for i in range(at_203, len(lines)) if "primary_airflow:" in lines[i])
-    lines[primary] = re.sub(r"primary_airflow: \d+ cfm", "primary_airflow: 400 cfm",
-                            lines[primary])
+    lines[primary] = re.sub(r"heating: \d+ cfm", "heating: 400 cfm", lines[primary])
     at_ahu = next(i for i, t in enumerate(lines) if re.match(r"\s*- id: AHU-3\b", t))
     intake = next(i for i in range(at_ahu, len(lines)) if "outdoor_air:" in lines[i])
     lines[intake] = re.sub(r"outdoor_air: \d+ cfm", "outdoor_air: 2300 cfm", lines[intake])
@@ -179,9 +178,10 @@ def test_the_demo_and_its_fixed_revision(tmp_path):
     verdicts = {(c.subject, c.old, c.new) for c in cmp.verdicts}
     assert {("AHU-3", "fail", "pass"), ("AHU-3/203", "fail", "pass")} <= verdicts
     inputs = {(c.subject, c.field): c for c in cmp.inputs}
-    assert set(inputs) == {("AHU-3/203", "primary_airflow"), ("AHU-3", "outdoor_air")}
-    assert inputs["AHU-3/203", "primary_airflow"].new == "400 cfm"
-    assert inputs["AHU-3/203", "primary_airflow"].old_at.line == primary_line
+    # the demo gives 203's primary airflow per design condition: the heating value changed
+    assert set(inputs) == {("AHU-3/203", "primary_airflow.heating"), ("AHU-3", "outdoor_air")}
+    assert inputs["AHU-3/203", "primary_airflow.heating"].new == "400 cfm"
+    assert inputs["AHU-3/203", "primary_airflow.heating"].old_at.line == primary_line
     assert inputs["AHU-3", "outdoor_air"].new_at.line == intake_line
     resolved = {(f.rule, f.subject) for f in cmp.resolved}
     assert {("system-intake", "AHU-3"), ("zone-limits-ev", "AHU-3/203")} <= resolved
