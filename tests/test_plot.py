@@ -50,6 +50,7 @@ def test_unknown_extension_and_missing_series(tmp_path, capsys):
                                   "_hidden", "cost $5 and $6", "\x1b[2J\u202eroom"],
                          ids=["unknown-command", "deep-nesting", "underscore", "dollars",
                               "controls"])
+@pytest.mark.filterwarnings("error")  # a long name must not break the layout (no matplotlib warning)
 def test_zone_names_are_drawn_literally(name, tmp_path, capsys):
     # matplotlib reads $…$ as mathtext (matplotlib docs, "Writing mathematical expressions"):
     # an unknown command is an error and deep nesting exhausts its parser. A name is drawn as

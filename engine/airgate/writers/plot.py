@@ -9,6 +9,7 @@ metadata cleared).
 from __future__ import annotations
 
 import io
+import textwrap
 from pathlib import Path
 from typing import TYPE_CHECKING
 
@@ -21,12 +22,21 @@ if TYPE_CHECKING:  # the command line reads FORMATS without loading the engine
 FORMATS = {".png": "png", ".svg": "svg"}
 
 
-def text(value: object) -> str:
-    """Input text as matplotlib must draw it: literally. A ``$`` would start mathtext
+#: Longest name drawn in a title or legend entry; a longer one is cut with an ellipsis so the
+#: picture keeps its layout (the report holds the full name).
+NAME_CHARS = 60
+
+
+def text(value: object, limit: int | None = None) -> str:
+    """Input text as matplotlib must draw it: literally, cut to ``limit`` characters (with
+    ``…``) when one is given. A ``$`` would start mathtext
     (``$\\foo{x}$`` is an error, deep ``^{}`` nesting exhausts the parser), so every ``$`` is
     escaped; control and bidirectional characters are shown as escapes (``\\x1b``); a label
     starting with ``_``, which matplotlib leaves out of a legend, gets a leading space."""
-    out = terminal(value).replace("$", r"\$")
+    out = terminal(value)
+    if limit is not None and len(out) > limit:
+        out = out[:limit - 1] + "…"
+    out = out.replace("$", r"\$")
     return " " + out if out.startswith("_") else out
 
 
@@ -76,7 +86,7 @@ def plot(report: Report, system: SystemResult, zones: list[ZoneResult], output: 
     fig, (ax, occ) = plt.subplots(2, 1, figsize=(9, 6), sharex=True,
                                   gridspec_kw={"height_ratios": [3, 1]})
     for z in zones:
-        label = text(f"{z.id} {z.name or ''}".strip())
+        label = text(f"{z.id} {z.name or ''}".strip(), NAME_CHARS)
         series = _series(z)
         ax.plot(series.times, series.ppm, label=label, linewidth=1.6)
         occ.step(series.times, series.occupancy, where="post", linewidth=1.2, label=label)
@@ -88,9 +98,10 @@ def plot(report: Report, system: SystemResult, zones: list[ZoneResult], output: 
                    label=f"limit {first.value('C_limit'):.0f} ppm")
     ax.set_ylabel("CO2 [ppm]")
     what = ("the design day" if zones[0].series is not None else
-            f"a day: {_series(zones[0]).profile}")
-    ax.set_title(f"{text(report.project_name)} — {text(system.id)}: CO2 from occupants over "
-                 f"{what} (well-mixed)", fontsize=10)
+            f"a day: {text(_series(zones[0]).profile, NAME_CHARS)}")
+    title = (f"{text(report.project_name, NAME_CHARS)} — {text(system.id, NAME_CHARS)}: "
+             f"CO2 from occupants over {what} (well-mixed)")
+    ax.set_title(textwrap.fill(title, 110), fontsize=10)
     ax.grid(True, alpha=0.3)
     ax.legend(fontsize=8, loc="upper left")
     occ.set_ylabel("occupancy [× Pz]")
