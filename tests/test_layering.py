@@ -270,7 +270,8 @@ def test_an_unknown_check_added_by_the_child_is_located_in_the_child(packs, caps
     ("units: SI\n", "units", "units SI differ from those of the base pack base-1"),
     ("verify: false\n", "verify", "holds values that must be verified"),
     ("occupancy: {}\n", "occupancy", "does not restate 'occupancy'"),
-    ("equations: {}\n", "equations", "it is inherited from the base unchanged"),
+    ("equations: {}\n", "equations", "amend: {equations: {change: ...}}"),
+    ("natural_ventilation: {}\n", "natural_ventilation", "it is inherited from the base unchanged"),
 ])
 def test_what_an_extending_pack_may_not_say(packs, capsys, text, field, message):
     write(packs, "child-1", CHILD.replace("jurisdiction:", text + "jurisdiction:"))

@@ -122,6 +122,8 @@ EXHAUST_PER: dict[str, str] = {
     "water-closet-or-urinal": "water closet or urinal",
     "showerhead": "showerhead",
     "kitchen": "kitchen",
+    "room": "room",
+    "vehicle": "parked vehicle",
 }
 
 

@@ -44,6 +44,7 @@ COLLECTIONS: dict[str, tuple[Path_, str, str]] = {
     "checks": (("checks",), "list", "check"),
     "requirements": (("requirements",), "list", "requirement"),
     "exhaust": (("exhaust", "rows"), "list", "exhaust row"),
+    "equations": (("equations",), "map", "equation"),
 }
 #: tables whose default entry an amendment may set (amend.TABLE.default)
 DEFAULTS = ("air_distribution", "ventilation_efficiency")
@@ -263,7 +264,9 @@ def _no_restated_tables(single: PackDocument) -> None:
     if "extends" in data:
         for key in (*TABLES, *INHERITED):
             if key in data:
-                how = (f"amend it under 'amend: {{{key}: {{change: ..., add: ..., retire: ...}}}}'"
+                how = ("cite its own sections under 'amend: {equations: {change: ...}}'"
+                       if key == "equations" else
+                       f"amend it under 'amend: {{{key}: {{change: ..., add: ..., retire: ...}}}}'"
                        if key in COLLECTIONS else "it is inherited from the base unchanged")
                 raise single.error(
                     RulePackError, f"a pack that extends another does not restate '{key}'; "
@@ -431,6 +434,13 @@ class _Merge:
             fields = self.amended.setdefault((name, entry.data["id"]), {})
             for key in op["set"]:
                 fields[key] = record
+            return
+        if name == "equations":  # an equation cites by its own document, edition and section
+            for key in ("document", "edition"):
+                entry.data[key] = source[key]
+                entry.overrides[key] = here + ("source",)
+            entry.data["provenance"] = op["provenance"]
+            entry.overrides["provenance"] = here + ("provenance",)
             return
         entry.data["source"] = source
         entry.overrides["source"] = here + ("source",)

@@ -196,9 +196,23 @@ def _rate(value: float, kind: str, declared: str, system: str) -> float:
     return units.to_internal(value, kind, system)
 
 
+def _amended(doc: Any, row: dict[str, Any]) -> dict[str, dict[str, Any]]:
+    """The fields of a category that a layered pack amended: name → the amendment's record."""
+    return getattr(doc, "amended", {}).get(("occupancy", row["id"]), {})
+
+
+def _value_provenance(doc: Any, row: dict[str, Any]) -> dict[str, str]:
+    """Provenance of single values: the row's own, then that of each amendment of a value."""
+    out = dict(row.get("value_provenance", {}))
+    for name, rec in _amended(doc, row).items():
+        if name in OccupancyCategory.VALUES:
+            out[name] = rec["provenance"]
+    return out
+
+
 def _cited(doc: Any, row: dict[str, Any], source: Source) -> dict[str, str]:
     """Citations of the fields of a category that a layered pack amended."""
-    fields = getattr(doc, "amended", {}).get(("occupancy", row["id"]), {})
+    fields = _amended(doc, row)
     out = {}
     for name, rec in fields.items():
         s = rec["source"]
@@ -229,7 +243,7 @@ def _categories(doc: Any, data: dict[str, Any], system: str) -> dict[str, Occupa
             printed={"Rp": row["Rp"], "Ra": row["Ra"], "density": density},
             default_occupants=row.get("default_occupants"),
             minimum_bedrooms=row.get("minimum_bedrooms", 0),
-            value_provenance=dict(row.get("value_provenance", {})),
+            value_provenance=_value_provenance(doc, row),
             cited=_cited(doc, row, source),
         )
     return out
