@@ -8,7 +8,9 @@ The expected values are those of the public copies (docs/references.md), typed h
   laboratories, wood/metal shop and the Food and Beverage Service rows;
 - Indiana Mechanical Code 2014 (675 IAC 18-1.6) Table 403.3: hotel and conference rows, I-P
   density, Rp and Ra only;
-- 2020 Mechanical Code of New York State, Table 403.3.1.1.2.3.2: Ev against the largest Zp.
+- 2020 Mechanical Code of New York State, Table 403.3.1.1.2.3.2: Ev against the largest Zp;
+- International Mechanical Code 2018, public online copy (flipbook "2018_IMC", page 56), Table
+  403.3.1.1 continued: the Workrooms rows (density, Rp, Ra, exhaust).
 """
 
 from __future__ import annotations
@@ -67,6 +69,19 @@ INDIANA = {
 #: 2020 Mechanical Code of New York State, Table 403.3.1.1.2.3.2: (largest Zp up to, Ev)
 NYS_EV = ((0.15, 1.0), (0.25, 0.9), (0.35, 0.8), (0.45, 0.7), (0.55, 0.6), (0.65, 0.5),
           (0.75, 0.4))
+
+#: 2018 International Mechanical Code, Table 403.3.1.1, Workrooms (public copy, page 56):
+#: id → (density /1000 ft², Rp cfm/person, Ra cfm/ft²; a dash is 0 for a rate)
+IMC_2018_WORKROOMS = {
+    "bank-vaults-safe-deposit": (5, 5, 0.06),
+    "computer-not-printing": (4, 5, 0.06),
+    "copy-printing-rooms": (4, 5, 0.06),
+    "meat-processing": (10, 15, 0),
+    "pharmacy-prep-area": (10, 5, 0.18),
+    "photo-studios": (10, 5, 0.12),
+}
+#: the same page's exhaust column: id → cfm/ft²
+IMC_2018_WORKROOM_EXHAUST = {"copy-printing-rooms": 0.5, "darkrooms": 1.0}
 
 
 def _published(pack_id: str) -> dict[str, dict[str, float]]:
@@ -194,3 +209,36 @@ def test_rules_show_ends_with_the_count_of_values_by_provenance(capsys, pack_id)
     for provenance, n in counts.items():
         assert f"{n} {provenance}" in last
     assert f"(of {sum(counts.values())})" in last
+
+
+def test_model_code_rows_marked_published_equal_the_2018_public_copy():
+    pack = load_pack("imc-2018")
+    for row_id, (density, rp, ra) in IMC_2018_WORKROOMS.items():
+        c = pack.categories[row_id]
+        assert (c.printed["density"], c.printed["Rp"], c.printed["Ra"]) == (density, rp, ra)
+        assert all(c.provenance_of(k) == "published" for k in ("Rp", "Ra", "density")), row_id
+        assert c.cite("Rp").startswith("International Mechanical Code, 2018 edition, Table 403.3.1.1")
+    # a value the pack amends for the code is published only where the copy shows it
+    for c in pack.categories.values():
+        if c.provenance_of("Rp") == "published" and "International Mechanical Code" in c.cite("Rp"):
+            assert c.id in IMC_2018_WORKROOMS, c.id
+    rows = pack.exhaust
+    for row_id, rate in IMC_2018_WORKROOM_EXHAUST.items():
+        assert rows[row_id].printed["rate"] == rate and rows[row_id].provenance == "published"
+    assert {k for k, r in pack.exhaust.items() if r.provenance == "published"} == set(
+        IMC_2018_WORKROOM_EXHAUST)
+
+
+def test_model_code_hotel_rows_agree_with_the_indiana_copy():
+    # Indiana Mechanical Code 2014 Table 403.3 (an adoption of an earlier edition): the same
+    # density, Rp and Ra; the 2018 values stay `from memory` as no 2018 copy of these rows was seen.
+    cats = load_pack("imc-2018").categories
+    for row_id, (rp, ra, density) in INDIANA.items():
+        c = cats[row_id]
+        assert (c.printed["Rp"], c.printed["Ra"], c.printed["density"]) == (rp, ra, density)
+        assert c.provenance_of("Rp") == "from memory"
+
+
+def test_model_code_ev_table_equals_the_new_york_state_code():
+    method = load_pack("imc-2018").methods["table"]
+    assert method.rows == NYS_EV and method.above_last == 0.3 and method.provenance == "published"

@@ -1,0 +1,120 @@
+"""The model mechanical code pack (imc-2018): a layer on the 62.1-2019 pack that cites the code.
+
+What is checked against outside sources lives in tests/test_pack_sources.py (the public copies)
+and in the pack's own cases, rules/tests/imc-2018/ (hand computations citing Table 403.3.1.1 row
+by row). Here: the layering contract it relies on (equations cited by the amending document, an
+amended value carrying the amendment's provenance, per-room and per-vehicle exhaust rows), the
+change list `rules diff` gives between the standard and the code, and the demo checked under it.
+"""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import pytest
+
+from airgate.cli import main
+from airgate.readers.rulepack import load_pack
+
+DEMO = Path(__file__).resolve().parents[1] / "fixtures" / "demo" / "fernhollow-civic-centre.yaml"
+
+CHILD = """\
+pack: 1
+id: code-1
+extends: ashrae-62.1-2019
+title: "A code printing the standard's equations under its own numbers (invented)"
+document: Model code (invented)
+edition: "1"
+provenance: invented
+cautions: ["Invented pack for a test."]
+amend:
+  equations:
+    change:
+      - {id: EQ_ID, set: SET, source: {section: "Section 9.1"}, provenance: invented}
+"""
+
+
+def _child(tmp_path: Path, eq_id: str = "zone_outdoor_airflow",
+           set_: str = "{section: 'Section 9.1'}") -> Path:
+    folder = tmp_path / "packs"
+    folder.mkdir(exist_ok=True)
+    (folder / "code-1.yaml").write_text(CHILD.replace("EQ_ID", eq_id).replace("SET", set_),
+                                        encoding="utf-8")
+    return folder
+
+
+def test_an_equation_change_cites_the_amending_document(tmp_path):
+    pack = load_pack("code-1", search=[_child(tmp_path)])
+    eq = pack.equations["zone_outdoor_airflow"]
+    assert (eq.source.document, eq.source.edition, eq.source.section) == (
+        "Model code (invented)", "1", "Section 9.1")
+    assert eq.provenance == "invented" and eq.form == "Voz = Vbz / Ez"
+    other = pack.equations["breathing_zone_outdoor_airflow"]  # not amended: still the standard
+    assert other.source.document == "ANSI/ASHRAE Standard 62.1" and other.source.edition == "2019"
+
+
+@pytest.mark.parametrize(("eq_id", "set_", "message"), [
+    ("zone_outdoor_airflw", "{section: 'Section 9.1'}", "did you mean 'zone_outdoor_airflow'"),
+    ("zone_outdoor_airflow", "{Rp: 5}", "Rp"),
+])
+def test_a_bad_equation_change_is_located(tmp_path, capsys, eq_id, set_, message):
+    folder = _child(tmp_path, eq_id, set_)
+    assert main(["rules", "validate", "code-1", "--rules-path", str(folder)]) == 2
+    err = capsys.readouterr().err
+    assert "code-1.yaml:" in err and "amend.equations.change[0]" in err and message in err
+    assert "Traceback" not in err
+
+
+def test_the_code_pack_cites_the_code_for_its_rows_equations_and_methods():
+    pack = load_pack("imc-2018")
+    office = pack.categories["office-space"]
+    assert office.cite("Rp").startswith("International Mechanical Code, 2018 edition, Table 403.3.1.1")
+    # an amended value carries the amendment's provenance, not the base row's ("published")
+    assert office.provenance_of("Rp") == "from memory"
+    kept = pack.categories["office-breakrooms"]  # not a row of the code: cites the standard
+    assert kept.cite("Rp").startswith("ANSI/ASHRAE Standard 62.1, 2019 edition, Table 6-1")
+    assert "Section 403.3.1.1" in kept.notes
+    vbz = pack.equations["breathing_zone_outdoor_airflow"]
+    assert vbz.source.document == "International Mechanical Code"
+    assert vbz.source.section.startswith("Section 403.3.1.1.1.1")
+    assert set(pack.methods) == {"table", "detailed"} and pack.default_method == "table"
+    assert pack.exhaust["toilets-private"].per == "room"
+    assert pack.exhaust["garages-separate-for-each-dwelling"].per == "vehicle"
+
+
+def test_diff_between_the_standard_and_the_code_reads_as_a_change_list(capsys):
+    assert main(["rules", "diff", "ashrae-62.1-2019", "imc-2018", "--format", "json"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    sections = {s["name"]: s for s in d["sections"]}
+    occ = sections["occupancy"]
+    added = {a["id"]: a["entry"] for a in occ["added"]}
+    # Table 403.3.1.1 rows the standard's table does not have (values as entered in the pack)
+    assert added["smoking-lounges"]["Rp"] == 60 and added["meat-processing"]["Rp"] == 15
+    changed = {c["id"]: {f["field"]: (f["from"], f["to"]) for f in c["fields"]}
+               for c in occ["changed"]}
+    assert changed["warehouses"]["Rp"] == (10, 0)  # per area only in the code
+    assert changed["beauty-and-nail-salons"]["air_class"] == (2, 4)  # note b
+    assert not occ["removed"]  # rows the code does not list are kept, with a note
+    ev = sections["ventilation_efficiency"]
+    assert [a["id"] for a in ev["added"]] == ["table"]
+    assert ev["removed"][0]["id"] == "simplified" and "not in it" in ev["removed"][0]["retired"]
+    exhaust = {c["id"]: {f["field"]: (f["from"], f["to"]) for f in c["fields"]}
+               for c in sections["exhaust"]["changed"]}
+    assert exhaust["kitchens-residential"]["continuous"] == (50, 25)
+    checks = sections["checks"]
+    assert {r["id"] for r in checks["removed"]} == {"natural-depth", "simplified-vav-minimum"}
+    pack = {c["field"]: c["to"] for c in d["pack"]}
+    assert pack["document"] == "International Mechanical Code" and pack["edition"] == "2018"
+    assert any(c["field"] == "ventilation_efficiency.default" and c["to"] == "table"
+               for c in d["pack"])
+
+
+def test_the_demo_checks_under_the_code_and_the_report_names_it(capsys):
+    code = main(["check", str(DEMO), "--rules", "imc-2018", "--format", "json"])
+    assert code in (0, 1)
+    report = json.loads(capsys.readouterr().out)
+    assert report["rules"]["id"] == "imc-2018"
+    assert report["rules"]["document"] == "International Mechanical Code"
+    assert report["rules"]["edition"] == "2018"
+
