@@ -190,7 +190,7 @@ def test_format_output_and_rules_options_are_spelled_alike_everywhere():
     ("airgate.writers.formats", "COMPARE_FORMATS", ("compare",), "--format"),
     ("airgate.evaluation.gate", "FAIL_ON", ("compare",), "--fail-on"),
     ("airgate.commands.rules", "FORMATS", ("rules", "show"), "--format"),
-    ("airgate.commands.rules", "FORMATS", ("rules", "diff"), "--format"),
+    ("airgate.commands.rules", "DIFF_FORMATS", ("rules", "diff"), "--format"),
     ("airgate.commands.template", "FORMATS", ("template",), "--format"),
     ("airgate.units", "UNIT_SYSTEMS", ("template",), "--units"),
     ("airgate.commands.schema", "SCHEMAS", ("schema",), "which"),

@@ -86,6 +86,7 @@ def _commands(built: dict[str, Path]) -> list[list[str]]:
     ]
     for f in rules.FORMATS:
         out.append(["rules", "show", QUILLBY, "--resolved", "--format", f, "-o", f"out/res.{f}"])
+    for f in rules.DIFF_FORMATS:
         out.append(["rules", "diff", "ashrae-62.1-2019", QUILLBY, "--format", f,
                     "-o", f"out/diff.{f}"])
     out += [["schema", s, "-o", f"out/schema-{s}.json"] for s in schema.SCHEMAS]

@@ -118,3 +118,21 @@ def test_the_demo_checks_under_the_code_and_the_report_names_it(capsys):
     assert report["rules"]["document"] == "International Mechanical Code"
     assert report["rules"]["edition"] == "2018"
 
+
+def test_diff_in_markdown_lists_every_change_of_the_json(capsys):
+    # The Markdown change list holds the same entries as the JSON diff: one table row per added
+    # entry, per removed entry and per changed field (the count is taken from the JSON).
+    assert main(["rules", "diff", "ashrae-62.1-2019", "imc-2018", "--format", "json"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    assert main(["rules", "diff", "ashrae-62.1-2019", "imc-2018", "--format", "markdown"]) == 0
+    text = capsys.readouterr().out
+    assert text.startswith("# Rule pack diff: ashrae-62.1-2019 → imc-2018\n")
+    rows = [line for line in text.splitlines() if line.startswith("| ") and
+            not line.startswith(("| id ", "| field ", "| |", "| from ", "| to "))]
+    expected = len(d["pack"]) + sum(len(s["added"]) + len(s["removed"]) +
+                                    sum(len(c["fields"]) for c in s["changed"])
+                                    for s in d["sections"])
+    assert len(rows) == expected
+    assert "| simplified | The code gives Ev by its Table 403.3.1.1.2.3.2" in text
+    assert "| warehouses | Rp | 10 | 0 |" in text
+    assert text.rstrip().endswith("licensed professional of record govern.")

@@ -10,8 +10,10 @@ from airgate.errors import EXIT_FAIL, EXIT_PASS, UsageError
 from airgate.escaping import terminal
 
 ACTIONS = ["list", "show ID", "validate PATH", "test [PATH]", "diff A B"]
-#: output formats of ``rules show --resolved`` and ``rules diff``: text (YAML for --resolved), JSON
+#: output formats of ``rules show --resolved``: text (YAML with the origin of each value), JSON
 FORMATS = ("text", "json")
+#: output formats of ``rules diff``: text, Markdown (a reviewer's change list), JSON
+DIFF_FORMATS = ("text", "markdown", "json")
 
 
 def register(sub) -> None:
@@ -41,7 +43,7 @@ def register(sub) -> None:
     diff = rs.add_parser("diff", help="entries added, removed and changed between two packs")
     diff.add_argument("old", metavar="A", help="pack id or path (the earlier one)")
     diff.add_argument("new", metavar="B", help="pack id or path (the later one)")
-    add_format(diff, FORMATS, FORMATS[0])
+    add_format(diff, DIFF_FORMATS, DIFF_FORMATS[0])
     add_output(diff)
     add_rules_path(diff)
 
@@ -168,13 +170,15 @@ def _test(args) -> int:
 def _diff(args) -> int:
     from airgate.api.packdiff import diff
     from airgate.readers.rulepack import load_document
-    from airgate.writers.pack_reports import diff_json, diff_text
     from airgate.writers.output import json_text
+    from airgate.writers.pack_reports import diff_json, diff_markdown, diff_text
 
     old = load_document(args.old, search=args.rules_path)
     new = load_document(args.new, search=args.rules_path)
     result = diff(old, new)
-    emit(args.output, json_text(diff_json(result)) if args.format == "json" else diff_text(result))
+    writers = {"json": lambda r: json_text(diff_json(r)), "markdown": diff_markdown,
+               "text": diff_text}
+    emit(args.output, writers[args.format](result))
     return EXIT_PASS
 
 

@@ -1,4 +1,4 @@
-"""Reports about rule packs: ``rules diff`` (text and JSON) and ``rules test`` (text)."""
+"""Reports about rule packs: ``rules diff`` (text, Markdown and JSON) and ``rules test`` (text)."""
 
 from __future__ import annotations
 
@@ -57,6 +57,54 @@ def diff_text(d: PackDiff) -> str:
     c = d.counts()
     out += ["", f"{c['added']} added, {c['removed']} removed, {c['changed']} changed"
                 if any(c.values()) else "no differences", "", GOVERN]
+    return lines(out)
+
+
+def diff_markdown(d: PackDiff) -> str:
+    """The diff as a reviewer's change list in Markdown: one table per section and operation."""
+    from airgate.writers.markdown import md
+
+    def cell(v: Any) -> str:
+        if v is None:
+            return ""
+        text = v if isinstance(v, str) else _value(v)
+        return md(text if len(text) <= 200 else text[:197] + "...")
+
+    def summary(entry: Any) -> str:
+        if not isinstance(entry, dict):
+            return ""
+        return ", ".join(f"{k} {cell(entry[k])}" for k in _KEY_FIELDS if k in entry)
+
+    c = d.counts()
+    out = [f"# Rule pack diff: {md(d.old.pack_id)} → {md(d.new.pack_id)}", "",
+           "| | pack | document | edition | units | extends |", "|---|---|---|---|---|---|"]
+    for label, doc in (("from", d.old), ("to", d.new)):
+        data = doc.data
+        out.append(f"| {label} | {md(doc.pack_id)} | {md(data.get('document'))} | "
+                   f"{md(data.get('edition'))} | {md(data.get('units'))} | "
+                   f"{md(doc.extends or '')} |")
+    out += [""] + [f"> {md(n)}" for n in d.notes] + ([""] if d.notes else [])
+    out.append(f"**{c['added']} added, {c['removed']} removed, {c['changed']} changed**"
+               if any(c.values()) else "**No differences.**")
+    if d.pack:
+        out += ["", "## Pack", "", "| field | from | to |", "|---|---|---|"]
+        out += [f"| {md(ch.field)} | {cell(ch.old)} | {cell(ch.new)} |" for ch in d.pack]
+    for s in d.sections:
+        if s.empty:
+            continue
+        out += ["", f"## {md(s.title[:1].upper() + s.title[1:])}", "",
+                f"{len(s.added)} added, {len(s.removed)} removed, {len(s.changed)} changed"]
+        if s.added:
+            out += ["", "### Added", "", "| id | entry |", "|---|---|"]
+            out += [f"| {md(k)} | {summary(e)} |" for k, e in s.added]
+        if s.removed:
+            out += ["", "### Removed", "", "| id | reason given |", "|---|---|"]
+            out += [f"| {md(k)} | {md(why or '')} |" for k, why in s.removed]
+        if s.changed:
+            out += ["", "### Changed", "", "| id | field | from | to |", "|---|---|---|---|"]
+            out += [f"| {md(k)} | {md(ch.field)} | {cell(ch.old)} | {cell(ch.new)} |"
+                    for k, changes in s.changed for ch in changes]
+    out += ["", md(GOVERN)]
     return lines(out)
 
 
