@@ -380,6 +380,6 @@ def test_readme_lists_the_choices_the_commands_take():
     assert "--format " + bar.join(template.FORMATS) in rows["import"]
     assert "--units " + bar.join(UNIT_SYSTEMS) in rows["import"]
     assert "--format " + bar.join(sorted(set(plot.FORMATS.values()))) in rows["plot"]
-    assert "--format " + bar.join(rules.FORMATS) in rows["rules"]
+    assert "--format " + bar.join(rules.DIFF_FORMATS) in rows["rules"]
     assert all(f"`{name}`" in rows["schema"] or f"schema {name}`" in rows["schema"]
                for name in schema.SCHEMAS)
