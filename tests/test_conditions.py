@@ -324,3 +324,16 @@ def test_detailed_ev_needs_every_conditions_primary_airflow(tmp_path):
          "the detailed Ev method needs primary_airflow (Vpz) for every zone; zone '201' gives "
          "none at condition 'cooling'")]
     assert found[0].line is not None
+
+
+def test_a_waiver_covers_its_finding_at_every_condition(tmp_path):
+    """docs/report-format.md, Waivers: a waiver names a rule and a subject, not a condition."""
+    data = schedule([_vav(outdoor_air="160 cfm")])  # short of 170 (cooling) and 194 (heating)
+    data["waivers"] = [{"rule": "system-intake", "subject": "AHU-1", "reason": "invented",
+                        "approved_by": "Test reviewer (invented)"}]
+    path = tmp_path / "s.yaml"
+    path.write_text(yaml.safe_dump(data, sort_keys=False), encoding="utf-8")
+    report = check(path)
+    intake = [f for f in report.findings if f.rule == "system-intake"]
+    assert [(f.condition, f.waived) for f in intake] == [("cooling", True), ("heating", True)]
+    assert [s.state for s in report.waivers] == ["applied"]
