@@ -162,8 +162,9 @@ def test_pack_without_an_exhaust_table_is_a_located_input_error(evaluate):
     data = schedule([{"id": "AHU-1", "kind": "single-zone", "outdoor_air": "200 cfm",
                       "zones": [_zone("1", "100 ft2", {"category": "kitchenettes",
                                                        "airflow": "40 cfm"})]}],
-                    rules="ashrae-62.2-2019")
-    data["systems"][0]["zones"][0]["space"] = "dwelling-unit"
+                    rules="en-16798-1-2019")  # EN 16798-1: no extract rates in the pack
+    data["project"]["options"] = {"category": "II", "pollution": "low"}
+    data["systems"][0]["zones"][0]["space"] = "single-office"
     with pytest.raises(AirgateError, match="has no minimum exhaust rates table") as exc:
         evaluate(data)
     assert "systems[0].zones[0].exhaust.category" in exc.value.render()

@@ -5,18 +5,21 @@ a row gives a rate per floor area, or per counted unit (water closet or urinal, 
 dwelling kitchen); some rows give a continuous and a higher intermittent rate.
 
 ``Ve = Re·Az`` [L/s] for a per-area row (Re [L/s per m²], Az [m²]);
-``Ve = Re·Ne`` [L/s] for a per-unit row (Re [L/s per unit], Ne [–] units counted).
+``Ve = Re·Ne`` [L/s] for a per-unit row (Re [L/s per unit], Ne [–] units counted);
+``Ve = Re·V/3.6`` [L/s] for a row rated in air changes (Re [1/h], V [m³] the zone's volume;
+3.6 = 3600 s/h ÷ 1000 L/m³), as ANSI/ASHRAE 62.2-2019 rates continuous kitchen exhaust.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
 
+from airgate import units
 from airgate.errors import Path_, nearest
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.findings import Location
 from airgate.evaluation.report import ZoneResult
-from airgate.evaluation.trail import Trail
+from airgate.evaluation.trail import Trail, unit_factor
 from airgate.models.loaded import LoadedSchedule
 from airgate.models.rules import EXHAUST_PER, ExhaustRow, RulePack
 from airgate.models.schedule import Zone
@@ -52,7 +55,11 @@ def bind(loaded: LoadedSchedule, pack: RulePack, zone: Zone, path: Path_) -> Exh
                else ""),
             at + ("category",), hint="use a row id of the exhaust table: airgate rules show "
                                      + pack.id)
-    if not row.per_area and ex.fixtures is None:
+    if row.per_volume and zone.volume is None and zone.height is None:
+        raise loaded.error(
+            f"exhaust category '{row.id}' is rated in air changes of the zone's volume: state "
+            "the zone's height or volume", at, hint="add height: or volume: to the zone")
+    if not row.per_area and not row.per_volume and ex.fixtures is None:
         raise loaded.error(
             f"exhaust category '{row.id}' is rated per {EXHAUST_PER[row.per]}: state how many "
             "the zone has", at, hint=f"add fixtures: N (the number of each "
@@ -74,6 +81,18 @@ def evaluate(trail: Trail, zone: Zone, row: ExhaustRow, emitter: Emitter, *, sub
         trail.add("Re", rate, "airflow_per_area", origin="table", source=row.cite(column),
                   note=f"minimum exhaust rate per floor area{how}")
         required = trail.add("Ve", rate * trail.value("Az"), "airflow", formula="{Re}·{Az}",
+                             source=row.cite(column), note="minimum exhaust airflow")
+    elif row.per_volume:
+        trail.add("Re", rate, "rate", origin="table", source=row.cite(column),
+                  note=f"minimum exhaust in air changes per hour of the zone's volume{how}")
+        stated = zone.volume is not None
+        volume = trail.add("V", zone.volume if stated else zone.height * zone.area, "volume",
+                           origin="schedule" if stated else "computed",
+                           note="zone volume" + ("" if stated else ", height × Az"))
+        factor = unit_factor(("rate", "volume"), ("airflow",), emitter.units,
+                             times=units.factor("m**3/hour", "L/s"))
+        required = trail.add("Ve", rate * volume * units.factor("m**3/hour", "L/s"),
+                             "airflow", formula=f"{factor}·{{Re}}·{{V}}",
                              source=row.cite(column), note="minimum exhaust airflow")
     else:
         per = EXHAUST_PER[row.per]

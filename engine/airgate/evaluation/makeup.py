@@ -152,8 +152,8 @@ def check(loaded: LoadedSchedule, pack: RulePack, results: list[SystemResult],
             emitter.emit("makeup-transfer-use", f"{system.id}/{zid}",
                          f"{what}; confirm the uses are similar, or supply its makeup from "
                          "outdoors", at, system=system.id, zone=zid)
-    if not unstated:
-        return []
+    if not unstated or not {"makeup-transfer-class", "makeup-transfer-use"} & set(pack.checks):
+        return []  # a pack without the transfer rules has nothing a stated makeup would check
     return [f"makeup air not stated for the exhaust of {', '.join(unstated)}: where it comes "
             "from decides which air may be transferred (ANSI/ASHRAE 62.1-2019 Section 5.16.3), "
             "so that was not checked; state exhaust.makeup (outdoor, or transfer_from: ZONE)"]

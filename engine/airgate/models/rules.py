@@ -124,6 +124,8 @@ EXHAUST_PER: dict[str, str] = {
     "kitchen": "kitchen",
     "room": "room",
     "vehicle": "parked vehicle",
+    "bathroom": "bathroom",
+    "air-change": "air change of the zone's volume",
 }
 
 
@@ -154,6 +156,11 @@ class ExhaustRow:
     @property
     def per_area(self) -> bool:
         return self.per == "floor-area"
+
+    @property
+    def per_volume(self) -> bool:
+        """Rated in air changes per hour of the zone's volume [1/h] (needs the volume)."""
+        return self.per == "air-change"
 
     def rate_for(self, operation: str) -> tuple[str, float]:
         """The column that applies to ``operation`` (continuous | intermittent) and its rate."""

@@ -267,7 +267,8 @@ def _exhaust(doc: Any, data: dict[str, Any], system: str) -> dict[str, ExhaustRo
     _unique(doc, ex["rows"], ("exhaust", "rows"))
     out = {}
     for row in ex["rows"]:
-        kind = "airflow_per_area" if row["per"] == "floor-area" else "airflow"
+        kind = {"floor-area": "airflow_per_area", "air-change": "rate"}.get(row["per"],
+                                                                           "airflow")
         printed = {k: row[k] for k in ("rate", "continuous", "intermittent") if k in row}
         out[row["id"]] = ExhaustRow(
             id=row["id"], label=row["label"], per=row["per"],

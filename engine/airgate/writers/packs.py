@@ -150,7 +150,8 @@ def _exhaust(pack: RulePack) -> list[str]:
     first = next(iter(pack.exhaust.values())).source
     out = ["", f"Minimum exhaust rates ({', '.join(p for p in (first.table, first.section) if p)})"]
     for r in pack.exhaust.values():
-        per = f"{area}" if r.per_area else f"{unit} per {EXHAUST_PER[r.per]}"
+        per = (area if r.per_area else "1/h (air changes of the zone's volume)"
+               if r.per_volume else f"{unit} per {EXHAUST_PER[r.per]}")
         rates = " / ".join(f"{v:g}" for v in r.printed.values())
         cols = "" if "rate" in r.printed else " (continuous / intermittent)"
         out.append(f"  {r.id:40} {rates} {per}{cols}  class {r.air_class}  {r.provenance}")
