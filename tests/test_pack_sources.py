@@ -10,7 +10,11 @@ The expected values are those of the public copies (docs/references.md), typed h
   density, Rp and Ra only;
 - 2020 Mechanical Code of New York State, Table 403.3.1.1.2.3.2: Ev against the largest Zp;
 - International Mechanical Code 2018, public online copy (flipbook "2018_IMC", page 56), Table
-  403.3.1.1 continued: the Workrooms rows (density, Rp, Ra, exhaust).
+  403.3.1.1 continued: the Workrooms rows (density, Rp, Ra, exhaust);
+- exhaust columns that agree with the packs' exhaust rows without being copies of the standard's
+  table (the rows stay `from memory`): Indiana Mechanical Code 2014 Table 403.3 (private
+  bathrooms/toilets 25/50 cfm) and the 2018 International Mechanical Code Table 403.3.1.1
+  (copy, printing rooms 0.5 cfm/ft²).
 """
 
 from __future__ import annotations
@@ -242,3 +246,18 @@ def test_model_code_hotel_rows_agree_with_the_indiana_copy():
 def test_model_code_ev_table_equals_the_new_york_state_code():
     method = load_pack("imc-2018").methods["table"]
     assert method.rows == NYS_EV and method.above_last == 0.3 and method.provenance == "published"
+
+
+#: exhaust row → its cells in a mechanical code's exhaust column (I-P, continuous/intermittent)
+MODEL_CODE_EXHAUST = {
+    "toilets-private": {"continuous": 25, "intermittent": 50},  # Indiana 2014 Table 403.3
+    "copy-printing-rooms": {"rate": 0.5},  # 2018 IMC Table 403.3.1.1
+}
+
+
+def test_exhaust_rows_agree_with_the_mechanical_code_copies():
+    pack = load_pack("ashrae-62.1-2019")
+    for row_id, cells in MODEL_CODE_EXHAUST.items():
+        row = pack.exhaust[row_id]
+        assert row.printed == pytest.approx(cells), row_id
+        assert row.provenance == "from memory"  # agreement with a code, not the standard

@@ -6,7 +6,9 @@ of the Ez table says which stated conditions are missing.
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass
+from typing import TypeVar
 
 from airgate import formatting
 from airgate.errors import AirgateError, Path_, nearest
@@ -27,19 +29,31 @@ class EzChoice:
     rows: tuple[str, ...] = ()
 
 
+Row = TypeVar("Row")
+
+
+def table_row(loaded: LoadedSchedule, pack: RulePack, rows: Mapping[str, Row], collection: str,
+              what: str, ref: str, path: Path_, *, hint: str | None = None,
+              allowed: list[str] | None = None) -> Row:
+    """The row ``ref`` of one of the pack's tables (``collection``: ``occupancy``,
+    ``air_distribution``, ``exhaust``). An unknown id is an input error located at ``path``
+    that says what became of a retired row, else suggests the nearest ids."""
+    row = rows.get(ref)
+    if row is not None:
+        return row
+    gone = pack.retirement(collection, ref)
+    close = [] if gone else nearest(ref, rows)
+    raise loaded.error(
+        f"unknown {what} '{ref}' in rule pack {pack.id}"
+        + (f"; it was {gone.text()}" if gone else "")
+        + (f"; did you mean {', '.join(repr(c) for c in close)}?" if close else ""),
+        path, allowed=allowed, hint=hint)
+
+
 def category(loaded: LoadedSchedule, pack: RulePack, zone: Zone, path: Path_) -> OccupancyCategory:
-    cat = pack.categories.get(zone.space)
-    if cat is None:
-        close = nearest(zone.space, pack.categories)
-        gone = pack.retirement("occupancy", zone.space)
-        raise loaded.error(
-            f"unknown space type '{zone.space}' in rule pack {pack.id}"
-            + (f"; it was {gone.text()}" if gone else "")
-            + (f"; did you mean {', '.join(repr(c) for c in close)}?" if close and not gone
-               else ""),
-            path + ("space",), hint="use an occupancy category id: airgate rules show " + pack.id,
-        )
-    return cat
+    return table_row(loaded, pack, pack.categories, "occupancy", "space type", zone.space,
+                     path + ("space",),
+                     hint="use an occupancy category id: airgate rules show " + pack.id)
 
 
 def _row_needs(row: AirDistributionRow, stated: StatedDistribution) -> list[str]:
@@ -77,22 +91,11 @@ def _row(loaded: LoadedSchedule, pack: RulePack, ref: str | StatedDistribution,
          path: Path_) -> AirDistributionRow:
     if isinstance(ref, StatedDistribution):
         return _match(loaded, pack, ref, path)
-    row = pack.configurations.get(ref)
-    if row is None:
-        close = nearest(ref, pack.configurations)
-        hint = None
-        if _is_number(ref):
-            hint = (f"to state the zone's Ez directly, write ez: {ref} with ez_basis: (why it "
-                    "applies) instead of air_distribution")
-        gone = pack.retirement("air_distribution", ref)
-        raise loaded.error(
-            f"unknown air distribution row '{ref}' in rule pack {pack.id}"
-            + (f"; it was {gone.text()}" if gone else "")
-            + (f"; did you mean {', '.join(repr(c) for c in close)}?" if close and not gone
-               else ""),
-            path, allowed=sorted(pack.configurations), hint=hint,
-        )
-    return row
+    hint = (f"to state the zone's Ez directly, write ez: {ref} with ez_basis: (why it "
+            "applies) instead of air_distribution") if _is_number(ref) else None
+    return table_row(loaded, pack, pack.configurations, "air_distribution",
+                     "air distribution row", ref, path, hint=hint,
+                     allowed=sorted(pack.configurations))
 
 
 def _is_number(text: str) -> bool:

@@ -15,7 +15,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from airgate import units
-from airgate.errors import Path_, nearest
+from airgate.errors import Path_
+from airgate.evaluation.bind import table_row
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.findings import Location
 from airgate.evaluation.report import ZoneResult
@@ -44,17 +45,9 @@ def bind(loaded: LoadedSchedule, pack: RulePack, zone: Zone, path: Path_) -> Exh
                            "zone's exhaust cannot be checked", at + ("category",),
                            hint="use a pack with an exhaust table (airgate rules list), or "
                                 "remove exhaust")
-    row = pack.exhaust.get(ex.category)
-    if row is None:
-        close = nearest(ex.category, pack.exhaust)
-        gone = pack.retirement("exhaust", ex.category)
-        raise loaded.error(
-            f"unknown exhaust category '{ex.category}' in rule pack {pack.id}"
-            + (f"; it was {gone.text()}" if gone else "")
-            + (f"; did you mean {', '.join(repr(c) for c in close)}?" if close and not gone
-               else ""),
-            at + ("category",), hint="use a row id of the exhaust table: airgate rules show "
-                                     + pack.id)
+    row = table_row(loaded, pack, pack.exhaust, "exhaust", "exhaust category", ex.category,
+                    at + ("category",),
+                    hint="use a row id of the exhaust table: airgate rules show " + pack.id)
     if row.per_volume and zone.volume is None and zone.height is None:
         raise loaded.error(
             f"exhaust category '{row.id}' is rated in air changes of the zone's volume: state "
