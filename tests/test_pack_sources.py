@@ -112,6 +112,9 @@ def test_published_rates_equal_the_public_copies(pack_id, si):
         elif row_id in INDIANA and not si:
             rp, ra, density = INDIANA[row_id]
             copy = {"Rp": rp, "Ra": ra, "density": density}
+        elif row_id in IMC_2018_WORKROOMS and not si:
+            density, rp, ra = IMC_2018_WORKROOMS[row_id]
+            copy = {"Rp": rp, "Ra": ra, "density": density}
         else:
             pytest.fail(f"{pack_id}: '{row_id}' is marked published but no public copy has it")
         for name, value in values.items():
@@ -123,8 +126,28 @@ def test_published_rates_equal_the_public_copies(pack_id, si):
                                              ("ashrae-62.1-2019-si", True)])
 def test_rows_seen_in_a_public_copy_are_marked_published(pack_id, si):
     published = _published(pack_id)
-    seen = set(TABLE_6_1) | (set() if si else set(INDIANA))
+    seen = set(TABLE_6_1) | (set() if si else set(INDIANA) | STANDARD_ROWS_IN_IMC_2018)
     assert seen <= set(published)
+
+
+#: rows of the standard's table that the 2018 model code's Workrooms rows reproduce (its copy and
+#: meat-processing rows are the code's own, not the standard's)
+STANDARD_ROWS_IN_IMC_2018 = {"bank-vaults-safe-deposit", "computer-not-printing",
+                             "pharmacy-prep-area", "photo-studios"}
+
+
+def test_workroom_rows_compared_with_the_model_code_keep_their_air_class_from_memory():
+    # 2018 International Mechanical Code, Table 403.3.1.1 (public copy, page 56) prints density,
+    # Rp and Ra but no air class.
+    cats = load_pack("ashrae-62.1-2019").categories
+    for row_id in STANDARD_ROWS_IN_IMC_2018:
+        c = cats[row_id]
+        density, rp, ra = IMC_2018_WORKROOMS[row_id]
+        assert (c.printed["density"], c.printed["Rp"], c.printed["Ra"]) == (density, rp, ra)
+        assert c.provenance_of("air_class") == "from memory", row_id
+        assert "2018 International Mechanical Code" in c.notes, row_id
+    si = load_pack("ashrae-62.1-2019-si").categories
+    assert all(si[r].provenance_of("Rp") == "from memory" for r in STANDARD_ROWS_IN_IMC_2018)
 
 
 def test_2019_table_rows():
