@@ -168,3 +168,38 @@ def test_ids_must_be_unique(tmp_path, capsys):
     path.write_text(BUILDING.replace('id="sp-b"', 'id="sp-a"'), encoding="utf-8")
     assert main(["check", str(path)]) == 2
     assert "id 'sp-a' is used twice (first on line 11)" in capsys.readouterr().err
+
+
+def _with_exhaust_loop(fans: int) -> str:
+    """The test building with a toilet room exhausted by an Exhaust air loop (gbXML 6.01:
+    AirLoop systemType 'Exhaust'; the space's exhaust in airgate. lines, gbXML having no
+    element for it) whose fans state RatedFlow."""
+    space = ('<Space id="sp-t" zoneIdRef="z-wc"><Name>T1</Name><Description>Toilets\n'
+             'airgate.exhaust.category: toilets-public\nairgate.exhaust.airflow: 80 L/s\n'
+             'airgate.exhaust.fixtures: 3</Description><Area>20</Area></Space>\n    </Building>')
+    loop = ('<Zone id="z-wc"><Name>WC</Name><AirLoopId airLoopIdRef="EF-9"/></Zone>\n'
+            '  <AirLoop id="EF-9" systemType="Exhaust"><Name>EF-9</Name>'
+            + "".join(f'<AirLoopEquipment id="ef9-fan-{n}" equipmentType="Fan"><RatedFlow '
+                      f'unit="LPerSec">90</RatedFlow></AirLoopEquipment>' for n in range(fans))
+            + '</AirLoop>\n  <AirLoop id="EF-1">')
+    return BUILDING.replace("</Building>", space, 1).replace('<AirLoop id="EF-1">', loop, 1)
+
+
+def test_an_exhaust_air_loop_is_an_exhaust_fan(tmp_path):
+    path = tmp_path / "ef.xml"
+    path.write_text(_with_exhaust_loop(1), encoding="utf-8")
+    loaded = read_any(path)
+    ef = next(s for s in loaded.model.systems if s.id == "EF-9")
+    assert (ef.kind, ef.airflow) == ("exhaust", pytest.approx(90.0))
+    [z] = ef.zones
+    assert (z.id, z.exhaust.category, z.exhaust.fixtures) == ("T1", "toilets-public", 3)
+
+
+def test_two_fans_on_an_exhaust_loop_are_ambiguous(tmp_path, capsys):
+    from airgate.cli import main
+
+    path = tmp_path / "ef2.xml"
+    path.write_text(_with_exhaust_loop(2), encoding="utf-8")
+    assert main(["check", str(path)]) == 2
+    err = capsys.readouterr().err
+    assert "2 Fan elements; the fan airflow is ambiguous" in err and "airgate.airflow" in err

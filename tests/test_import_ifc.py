@@ -265,3 +265,41 @@ def test_an_ifc2x3_model_reads_as_the_ifc4_one(tmp_path, monkeypatch):
     assert loaded.doc.origin(("systems", 0, "zones", 0, "area")).source.endswith(
         "BaseQuantities.NetFloorArea")
     assert main(["check", str(path), "--exit-zero"]) == 0
+
+
+def _exhaust_model(fans: int):
+    """An EXHAUST distribution system (no Airgate kind) with ``fans`` IfcFans stating their
+    Pset_FanTypeCommon.NominalAirFlowRate, exhausting one toilet room (ISO 16739 IFC4 names)."""
+    m = Model()
+    s = ifcopenshell.api.root.create_entity(m.f, ifc_class="IfcSpace", name="130")
+    ifcopenshell.api.aggregate.assign_object(m.f, products=[s], relating_object=m.storey)
+    qto = ifcopenshell.api.pset.add_qto(m.f, product=s, name="Qto_SpaceBaseQuantities")
+    ifcopenshell.api.pset.edit_qto(m.f, qto=qto, properties={"NetFloorArea": 20.0})
+    m.pset(s, "Airgate_Zone", {"exhaust": "{category: toilets-public, airflow: 80 L/s, "
+                                          "fixtures: 3}"})
+    ef = ifcopenshell.api.root.create_entity(m.f, ifc_class="IfcDistributionSystem",
+                                             name="EF-3", predefined_type="EXHAUST")
+    m.rel("IfcRelServicesBuildings", RelatingSystem=ef, RelatedBuildings=[s])
+    for n in range(fans):
+        fan = ifcopenshell.api.root.create_entity(m.f, ifc_class="IfcFan", name=f"EF-3 fan {n}")
+        m.rel("IfcRelAssignsToGroup", RelatingGroup=ef, RelatedObjects=[fan])
+        m.pset(fan, "Pset_FanTypeCommon", {"NominalAirFlowRate": m.flow(90.0)})
+    return m
+
+
+def test_an_exhaust_system_and_its_fan_airflow(tmp_path):
+    loaded = read_any(_exhaust_model(1).save(tmp_path / "ef.ifc"))
+    [s] = loaded.model.systems
+    assert (s.id, s.kind, s.airflow) == ("EF-3", "exhaust", pytest.approx(90.0))
+    assert "EXHAUST" in loaded.doc.origin(("systems", 0, "kind")).note
+    assert "fan" in loaded.doc.origin(("systems", 0, "airflow")).note
+    [z] = s.zones
+    assert (z.exhaust.category, z.exhaust.airflow, z.exhaust.fixtures) == (
+        "toilets-public", pytest.approx(80.0), 3)
+
+
+def test_two_fans_leave_the_exhaust_airflow_ambiguous(tmp_path, capsys):
+    assert main(["check", str(_exhaust_model(2).save(tmp_path / "ef2.ifc"))]) == 2
+    err = capsys.readouterr().err
+    assert "2 fans of the exhaust system state NominalAirFlowRate" in err
+    assert "Airgate_System" in err and "Traceback" not in err
