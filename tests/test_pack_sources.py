@@ -84,6 +84,10 @@ IMC_2018_WORKROOMS = {
     "pharmacy-prep-area": (10, 5, 0.18),
     "photo-studios": (10, 5, 0.12),
 }
+#: Washington State Register WSR 23-15-016 (State Building Code Council, 2023): the row 'Gym,
+#: stadium, arena (play area)' of WAC 51-52-0403 Table 403.3.1.1 (the state's 2021 International
+#: Mechanical Code): id → (Rp cfm/person, Ra cfm/ft², density /1000 ft²)
+WASHINGTON_2021 = {"gym-sports-arena-play-area": (20, 0.18, 7)}
 #: the same page's exhaust column: id → cfm/ft²
 IMC_2018_WORKROOM_EXHAUST = {"copy-printing-rooms": 0.5, "darkrooms": 1.0}
 
@@ -112,6 +116,9 @@ def test_published_rates_equal_the_public_copies(pack_id, si):
         elif row_id in INDIANA and not si:
             rp, ra, density = INDIANA[row_id]
             copy = {"Rp": rp, "Ra": ra, "density": density}
+        elif row_id in WASHINGTON_2021 and not si:
+            rp, ra, density = WASHINGTON_2021[row_id]
+            copy = {"Rp": rp, "Ra": ra, "density": density}
         elif row_id in IMC_2018_WORKROOMS and not si:
             density, rp, ra = IMC_2018_WORKROOMS[row_id]
             copy = {"Rp": rp, "Ra": ra, "density": density}
@@ -126,7 +133,8 @@ def test_published_rates_equal_the_public_copies(pack_id, si):
                                              ("ashrae-62.1-2019-si", True)])
 def test_rows_seen_in_a_public_copy_are_marked_published(pack_id, si):
     published = _published(pack_id)
-    seen = set(TABLE_6_1) | (set() if si else set(INDIANA) | STANDARD_ROWS_IN_IMC_2018)
+    seen = set(TABLE_6_1) | (set() if si else set(INDIANA) | STANDARD_ROWS_IN_IMC_2018
+                             | set(WASHINGTON_2021))
     assert seen <= set(published)
 
 
