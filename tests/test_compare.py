@@ -246,3 +246,62 @@ def test_bad_input_in_either_revision_is_located_and_nothing_is_written(tmp_path
     assert "--tolerance" in capsys.readouterr().err
     assert main(["compare", str(old), str(new), "-o", str(old)]) == 2
     assert "overwrite" in capsys.readouterr().err
+
+
+# --- a round kept as its JSON report --------------------------------------------------------
+
+def test_a_stored_report_compares_as_its_schedule_did(tmp_path, capsys):
+    """The report of the old round read back gives the comparison the old schedule gives:
+    the same verdicts, values and findings; its inputs come from the trails."""
+    old, new = _pair(tmp_path, _single(100, people=10), _single(120, people=12))
+    stored = tmp_path / "round-1.json"
+    assert main(["check", str(old), "--format", f"json:{stored}"]) == 1
+    direct, kept = compare(old, new), compare(stored, new)
+    assert kept.inputs_from == "trails" and direct.inputs_from == "schedules"
+    assert [(c.subject, c.old, c.new) for c in kept.verdicts] == [
+        (c.subject, c.old, c.new) for c in direct.verdicts]
+    assert [(c.subject, c.symbol) for c in kept.values] == [
+        (c.subject, c.symbol) for c in direct.values]
+    for a, b in zip(kept.values, direct.values):
+        assert (a.old, a.new) == pytest.approx((b.old, b.new), rel=1e-5)  # 6 digits kept
+    assert [(f.rule, f.subject) for f in kept.resolved] == [("system-intake", "S-1")]
+    # Vot_design 100 → 120 cfm and Pz 10 → 12, as the trails took them from the schedules
+    got = {(c.subject, c.field): (c.old, c.new) for c in kept.inputs}
+    assert got == {("S-1", "Vot_design"): ("100 cfm", "120 cfm"),
+                   ("S-1/1", "Pz"): ("10 people", "12 people")}
+    line = next(i for i, t in enumerate(old.read_text().splitlines(), 1) if "outdoor_air" in t)
+    vot = next(c for c in kept.inputs if c.field == "Vot_design")
+    assert (vot.old_at.file, vot.old_at.line) == (str(old), line)
+
+
+def test_a_stored_report_of_the_same_schedule_changes_nothing(tmp_path, capsys):
+    stored = tmp_path / "demo.json"
+    assert main(["check", str(DEMO), "--format", f"json:{stored}"]) == 1
+    capsys.readouterr()
+    cmp = compare(stored, DEMO)
+    assert (cmp.verdicts, cmp.inputs, cmp.values, cmp.resolved, cmp.added) == ([], [], [], [], [])
+    assert main(["compare", str(stored), str(DEMO), "--format", "json", "--exit-zero"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    jsonschema.validate(data, COMPARE_SCHEMA)
+    assert data["inputs_from"] == "trails"
+
+
+def test_a_space_type_change_shows_in_the_trail_inputs(tmp_path, capsys):
+    old = _single(120)
+    new = copy.deepcopy(old)
+    new["systems"][0]["zones"][0]["space"] = "conference-meeting"
+    a, b = _pair(tmp_path, old, new)
+    stored = tmp_path / "a.json"
+    main(["check", str(a), "--format", f"json:{stored}"])
+    got = {(c.subject, c.field, c.old, c.new) for c in compare(stored, b).inputs}
+    assert ("S-1/1", "space", "office-space", "conference-meeting") in got
+
+
+def test_a_report_of_several_schedules_is_refused(tmp_path, capsys):
+    one, two = _write(tmp_path, "a.yaml", _single(120)), _write(tmp_path, "b.yaml", _single(100))
+    batch = tmp_path / "batch.json"
+    main(["check", str(one), str(two), "--format", f"json:{batch}"])
+    capsys.readouterr()
+    assert main(["compare", str(batch), str(one)]) == 2
+    err = capsys.readouterr().err
+    assert str(batch) in err and "a report of several schedules" in err and "Traceback" not in err

@@ -2,7 +2,9 @@
 
 The comparison itself is :func:`airgate.evaluation.compare.compare` (nothing there reads a file);
 this reads both schedules (any importable format), loads each one's rule pack (or ``rules`` for
-both), applies the waivers and evaluates them, then compares (docs/compare.md).
+both), applies the waivers and evaluates them, then compares (docs/compare.md). A side may also
+be a round kept as its JSON report (``check --format json``), read back as it was evaluated
+(:mod:`airgate.api.stored`).
 """
 
 from __future__ import annotations
@@ -12,16 +14,28 @@ from collections.abc import Sequence
 from pathlib import Path
 
 from airgate.api.core import Search, _pack, evaluate, load_schedule
+from airgate.api.stored import load_report
 from airgate.errors import AirgateError, ErrorGroup, raise_all
+from airgate.evaluation.checks import DECLARED_CHECKS, KNOWN_CHECKS
+from airgate.evaluation.report import Report
+from airgate.evaluation.review import rule_errors, statuses
 from airgate.evaluation.compare import DEFAULT_TOLERANCE, Comparison, compare as _compare
 from airgate.evaluation.review import CommentEntry
 from airgate.evaluation.waivers import WaiverEntry
 from airgate.models.loaded import LoadedSchedule
+from airgate.readers.importers import is_report
 
 
 def _evaluated(path: str | Path, rules: str | None, search: Search,
                waivers: Sequence[WaiverEntry], as_of: dt.date | None,
-               review: Sequence[CommentEntry] = ()):
+               review: Sequence[CommentEntry] = ()) -> tuple[LoadedSchedule | None, Report]:
+    if is_report(path):  # a round kept as its report: as it was evaluated then
+        report = load_report(path)
+        if review:
+            known = [*KNOWN_CHECKS, *DECLARED_CHECKS, *(f.rule for f in report.findings)]
+            raise_all(rule_errors(review, known))
+            report.review = statuses(report.findings, review)
+        return None, report
     loaded: LoadedSchedule = load_schedule(path)
     ref = rules or loaded.model.rules
     if ref is None:
@@ -35,7 +49,9 @@ def compare(old: str | Path, new: str | Path, rules: str | None = None, *,
             search: Search = None, waivers: Sequence[WaiverEntry] = (),
             as_of: dt.date | None = None, tolerance: float = DEFAULT_TOLERANCE,
             review: Sequence[CommentEntry] = ()) -> Comparison:
-    """Read and evaluate the schedules ``old`` and ``new`` and compare them.
+    """Read and evaluate the schedules ``old`` and ``new`` and compare them; either may be an
+    airgate JSON report of one schedule instead, compared as it was evaluated (its inputs then
+    from the calculation trails, ``Comparison.inputs_from == "trails"``).
 
     ``rules``, ``search``, ``waivers`` and ``as_of`` are those of :func:`airgate.check`, for both
     schedules. ``tolerance``: the relative change a value must exceed to be listed (0.01 = 1 %).

@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import argparse
 import datetime as dt
-import re
 import sys
 from pathlib import Path
 
@@ -19,25 +18,11 @@ from airgate.errors import (EXIT_FAIL, EXIT_PASS, AirgateError, ErrorGroup, Sche
                             UsageError, raise_all)
 from airgate.escaping import terminal
 from airgate.readers import document
-from airgate.readers.importers import IMPORTERS
+from airgate.readers.importers import IMPORTERS, is_report
 
 #: the files of a folder that are checked: YAML/JSON schedules (not imports)
 SCHEDULE_SUFFIXES = IMPORTERS["schedule"].suffixes
 
-#: how airgate's own JSON reports begin (writers.json_report: the version key, then the generator)
-_REPORT_HEAD = re.compile(rb'\A\s*\{\s*"(?:report|batch)_version"\s*:\s*\d+\s*,\s*'
-                          rb'"generator"\s*:\s*"airgate ')
-
-
-def is_report(path: Path) -> bool:
-    """Whether a file in a folder is one of airgate's own JSON reports (not a schedule)."""
-    if path.suffix.lower() != ".json":
-        return False
-    try:
-        with open(path, "rb") as f:
-            return bool(_REPORT_HEAD.match(f.read(512)))
-    except OSError:
-        return False  # read (and refused, located) as a schedule
 
 
 def add_judgement(parser, applies_to: str, review: str, failing: str, judged: str = "") -> None:

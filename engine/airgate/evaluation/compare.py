@@ -26,6 +26,7 @@ from collections.abc import Iterator, Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
+from airgate import formatting
 from airgate.evaluation.findings import Finding, Location
 from airgate.evaluation.report import Report
 from airgate.evaluation.review import CommentEntry, CommentStatus, statuses
@@ -104,9 +105,14 @@ class Comparison:
     added: list[Finding] = field(default_factory=list)
     #: the reviewer's record against NEW, with the comments whose finding was resolved marked
     review: list[CommentStatus] = field(default_factory=list)
+    #: where the inputs were compared: ``schedules`` (the two documents, field by field) or
+    #: ``trails`` (a side is a stored report: the values its calculation trails took from the
+    #: schedule, symbol by symbol, and each zone's space type)
+    inputs_from: str = "schedules"
 
 
-def compare(old_loaded: LoadedSchedule, old: Report, new_loaded: LoadedSchedule, new: Report,
+def compare(old_loaded: LoadedSchedule | None, old: Report, new_loaded: LoadedSchedule | None,
+            new: Report,
             tolerance: float = DEFAULT_TOLERANCE,
             review: Sequence[CommentEntry] = ()) -> Comparison:
     """Compare two evaluated schedules (each with the loaded schedule it came from).
@@ -114,12 +120,17 @@ def compare(old_loaded: LoadedSchedule, old: Report, new_loaded: LoadedSchedule,
     ``tolerance``: the relative change [–] a value must exceed to be listed
     (``|new − old| > tolerance · max(|old|, |new|)``). ``review``: a reviewer's comments, set
     against NEW's findings; a comment whose finding was resolved is flagged for closing.
+    A side without its loaded schedule (a stored report) has its inputs compared from the
+    trails (:func:`trail_inputs`).
     """
     if not (tolerance >= 0 and math.isfinite(tolerance)):
         raise ValueError(f"tolerance must be a finite number ≥ 0, got {tolerance!r}")
     out = Comparison(old=old, new=new, tolerance=tolerance)
     out.verdicts = verdict_changes(old, new)
-    out.inputs = list(input_changes(old_loaded, new_loaded))
+    if old_loaded is None or new_loaded is None:
+        out.inputs, out.inputs_from = list(trail_inputs(old, new)), "trails"
+    else:
+        out.inputs = list(input_changes(old_loaded, new_loaded))
     out.values = value_changes(old, new, tolerance)
     out.resolved, out.added = finding_changes(old, new)
     out.review = statuses(new.findings, review, out.resolved)
@@ -289,3 +300,64 @@ def input_changes(old: LoadedSchedule, new: LoadedSchedule) -> Iterator[InputCha
                           None if pa is None else _text(a), None if pb is None else _text(b),
                           None if pa is None else _where(old, pa),
                           None if pb is None else _where(new, pb))
+
+
+def _location_of(source: str) -> Location | None:
+    """The ``file:line:column`` a schedule value's trail source names, or None."""
+    parts = source.rsplit(":", 2)
+    if len(parts) == 3 and parts[1].isdigit() and parts[2].isdigit():
+        return Location(parts[0], int(parts[1]), int(parts[2]))
+    return None
+
+
+def _schedule_values(report: Report) -> dict[tuple[str, str], tuple[Any, str, Any]]:
+    """(subject, field) → (value, kind, where) for what the trails took from the schedule (values
+    in internal units), and each zone's space type (kind ``""``)."""
+    out: dict[tuple[str, str], tuple[Any, str, Any]] = {}
+    for s in report.systems:
+        for subject, trail, space in [(s.id, s.trail, None)] + [
+                (f"{s.id}/{z.id}", z.trail, z.space) for z in s.zones]:
+            if space is not None:
+                out[(subject, "space")] = (space, "", None)
+            for step in trail.steps.values():
+                if step.origin == "schedule":
+                    out[(subject, step.symbol)] = (step.value, step.kind,
+                                                   _location_of(step.source))
+    return out
+
+
+#: two trail values read back from reports are the same to the 6 significant digits the JSON
+#: report keeps (half a unit in the 6th digit, relative)
+SAME = 5e-6
+
+
+def _same(a: Any, b: Any) -> bool:
+    if isinstance(a, float) and isinstance(b, float):
+        return not _moved(a, b, SAME)
+    return a == b
+
+
+def trail_inputs(old: Report, new: Report) -> Iterator[InputChange]:
+    """The inputs that changed as the calculation trails show them, in NEW's order: every value a
+    trail took from the schedule (Az, Pz, the scheduled intake …; compared as numbers and shown
+    in NEW's units, so a value rewritten in other units is no change) and each zone's space type;
+    a system or zone only one side has is one change with an empty field name."""
+    a, b = _subjects(old), _subjects(new)
+    for subject in _union(a, b):
+        if subject not in a or subject not in b:
+            yield InputChange(subject, "", None if subject not in a else "present",
+                              None if subject not in b else "present", None, None)
+    va, vb = _schedule_values(old), _schedule_values(new)
+    for key in _union(va, vb):
+        if key[0] not in a or key[0] not in b:
+            continue
+        (xa, ka, la), (xb, kb, lb) = va.get(key, (None, "", None)), vb.get(key, (None, "", None))
+        if _same(xa, xb):
+            continue
+        kind = kb or ka
+
+        def shown(x: Any) -> str | None:
+            if x is None or not kind:
+                return None if x is None else str(x)
+            return formatting.amount(x, kind, new.units)
+        yield InputChange(key[0], key[1], shown(xa), shown(xb), la, lb)

@@ -21,6 +21,7 @@ formats airgate does not read, refused with what to do instead.
 from __future__ import annotations
 
 import importlib
+import re
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -67,3 +68,21 @@ REFUSED = {
 def importer_for(path: str | Path) -> Importer:
     """The importer of ``path`` by its suffix (:data:`DEFAULT` for a suffix none lists)."""
     return BY_SUFFIX.get(Path(path).suffix.lower(), DEFAULT)
+
+
+#: how airgate's own JSON reports begin (writers.json_report: the version key, then the generator)
+_REPORT_HEAD = re.compile(rb'\A\s*\{\s*"(?:report|batch)_version"\s*:\s*\d+\s*,\s*'
+                          rb'"generator"\s*:\s*"airgate ')
+
+
+def is_report(path: str | Path) -> bool:
+    """Whether a file is one of airgate's own JSON reports, not a schedule (``check FOLDER``
+    skips them; ``compare`` reads one back as a round kept as its report)."""
+    path = Path(path)
+    if path.suffix.lower() != ".json":
+        return False
+    try:
+        with open(path, "rb") as f:
+            return bool(_REPORT_HEAD.match(f.read(512)))
+    except OSError:
+        return False  # read (and refused, located) as a schedule

@@ -96,7 +96,9 @@ def sections(cmp: Comparison) -> list[Section]:
         Section("verdicts", "Verdicts that changed", ("subject", "old", "new"),
                 [[c.subject, verdict_word(c.old), verdict_word(c.new)] for c in cmp.verdicts],
                 [c.new or "" for c in cmp.verdicts]),
-        Section("inputs", "Inputs that changed",
+        Section("inputs", "Inputs that changed" + (
+                    " (as the calculation trails took them from the schedules: a side is a "
+                    "stored report)" if cmp.inputs_from == "trails" else ""),
                 ("subject", "field", "old", "new", "where (old → new)"),
                 [[c.subject, field_name(c), cut(c.old), cut(c.new),
                   f"{at(c.old_at)} → {at(c.new_at)}"] for c in cmp.inputs],
@@ -206,6 +208,7 @@ def to_dict(cmp: Comparison, batch) -> dict[str, Any]:
         "old": _side(cmp.old),
         "new": _side(cmp.new),
         "tolerance": cmp.tolerance,
+        "inputs_from": cmp.inputs_from,
         "gate": {"fail_on": list(batch.fail_on), "outcome": batch.gate},
         "verdicts": [{"subject": c.subject, "level": c.level, "old": c.old, "new": c.new}
                      for c in cmp.verdicts],
