@@ -5,7 +5,7 @@ Not a test. Run from the repository root:
     PYTHONPATH=engine python bench/bench_html.py              # 1,000 and 10,000 zones
     PYTHONPATH=engine python bench/bench_html.py 60000        # add sizes as arguments
 
-The portfolio is the one of ``bench_portfolio.py`` (the invented demo building repeated; one zone
+The portfolio is ``synthetic.demo_portfolio`` (the invented demo building repeated; one zone
 in fourteen fails on purpose, so every copy of its multiple-zone system fails). Above
 ``airgate.writers.html.DETAIL_LIMIT`` zones the HTML report is summarised (docs/report-format.md):
 failing and warning zones in full, passing systems one row each, passing zones one table row.
@@ -24,11 +24,9 @@ import sys
 import tempfile
 from pathlib import Path
 
-import yaml
-
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
-from bench_portfolio import portfolio  # noqa: E402
+from synthetic import count_zones, demo_portfolio, write  # noqa: E402
 
 SIZES = (1000, 10000)
 #: the input limits (docs/limits.md) raised for the child: a 60,000-zone schedule has more
@@ -64,10 +62,9 @@ def main(argv: list[str]) -> None:
     base = None
     with tempfile.TemporaryDirectory() as tmp:
         for n in sizes:
-            doc = portfolio(n)
-            zones = sum(len(s["zones"]) for s in doc["systems"])
-            path = Path(tmp) / f"portfolio-{n}.yaml"
-            path.write_text(yaml.safe_dump(doc, sort_keys=False), encoding="utf-8")
+            doc = demo_portfolio(n)
+            zones = count_zones(doc)
+            path = write(doc, Path(tmp) / f"portfolio-{n}.yaml")
             run = subprocess.run([sys.executable, "-c", CHILD, str(path),
                                   str(path.with_suffix(".html"))],
                                  check=True, capture_output=True, text=True, env=ENV)

@@ -5,29 +5,26 @@ Not a test. Run from the repository root:
     PYTHONPATH=engine python bench/bench_portfolio.py            # 1,000 and 10,000 zones
     PYTHONPATH=engine python bench/bench_portfolio.py 100000     # add sizes as arguments
 
-The portfolio is the invented demo building (fixtures/demo/fernhollow-civic-centre.yaml: 17
-zones on 4 systems, with occupancy profiles, an aerosol contaminant, a filter and an air
-cleaner) repeated with renamed systems and zones until it holds at least N zones, written to
-one YAML schedule. Each size runs in a fresh process (``airgate check FILE --format text:…
---format json:…``) so that start-up and peak memory are its own. Printed, all from this one
-run: wall time split into reading + validation, evaluation and writing, time per zone, peak
-resident memory, and each size's per-zone time and memory as a ratio to the smallest size
-(1.00 everywhere means linear).
+The portfolio is ``synthetic.demo_portfolio``: the invented demo building repeated with renamed
+systems and zones until it holds at least N zones, written to one YAML schedule. Each size runs
+in a fresh process (``airgate check FILE --format text:… --format json:…``) so that start-up and
+peak memory are its own. Printed, all from this one run: wall time split into reading +
+validation, evaluation and writing, time per zone, peak resident memory, and each size's
+per-zone time and memory as a ratio to the smallest size (1.00 everywhere means linear).
 """
 
 from __future__ import annotations
 
-import copy
 import json
 import subprocess
 import sys
 import tempfile
 from pathlib import Path
 
-import yaml
+sys.path.insert(0, str(Path(__file__).resolve().parent))
 
-ROOT = Path(__file__).resolve().parents[1]
-DEMO = ROOT / "fixtures" / "demo" / "fernhollow-civic-centre.yaml"
+from synthetic import count_zones, demo_portfolio, write  # noqa: E402
+
 SIZES = (1000, 10000)
 
 # Runs in the child: one check, timed by stage, then the process's peak resident memory.
@@ -50,27 +47,6 @@ print(json.dumps({"import": t1 - t0, "check": t2 - t1, "write": t3 - t2,
 """
 
 
-def portfolio(n_zones: int) -> dict:
-    """The demo schedule repeated until it has at least n_zones zones (ids made unique)."""
-    doc = yaml.safe_load(DEMO.read_text(encoding="utf-8"))
-    base, systems, count, copy_no = doc["systems"], [], 0, 0
-    while count < n_zones:
-        for system in base:
-            s = copy.deepcopy(system)
-            s["id"] = f"{system['id']}-{copy_no}"
-            for zone in s["zones"]:
-                zone["id"] = f"{zone['id']}-{copy_no}"
-                makeup = (zone.get("exhaust") or {}).get("makeup")
-                if isinstance(makeup, dict):  # transferred from a zone of the same copy
-                    makeup["transfer_from"] = f"{makeup['transfer_from']}-{copy_no}"
-            count += len(s["zones"])
-            systems.append(s)
-        copy_no += 1
-    doc["systems"] = systems
-    doc["project"]["name"] = f"Quillby Bay civic portfolio, {count} zones (invented)"
-    return doc
-
-
 def main(argv: list[str]) -> None:
     sizes = sorted(set(SIZES) | {int(a) for a in argv})
     print("airgate portfolio benchmark: whole check of the demo building repeated "
@@ -80,10 +56,9 @@ def main(argv: list[str]) -> None:
     base = None
     with tempfile.TemporaryDirectory() as tmp:
         for n in sizes:
-            doc = portfolio(n)
-            zones = sum(len(s["zones"]) for s in doc["systems"])
-            path = Path(tmp) / f"portfolio-{n}.yaml"
-            path.write_text(yaml.safe_dump(doc, sort_keys=False), encoding="utf-8")
+            doc = demo_portfolio(n)
+            zones = count_zones(doc)
+            path = write(doc, Path(tmp) / f"portfolio-{n}.yaml")
             run = subprocess.run(
                 [sys.executable, "-c", CHILD, str(path), str(path.with_suffix(".txt")),
                  str(path.with_suffix(".json"))],

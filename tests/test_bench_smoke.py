@@ -15,6 +15,7 @@ sys.path.insert(0, str(ROOT / "bench"))
 
 import bench_dilution  # noqa: E402
 import bench_portfolio  # noqa: E402
+import synthetic  # noqa: E402
 
 
 def test_scaling_table_runs_and_restores_the_procedure(capsys):
@@ -37,7 +38,7 @@ def test_two_day_target_runs(capsys):
 
 
 def test_portfolio_repeats_the_demo_with_unique_ids():
-    doc = bench_portfolio.portfolio(30)
+    doc = synthetic.demo_portfolio(30)
     zones = [z["id"] for s in doc["systems"] for z in s["zones"]]
     assert len(zones) >= 30 and len(set(zones)) == len(zones)
     assert len({s["id"] for s in doc["systems"]}) == len(doc["systems"])
@@ -61,3 +62,15 @@ def test_html_benchmark_runs_end_to_end(capsys, monkeypatch):
     out = capsys.readouterr().out
     row = [line.split() for line in out.splitlines() if line.strip()[:1].isdigit()]
     assert len(row) == 1 and int(row[0][0]) >= 14 and row[0][-1] == "1.00"
+
+
+def test_vav_portfolio_is_a_valid_schedule_with_unique_ids(tmp_path):
+    from airgate import check
+
+    doc = synthetic.vav_portfolio(120, per_system=50, heights=True)
+    zones = [z["id"] for s in doc["systems"] for z in s["zones"]]
+    assert len(zones) == 150 and len(set(zones)) == 150
+    assert all("height" in z for s in doc["systems"] for z in s["zones"])
+    for suffix in (".json", ".yaml"):
+        report = check(synthetic.write(doc, tmp_path / f"district{suffix}"))
+        assert len(report.systems) == 3

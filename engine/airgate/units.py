@@ -43,8 +43,6 @@ import re
 from dataclasses import dataclass
 from functools import lru_cache
 
-import pint
-
 from airgate.escaping import excerpt
 
 IP = "IP"
@@ -57,6 +55,8 @@ PEOPLE_DIMENSION = "[people]"
 @lru_cache(maxsize=1)
 def registry() -> pint.UnitRegistry:
     """airgate's pint registry: pint's defaults plus the trade's shorthand units."""
+    import pint  # imported on first use: a command that converts nothing starts without it
+
     ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
     # pint would otherwise read "cfm" as centi-fermi.
     ureg.define("cubic_foot_per_minute = foot ** 3 / minute = cfm")
@@ -311,6 +311,8 @@ def parse(raw: object, kind: str, system: str) -> float:
     if factor is not None:
         return _finite(value * factor, raw, kind)
     ureg = registry()
+    import pint  # already imported by registry()
+
     try:
         q = ureg.Quantity(value, unit)
     except pint.UndefinedUnitError as exc:

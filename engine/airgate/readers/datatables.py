@@ -68,16 +68,22 @@ def _conversion(doc, table_id: str, declared: str) -> tuple[float, str]:
     return factor, units.KINDS[kind].internal
 
 
+@lru_cache(maxsize=1)
+def _table_ids() -> tuple[str, ...]:
+    """The ids of the built-in tables (the stems of ``rules/data/*.yaml``), sorted."""
+    return tuple(sorted(p.stem for p in (builtin_rules_dir() / "data").glob("*.yaml")))
+
+
 class _Builtin(Mapping[str, DataTable]):
     """The built-in tables by id, each loaded (and validated) when first looked up."""
 
     def __getitem__(self, table_id: str) -> DataTable:
-        if not (builtin_rules_dir() / "data" / f"{table_id}.yaml").is_file():
+        if table_id not in _table_ids():  # looked up once per zone: no file system call each
             raise KeyError(table_id)
         return data_table(table_id)
 
     def __iter__(self) -> Iterator[str]:
-        return iter(sorted(p.stem for p in (builtin_rules_dir() / "data").glob("*.yaml")))
+        return iter(_table_ids())
 
     def __len__(self) -> int:
         return sum(1 for _ in self)

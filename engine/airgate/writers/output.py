@@ -39,6 +39,7 @@ from typing import Union
 
 from airgate.errors import OutputError
 from airgate.escaping import invisible
+from airgate.writers import json_encode
 
 #: A rendered output: text, its pieces in order (written without joining them), or bytes.
 Body = Union[str, bytes, Iterable[str]]
@@ -119,8 +120,8 @@ def _streamed(value: object, level: int) -> Iterator[str]:
             sep = ","
             yield from _streamed(item, level + 1)
         yield "[]" if sep == "[" else "\n" + "  " * level + "]"
-    else:  # a JSON string holds no raw line break, so indenting every line is exact
-        yield _ENCODER.encode(value).replace("\n", "\n" + "  " * level)
+    else:
+        yield json_encode.dumps(value, level)
 
 
 def json_text(data: object) -> str:
