@@ -28,13 +28,19 @@ def _limit(name: str, default: int) -> int:
 
 #: Hard limits that keep a hostile document from exhausting memory or the stack; each can be
 #: set by an environment variable of the same name with the AIRGATE_ prefix (docs/limits.md).
-MAX_NODES = _limit("AIRGATE_MAX_NODES", 500_000)
+MAX_BYTES = _limit("AIRGATE_MAX_BYTES", 50 * 1024 * 1024)
+#: Bytes of the file-size limit per value of the value limit: the value limit follows the
+#: file-size limit (1,638,400 values at 50 MiB), so any schedule a file of the size limit can
+#: hold in ordinary layout (about 12 bytes a value in YAML, 16 in indented JSON: a 100,000-zone
+#: schedule is 15–20 MB and 1.25 million values) is read, while text denser than that (a long
+#: list of ``0,``) is stopped before it is held in memory
+BYTES_PER_NODE = 32
+MAX_NODES = _limit("AIRGATE_MAX_NODES", MAX_BYTES // BYTES_PER_NODE)
 MAX_DEPTH = _limit("AIRGATE_MAX_DEPTH", 64)
 #: Values reached through aliases (a repeated anchor is expanded at each alias), and the text
 #: they bring [bytes, UTF-8]; one budget for a whole file, however many YAML texts it holds.
 MAX_ALIAS_VALUES = _limit("AIRGATE_MAX_ALIAS_VALUES", 100_000)
 MAX_ALIAS_BYTES = _limit("AIRGATE_MAX_ALIAS_BYTES", 10 * 1024 * 1024)
-MAX_BYTES = _limit("AIRGATE_MAX_BYTES", 50 * 1024 * 1024)
 #: Bytes the parts of one XLSX workbook may unpack to (readers/workbook_guard.py).
 MAX_UNPACKED_BYTES = _limit("AIRGATE_MAX_UNPACKED_BYTES", 256 * 1024 * 1024)
 
