@@ -33,6 +33,7 @@ _LAZY = {
     "load_pack": "airgate.api.core",
     "evaluate": "airgate.api.core",
     "check": "airgate.api.core",
+    "sweep": "airgate.api.core",
     "load_waivers": "airgate.api.core",
     "load_review": "airgate.api.core",
     "Report": "airgate.api.core",

@@ -164,3 +164,32 @@ def _pack(loaded: LoadedSchedule, ref: str, from_option: bool,
         return rulepack.load_pack(str(path), options=loaded.model.project.options, search=search)
     except OptionError as exc:
         raise as_schedule_error(exc, loaded) from None
+
+
+def sweep(schedule: LoadedSchedule | str | Path, *, system: str, outdoor_air,
+          primary_airflow: Mapping[str, Any] | None = None, pack: RulePack | None = None):
+    """Evaluate a grid of variants of one system: every intake of ``outdoor_air`` against every
+    variant of the zone primary airflows (``primary_airflow``: zone id → array, all of one
+    length; the variant ``j`` gives each zone named its ``j``-th value, the others keep their
+    scheduled one). Airflows are numbers in the schedule's unit system (cfm for IP, L/s for SI).
+
+    The schedule is read (if a path is given) and evaluated once, under ``pack`` or the pack it
+    names; the variants are then computed together over numpy arrays. The result
+    (:class:`airgate.evaluation.sweep.Sweep`) has arrays ``vot`` (the required intake), ``ev``
+    and ``passes`` shaped ``(len(outdoor_air), len(ARRAY))``, and ``report``, the evaluation of
+    the schedule as given. Which checks ``passes`` covers: docs/api.md.
+    """
+    from airgate.evaluation.sweep import sweep_system
+
+    loaded = schedule if isinstance(schedule, LoadedSchedule) else load_schedule(schedule)
+    if pack is None:
+        ref = loaded.model.rules
+        if ref is None:
+            raise loaded.error("no rule pack: give 'rules:' in the schedule or pack=",
+                               ("rules",), hint="e.g. rules: ashrae-62.1-2019")
+        pack = _pack(loaded, ref, from_option=False)
+    chosen = next((s for s in loaded.model.systems if s.id == system), None)
+    if chosen is None:
+        raise ValueError(f"no system '{system}' in {loaded.file}; the systems are "
+                         + ", ".join(s.id for s in loaded.model.systems))
+    return sweep_system(evaluate(loaded, pack), chosen, outdoor_air, primary_airflow or {})
