@@ -5,8 +5,8 @@ Not a test. Run from the repository root:
     PYTHONPATH=engine python bench/bench_html.py              # 1,000 and 10,000 zones
     PYTHONPATH=engine python bench/bench_html.py 60000        # add sizes as arguments
 
-The portfolio is ``synthetic.demo_portfolio`` (the invented demo building repeated; one zone
-in fourteen fails on purpose, so every copy of its multiple-zone system fails). Above
+The portfolio is ``synthetic.demo_portfolio`` (the invented demo building repeated; one zone of
+each copy fails on purpose, so every copy of its multiple-zone system fails). Above
 ``airgate.writers.html.DETAIL_LIMIT`` zones the HTML report is summarised (docs/report-format.md):
 failing and warning zones in full, passing systems one row each, passing zones one table row.
 Each size runs in a fresh process; printed, all from this one run: the check's time, the HTML
