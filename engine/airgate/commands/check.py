@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import argparse
 import datetime as dt
+import os
 import sys
 from pathlib import Path
 
@@ -65,6 +66,9 @@ def register(sub) -> None:
                   "HTML reports against what each finding is now (one schedule)", "findings fail")
     c.add_argument("--series-step", type=int, default=0, metavar="MINUTES",
                    help="JSON: include each zone's design-day CO2 series at this step")
+    c.add_argument("--jobs", type=int, default=0, metavar="N",
+                   help="check several schedules in N processes at once (default: one per "
+                        "core; 1: one after another); the reports are the same either way")
 
 
 def _destinations(args: argparse.Namespace) -> list[tuple[str, str | None]]:
@@ -209,13 +213,67 @@ class _Progress:
             sys.stderr.flush()
 
 
-def _evaluate(files: list[str], args, entries, as_of, comments=()):
+def _jobs(args: argparse.Namespace, files: int) -> int:
+    """Processes for a run of ``files`` schedules: ``--jobs``, or one per core."""
+    if args.jobs < 0:
+        raise UsageError("--jobs takes a number of processes, 1 or more (0: one per core)",
+                         field=("--jobs",))
+    cores = (len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity")
+             else os.cpu_count() or 1)
+    return max(1, min(args.jobs or cores, files))
+
+
+def _check_one(f: str, rules, entries, as_of, search, comments):
+    """A worker's check of one schedule: its report, or None when the check raised (the parent
+    then checks that schedule itself, so its errors are raised exactly as in a serial run)."""
     from airgate.api.core import check
 
+    try:
+        return check(f, rules, waivers=entries, as_of=as_of, search=search, review=comments)
+    except Exception:  # noqa: BLE001 - reported by the parent's own check of the file
+        return None
+
+
+def _in_workers(files: list[str], jobs: int, args, entries, as_of, comments,
+                progress: _Progress) -> list:
+    """Each schedule's report checked in ``jobs`` processes, in the order given; None for a
+    schedule whose check raised or whose report could not be handed back."""
+    import multiprocessing
+    from concurrent.futures import ProcessPoolExecutor
+
+    methods = multiprocessing.get_all_start_methods()
+    context = multiprocessing.get_context("fork" if "fork" in methods else None)
+    out: list = []
+    try:
+        with ProcessPoolExecutor(jobs, mp_context=context) as pool:
+            futures = [pool.submit(_check_one, f, args.rules, entries, as_of,
+                                   args.rules_path, comments) for f in files]
+            for i, (f, future) in enumerate(zip(files, futures)):
+                progress.step(i, f)
+                try:
+                    out.append(future.result())
+                except Exception:  # noqa: BLE001 - a report that does not pickle: checked here
+                    out.append(None)
+    except OSError:  # no processes to be had (a sandbox without semaphores): checked here
+        pass
+    return out + [None] * (len(files) - len(out))
+
+
+def _evaluate(files: list[str], args, entries, as_of, comments=()):
+    """Every schedule's report, in the order given; with several schedules and cores, checked
+    in parallel processes (``--jobs``), with results identical to a serial run."""
+    from airgate.api.core import check
+
+    jobs = _jobs(args, len(files))
     reports, errors = [], []
     progress = _Progress(len(files))
     try:
-        for i, f in enumerate(files):
+        done = (_in_workers(files, jobs, args, entries, as_of, comments, progress) if jobs > 1
+                else [None] * len(files))
+        for i, (f, report) in enumerate(zip(files, done)):
+            if report is not None:
+                reports.append(report)
+                continue
             progress.step(i, f)
             try:
                 reports.append(check(f, args.rules, waivers=entries, as_of=as_of,
