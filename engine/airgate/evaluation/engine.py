@@ -181,8 +181,11 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
     findings = sorted(emitter.findings, key=lambda f: f.sort_key())
     findings, statuses, waiver_date = waivers.review(findings, entries, pack, results, as_of)
     _verdicts(results, findings)
+    by_system: dict[str, list] = {}  # each system's findings, so the verdicts take linear time
+    for f in findings:
+        by_system.setdefault(f.system, []).append(f)
     for result in results:
-        conditions.verdicts(result, findings)
+        conditions.verdicts(result, by_system.get(result.id, []))
     notes = unused_fields(loaded.model, lambda path: str(_location(loaded, path)))
     notes += dilution.unchecked_limits(model, results,
                                        lambda path: str(_location(loaded, path)))

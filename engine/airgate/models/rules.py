@@ -52,8 +52,12 @@ class Source:
     section: str = ""
 
     def cite(self) -> str:
-        where = ", ".join(p for p in (self.table, self.section) if p)
-        return f"{self.document}, {self.edition} edition" + (f", {where}" if where else "")
+        cited = self.__dict__.get("_cited")  # worked out once: cited on every zone's trail
+        if cited is None:
+            where = ", ".join(p for p in (self.table, self.section) if p)
+            cited = f"{self.document}, {self.edition} edition" + (f", {where}" if where else "")
+            object.__setattr__(self, "_cited", cited)
+        return cited
 
     def as_dict(self) -> dict[str, str]:
         out = {"document": self.document, "edition": self.edition}
@@ -325,10 +329,16 @@ class RulePack:
 
     def cite(self, key: str) -> str:
         """Citation of an equation key, with its provenance (e.g. for a trail step)."""
-        eq = self.equations.get(key)
-        if eq is None:
-            return f"{self.document}, {self.edition} edition"
-        return f"{eq.source.cite()} ({eq.provenance})"
+        cites = self.__dict__.get("_cites")
+        if cites is None:  # worked out once per key: cited on every zone's trail
+            cites = {}
+            object.__setattr__(self, "_cites", cites)
+        cited = cites.get(key)
+        if cited is None:
+            eq = self.equations.get(key)
+            cited = cites[key] = (f"{self.document}, {self.edition} edition" if eq is None
+                                  else f"{eq.source.cite()} ({eq.provenance})")
+        return cited
 
     def locate(self, path: Path_) -> tuple[int | None, int | None]:
         if self.document_positions is None:
