@@ -82,3 +82,60 @@ def test_syntax_errors_and_tabs_are_reported_as_the_reference_reads_them():
                                                     ScheduleError), text)
         assert ref[0] == "failed" and got.value.message == ref[1]
         assert (got.value.line, got.value.column) == ref[2:]
+
+
+# --- JSON: positions from one scan of the tokens, against a YAML composition of the text -------
+
+JSON_FILES = sorted(p for top in ("fixtures", "rules", "tests")
+                    for p in (ROOT / top).rglob("*.json"))
+
+
+def _composed(text):
+    doc = docmod._json_positions(text, "f.json", ScheduleError)
+    return doc.positions, doc.texts
+
+
+def test_every_shipped_json_file_is_located_as_yaml_composes_it():
+    import json
+
+    checked = 0
+    for path in JSON_FILES:
+        text = path.read_bytes().decode("utf-8-sig", errors="replace")
+        try:
+            data = json.loads(text, object_pairs_hook=docmod._json_pairs,
+                              parse_constant=docmod._Constant)
+            expected = _composed(text)
+        except (ValueError, AirgateError):
+            continue  # not JSON, or JSON the YAML composer refuses: composed as before
+        if docmod._walk_json(data) is not None or docmod._OTHER_BREAKS.search(text):
+            continue  # a problem to report, or another line break: composed as before
+        assert docmod._scan_json_positions(text) == expected, path
+        checked += 1
+    assert checked >= 3
+
+
+# Characters of the Basic Multilingual Plane: an escaped character beyond it ("\ud800\udc00")
+# is composed by YAML as two surrogates, by JSON (and the scan) as the one character it is.
+_chars = st.characters(blacklist_categories=("Cs",), max_codepoint=0xFFFF,
+                       blacklist_characters="\r\x85\u2028\u2029\ufeff")
+_scalars = (st.none() | st.booleans() | st.integers(-10**6, 10**6)
+            | st.floats(allow_nan=False, allow_infinity=False) | st.text(_chars, max_size=8))
+_values = st.recursive(_scalars, lambda inner: st.lists(inner, max_size=4)
+                       | st.dictionaries(st.text(_chars, max_size=6), inner, max_size=4),
+                       max_leaves=25)
+
+
+@settings(max_examples=examples(2), suppress_health_check=[HealthCheck.too_slow])
+@given(value=_values, indent=st.sampled_from([None, 0, 1, 2, "\t"]),
+       ascii_only=st.booleans(), separators=st.sampled_from([None, (",", ":"), (" , ", " : ")]))
+def test_json_positions_and_texts_are_those_of_a_yaml_composition(value, indent, ascii_only,
+                                                                   separators):
+    import json
+
+    text = json.dumps({"schedule": 1, "data": value}, indent=indent, ensure_ascii=ascii_only,
+                      separators=separators)
+    try:
+        expected = _composed(text)
+    except AirgateError:
+        return  # text YAML does not compose (a key over 1024 characters): composed as before
+    assert docmod._scan_json_positions(text) == expected

@@ -473,6 +473,62 @@ def _json_positions(text: str, file: str, error_cls: type[AirgateError]) -> Docu
     return parse_yaml(text.replace("\t", " "), file, error_cls)
 
 
+#: a JSON token: a string, a punctuation mark, or any other scalar (number, true, false, null)
+_JSON_TOKEN = re.compile(r'"(?:[^"\\]|\\.)*"|[{}\[\]:,]|[^\s{}\[\]:,"]+')
+#: characters YAML counts as line breaks or skips in a column besides "\n" (the scan below
+#: counts lines by "\n" alone, so text holding one of these is composed as YAML instead)
+_OTHER_BREAKS = re.compile("[\r\x85\u2028\u2029\ufeff]")
+
+
+def _scan_json_positions(text: str) -> tuple[dict[Path_, tuple[int, int]], dict[Path_, str]]:
+    """The positions and number texts :func:`_json_positions` gives for well-formed JSON text
+    whose only line break is "\\n", from one regular-expression scan of its tokens: each value's
+    line and column (1-based, counted in characters as YAML counts them), and the text of every
+    number and boolean as written."""
+    positions: dict[Path_, tuple[int, int]] = {}
+    texts: dict[Path_, str] = {}
+    lines = [0, *(m.end() for m in re.finditer("\n", text))]
+    line, next_start = 0, lines[1] if len(lines) > 1 else len(text) + 1
+    # open collections: [path, is_mapping, next index (list) or key (mapping)]
+    stack: list[list] = []
+    expect_key = False
+    for m in _JSON_TOKEN.finditer(text):
+        tok = m.group()
+        first = tok[0]
+        if first in ",:":
+            if first == "," and stack and stack[-1][1]:
+                expect_key = True
+            continue
+        if first in "]}":
+            stack.pop()
+            expect_key = False  # an empty mapping closes where its first key would be
+            continue
+        if expect_key:  # a key of the open mapping
+            stack[-1][2] = tok[1:-1] if "\\" not in tok else json.loads(tok)
+            expect_key = False
+            continue
+        if not stack:
+            path: Path_ = ()
+        else:
+            top = stack[-1]
+            path = top[0] + (top[2],)
+            if not top[1]:
+                top[2] += 1
+        start = m.start()
+        while start >= next_start:
+            line += 1
+            next_start = lines[line + 1] if line + 1 < len(lines) else len(text) + 1
+        positions[path] = (line + 1, start - lines[line] + 1)
+        if first == "{":
+            stack.append([path, True, None])
+            expect_key = True
+        elif first == "[":
+            stack.append([path, False, 0])
+        elif first != '"' and tok != "null":
+            texts[path] = tok
+    return positions, texts
+
+
 def _json_decode_error(exc: json.JSONDecodeError, text: str, file: str,
                        error_cls: type[AirgateError]) -> AirgateError:
     before = text[: exc.pos].rstrip()
@@ -508,8 +564,11 @@ def parse_json(text: str, file: str, error_cls: type[AirgateError]) -> Document:
         raise limit_error(error_cls, "depth", file, ()) from None
     problem = _walk_json(data)
     try:
-        composed = _json_positions(text, file, error_cls)
-        positions, texts = composed.positions, composed.texts
+        if problem is None and not _OTHER_BREAKS.search(text):
+            positions, texts = _scan_json_positions(text)
+        else:
+            composed = _json_positions(text, file, error_cls)
+            positions, texts = composed.positions, composed.texts
     except AirgateError as exc:
         if _same_problem(problem, exc):
             raise exc from None  # the YAML reading located the same duplicate key or limit
