@@ -74,3 +74,24 @@ def test_vav_portfolio_is_a_valid_schedule_with_unique_ids(tmp_path):
     for suffix in (".json", ".yaml"):
         report = check(synthetic.write(doc, tmp_path / f"district{suffix}"))
         assert len(report.systems) == 3
+
+
+def test_bench_run_prints_every_figure_with_its_ratio_and_target():
+    import subprocess
+
+    from conftest import subprocess_env
+
+    run = subprocess.run([sys.executable, str(ROOT / "bench" / "run"), "--zones", "60",
+                          "--sweep", "20"], capture_output=True, text=True, env=subprocess_env(),
+                         cwd=ROOT)
+    assert run.returncode == 0, run.stderr
+    out = run.stdout
+    for figure in ("startup: demo check", "scale json no heights vs json.load",
+                   "scale yaml no heights vs C loader", "scale json dilution on",
+                   "scale yaml dilution on", "peak memory", "JSON report size",
+                   "defaults: the 60-zone YAML schedule", "evaluation core (100 zones)",
+                   "numpy Vot agrees", "sweep 20×20"):
+        assert figure in out, figure
+    rows = [line for line in out.splitlines() if line.rstrip().endswith(("met", "NOT MET"))]
+    assert len(rows) == 11  # startup, 4 × (scale, memory), evaluation core, sweep
+    assert "read under the default limits" in out
