@@ -4,10 +4,17 @@ from __future__ import annotations
 
 import re
 from dataclasses import dataclass
+from functools import lru_cache
 
 from airgate import units
 
 _PLACEHOLDER = re.compile(r"\{([^{}]+)\}")
+
+
+@lru_cache(maxsize=4096)
+def _symbolic(formula: str) -> str:
+    """A formula with its placeholders as bare symbols (the same few formulas on every zone)."""
+    return _PLACEHOLDER.sub(lambda m: m.group(1), formula)
 
 
 @dataclass(frozen=True)
@@ -27,7 +34,7 @@ class Step:
     origin: str = "computed"  #: computed | schedule | table | explicit | assumed | system
 
     def symbolic(self) -> str:
-        return _PLACEHOLDER.sub(lambda m: m.group(1), self.formula)
+        return _symbolic(self.formula)
 
     def inputs(self) -> list[str]:
         return _PLACEHOLDER.findall(self.formula)

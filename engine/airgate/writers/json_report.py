@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Iterator
+from functools import lru_cache
 from typing import Any
 
 from airgate import __version__, units
@@ -32,6 +33,7 @@ def value(x: float, kind: str, system: str) -> dict[str, Any]:
             "unit": units.JSON_UNITS[(kind, system)]}
 
 
+@lru_cache(maxsize=4096)
 def _symbol_key(symbol: str) -> str:
     """ASCII keys for machine use: ``ΣRp·Pz`` → ``sum_Rp_Pz``, ``max Zpz`` → ``max_Zpz``."""
     out = symbol.replace("Σ", "sum_").replace("·", "_").replace(" ", "_")
