@@ -72,18 +72,26 @@ def test_a_zone_below_its_outdoor_air_fails_every_intake(tmp_path):
     assert got.passes.tolist() == [[False, True]]
 
 
-def _engine(tmp_path, doc: dict, system: str, oa: float, vpz: dict[str, float], n: int):
+def _engine(tmp_path, doc: dict, system: str, oa: float, vpz: dict[str, float], n: int,
+            condition: str | None = None):
+    """Vot and whether the decided checks pass, from a full evaluation of the variant (at
+    ``condition`` of a system that lists design conditions)."""
     d = copy.deepcopy(doc)
     s = next(s for s in d["systems"] if s["id"] == system)
     s["outdoor_air"] = f"{oa} cfm"
     for z in s["zones"]:
         if z["id"] in vpz:
-            z["primary_airflow"] = f"{vpz[z['id']]} cfm"
+            if isinstance(z.get("primary_airflow"), dict):
+                z["primary_airflow"][condition] = f"{vpz[z['id']]} cfm"
+            else:
+                z["primary_airflow"] = f"{vpz[z['id']]} cfm"
     report = airgate.check(_write(tmp_path, d, f"v{n}.yaml"))
     result = next(r for r in report.systems if r.id == system)
+    trail = (next(c for c in result.conditions if c.id == condition).trail if condition
+             else result.trail)
     failed = any(f.system == system and f.rule in DECIDED and f.severity == "fail"
-                 for f in report.findings)
-    return result.trail.value("Vot"), not failed
+                 and f.condition in (None, condition) for f in report.findings)
+    return trail.value("Vot"), not failed
 
 
 @pytest.mark.parametrize("case", ["demo", "simplified-vav", "secondary"])
@@ -93,7 +101,7 @@ def test_every_cell_is_the_evaluation_of_that_variant(tmp_path, case):
     if case == "demo":
         doc, system = yaml.safe_load(DEMO.read_text(encoding="utf-8")), "AHU-3"
         zones = {"203": [200.0, 300.0, 520.0], "208": [250.0, 300.0, 400.0]}
-        oa = [1800.0, 2000.0, 2300.0, 2600.0]
+        oa = [1800.0, 2000.0, 2300.0, 2600.0, 3000.0]
     elif case == "simplified-vav":
         doc, system = _two_offices("simplified", variable_air_volume=True), "AHU-1"
         zones, oa = {"A": [60.0, 150.0, 500.0]}, [250.0, 300.0, 400.0]
@@ -103,12 +111,13 @@ def test_every_cell_is_the_evaluation_of_that_variant(tmp_path, case):
         zones, oa = {"A": [120.0, 200.0], "B": [300.0, 900.0]}, [300.0, 350.0, 500.0]
     got = airgate.sweep(_write(tmp_path, doc, "base.yaml"), system=system, outdoor_air=oa,
                         primary_airflow=zones)
+    assert got.condition == ("heating" if case == "demo" else None)  # the governing one
     n = 0
     for i, intake in enumerate(oa):
         for j in range(len(next(iter(zones.values())))):
             n += 1
             vot, passes = _engine(tmp_path, doc, system, intake,
-                                  {k: v[j] for k, v in zones.items()}, n)
+                                  {k: v[j] for k, v in zones.items()}, n, got.condition)
             assert got.vot[i, j] == pytest.approx(units.to_display(vot, "airflow", "IP"),
                                                   rel=1e-12)
             assert bool(got.passes[i, j]) is passes, (intake, j)
@@ -127,6 +136,17 @@ def test_a_single_zone_system_sweeps_its_intake(tmp_path):
     assert got.vot[:, 0].tolist() == [units.to_display(rtu.trail.value("Voz"), "airflow", "IP")] * 2
 
 
+def test_a_named_design_condition_is_swept(tmp_path):
+    from airgate import units
+
+    doc = yaml.safe_load(DEMO.read_text(encoding="utf-8"))
+    got = airgate.sweep(_write(tmp_path, doc), system="AHU-3", outdoor_air=[1900.0],
+                        primary_airflow={"203": [600.0]}, condition="cooling")
+    vot, passes = _engine(tmp_path, doc, "AHU-3", 1900.0, {"203": 600.0}, 1, "cooling")
+    assert got.condition == "cooling" and bool(got.passes[0, 0]) is passes
+    assert got.vot[0, 0] == pytest.approx(units.to_display(vot, "airflow", "IP"), rel=1e-12)
+
+
 @pytest.mark.parametrize("kw, message", [
     ({"system": "AHU-9", "outdoor_air": [1.0]}, "no system 'AHU-9'"),
     ({"system": "AHU-3", "outdoor_air": [1.0], "primary_airflow": {"999": [1.0]}},
@@ -137,6 +157,10 @@ def test_a_single_zone_system_sweeps_its_intake(tmp_path):
     ({"system": "AHU-3", "outdoor_air": [-1.0]}, "0 or more"),
     ({"system": "RTU-1", "outdoor_air": [1.0], "primary_airflow": {"101": [1.0]}},
      "no zone primary airflows"),
+    ({"system": "AHU-3", "outdoor_air": [1.0], "condition": "summer"},
+     "no design condition 'summer'"),
+    ({"system": "RTU-1", "outdoor_air": [1.0], "condition": "heating"},
+     "lists no design conditions"),
 ])
 def test_bad_arguments_are_named(kw, message):
     loaded = airgate.load_schedule(DEMO)

@@ -167,7 +167,8 @@ def _pack(loaded: LoadedSchedule, ref: str, from_option: bool,
 
 
 def sweep(schedule: LoadedSchedule | str | Path, *, system: str, outdoor_air,
-          primary_airflow: Mapping[str, Any] | None = None, pack: RulePack | None = None):
+          primary_airflow: Mapping[str, Any] | None = None, condition: str | None = None,
+          pack: RulePack | None = None):
     """Evaluate a grid of variants of one system: every intake of ``outdoor_air`` against every
     variant of the zone primary airflows (``primary_airflow``: zone id → array, all of one
     length; the variant ``j`` gives each zone named its ``j``-th value, the others keep their
@@ -177,7 +178,8 @@ def sweep(schedule: LoadedSchedule | str | Path, *, system: str, outdoor_air,
     names; the variants are then computed together over numpy arrays. The result
     (:class:`airgate.evaluation.sweep.Sweep`) has arrays ``vot`` (the required intake), ``ev``
     and ``passes`` shaped ``(len(outdoor_air), len(ARRAY))``, and ``report``, the evaluation of
-    the schedule as given. Which checks ``passes`` covers: docs/api.md.
+    the schedule as given. A system that lists design conditions is swept at ``condition``
+    (default: the governing one). Which checks ``passes`` covers: docs/api.md.
     """
     from airgate.evaluation.sweep import sweep_system
 
@@ -192,4 +194,5 @@ def sweep(schedule: LoadedSchedule | str | Path, *, system: str, outdoor_air,
     if chosen is None:
         raise ValueError(f"no system '{system}' in {loaded.file}; the systems are "
                          + ", ".join(s.id for s in loaded.model.systems))
-    return sweep_system(evaluate(loaded, pack), chosen, outdoor_air, primary_airflow or {})
+    return sweep_system(evaluate(loaded, pack), chosen, outdoor_air, primary_airflow or {},
+                        condition)

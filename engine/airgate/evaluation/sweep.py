@@ -16,7 +16,8 @@ severity ``fail``): the intake against ``Vot`` (``system-intake``), ``Ev > 0``
 (``zone-primary-airflow``) or, by the simplified procedure on a VAV system, against its
 fraction of ``Voz`` (``simplified-vav-minimum``) — the comparisons the evaluation makes, with
 its tolerance. Findings a variant cannot change (air classes, a pack's requirements) are those of
-the schedule as given (``Sweep.report``).
+the schedule as given (``Sweep.report``). A system that lists design conditions is swept at one
+of them (the governing one unless named): its trail, zones and fields at that condition.
 """
 
 from __future__ import annotations
@@ -29,6 +30,7 @@ import numpy as np
 
 from airgate import units
 from airgate.evaluation.report import Report, SystemResult
+from airgate.evaluation.trail import Trail
 from airgate.models.rules import DetailedEv, RulePack, SimplifiedEv, TableEv
 from airgate.models.schedule import System
 from airgate.procedures import efficiency as eff
@@ -45,6 +47,8 @@ class Sweep:
     variants. Airflows are in the schedule's unit system (``units``: cfm for IP, L/s for SI)."""
 
     system: str
+    #: the design condition swept (None: the system lists none)
+    condition: str | None
     units: str
     #: the intakes evaluated, shape (n,)
     outdoor_air: np.ndarray
@@ -84,15 +88,40 @@ def _result(report: Report, system_id: str) -> SystemResult:
                      + ", ".join(s.id for s in report.systems))
 
 
+@dataclass
+class _Evaluated:
+    """What a sweep reads of an evaluated system, or of one of its design conditions."""
+
+    kind: str
+    trail: Trail
+    zones: list
+    method: str | None
+
+
+def _at_condition(result: SystemResult, system: System,
+                  condition: str | None) -> tuple[_Evaluated, System, str | None]:
+    """The system's evaluation at ``condition`` (default: the governing one, for a system that
+    lists design conditions), and the system's fields resolved there."""
+    if not result.conditions:
+        if condition is not None:
+            raise ValueError(f"system '{system.id}' lists no design conditions; leave out "
+                             f"condition='{condition}'")
+        return _Evaluated(result.kind, result.trail, result.zones, result.method), system, None
+    cid = condition or result.condition
+    for c in result.conditions:
+        if c.id == cid:
+            return _Evaluated(result.kind, c.trail, c.zones, c.method), system.at(cid), cid
+    raise ValueError(f"system '{system.id}' has no design condition '{cid}'; its conditions are "
+                     + ", ".join(c.id for c in result.conditions))
+
+
 def sweep_system(report: Report, system: System, outdoor_air,
-                 primary_airflow: Mapping[str, object]) -> Sweep:
+                 primary_airflow: Mapping[str, object], condition: str | None = None) -> Sweep:
     """The grid of ``outdoor_air`` × the variants of ``primary_airflow`` for ``system``, from
-    ``report`` (its evaluation). See the module docstring."""
+    ``report`` (its evaluation), at one design condition for a system that lists them
+    (``condition``, default the governing one). See the module docstring."""
     pack, ux = report.pack, report.units
-    result = _result(report, system.id)
-    if result.conditions:
-        raise ValueError(f"system '{system.id}' lists design conditions; a sweep takes a "
-                         "system without them")
+    result, system, condition = _at_condition(_result(report, system.id), system, condition)
     oa = _internal(outdoor_air, "outdoor_air", ux)
     zone_ids = [z.id for z in result.zones]
     unknown = sorted(set(primary_airflow) - set(zone_ids))
@@ -123,13 +152,13 @@ def sweep_system(report: Report, system: System, outdoor_air,
         passes &= (ev > 0)[None, :]
     shape = (oa.size, m)
     return Sweep(
-        system=system.id, units=ux, outdoor_air=units.to_display(oa, "airflow", ux),
+        system=system.id, condition=condition, units=ux, outdoor_air=units.to_display(oa, "airflow", ux),
         primary_airflow={k: units.to_display(a, "airflow", ux) for k, a in swept.items()},
         vot=np.broadcast_to(units.to_display(vot, "airflow", ux), shape).copy(),
         ev=np.broadcast_to(ev, shape).copy(), passes=passes, report=report)
 
 
-def _multiple_zone(result: SystemResult, system: System, pack: RulePack,
+def _multiple_zone(result: _Evaluated, system: System, pack: RulePack,
                    swept: Mapping[str, np.ndarray], m: int):
     """Vot, Ev and whether every zone's primary airflow passes, per variant (shape (m,))."""
     trail, zones = result.trail, result.zones
@@ -169,7 +198,7 @@ def _multiple_zone(result: SystemResult, system: System, pack: RulePack,
     return vot, ev, zones_ok
 
 
-def _ev(method, result: SystemResult, pack: RulePack, xs: np.ndarray,
+def _ev(method, result: _Evaluated, pack: RulePack, xs: np.ndarray,
         zpz: np.ndarray) -> np.ndarray:
     """Ev per variant by the detailed or the table method (zones on axis 0 of ``zpz``)."""
     if isinstance(method, TableEv):
@@ -184,7 +213,7 @@ def _ev(method, result: SystemResult, pack: RulePack, xs: np.ndarray,
     return _detailed(result, xs, zpz)
 
 
-def _detailed(result: SystemResult, xs: np.ndarray, zpz: np.ndarray) -> np.ndarray:
+def _detailed(result: _Evaluated, xs: np.ndarray, zpz: np.ndarray) -> np.ndarray:
     """Ev = min Evz; a zone without Ep has the single path (Ep = 1, where the general form is
     1 + Xs − Zpz)."""
     def col(symbol: str, default: float) -> np.ndarray:
