@@ -47,6 +47,24 @@ def subprocess_env(**extra: str) -> dict[str, str]:
     return {**os.environ, "PYTHONPATH": path, **extra}
 
 
+#: the report formats a schedule's findings are checked in, one subprocess each
+CLI_FORMATS = ("text", "json", "markdown", "html", "junit", "sarif")
+
+
+def check_every_format(path: Path, cwd: Path, returncode: int = 1):
+    """Run ``airgate check PATH --format F`` for every format of :data:`CLI_FORMATS`; assert
+    the exit status and yield ``(format, stdout)``."""
+    import subprocess
+    import sys
+
+    env = subprocess_env()
+    for fmt in CLI_FORMATS:
+        out = subprocess.run([sys.executable, "-m", "airgate", "check", str(path), "--format",
+                              fmt], capture_output=True, text=True, env=env, cwd=cwd)
+        assert out.returncode == returncode, out.stderr
+        yield fmt, out.stdout
+
+
 def schedule(systems: list[dict], units: str = "IP", rules: str = "ashrae-62.1-2019") -> dict:
     return {"schedule": 1, "project": {"name": "Test building (invented)", "units": units},
             "rules": rules, "systems": systems}

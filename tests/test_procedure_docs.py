@@ -90,6 +90,9 @@ def _valid_calls():
         (coupled.coupled_piecewise_transient, dict(
             times_breaks=[0.0, 1.0], generation_per_piece=[100.0, 50.0], c0=[1.0, 2.0],
             output_times=[0.5], **cp)),
+        (coupled.coupled_required_intake, dict(limit=[5.0, 4.0], generation=[100.0, 50.0], ez=0.8,
+                                               **{k: v for k, v in cp.items()
+                                                  if k != "outdoor_intake"})),
         (coupled.supply_coupling, {k: cp[k] for k in (
             "primary_airflow", "outdoor_intake", "outdoor_concentration",
             "outdoor_filter_efficiency", "recirc_filter_efficiency", "zone_exhaust")}),
@@ -97,6 +100,10 @@ def _valid_calls():
         (dilution.co2_excess_ppm, dict(generation_Ls=0.005, airflow_Ls=7.5)),
         (dilution.dcv_setpoint_ppm, dict(outdoor_ppm=420.0, co2_generation_per_person_Ls=0.005,
                                          outdoor_air_per_person_Ls=7.5)),
+        (dilution.required_outdoor_airflow, dict(
+            limit=2.0, generation=100.0, outdoor_concentration=0.5, outdoor_filter_efficiency=0.3,
+            supply_airflow=150.0, ez=0.8, **{k: v for k, v in air.items()
+                                              if k not in ("outdoor_airflow", "recirc_airflow")})),
         (dilution.steady_state_concentration, dict(generation=100.0, outdoor_concentration=1.0,
                                                    outdoor_filter_efficiency=0.2, **air)),
         (dilution.time_to_fraction_of_steady_state, dict(lam=2.0, fraction=0.95)),

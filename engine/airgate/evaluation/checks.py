@@ -39,6 +39,10 @@ KNOWN_CHECKS: dict[str, str] = {
                              "there by its air class",
     "makeup-transfer-use": "class 2 makeup air goes to a class 2 or 3 space of another use only "
                            "where the uses are the same or similar",
+    "iaqp-concentration": "IAQ procedure: each design compound's breathing-zone steady state ≤ "
+                          "its design limit at the scheduled outdoor air",
+    "iaqp-intake": "IAQ procedure: scheduled outdoor-air intake ≥ the least intake the mass "
+                   "balance needs to meet every design limit",
 }
 
 #: check id → what it verifies, for limits the schedule declares (never listed in a pack)

@@ -70,7 +70,7 @@ def _cadr(ctx: ZoneContext, c: Contaminant) -> float:
     return 0.0 if c.kind == "gas" else sum(a.cadr for a in ctx.zone.air_cleaners)
 
 
-def _per_second(emission):
+def per_second(emission):
     """An emission [unit/h] as the procedures' generation [unit/m³ × L/s]."""
     return emission * units.factor("1/hour", "L/s/m**3")
 
@@ -114,7 +114,7 @@ def _single(ctx, z, c, system: System, schedule: Schedule, emitter: Emitter,
     if dilution.loss_rate(t.value("V"), q_oa, **kw) <= 0:
         return None  # nothing removes it: no steady state
     c_ss = dilution.steady_state_concentration(
-        _per_second(t.value("E")), t.value("V"), q_oa, c.outdoor,
+        per_second(t.value("E")), t.value("V"), q_oa, c.outdoor,
         outdoor_filter_efficiency=t.value("eta"),
         **kw)
     t.add("C_ss", float(c_ss), "concentration", note=f"{c.unit}/m³ at steady state", source=MB)
@@ -127,7 +127,7 @@ def _single(ctx, z, c, system: System, schedule: Schedule, emitter: Emitter,
         people, rest = _generation(ctx, z, c)
         b2, f2 = _two_days(*pieces)
         sol = dilution.piecewise_solution(
-            b2, _per_second(people * f2 + rest), t.value("V"), q_oa, c.outdoor,
+            b2, per_second(people * f2 + rest), t.value("V"), q_oa, c.outdoor,
             outdoor_concentration=c.outdoor, outdoor_filter_efficiency=t.value("eta"), **kw)
         t.add("C_peak", float(dilution.peak_concentration(sol, 24.0, 48.0)[0]), "concentration",
               note=f"peak over the design day, profile '{ctx.zone.profile}'", source=MB)
@@ -160,7 +160,7 @@ def _coupled(system: System, ctxs, result: SystemResult, c: Contaminant, schedul
               cadr=np.array([t.value("CADR") for t in trails]),
               k_deposition=np.array([t.value("k_dep") for t in trails]),
               k_inactivation=np.array([t.value("k_inact") for t in trails]))
-    gen = _per_second(np.array([t.value("E") for t in trails]))
+    gen = per_second(np.array([t.value("E") for t in trails]))
     steady = coupled.coupled_steady_state(gen, vol, vpz, system.outdoor_air, **kw)
     for t, z, cz, v in zip(trails, result.zones, steady.zone, vpz):
         t.add("C_ss", float(cz), "concentration", note=f"{c.unit}/m³ at steady state; zones "
@@ -191,8 +191,8 @@ def _coupled(system: System, ctxs, result: SystemResult, c: Contaminant, schedul
 
 def _coupled_day(system, ctxs, result, c, schedule, trails, vol, vpz, kw) -> None:
     parts = [_generation(ctx, z, c) for ctx, z in zip(ctxs, result.zones)]
-    day = coupled_design_day(schedule, system, ctxs, _per_second(np.array([p for p, _ in parts])),
-                             _per_second(np.array([r for _, r in parts])), vol, vpz, c.outdoor,
+    day = coupled_design_day(schedule, system, ctxs, per_second(np.array([p for p, _ in parts])),
+                             per_second(np.array([r for _, r in parts])), vol, vpz, c.outdoor,
                              **kw)
     if day is None:
         return
@@ -201,11 +201,26 @@ def _coupled_day(system, ctxs, result, c, schedule, trails, vol, vpz, kw) -> Non
         add_day_statistics(t, conc[:, j], times, "concentration", "")
 
 
-def _limit(t: Trail, ctx: ZoneContext, c: Contaminant, index: int, emitter: Emitter) -> None:
-    """The schedule's own limit for contaminant ``index`` (basis ``declared``)."""
+def limit_note(c: Contaminant, design: bool) -> str:
+    """What a trail says of a contaminant's limit: a design limit of the IAQ procedure, or a
+    limit the schedule declares for itself; with its ``limit_source``."""
+    what = "design limit" if design else "declared limit"
+    if c.limit_source:
+        return f"{what} ({c.limit_source})"
+    return what + (" (no limit_source stated)" if design else "")
+
+
+def _limit(t: Trail, ctx: ZoneContext, c: Contaminant, index: int, emitter: Emitter,
+           system: System) -> None:
+    """The schedule's own limit for contaminant ``index`` (basis ``declared``); on the IAQ
+    procedure a design limit, which that path's check of the pack holds the zone to
+    (evaluation.iaqp, basis ``code``)."""
     if c.limit is None:
         return
-    t.add("C_limit", c.limit, "concentration", origin="schedule", note="declared limit")
+    design = system.procedure == "iaqp"
+    t.add("C_limit", c.limit, "concentration", origin="schedule", note=limit_note(c, design))
+    if design:
+        return
     worst = t.value("C_peak") if "C_peak" in t else t.value("C_ss")
     if worst > c.limit * (1 + 1e-9):
         emitter.declare("concentration-limit", ctx.subject,
@@ -234,5 +249,5 @@ def analyse(system: System, ctxs: list[ZoneContext], result: SystemResult, sched
         for ctx, z, t in pairs:
             if t is None:
                 continue
-            _limit(t, ctx, c, index, emitter)
+            _limit(t, ctx, c, index, emitter, system)
             z.contaminants[c.id] = t

@@ -12,6 +12,7 @@ from __future__ import annotations
 from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass
 
+from airgate.evaluation import iaqp
 from airgate.evaluation.checks import DECLARED_CHECKS
 from airgate.evaluation.findings import CODE, DECLARED, SEVERITY_RANK, Amount, Finding, Location
 from airgate.evaluation.report import SystemResult, ZoneResult
@@ -65,9 +66,9 @@ def _value(trail, symbol: str) -> float | None:
 def _system_checks(system: System, result: SystemResult) -> Iterator[tuple]:
     t = result.trail
     if kind_of(system).intake:
-        yield ("system-intake", ("outdoor_air",), _amount(_value(t, "Vot"), "airflow"),
-               _amount(_value(t, "Vot_design"), "airflow"))
-    yield from kind_of(system).system_checks(system, result)
+        yield ("iaqp-intake" if iaqp.on_path(system) else "system-intake", ("outdoor_air",),
+               _amount(_value(t, "Vot"), "airflow"), _amount(_value(t, "Vot_design"), "airflow"))
+    yield from _path_checks(system, kind_of(system).system_checks(system, result))
     if system.is_recirculating:
         yield "air-class-mixing", (), None, None
 
@@ -82,6 +83,11 @@ def _exhaust_checks(z: ZoneResult) -> Iterator[tuple]:
             yield rule, ("exhaust", "makeup", "transfer_from"), None, None
 
 
+def _path_checks(system: System, checks: Iterator[tuple]) -> Iterator[tuple]:
+    """A kind's checks, less the rate procedure's minimums on the IAQ procedure."""
+    return (c for c in checks if not (iaqp.on_path(system) and c[0] in iaqp.RATE_CHECKS))
+
+
 def _zone_checks(system: System, z: ZoneResult, result: SystemResult,
                  pack: RulePack) -> Iterator[tuple]:
     zt = z.trail
@@ -92,13 +98,16 @@ def _zone_checks(system: System, z: ZoneResult, result: SystemResult,
     if kind_of(system).intake:
         yield "air-distribution-assumed", (), None, None
     yield "population-without-density", (), None, None
-    yield from kind_of(system).zone_checks(system, z, result, pack)
+    yield from _path_checks(system, kind_of(system).zone_checks(system, z, result, pack))
+    if iaqp.on_path(system) and any("C_bz" in t for t in z.contaminants.values()):
+        yield "iaqp-concentration", (), None, None
     if system.is_recirculating:
         yield "air-class-recirculation", (), None, None
     if "Ve" in zt:
         yield from _exhaust_checks(z)
     limits = [z.dilution] if z.dilution is not None else []
-    limits += list(z.contaminants.values())
+    if not iaqp.on_path(system):  # on the IAQ procedure they are design limits
+        limits += list(z.contaminants.values())
     if any("C_limit" in t for t in limits):
         yield "concentration-limit", (), None, None
     if z.dilution is not None and "T" in z.dilution:

@@ -18,6 +18,7 @@ from airgate.evaluation import (
     dilution,
     exhaust,
     makeup,
+    iaqp,
     systems,
     waivers,
 )
@@ -153,6 +154,7 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
     entries = [*waivers.from_schedule(loaded), *extra_waivers]
     # a waiver may name an engine check, a declared limit's check or a requirement of the pack
     raise_all(waivers.rule_errors(entries, [*KNOWN_CHECKS, *DECLARED_CHECKS, *pack.requirements]))
+    raise_all(iaqp.check_pack(loaded, pack))
     units = loaded.model.project.units
     run = RequirementRun(pack, loaded)
     bound = _bind_all(loaded, pack, tables, run)
@@ -165,6 +167,7 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
             results.append(_exhaust_fan(loaded, pack, emitter, i, by_condition[None]))
             governed.append(stated)
             continue
+        first = len(emitter.findings)
         system, ctxs, result, where = _evaluate_system(loaded, pack, emitter, i, by_condition)
         governed.append(system)
         systems.air_classes(system, ctxs, emitter, where)
@@ -172,6 +175,9 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
         # the CO2 and contaminant analyses and the pack's requirements: at the governing condition
         dilution.analyse(system, ctxs, result, loaded.model, emitter, tables)
         contaminants.analyse(system, ctxs, result, loaded.model, emitter, tables)
+        iaqp.apply(system, ctxs, result, loaded.model, emitter, pack,
+                   _location(loaded, conditions.keyed(("systems", i, "outdoor_air"),
+                                                      result.condition)), first)
         run.evaluate(i, system, ctxs, result, emitter)
         conditions.tag(emitter.findings, start, result.condition)
         results.append(result)

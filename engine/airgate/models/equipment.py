@@ -64,12 +64,20 @@ class Contaminant(_Model):
     half_life: float | None = Field(None, gt=0, allow_inf_nan=False,
                                     description="Half-life, instead of inactivation. [h]")
     limit: float | None = Field(None, gt=0, allow_inf_nan=False,
-                                description="Limit concentration to report against. [unit/m³]")
+                                description="Limit concentration to report against; on a system "
+                                            "on the IAQ procedure (procedure: iaqp) the design "
+                                            "limit of a design compound. [unit/m³]")
+    limit_source: str | None = Field(
+        None, min_length=1, max_length=300,
+        description="Where the limit comes from (guideline or authority, edition, table), "
+                    "shown beside it in the report. [–]")
 
     @model_validator(mode="after")
     def _one_decay(self) -> Contaminant:
         if self.inactivation is not None and self.half_life is not None:
             raise ValueError("give inactivation or half_life, not both")
+        if self.limit_source is not None and self.limit is None:
+            raise ValueError("limit_source names where a limit comes from; give the limit too")
         if self.kind == "gas" and self.deposition:
             raise ValueError("a gas does not deposit; set deposition to 0 or kind: particle")
         return self

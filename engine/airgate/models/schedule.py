@@ -372,6 +372,12 @@ class System(_Model):
     kind: Literal[tuple(SYSTEM_KINDS)] = Field(
         description="single-zone, 100 % outdoor-air, multiple-zone recirculating, natural "
                     "(openings to the outdoors, no intake), or an exhaust fan. [–]")
+    procedure: Literal["vrp", "iaqp"] = Field(
+        "vrp", description="Compliance path: vrp, the ventilation rate procedure (ANSI/ASHRAE "
+                           "62.1 Section 6.2); iaqp, the IAQ procedure (Section 6.3: the "
+                           "schedule's contaminants with a limit are the design compounds and "
+                           "the least outdoor air meeting every limit is solved from the mass "
+                           "balance). [–]")
     conditions: list[Id] | None = Field(
         None, min_length=1, max_length=MAX_CONDITIONS,
         description="Design conditions the system operates at (ids of your choosing, e.g. "
@@ -409,6 +415,16 @@ class System(_Model):
             raise cross_field("outdoor_air", f"a {self.kind} system has no mechanical intake: "
                                              "remove outdoor_air, or describe the mechanical "
                                              "system as a system of its own")
+        if self.procedure == "iaqp" and not rules.intake:
+            raise cross_field("procedure", f"a {self.kind} system has no mechanical intake, so "
+                                           "the IAQ procedure's mass balance has no outdoor air "
+                                           "to solve for; remove procedure: iaqp")
+        if self.procedure == "iaqp":
+            for j, zone in enumerate(self.zones):
+                if zone.height is None and zone.volume is None:
+                    raise cross_field(("zones", j, "height"), "a zone on the IAQ procedure "
+                                      "(procedure: iaqp) needs height or volume for its mass "
+                                      "balance, such as 'height: 10 ft' or 'volume: 90 m3'")
         if not rules.supplies:
             return self
         # a supplied zone's occupancy category (an exhaust fan's zones have none)
@@ -473,6 +489,17 @@ class Schedule(_Model):
                                  "always analysed and needs no entry)")
             seen.add(c.id.lower())
         return items
+
+    @model_validator(mode="after")
+    def _design_compounds(self) -> Schedule:
+        if any(c.limit is not None for c in self.contaminants):
+            return self
+        for i, s in enumerate(self.systems):
+            if s.procedure == "iaqp":
+                raise cross_field(("systems", i, "procedure"), "the IAQ procedure needs design "
+                                  "compounds: declare contaminants with a limit (and its "
+                                  "limit_source), or use procedure: vrp")
+        return self
 
     @field_validator("systems")
     @classmethod

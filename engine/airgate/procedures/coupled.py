@@ -61,6 +61,7 @@ __all__ = [
     "MAX_DISTINCT_RATES",
     "TooManyRates",
     "coupled_piecewise_transient",
+    "coupled_required_intake",
     "coupled_steady_state",
     "supply_coupling",
 ]
@@ -247,6 +248,82 @@ def coupled_steady_state(generation, volume, primary_airflow, outdoor_intake,
     cz, cs = _steady(gen, vpz, loss, a, sysm)
     cr = float(np.sum(sysm.rho * cz)) if sysm.rho.sum() > 0 else float("nan")
     return CoupledSteadyState(cz, cs, cr)
+
+
+def coupled_required_intake(limit, generation, volume, primary_airflow,
+                            outdoor_concentration=0.0, outdoor_filter_efficiency=0.0,
+                            recirc_filter_efficiency=0.0, zone_exhaust=0.0, cadr=0.0,
+                            k_deposition=0.0, k_inactivation=0.0, ez=1.0):
+    """Least outdoor air intake that holds every zone of a coupled system at its limit.
+
+    The steady state of :func:`coupled_steady_state` with each zone's generation counted as
+    ``G_z/Ez`` (the breathing-zone form of the IAQ procedure's mass-balance equations). Every
+    zone concentration is ``(G_z + Vpz·C_s)/D_z`` and C_s a ratio of two linear functions of
+    Vot, so each zone moves monotonically with Vot, all in the direction of C_s (derived from
+    the module model): the least intake in ``[ΣE_z, ΣVpz]`` with ``C_z <= L_z`` in every zone
+    is found by bisection on ``max_z C_z/L_z``, to a relative width of 1e-12.
+
+    Parameters
+    ----------
+    limit : array_like, shape (n_zones,)
+        Concentration limit of each zone (> 0; ``inf`` for a zone without one). [C]
+    generation, volume, primary_airflow, outdoor_concentration, outdoor_filter_efficiency, \
+recirc_filter_efficiency, zone_exhaust, cadr, k_deposition, k_inactivation
+        As in :func:`coupled_steady_state`. [C·L/s], [m3], [L/s], [C], [-], [-], [L/s],
+        [L/s], [1/h], [1/h]
+    ez : float or array_like, shape (n_zones,)
+        Zone air distribution effectiveness Ez (> 0). [-]
+
+    Returns
+    -------
+    float
+        The least intake Vot; infinite where even ΣVpz of outdoor air does not meet every
+        limit. [L/s]
+
+    References
+    ----------
+    ANSI/ASHRAE Standard 62.1-2019, Section 6.3 (IAQ procedure, mass balance analysis);
+    Nazaroff & Alvarez-Cohen (2001), CMFR steady state for each zone and the mixing box.
+
+    Examples
+    --------
+    The two zones of :func:`coupled_steady_state`'s example, zone 1 limited to 1.8: by hand
+    C_s = (1 − Vot/2000)·800/Vot must be at most 1.8 − 600/1000 = 1.2, so Vot = 500 L/s:
+
+    >>> round(coupled_required_intake([1.8, 10.0], [600.0, 200.0], 50.0, [1000.0, 1000.0]), 6)
+    500.0
+    """
+    vpz = _nonneg("primary_airflow", primary_airflow)
+    lim = np.broadcast_to(np.asarray(limit, dtype=float), vpz.shape)
+    if np.any(np.isnan(lim)) or np.any(lim <= 0):
+        raise ValueError(f"limit must be > 0 (inf for no limit), got {limit!r}")
+    gen = _nonneg("generation", generation) / _positive("ez", ez)
+    kw = dict(outdoor_concentration=outdoor_concentration,
+              outdoor_filter_efficiency=outdoor_filter_efficiency,
+              recirc_filter_efficiency=recirc_filter_efficiency, zone_exhaust=zone_exhaust,
+              cadr=cadr, k_deposition=k_deposition, k_inactivation=k_inactivation)
+
+    def worst(vot: float) -> float:
+        try:
+            zone = coupled_steady_state(gen, volume, vpz, vot, **kw).zone
+        except ValueError:  # nothing removes it at this intake: no steady state
+            return np.inf
+        return float(np.max(zone / lim))
+
+    lo = float(np.sum(np.broadcast_to(_nonneg("zone_exhaust", zone_exhaust), vpz.shape)))
+    hi = float(np.sum(vpz))
+    # all outdoor air first, outside the bisection: any invalid input is reported here
+    if not float(np.max(coupled_steady_state(gen, volume, vpz, hi, **kw).zone / lim)) <= 1.0:
+        return float("inf")
+    if worst(lo) <= 1.0:
+        return lo
+    while hi - lo > 1e-12 * hi:
+        mid = 0.5 * (lo + hi)
+        if worst(mid) <= 1.0:
+            hi = mid
+        else:
+            lo = mid
+    return hi
 
 
 def _in_room_loss(volume, cadr, k_deposition, k_inactivation):

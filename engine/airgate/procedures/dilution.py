@@ -26,8 +26,9 @@ References
    transient, with first-order loss terms.
 .. [2] CDC (2003). *Guidelines for Environmental Infection Control in Health-Care Facilities*,
    Appendix B, Table B.1 (air changes per hour and minutes to remove 99 % and 99.9 %).
-.. [3] ANSI/ASHRAE Standard 62.1-2019, Section 6.2.2.2 (zone air distribution effectiveness)
-   and Informative Appendix E (the same well-mixed balance for the IAQ procedure).
+.. [3] ANSI/ASHRAE Standard 62.1-2019, Section 6.2.2.2 (zone air distribution effectiveness),
+   Section 6.3 and its appendix of mass-balance equations for the IAQ procedure (the same
+   well-mixed balance; appendix letter not verified).
 .. [4] ASHRAE 241-2023, *Control of Infectious Aerosols* (equivalent clean airflow as the sum
    of outdoor air, filtration and air cleaners).
 """
@@ -63,7 +64,7 @@ from airgate.procedures.piecewise import (  # noqa: F401
 
 __all__ = [
     "breathing_zone_concentration", "co2_excess_ppm", "dcv_setpoint_ppm",
-    "steady_state_concentration", "time_to_fraction_of_steady_state",
+    "required_outdoor_airflow", "steady_state_concentration", "time_to_fraction_of_steady_state",
     "time_to_fraction_removed", "transient_concentration",
 ]
 
@@ -128,6 +129,90 @@ def steady_state_concentration(generation, volume, outdoor_airflow, outdoor_conc
               * _nonneg("outdoor_concentration", outdoor_concentration))
     with np.errstate(over="ignore"):  # a removal too small for the float range gives inf
         return _out(source / q_clean)
+
+
+def required_outdoor_airflow(limit, generation, volume, outdoor_concentration=0.0,
+                             outdoor_filter_efficiency=0.0, supply_airflow=0.0,
+                             recirc_efficiency=0.0, cadr=0.0, k_deposition=0.0,
+                             k_inactivation=0.0, ez=1.0):
+    """Least outdoor airflow that holds a zone's breathing-zone steady state at a limit.
+
+    The steady state of :func:`steady_state_concentration` in the breathing-zone form of the
+    IAQ procedure's mass-balance equations, where the generation counts as ``G/Ez``::
+
+        C_bz(Q) = (G/Ez + Q·(1 − η_oa)·C_out) / (Q + η_rec·Q_rec(Q) + B)
+
+    with ``B = CADR + (k_dep + k_inact)·V/3.6`` and the recirculated airflow
+    ``Q_rec(Q) = max(S − Q, 0)`` for a supply airflow S (the rest of the supply is recirculated
+    through the filter; none when S = 0). ``C_bz`` is monotone in Q on each side of S, so the
+    least Q with ``C_bz(Q) <= L`` is in closed form: 0 when ``G/Ez <= L·(η_rec·S + B)``;
+    else, when ``C_bz(S) <= L`` (the root lies below S),
+    ``Q = (G/Ez − L·(η_rec·S + B)) / (L·(1 − η_rec) − (1 − η_oa)·C_out)``; else (more
+    outdoor air than the supply: none recirculated) ``Q = (G/Ez − L·B) / (L − (1 − η_oa)·C_out)``.
+    With one filter on the mixed air (η_oa = η_rec = Ef) and R = 1 the first is the
+    appendix's ``Vo = (N − Ez·R·Vr·Ef·Cbz) / (Ez·(Cbz − (1 − Ef)·Co))`` with ``Vr = S − Vo``.
+
+    Parameters
+    ----------
+    limit : float or array_like
+        Concentration limit L (> 0). [C]
+    generation : float or array_like
+        Generation rate G (>= 0). [C·L/s]
+    volume : float or array_like
+        Zone volume (enters only through deposition and inactivation). [m3]
+    outdoor_concentration : float or array_like
+        Outdoor concentration C_out (>= 0). [C]
+    outdoor_filter_efficiency : float or array_like
+        Efficiency of the filter on outdoor air η_oa, in [0, 1]. [-]
+    supply_airflow : float or array_like
+        Supply airflow S; the part that is not outdoor air is recirculated (>= 0). [L/s]
+    recirc_efficiency : float or array_like
+        Efficiency of the filter on recirculated air η_rec, in [0, 1]. [-]
+    cadr, k_deposition, k_inactivation : float or array_like
+        As in :func:`~airgate.procedures.losses.loss_breakdown`. [L/s], [1/h], [1/h]
+    ez : float or array_like
+        Zone air distribution effectiveness Ez (> 0). [-]
+
+    Returns
+    -------
+    float or ndarray
+        The least outdoor airflow Q (>= 0); infinite where no outdoor airflow meets the
+        limit (the filtered outdoor air alone is at or above it). [L/s]
+
+    References
+    ----------
+    ANSI/ASHRAE Standard 62.1-2019, Section 6.3 (IAQ procedure, mass balance analysis) and its
+    appendix of mass-balance equations for single-zone systems (Cbz and Vo with filter on the
+    mixed air; the equations' form entered from memory); Nazaroff & Alvarez-Cohen (2001),
+    CMFR steady state.
+
+    Examples
+    --------
+    100 C·L/s into clean outdoor air, limit 2: Q = G/L = 50 L/s. With 100 L/s of supply
+    through a 50 % filter, C_out = 0.5 and limit 1.5, by hand
+    Q = (100 − 1.5·0.5·100) / (1.5·0.5 − 0.5·0.5) = 25 / 0.5 = 50 L/s, and then
+    C_bz = (100 + 50·0.5·0.5) / (50 + 0.5·50) = 112.5 / 75 = 1.5:
+
+    >>> required_outdoor_airflow(2.0, 100.0, 50.0)
+    50.0
+    >>> round(required_outdoor_airflow(1.5, 100.0, 50.0, 0.5, 0.5, 100.0, 0.5), 9)
+    50.0
+    """
+    lim = _positive("limit", limit)
+    g = _nonneg("generation", generation) / _positive("ez", ez)
+    c_out = _nonneg("outdoor_concentration", outdoor_concentration)
+    a = (1 - _fraction("outdoor_filter_efficiency", outdoor_filter_efficiency)) * c_out
+    s = _nonneg("supply_airflow", supply_airflow)
+    eta = _fraction("recirc_efficiency", recirc_efficiency)
+    b = equivalent_clean_airflow(volume, 0.0, cadr=cadr, k_deposition=k_deposition,
+                                 k_inactivation=k_inactivation)
+    none_needed = g <= lim * (eta * s + b)
+    below_supply = g + s * a <= lim * (s + b)  # C_bz(S) <= L: the root lies in [0, S]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        q_mixed = (g - lim * (eta * s + b)) / (lim * (1 - eta) - a)
+        q_outdoor = np.where(lim > a, (g - lim * b) / (lim - a), np.inf)
+    q = np.where(none_needed, 0.0, np.where(below_supply, q_mixed, q_outdoor))
+    return _out(np.maximum(q, 0.0))
 
 
 def breathing_zone_concentration(c_supply, c_exhaust, ez):

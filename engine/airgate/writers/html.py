@@ -186,7 +186,7 @@ class _View:
 
     def passing_row(self, s: SystemResult) -> dict:
         req, prov = self.intake(s)
-        return {"id": s.id, "name": s.name or "", "kind": s.kind, "zones": len(s.zones),
+        return {"id": s.id, "name": s.name or "", "kind": shared.kind_label(s), "zones": len(s.zones),
                 "required": self.amount(req), "scheduled": self.amount(prov),
                 "margin": self.margin(req, prov), "verdict": s.verdict}
 
@@ -212,7 +212,7 @@ class _View:
             self.detailed_zones += len(shown_zones)
         left_out = len(s.zones) - len(shown_zones)
         return {
-            "id": s.id, "name": s.name or "", "kind": s.kind, "method": s.method or "",
+            "id": s.id, "name": s.name or "", "kind": shared.kind_label(s), "method": s.method or "",
             "verdict": s.verdict, "required": self.amount(req), "scheduled": self.amount(prov),
             "intake": req is not None,
             "margin": self.margin(req, prov), "params": params, "critical": s.critical_zone or "",

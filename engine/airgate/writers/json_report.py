@@ -102,7 +102,7 @@ def _system(s: SystemResult, system: str, step_minutes: int = 0,
             lazy: bool = False) -> dict[str, Any]:
     zones = (_zone(z, system, step_minutes) for z in s.zones)
     out = dict(
-        id=s.id, name=s.name, kind=s.kind, verdict=s.verdict,
+        id=s.id, name=s.name, kind=s.kind, procedure=s.procedure, verdict=s.verdict,
         ventilation_efficiency_method=s.method, critical_zone=s.critical_zone,
         values=_values(s.trail, system), location=_location(s.location),
         trail=_trail(s.trail, system), zones=Lazy(zones) if lazy else list(zones),

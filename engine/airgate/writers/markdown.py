@@ -67,7 +67,7 @@ def _systems_table(report: Report) -> list[str]:
                        f"{_verdict(s.verdict)} |")
             continue
         req, prov = _intake(s)
-        out.append(f"| {name} | {md(s.kind)} | {md(shared.amount(req, u))} | "
+        out.append(f"| {name} | {md(shared.kind_label(s))} | {md(shared.amount(req, u))} | "
                    f"{md(shared.amount(prov, u))} | {md(shared.margin(req, prov, u))} | "
                    f"{_verdict(s.verdict)} |")
     return out

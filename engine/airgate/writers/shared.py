@@ -209,3 +209,13 @@ def review_title(statuses) -> str:
     ready = sum(1 for s in statuses if s.to_close)
     return (f"Reviewer's record — {formatting.count(len(statuses), 'comment')}"
             + (f", {ready} ready to close" if ready else ""))
+
+
+#: how a report names a system's compliance path (``SystemResult.procedure``); the rate
+#: procedure, the usual one, goes unnamed beside the kind
+PROCEDURE_LABELS = {"vrp": "ventilation rate procedure", "iaqp": "IAQ procedure"}
+
+
+def kind_label(s) -> str:
+    """A system's kind, with its compliance path where it is not the rate procedure."""
+    return s.kind + ("" if s.procedure == "vrp" else f", {PROCEDURE_LABELS[s.procedure]}")

@@ -85,7 +85,7 @@ def _zone_rows(s: SystemResult, system: str) -> list[str]:
 def _system(s: SystemResult, system: str, amounts: dict[str, str]) -> list[str]:
     t = s.trail
     title = f"{clean(s.id)}" + (f" “{clean(s.name)}”" if s.name else "")
-    kind = s.kind + (f", {s.method} Ev" if s.method else "")
+    kind = shared.kind_label(s) + (f", {s.method} Ev" if s.method else "")
     lines = [f"■ {title} — {kind} — {s.verdict.upper()}"]
     if s.kind == "multiple-zone":
         q = units.label("airflow", system)
@@ -107,14 +107,22 @@ def _system(s: SystemResult, system: str, amounts: dict[str, str]) -> list[str]:
         lines += _zone_rows(s, system)
         return lines
     required, provided = t.value("Vot"), t.value("Vot_design")
+    iaqp = s.procedure == "iaqp"
+    what = "outdoor-air intake" + (" (IAQ procedure: least intake meeting every design limit)"
+                                   if iaqp else "")
     if math.isinf(required):
-        lines.append("    outdoor-air intake: no intake suffices (Ev ≤ 0) · scheduled "
+        lines.append(f"    {what}: no intake suffices "
+                     f"({'no intake meets every design limit' if iaqp else 'Ev ≤ 0'}) · scheduled "
                      f"{formatting.amount(provided, 'airflow', system)}")
     else:
         lines.append(
-            f"    outdoor-air intake: required Vot {formatting.amount(required, 'airflow', system)}"
+            f"    {what}: required Vot {formatting.amount(required, 'airflow', system)}"
             f" · scheduled {formatting.amount(provided, 'airflow', system)}"
             f" · margin {shared.margin(Amount(required, 'airflow'), Amount(provided, 'airflow'), system)}")
+    if iaqp:
+        lines.append("    the rate procedure's Vot_vrp "
+                     f"{formatting.amount(t.value('Vot_vrp'), 'airflow', system)} and the zones' "
+                     "Voz below are for reference only: they do not apply on this path")
     lines += _condition_rows(s, system)
     lines.append("")
     lines += _zone_rows(s, system)
@@ -152,16 +160,26 @@ def _contaminant_rows(s: SystemResult, system: str, amounts: dict[str, str]) -> 
     out: list[str] = []
     q = units.label("airflow", system)
     for cid in ids:
-        head = ["zone", f"C_ss {clean(amounts.get(cid, 'amount'))}/m³", f"clean air {q}", "per person", "eq. ACH", "peak", "24h avg"]
+        per_m3 = f"{clean(amounts.get(cid, 'amount'))}/m³"
+        head = ["zone", f"C_ss {per_m3}", f"clean air {q}", "per person", "eq. ACH", "peak", "24h avg"]
+        symbols = ["C_ss", "Qc", "Qc_pp", "ACHe", "C_peak", "C_twa"]
+        design = any("C_bz" in z.contaminants[cid] for z in s.zones if cid in z.contaminants)
+        if design:  # a design compound of the IAQ procedure
+            head += [f"C_bz {per_m3}", f"limit {per_m3}"]
+            symbols += ["C_bz", "C_limit"]
+            if s.kind != "multiple-zone":
+                head.append(f"least Q_oa {q}")
+                symbols.append("Q_oa_min")
         rows = [head]
         for z in s.zones:
             t = z.contaminants.get(cid)
             if t is None:
                 continue
-            rows.append([clean(z.id)] + [_num(t, x, system) for x in
-                                         ("C_ss", "Qc", "Qc_pp", "ACHe", "C_peak", "C_twa")])
+            rows.append([clean(z.id)] + [_num(t, x, system) for x in symbols])
         out += ["", f"    {clean(cid)} (well-mixed steady state; clean air = outdoor air + "
-                    "filtration + air cleaners + deposition + inactivation)"]
+                    "filtration + air cleaners + deposition + inactivation"
+                    + ("; design compound: C_bz in the breathing zone against its design limit"
+                       if design else "") + ")"]
         out += _table(rows, right=set(range(1, len(head))))
     return out
 
