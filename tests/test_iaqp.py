@@ -297,3 +297,15 @@ def test_every_format_names_the_procedure(tmp_path):
     assert out.returncode in (0, 1), out.stderr
     for symbol in ("C_bz", "Q_oa_min", "iaqp-concentration"):
         assert symbol in out.stdout, symbol
+
+
+def test_the_report_names_every_system_s_path(evaluate):
+    # rate procedure by default; natural ventilation (Section 6.4) for a natural system
+    data = _iaqp_schedule([_system("R", "60 L/s"), _system("I", "120 L/s", "iaqp"),
+                           {"id": "N", "kind": "natural", "zones": [
+                               {"id": "n", "space": "office-space", "area": "100 m2",
+                                "height": "3 m", "natural_ventilation": {
+                                    "openable_area": "5 m2", "arrangement": "single-sided",
+                                    "depth": "5 m", "permanently_open": True}}]}])
+    r = evaluate(data)
+    assert [s.procedure for s in r.systems] == ["vrp", "iaqp", "nvp"]

@@ -134,7 +134,7 @@ def _exhaust_fan(loaded: LoadedSchedule, pack: RulePack, emitter: Emitter, i: in
     zones = [exhaust.fan_zone(ctx, emitter, locate) for ctx in ctxs]
     result = SystemResult(id=system.id, name=system.name, kind=system.kind,
                           location=_location(loaded, ("systems", i)), trail=Trail(), zones=zones,
-                          supplies=False)
+                          supplies=False, procedure=None)
     kind.evaluate(system, ctxs, zones, result, pack, emitter,
                   locate(("systems", i, kind.located_field)), locate)
     return result
@@ -169,6 +169,7 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
             continue
         first = len(emitter.findings)
         system, ctxs, result, where = _evaluate_system(loaded, pack, emitter, i, by_condition)
+        result.procedure = system.procedure if kind_of(system).intake else "nvp"
         governed.append(system)
         systems.air_classes(system, ctxs, emitter, where)
         start = len(emitter.findings)

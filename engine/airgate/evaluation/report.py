@@ -72,9 +72,10 @@ class SystemResult:
     method: str | None = None
     critical_zone: str | None = None
     verdict: str = "pass"
-    #: the compliance path: ``vrp`` (the rate procedure) or ``iaqp`` (the IAQ procedure, whose
-    #: trail's Vot is the least intake of the mass balance and Vot_vrp the rate procedure's)
-    procedure: str = "vrp"
+    #: the compliance path: ``vrp`` (the rate procedure), ``iaqp`` (the IAQ procedure, whose
+    #: trail's Vot is the least intake of the mass balance and Vot_vrp the rate procedure's),
+    #: ``nvp`` (natural ventilation); None for an exhaust fan, which supplies nothing
+    procedure: str | None = "vrp"
     #: the system supplies air (False: an exhaust fan, whose trail holds ΣVe, ΣVe_design and
     #: V_fan instead of an intake, and whose zones' trails hold only their exhaust)
     supplies: bool = True

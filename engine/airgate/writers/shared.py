@@ -213,9 +213,11 @@ def review_title(statuses) -> str:
 
 #: how a report names a system's compliance path (``SystemResult.procedure``); the rate
 #: procedure, the usual one, goes unnamed beside the kind
-PROCEDURE_LABELS = {"vrp": "ventilation rate procedure", "iaqp": "IAQ procedure"}
+PROCEDURE_LABELS = {"iaqp": "IAQ procedure"}
 
 
 def kind_label(s) -> str:
-    """A system's kind, with its compliance path where it is not the rate procedure."""
-    return s.kind + ("" if s.procedure == "vrp" else f", {PROCEDURE_LABELS[s.procedure]}")
+    """A system's kind, with its compliance path where the kind does not say it (the rate
+    procedure goes unnamed; a natural system's kind names its path)."""
+    label = PROCEDURE_LABELS.get(s.procedure or "")
+    return s.kind + (f", {label}" if label else "")
