@@ -17,8 +17,8 @@ from airgate.evaluation import (
     coverage,
     dilution,
     exhaust,
-    makeup,
     iaqp,
+    makeup,
     systems,
     waivers,
 )
