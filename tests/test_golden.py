@@ -48,5 +48,7 @@ def test_demo_fails_exactly_at_the_deliberate_zone(capsys, monkeypatch):
     report = check(DEMO)
     failing_zones = [(s.id, z.id) for s in report.systems for z in s.zones if z.verdict == "fail"]
     assert failing_zones == [("AHU-3", "203"), ("EF-1", "121")]
-    assert [s.verdict for s in report.systems] == ["pass", "pass", "fail", "fail"]
+    # NV-1, the naturally ventilated garden pavilion, passes (60 ft² of openings ≥ 4 % of
+    # 900 ft² = 36 ft²; 30 ft deep ≤ 5 × 12 ft between doors on opposite walls; unconditioned)
+    assert [s.verdict for s in report.systems] == ["pass", "pass", "fail", "fail", "pass"]
     assert len(report.systems) >= 3 and len(report.systems[2].zones) >= 8

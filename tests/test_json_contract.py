@@ -15,10 +15,14 @@ SYSTEM_VALUES = {"multiple-zone": {"Vot", "Vot_design", "Ps", "D", "Vou", "Vps",
                  "single-zone": {"Vot", "Vot_design"}, "outdoor-air": {"Vot", "Vot_design"},
                  # an exhaust fan (docs/report-format.md, "Which keys appear"); the demo's EF-1
                  # states its airflow, so V_fan is there too
-                 "exhaust": {"sum_Ve", "sum_Ve_design", "V_fan"}}
+                 "exhaust": {"sum_Ve", "sum_Ve_design", "V_fan"},
+                 # natural ventilation has no intake, so no Vot (docs/natural-ventilation.md)
+                 "natural": set()}
 ZONE_VALUES = {"Pz", "Az", "Rp", "Ra", "Ez", "Vbz", "Voz"}
 #: a zone of an exhaust fan: no supply figures, its exhaust row's
 EXHAUST_ZONE_VALUES = {"Az", "Re", "Ve", "Ve_design"}
+#: a naturally ventilated zone (docs/natural-ventilation.md)
+NATURAL_ZONE_VALUES = {"A_open", "A_open_min", "depth", "depth_max"}
 
 
 @pytest.fixture(scope="module")
@@ -55,8 +59,12 @@ def test_systems_and_zones(report):
             if s["kind"] == "exhaust":
                 need = EXHAUST_ZONE_VALUES
                 assert not {"Vbz", "Voz", "Pz"} & set(z["values"])
+            if s["kind"] == "natural":  # the openings and depth against the pack's limits
+                need = ZONE_VALUES | NATURAL_ZONE_VALUES
             assert need <= set(z["values"])
-    assert "exhaust" in {s["kind"] for s in report["systems"]}  # the demo has an exhaust fan
+    # the demo has an exhaust fan and a naturally ventilated room
+    assert {"exhaust", "natural"} <= {s["kind"] for s in report["systems"]}
+    assert {s["kind"]: s["procedure"] for s in report["systems"]}["natural"] == "nvp"
 
 
 def test_values_have_units_a_stock_pint_registry_parses(report):

@@ -74,6 +74,7 @@ SYSTEM_COLUMNS = (
     Column("id", "System", "id", aliases=("system id",)),
     Column("name", "Name", "text"),
     Column("kind", "Kind", "text"),
+    Column("procedure", "Procedure", "text", aliases=("compliance path",)),
     Column("conditions", "Conditions", "ids", aliases=("design conditions",)),
     Column("outdoor_air", "Outdoor air", "quantity", "airflow", ("outdoor air intake",)),
     Column("supply_airflow", "Supply airflow", "quantity", "airflow"),

@@ -13,7 +13,8 @@ What is read (the full mapping is in ``docs/importing.md``):
   the ``Economizer``'s ``MinFlow`` (or, for a 100 % outdoor-air system, the ``Fan``'s
   ``RatedFlow``) the minimum outdoor-air intake; an ``Exhaust`` loop is an exhaust fan, its
   ``Fan``'s ``RatedFlow`` the fan airflow (gbXML has no element for a space's exhaust airflow:
-  ``airgate.exhaust.…`` lines give it);
+  ``airgate.exhaust.…`` lines give it); a loop of kind ``natural`` (``airgate.kind: natural``,
+  openings to the outdoors) has no intake and needs no equipment;
 - ``Schedule`` / ``WeekSchedule`` / ``DaySchedule`` → occupancy profiles;
 - what gbXML cannot say (the Ez configuration, Ps, the Ev method, the rule pack …) is written in
   a ``Description`` as ``airgate.FIELD: value`` lines, one per field.
@@ -29,6 +30,7 @@ from typing import Any
 
 from airgate import units
 from airgate.errors import ScheduleError, nearest
+from airgate.models.schedule import SYSTEM_KINDS as SCHEDULE_KINDS
 from airgate.readers import fields as F
 from airgate.readers.document import read_bytes
 from airgate.readers.sources import Builder, ImportedSchedule, Origin
@@ -298,7 +300,8 @@ class _Reader:
             b.at(base + ("kind",), self.origin(loop))
         equipment = loop.findall("AirLoopEquipment")
         field = "airflow" if kind == "exhaust" else "outdoor_air"
-        if field not in system:
+        rules = SCHEDULE_KINDS.get(kind or "")
+        if field not in system and (rules is None or rules.intake or not rules.supplies):
             self._intake(loop, equipment, kind, base + (field,))
         for eq in equipment:
             kind_eq = eq.attrib.get("equipmentType", "")
