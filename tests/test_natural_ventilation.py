@@ -82,6 +82,12 @@ def test_depth_ip_by_arrangement(evaluate):
     assert set(f) == {"s-deep", "c-deep"}
     assert f["c-deep"].required.value / FT == pytest.approx(45, rel=REL)
     assert f["c-deep"].provided.value / FT == pytest.approx(46, rel=REL)
+    # the depth is an upper limit: 1 ft too deep is a margin of -1 ft (-1/45), a shortfall
+    from airgate.evaluation.findings import margin
+
+    m = margin(f["c-deep"].required, f["c-deep"].provided)
+    assert m.difference / FT == pytest.approx(-1, rel=1e-9)
+    assert m.relative == pytest.approx(-1 / 45, rel=1e-9)
     assert {z.id: z.verdict for z in zones.values()} == {
         "s-ok": "pass", "s-deep": "fail", "d-ok": "pass", "c-deep": "fail"}
 
@@ -189,3 +195,19 @@ def test_a_pack_giving_an_arrangement_two_depth_limits_is_refused(tmp_path):
         load_pack(str(path))
     assert "single-sided openings are given a depth limit twice" in str(err.value)
     assert err.value.field == ("natural_ventilation", "depth", 3, "arrangement")
+
+
+def test_a_depth_within_its_limit_has_a_positive_margin(evaluate):
+    # 2H = 18 ft of single-sided reach (Section 6.4.1, from memory); 12 ft deep leaves 6 ft, a
+    # third of the limit: a passing upper limit reads as headroom, never as "short"
+    from airgate.evaluation.findings import margin
+
+    r = evaluate(_natural([
+        _zone("ok", "900 ft2", "9 ft", {"openable_area": "60 ft2", "arrangement": "single-sided",
+                                        "depth": "12 ft", "permanently_open": True}),
+    ]))
+    case = next(c for c in r.cases if c.rule == "natural-depth")
+    assert case.status == "pass"
+    m = margin(case.required, case.provided)
+    assert m.difference / FT == pytest.approx(6, rel=1e-9)
+    assert m.relative == pytest.approx(1 / 3, rel=1e-9)

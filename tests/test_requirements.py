@@ -204,6 +204,11 @@ def test_formula_requirement_on_systems_and_missing_inputs(tmp_path, evaluate):
     assert f.severity == "warning"
     assert f.required.value / CFM == pytest.approx(255.0)
     assert f.provided.value / CFM == pytest.approx(300.0)
+    # an at-most requirement exceeded by 45 cfm has a margin of -45 cfm (-45/255), a shortfall
+    from airgate.evaluation.findings import margin
+
+    m = margin(f.required, f.provided)
+    assert m.difference / CFM == pytest.approx(-45.0) and m.relative == pytest.approx(-45 / 255)
     assert outcome(report, "per-volume", "RTU-1/101") == "not-evaluated"
     missing = next(f for f in report.findings if f.rule == "per-volume")
     assert missing.message.startswith("not evaluated:") and "V is not known" in missing.message

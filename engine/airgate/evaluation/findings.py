@@ -21,16 +21,21 @@ BASES = (CODE, DECLARED)
 
 @dataclass(frozen=True)
 class Amount:
-    """A value in internal units of ``kind``."""
+    """A value in internal units of ``kind``. ``at_most`` marks a required amount that is an
+    upper limit (a greatest depth, density or air class): the provided value must not exceed it,
+    so what is left of it is ``required − provided``."""
 
     value: float
     kind: str
+    at_most: bool = False
 
 
 @dataclass(frozen=True)
 class Margin:
-    """What is provided beyond what is required: ``provided − required`` in the internal unit of
-    the amounts' kind, and that as a share of the requirement (None where it is not positive)."""
+    """How far the provided value is on the passing side of the requirement, in the internal unit
+    of the amounts' kind: ``provided − required`` for a minimum, ``required − provided`` for an
+    upper limit (``Amount.at_most``), so a positive margin passes and a negative one falls short;
+    and that as a share of the requirement (None where it is not positive)."""
 
     difference: float
     relative: float | None
@@ -42,6 +47,8 @@ def margin(required: Amount | None, provided: Amount | None) -> Margin | None:
     if required is None or provided is None or math.isinf(required.value):
         return None
     diff = provided.value - required.value
+    if required.at_most:
+        diff = -diff
     return Margin(diff, diff / required.value if required.value > 0 else None)
 
 

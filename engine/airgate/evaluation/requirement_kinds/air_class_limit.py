@@ -25,7 +25,7 @@ def evaluate(run: Any, req: Requirement, t: Target) -> None:
                f", recirculated by {system.id}{into}; at most class {limit} is allowed")
     run.record(req, ctx.subject, "fail", emitter, run.finding(
         req, ctx.subject, message, ctx.location, system=system.id, zone=ctx.zone.id,
-        required=Amount(limit, "count"), provided=Amount(klass, "count")))
+        required=Amount(limit, "count", at_most=True), provided=Amount(klass, "count")))
 
 
 BEHAVIOUR = Behaviour(evaluate=evaluate)

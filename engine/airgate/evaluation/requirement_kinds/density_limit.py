@@ -24,7 +24,7 @@ def evaluate(run: Any, req: Requirement, t: Target) -> None:
     where = ctx.fields.get("occupants", ctx.location)
     run.record(req, ctx.subject, "fail", emitter, run.finding(
         req, ctx.subject, message, where, system=t.system.id, zone=ctx.zone.id,
-        required=Amount(limit, "density"), provided=Amount(density, "density")))
+        required=Amount(limit, "density", at_most=True), provided=Amount(density, "density")))
 
 
 BEHAVIOUR = Behaviour(evaluate=evaluate)

@@ -82,7 +82,8 @@ def evaluate(run: Any, req: Requirement, t: Target) -> None:
                f"{relation} {f.required_text} = {run.amount(required, f.quantity)} required")
     run.record(req, subject, "fail", emitter, run.finding(
         req, subject, message, where, system=t.system.id, zone=zone_id,
-        required=Amount(required, f.quantity), provided=Amount(provided, f.quantity)))
+        required=Amount(required, f.quantity, at_most=f.compare != "at-least"),
+        provided=Amount(provided, f.quantity)))
 
 
 BEHAVIOUR = Behaviour(evaluate=evaluate)

@@ -72,7 +72,8 @@ def natural(system: System, ctxs: list[ZoneContext], zones: list[ZoneResult],
                 f"zone depth {amt(nv.depth)} exceeds {amt(limit)} ({ratio.value:g}"
                 f" × ceiling height {amt(ctx.zone.height)}, {nv.arrangement} openings); add "
                 "openings on another side or ventilate the zone mechanically",
-                at["depth"], required=Amount(limit, "length"), provided=Amount(nv.depth, "length"),
+                at["depth"], required=Amount(limit, "length", at_most=True),
+                provided=Amount(nv.depth, "length"),
                 system=system.id, zone=ctx.zone.id)
         if not nv.permanently_open and nv.conditioned:
             emitter.emit(
@@ -127,7 +128,8 @@ def _zone_checks(system: System, z: ZoneResult, result: SystemResult,
         yield ("natural-opening-area", ("natural_ventilation", "openable_area"),
                Amount(t.value("A_open_min"), "area"), Amount(t.value("A_open"), "area"))
         yield ("natural-depth", ("natural_ventilation", "depth"),
-               Amount(t.value("depth_max"), "length"), Amount(t.value("depth"), "length"))
+               Amount(t.value("depth_max"), "length", at_most=True),
+               Amount(t.value("depth"), "length"))
         yield "natural-mechanical-system", ("natural_ventilation",), None, None
 
 
