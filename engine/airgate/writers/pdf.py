@@ -7,11 +7,11 @@ and white. Chromium is an outside program (Debian's ``chromium`` package, or the
 nothing is written.
 
 Same input, same bytes: Chromium runs with the time zone, language and a fresh profile fixed, and
-two things it stamps that vary from run to run are replaced by values of the same length, so no
-offset in the file moves: the two dates of the document information (creation and modification,
-the clock time of the run) by one fixed date, and the ids of the tagged structure elements
-(``nodeNNNNNNNN``, the page's DOM node numbers, which shift with whatever else the browser built
-first) by their rank, which keeps the order the structure's id tree is sorted in.
+the two dates it stamps in the document information (creation and modification, the clock time
+of the run) are replaced by one fixed date of the same length, so no offset in the file moves.
+The PDF is printed untagged (``--disable-pdf-tagging``): Chromium names the tagged structure's
+elements after the page's DOM node numbers, whose order differs from run to run, so a tagged
+print of the same page is not the same file twice.
 """
 
 from __future__ import annotations
@@ -33,12 +33,11 @@ VARIABLE = "AIRGATE_CHROMIUM"
 TIMEOUT = 300
 FLAGS = ("--headless", "--no-sandbox", "--disable-gpu", "--no-first-run", "--disable-sync",
          "--disable-extensions", "--disable-background-networking",
-         "--disable-component-update", "--no-pdf-header-footer", "--lang=en-US")
+         "--disable-component-update", "--no-pdf-header-footer", "--disable-pdf-tagging",
+         "--lang=en-US")
 #: a PDF date of the document information (``D:YYYYMMDDHHmmSS``), and the fixed one put in its place
 _DATE = re.compile(rb"\(D:\d{14}")
 _FIXED = b"(D:20000101000000"
-#: the id Chromium gives a tagged structure element (its DOM node's number)
-_NODE = re.compile(rb"node(\d{8})")
 
 
 def chromium() -> str:
@@ -66,15 +65,6 @@ def fixed_dates(pdf: bytes) -> bytes:
     return _DATE.sub(_FIXED, pdf)
 
 
-def ranked_node_ids(pdf: bytes) -> bytes:
-    """``pdf`` with each structure element id ``nodeNNNNNNNN`` replaced by its rank among them
-    (``node00000000`` for the lowest): the same length, the same order, and the same bytes
-    whatever numbers the browser's DOM happened to hand out."""
-    numbers = sorted({int(n) for n in _NODE.findall(pdf)})
-    rank = {n: i for i, n in enumerate(numbers)}
-    return _NODE.sub(lambda m: b"node%08d" % rank[int(m.group(1))], pdf)
-
-
 def print_html(html: str) -> bytes:
     """The PDF headless Chromium prints from the page ``html``."""
     exe = chromium()
@@ -99,7 +89,7 @@ def print_html(html: str) -> bytes:
             raise UsageError(f"Chromium printed no PDF (exit status {done.returncode}) "
                              f"{detail[0][:200]}".rstrip(), field=("--format",),
                              hint="write --format html instead")
-        return ranked_node_ids(fixed_dates(out.read_bytes()))
+        return fixed_dates(out.read_bytes())
 
 
 def render(batch) -> bytes:
