@@ -16,6 +16,7 @@ import yaml
 
 from airgate import check
 from airgate.cli import main
+from airgate.readers import condition_columns as C
 from airgate.readers import fields as F
 from airgate.readers.schedule import read_schedule
 from airgate.readers.sources import read_any
@@ -340,7 +341,7 @@ def test_annotation_names_field_and_condition():
     assert free == ["Office"]
     assert notes == [("primary_airflow@heating", "950 cfm", 1),
                      ("ez @ morning warm-up", "0.8", 2)]
-    assert F.split_condition("ez @ morning warm-up") == ("ez", "morning warm-up")
+    assert C.split_condition("ez @ morning warm-up") == ("ez", "morning warm-up")
 
 
 def test_ifc_property_per_condition(tmp_path):

@@ -13,6 +13,7 @@ import datetime as dt
 import pytest
 
 from airgate.errors import ScheduleError
+from airgate.readers import condition_columns as C
 from airgate.readers import fields as F
 from airgate.readers import xmltree
 
@@ -42,13 +43,13 @@ def test_a_date_where_a_value_belongs_is_an_error():
 
 @pytest.mark.parametrize("text", ["Area [ft2]", "area [ft²]", "AREA[m2]", "area"])
 def test_header_forms(text):
-    col, _, _ = F.match_header(text, F.ZONE_COLUMNS)
+    col, _, _ = C.match_header(text, F.ZONE_COLUMNS)
     assert col.field == "area"
 
 
 def test_header_suggests_the_nearest_column():
     with pytest.raises(F.CellError, match="did you mean 'Occupants'"):
-        F.match_header("Ocupants", F.ZONE_COLUMNS)
+        C.match_header("Ocupants", F.ZONE_COLUMNS)
 
 
 def test_distribution_forms_round_trip():

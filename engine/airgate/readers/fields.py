@@ -162,14 +162,6 @@ def header_unit_text(column: Column, system: str) -> str | None:
     return None
 
 
-def header_label(column: Column, system: str, condition: str | None = None) -> str:
-    """The header airgate writes for ``column`` (at ``condition``): ``Primary airflow @heating
-    [cfm]``."""
-    unit = header_unit_text(column, system)
-    name = column.header if condition is None else f"{column.header} {CONDITION_MARK}{condition}"
-    return f"{name} [{unit}]" if unit else name
-
-
 def _takes_text(model: type[BaseModel], field: str) -> bool:
     """Whether the model's ``field`` accepts text as such (then '12' must stay '12')."""
     import typing
@@ -217,85 +209,27 @@ def find_column(name: str, columns: tuple[Column, ...], model: type[BaseModel] |
                         known + [f for f in generic if f not in {c.field for c in columns}])))
 
 
-def header_name(text: str) -> str:
-    """The name part of a header (``Area [ft2]`` → ``Area``)."""
-    m = _HEADER.match(text)
-    return m["name"] if m and m["name"] else text
-
-
-def match_header(text: str, columns: tuple[Column, ...], model: type[BaseModel] | None = None,
-                 skip: tuple[str, ...] = (), level: str | None = None
-                 ) -> tuple[Column, str | None, str | None]:
-    """The column a header names, the unit in its brackets and the design condition after
-    ``@`` (``Primary airflow @heating [cfm]``); CellError when unknown, or when the column's
-    field cannot be given per condition at ``level`` (``system``, ``zone``)."""
+def split_header(text: str) -> tuple[str, str | None]:
+    """The name and the bracketed unit of a header (``Area [ft2]`` → ``('Area', 'ft2')``);
+    CellError when it is not of that form."""
     m = _HEADER.match(text)
     if not m or not m["name"]:
         raise CellError(f"header {text!r} is not of the form 'Name', 'Name [unit]' or "
                         "'Name @condition [unit]'",
                         hint="write the column name, optionally followed by @ and a design "
                              "condition, then a unit in brackets")
-    name, condition = split_condition(m["name"])
-    col = find_column(name, columns, model, skip)
-    if condition is not None:
-        per_condition(col, level)
-    try:
-        unit = _header_unit(col, m["unit"])
-    except CellError as exc:
-        fields = CONDITION_FIELDS.get(level or "", ())
-        if condition is None and col.field in fields and m["unit"] is not None:
-            exc.hint = (f"{exc.hint}; a value per design condition is written "
-                        f"'{col.header} @{m['unit'].strip()}'" + (
-                            f" (with its unit: '{col.header} @{m['unit'].strip()} "
-                            f"[{UNIT_TEXT[col.unit][0]}]')" if col.kind == "quantity" else ""))
-        raise
-    return col, unit, condition
+    return m["name"], m["unit"]
 
 
-#: the mark between a field and a design condition in a header or an annotation
-#: (``Primary airflow @heating``, ``airgate.primary_airflow@heating: 950 cfm``)
-CONDITION_MARK = "@"
+def header_name(text: str) -> str:
+    """The name part of a header (``Area [ft2]`` → ``Area``)."""
+    m = _HEADER.match(text)
+    return m["name"] if m and m["name"] else text
 
 
-def split_condition(name: str) -> tuple[str, str | None]:
-    """A column or field name and the design condition it names: ``Primary airflow @heating``
-    → ``('Primary airflow', 'heating')``, ``Area`` → ``('Area', None)``."""
-    base, mark, condition = name.partition(CONDITION_MARK)
-    if not mark:
-        return name, None
-    base, condition = base.strip(), condition.strip()
-    if not base or not condition:
-        raise CellError(f"{name.strip()!r} does not name a field and a design condition",
-                        hint="write the field, @ and the condition id, e.g. "
-                             "'Primary airflow @heating'")
-    return base, condition
-
-
-def _condition_fields() -> dict[str, tuple[str, ...]]:
-    from airgate.models.schedule import SYSTEM_CONDITION_FIELDS, ZONE_CONDITION_FIELDS
-
-    return {"system": SYSTEM_CONDITION_FIELDS, "zone": ZONE_CONDITION_FIELDS}
-
-
-#: level → the fields a system or zone may give per design condition
-CONDITION_FIELDS = _condition_fields()
-#: table → the level of its rows, for the tables whose fields may be given per condition
-TABLE_LEVELS = {"systems": "system", "zones": "zone"}
-
-
-def per_condition(col: Column, level: str | None) -> None:
-    """CellError unless ``col``'s field may be given per design condition at ``level``."""
-    fields = CONDITION_FIELDS.get(level or "", ())
-    if col.field in fields:
-        return
-    where = {"system": "a system", "zone": "a zone"}.get(level or "")
-    raise CellError(f"'{col.header}' cannot be given per design condition" + (
-        f"; the fields of {where} that can: {', '.join(fields)}" if where else
-        "; only fields of systems and zones can"),
-        hint="remove '@…' from the name: a plain value applies to every condition")
-
-
-def _header_unit(col: Column, unit: str | None) -> str | None:
+def header_unit(col: Column, unit: str | None) -> str | None:
+    """The unit a header states in brackets for ``col`` (``None`` when none or when the column
+    takes none); CellError when it does not fit the column."""
     if unit is None or not unit.strip():
         return None
     unit = unit.strip()
@@ -549,16 +483,6 @@ def annotations(text: str | None) -> tuple[list[str], list[tuple[str, str, int]]
         elif line.strip():
             free.append(line.strip())
     return free, notes
-
-
-def column_at(name: str, level: str) -> tuple[Column, str | None]:
-    """The column and design condition of an annotation or property named ``FIELD`` or
-    ``FIELD@CONDITION`` at ``level``; CellError when unknown or not per condition."""
-    field, condition = split_condition(name)
-    col = column_for(field, level)
-    if condition is not None:
-        per_condition(col, level)
-    return col, condition
 
 
 def column_for(field: str, level: str) -> Column:

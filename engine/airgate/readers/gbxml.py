@@ -31,6 +31,7 @@ from typing import Any
 from airgate import units
 from airgate.errors import ScheduleError, nearest
 from airgate.models.schedule import SYSTEM_KINDS as SCHEDULE_KINDS
+from airgate.readers import condition_columns as C
 from airgate.readers import fields as F
 from airgate.readers.document import read_bytes
 from airgate.readers.sources import Builder, ImportedSchedule, Origin
@@ -141,7 +142,7 @@ class _Reader:
             if name in skip:
                 continue
             try:
-                col, condition = (F.column_at(name, level) if level != "schedule"
+                col, condition = (C.column_at(name, level) if level != "schedule"
                                   else (_schedule_column(name), None))
                 converted = F.convert(col, value)
             except F.CellError as exc:

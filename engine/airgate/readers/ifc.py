@@ -32,6 +32,7 @@ from typing import Any
 from airgate import units
 from airgate.errors import ScheduleError
 from airgate.models.schedule import SYSTEM_KINDS
+from airgate.readers import condition_columns as C
 from airgate.readers import fields as F
 from airgate.readers import step
 from airgate.readers.document import read_bytes
@@ -168,7 +169,7 @@ class _Reader:
             if field in skip:
                 continue
             try:
-                col, condition = F.column_at(field, level)
+                col, condition = C.column_at(field, level)
             except F.CellError as exc:
                 self.b.error(self.origin(prop.entity, owner, prop.what), exc.message,
                              hint=exc.hint, field=base + (field,))

@@ -26,6 +26,7 @@ from pathlib import Path
 from typing import Any
 
 from airgate.errors import ScheduleError, nearest
+from airgate.readers import condition_columns as C
 from airgate.readers import fields as F
 from airgate.readers import limits, workbook_guard
 from airgate.readers.document import read_text
@@ -308,17 +309,17 @@ def _rows(table: Table, b: Builder, room_table: bool = False) -> list[_Row]:
                     hint="the first row of each table names its columns")
             continue
         try:
-            col, unit, condition = F.match_header(cell.value, columns, model, skip,
-                                                  F.TABLE_LEVELS.get(table.name))
+            col, unit, condition = C.match_header(cell.value, columns, model, skip,
+                                                  C.TABLE_LEVELS.get(table.name))
         except F.CellError as exc:
             b.error(where, exc.message, hint=exc.hint)
             try:  # a known column with a bad unit: its cells are lost, not "missing"
-                name = F.split_condition(F.header_name(cell.value))[0]
+                name = C.split_condition(F.header_name(cell.value))[0]
                 b.quiet.add(F.find_column(name, columns, model, skip).field)
             except F.CellError:
                 pass
             continue
-        key = col.field if condition is None else f"{col.field}{F.CONDITION_MARK}{condition}"
+        key = col.field if condition is None else f"{col.field}{C.CONDITION_MARK}{condition}"
         if key in seen:
             b.error(where, f"column '{F.header_name(cell.value).strip()}' is given twice (first "
                     f"in column {column_letter(seen[key].column)})", hint="keep one of them")
@@ -389,13 +390,13 @@ def _put_row(b: Builder, base: tuple, row: _Row, skip: tuple[str, ...] = ()) -> 
     """Put a row's values under ``base``; a dotted field (filter.merv) fills a nested mapping,
     a field at a design condition (``primary_airflow@heating``) one value of its mapping."""
     for name, (value, where) in row.values.items():
-        field, _, condition = name.partition(F.CONDITION_MARK)
+        field, _, condition = name.partition(C.CONDITION_MARK)
         if condition:
             b.put_condition(base + (field,), condition, value, where)
         elif name not in skip:
             b.put(base + tuple(name.split(".")), value, where)
     for name, where in row.blanks.items():
-        field, _, condition = name.partition(F.CONDITION_MARK)
+        field, _, condition = name.partition(C.CONDITION_MARK)
         if condition:
             b.put_condition(base + (field,), condition, None, where)
         elif name not in skip:

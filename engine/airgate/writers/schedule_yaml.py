@@ -18,6 +18,7 @@ from airgate.errors import ScheduleError
 from airgate.escaping import BIDI_AND_SEPARATORS, terminal
 from airgate.models.profiles import Profile
 from airgate.models.schedule import Project, StatedDistribution, System, Zone
+from airgate.readers import condition_columns as C
 from airgate.readers import fields as F
 from airgate.readers.document import parse_yaml
 
@@ -134,7 +135,7 @@ def _fields(out: _Out, node: dict[str, Any], model: str | type[BaseModel], path:
             continue
         prefix = first_prefix if first else " " * len(first_prefix)
         sub = "stated" if key == "air_distribution" else None
-        if key in F.CONDITION_FIELDS.get(model, ()) and isinstance(value, dict) \
+        if key in C.CONDITION_FIELDS.get(model, ()) and isinstance(value, dict) \
                 and "supply" not in value:  # one line per design condition, with its origin
             out.line(indent, f"{prefix}{_key(key)}:")
             for condition, at in value.items():

@@ -14,6 +14,7 @@ from pathlib import Path
 from typing import Any
 
 from airgate.errors import UsageError
+from airgate.readers import condition_columns as C
 from airgate.readers import fields as F
 from airgate.writers import output
 
@@ -97,8 +98,8 @@ def _table(key: str, records: list[dict[str, Any]], system: str, every: bool,
                 c.field in r and not _by_condition(r[c.field]) for r in records):
             slots.append((c, None))
         slots += [(c, condition) for condition in shown]
-    rows = [[F.header_label(c, system, condition) for c, condition in slots]]
-    per_condition = set(F.CONDITION_FIELDS.get(F.TABLE_LEVELS.get(key, ""), ()))
+    rows = [[C.header_label(c, system, condition) for c, condition in slots]]
+    per_condition = set(C.CONDITION_FIELDS.get(C.TABLE_LEVELS.get(key, ""), ()))
     rows += [[_cell(c, _at(r.get(c.field), condition) if c.field in per_condition
                     else r.get(c.field), system) for c, condition in slots]
              for r in records]
@@ -121,7 +122,7 @@ def _conditions_of(key: str, field: str, records: list[dict[str, Any]],
                    conditions: tuple[str, ...]) -> list[str]:
     """The design conditions at which ``field`` gets a column (``Primary airflow @heating``):
     those the records give it at, in order of appearance, after ``conditions``."""
-    if field not in F.CONDITION_FIELDS.get(F.TABLE_LEVELS.get(key, ""), ()):
+    if field not in C.CONDITION_FIELDS.get(C.TABLE_LEVELS.get(key, ""), ()):
         return []
     given = (c for r in records if _by_condition(r.get(field)) for c in r[field])
     return list(dict.fromkeys((*conditions, *given)))
@@ -221,8 +222,8 @@ def xlsx_bytes(tables: Tables, pack=None) -> bytes:
             return
         for c, head in enumerate(tables[key][0], start=1):
             try:
-                col, _, _ = F.match_header(str(head), _COLUMNS[key], _MODELS.get(key),
-                                           level=F.TABLE_LEVELS.get(key))
+                col, _, _ = C.match_header(str(head), _COLUMNS[key], _MODELS.get(key),
+                                           level=C.TABLE_LEVELS.get(key))
             except F.CellError:
                 continue
             if col.field == field:
