@@ -29,8 +29,9 @@ from pathlib import Path
 from airgate.errors import ScheduleError
 from airgate.readers import limits
 
-#: characters one cell may hold: the limit of spreadsheet programs (Microsoft, "Excel
-#: specifications and limits": 32,767 characters per cell; from memory; docs/references.md)
+#: characters one cell may hold: the limit of spreadsheet programs (Microsoft Support, "Excel
+#: specifications and limits": "Total number of characters that a cell can contain: 32,767
+#: characters"; docs/references.md)
 MAX_CELL_TEXT = 32_767
 
 _MAIN = "http://schemas.openxmlformats.org/spreadsheetml/2006/main"
