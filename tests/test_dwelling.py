@@ -1,8 +1,9 @@
 """Dwelling-unit whole-house rate (ASHRAE Standard 62.2 form): procedure, packs and engine.
 
 Sources (ANSI/ASHRAE Standard 62.2-2019, docs/references.md):
-- Qtot = 0.03·Afloor + 7.5·(Nbr + 1) cfm, Section 4.1.1 Equation 4-1: published (as quoted in a
-  model mechanical code appendix and a national-laboratory guide);
+- Qtot = 0.03·Afloor + 7.5·(Nbr + 1) cfm, Section 4.1.1: published (Uniform Mechanical Code,
+  Appendix E, Equation E 605.1.3.1, public copy named in docs/references.md); the standard's
+  own equation number (4-1 here) is from memory;
 - table cells: published (< 500 ft², 1–5 bedrooms: 30, 38, 45, 53, 60 cfm; 4501–5000 ft²,
   5 bedrooms: 195 cfm); the rule "formula at the top of each area bin, halves rounded up" is
   derived from them;

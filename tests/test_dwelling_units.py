@@ -3,13 +3,15 @@
 Sources (docs/references.md, ANSI/ASHRAE 62.2-2019):
 - Section 4.1.1: the number of bedrooms is taken as not less than one, so a dwelling unit with no
   bedroom (a studio) is rated for two occupants — published: the Uniform Mechanical Code (IAPMO),
-  Appendix E, Equation E 605.1.3.1 ("Nbr = number of bedrooms; not to be less than one");
-- the I-P dwelling-unit table (Table 4.1a), all 50 cells as reproduced in the same code's Table
-  E 605.1.3.1 (published);
-- the SI version of the dwelling-unit table (Table 4.1b): 418–465 m² with
-  5 bedrooms → 91 L/s, as reprinted in a public equipment manual (published). Converting the I-P
-  cell (195 cfm) gives 92 L/s instead: the SI cells are the standard's own rounded values. The
-  other SI cells used here (< 47 m²: 14, 18, 21, 25, 28 L/s for 1–5 bedrooms) are from memory.
+  Appendix E, Equation E 605.1.3.1 ("Nbr = number of bedrooms; not to be less than one"; public
+  online copy headed "E 605.1.3 Dwelling-Unit Ventilation", edition not identified);
+- the I-P dwelling-unit table (Table 4.1a, the code's tag), all 50 cells as reproduced in the
+  same copy's Table E 605.1.3.1 (published);
+- the SI version of the dwelling-unit table (Table 4.1b, number from memory): 418–465 m² with
+  5 bedrooms → 91 L/s, seen in a public equipment manual's reprint whose copy was not recorded,
+  so from memory until compared with a named copy. Converting the I-P cell (195 cfm) gives
+  92 L/s instead: the SI cells are the standard's own rounded values. The other SI cells used
+  here (< 47 m²: 14, 18, 21, 25, 28 L/s for 1–5 bedrooms) are from memory.
 """
 
 from __future__ import annotations
@@ -68,7 +70,8 @@ def test_si_pack_reproduces_si_table_cells(evaluate, area, bedrooms, cell):
 
 def test_si_cells_are_not_conversions_of_the_ip_cells():
     # 4501–5000 ft², 5 bedrooms: I-P cell 195 cfm (published) converts to 92 L/s (1 cfm =
-    # 0.471947 L/s, exact), where the SI table prints 91 L/s (published reprint).
+    # 0.471947 L/s, exact), where the SI table prints 91 L/s (from memory: an equipment manual's
+    # reprint, copy not recorded).
     assert round(195 * CFM) == 92 != 91
 
 

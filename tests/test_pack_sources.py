@@ -1,11 +1,14 @@
 """Values a pack marks `published` equal the public copy it names, and nothing else is so marked.
 
 The expected values are those of the public copies (docs/references.md), typed here from them:
-- Table 6-1 of a 2019-or-later edition of ANSI/ASHRAE 62.1 (public reprint): Animal Facilities,
+- Table 6-1 of a 2019-or-later edition of ANSI/ASHRAE 62.1 (public reprint: studylib.net
+  document 26033694, "ASHRAE 62.1 minimum exhaust rates", first page): Animal Facilities,
   Correctional Facilities and Educational Facilities rows, I-P and SI, air class (Libraries: no
   air class legible; listed under Educational Facilities);
-- Table 6.2.2.1 of the 2016 edition (public reprint), rows 2019 keeps: university/college
-  laboratories, wood/metal shop and the Food and Beverage Service rows;
+- Table 6.2.2.1 of the 2016 edition (public reprint: studylib.net document 27588837, "ASHRAE
+  62.1 ventilation rates in breathing zone", after the 62.1-2016 cover), rows 2019 keeps:
+  university/college laboratories, wood/metal shop and the Food and Beverage Service rows, and
+  the combined outdoor air rates of its Note 5 column;
 - Indiana Mechanical Code 2014 (675 IAC 18-1.6) Table 403.3: hotel and conference rows, I-P
   density, Rp and Ra only;
 - 2020 Mechanical Code of New York State, Table 403.3.1.1.2.3.2: Ev against the largest Zp;
@@ -90,6 +93,46 @@ IMC_2018_WORKROOMS = {
 WASHINGTON_2021 = {"gym-sports-arena-play-area": (20, 0.18, 7)}
 #: the same page's exhaust column: id → cfm/ft²
 IMC_2018_WORKROOM_EXHAUST = {"copy-printing-rooms": 0.5, "darkrooms": 1.0}
+
+
+#: Table 6.2.2.1 of ANSI/ASHRAE 62.1-2016 (studylib.net document 27588837), Note 5 column: the
+#: combined outdoor air rate at the default density, id → (cfm/person, L/s·person), as printed.
+COMBINED_2016 = {
+    "cell": (10, 4.9), "dayroom": (7, 3.5), "guard-stations": (9, 4.5),
+    "booking-waiting": (9, 4.4), "daycare-through-age-4": (17, 8.6),
+    "daycare-sickroom": (17, 8.6), "classrooms-ages-5-8": (15, 7.4),
+    "classrooms-age-9-plus": (13, 6.7), "lecture-classroom": (8, 4.3),
+    "lecture-hall-fixed-seats": (8, 4.0), "art-classroom": (19, 9.5),
+    "science-laboratories": (17, 8.6), "university-college-laboratories": (17, 8.6),
+    "wood-metal-shop": (19, 9.5), "computer-lab": (15, 7.4), "media-center": (15, 7.4),
+    "music-theater-dance": (12, 5.9), "multi-use-assembly": (8, 4.1),
+    "restaurant-dining-rooms": (10, 5.1), "cafeteria-fast-food-dining": (9, 4.7),
+    "bars-cocktail-lounges": (9, 4.7), "kitchen-cooking": (14, 7.0),
+}
+
+
+def _half_up(x: float, digits: int) -> float:
+    return int(x * 10 ** digits + 0.5 + 1e-9) / 10 ** digits
+
+
+@pytest.mark.parametrize(("pack_id", "si"), [("ashrae-62.1-2019", False),
+                                             ("ashrae-62.1-2019-si", True)])
+def test_rows_give_the_combined_rates_printed_in_the_2016_table(pack_id, si):
+    # ANSI/ASHRAE 62.1-2016 Table 6.2.2.1, Note 5 column (public reprint, studylib.net document
+    # 27588837): Rp + Ra/density of each row, to whole cfm/person and to 0.1 L/s·person.
+    cats = load_pack(pack_id).categories
+    per = 100 if si else 1000  # density per 100 m² or per 1000 ft²
+    for row_id, (ip, si_printed) in COMBINED_2016.items():
+        c = cats[row_id]
+        combined = c.printed["Rp"] + c.printed["Ra"] * per / c.printed["density"]
+        if not si:
+            assert _half_up(combined, 0) == ip, row_id
+        elif row_id == "kitchen-cooking":
+            # The copy prints 7.0 L/s·person; its own SI columns (3.8, 0.6, 20) give 6.8, and the
+            # I-P cell (14) agrees with the I-P columns: the SI cell is left as the copy's own.
+            assert _half_up(combined, 1) == 6.8 != si_printed
+        else:
+            assert _half_up(combined, 1) == si_printed, row_id
 
 
 def _published(pack_id: str) -> dict[str, dict[str, float]]:

@@ -28,9 +28,12 @@ def combined_cfm_per_person(pack, space: str) -> float:
     return vbz / pz / CFM
 
 
-# Published (rounded) combined outdoor air per person at default density, from a municipal summary
-# of ANSI/ASHRAE 62.1 Table 6.2.2.1 (its combined-rate column): office 17, auditorium 5, museum 9.
-# Derived with the same formula: classroom (ages 5-8) 14.8 -> 15, restaurant dining 10.1 -> 10.
+# Published (rounded) combined outdoor air per person at default density: office 17, auditorium 5,
+# museum 9 cfm/person of outside air, Table 1 of a memo in the public records of the City of
+# Louisville, Colorado (Laserfiche WebLink document 521989, page 7; docs/references.md), which
+# agrees with the combined-rate column of ANSI/ASHRAE 62.1 Table 6.2.2.1. Classroom (ages 5-8)
+# 14.8 -> 15 and restaurant dining 10.1 -> 10 are printed in that column of the 2016 table
+# (public reprint, studylib.net document 27588837; see tests/test_pack_sources.py).
 @pytest.mark.parametrize("space, printed", [
     ("office-space", 17),
     ("auditorium-seating-area", 5),

@@ -27,8 +27,9 @@ References
 .. [2] CDC (2003). *Guidelines for Environmental Infection Control in Health-Care Facilities*,
    Appendix B, Table B.1 (air changes per hour and minutes to remove 99 % and 99.9 %).
 .. [3] ANSI/ASHRAE Standard 62.1-2019, Section 6.2.2.2 (zone air distribution effectiveness),
-   Section 6.3 and its appendix of mass-balance equations for the IAQ procedure (the same
-   well-mixed balance; appendix letter not verified).
+   Section 6.3 and Informative Appendix E, acceptable mass balance equations for use with the
+   IAQ procedure (the same well-mixed balance; the appendix title from a public copy's contents
+   page, the equations from memory).
 .. [4] ASHRAE 241-2023, *Control of Infectious Aerosols* (equivalent clean airflow as the sum
    of outdoor air, filtration and air cleaners).
 """
