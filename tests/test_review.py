@@ -72,6 +72,82 @@ def test_reports_without_a_record_show_none(tmp_path, capsys):
         assert "Reviewer's record" not in capsys.readouterr().out.replace("&#39;", "'")
 
 
+def _demo_with_record(tmp_path, fmt: str, record=RECORD) -> str:
+    out = tmp_path / f"r.{fmt}"
+    assert main(["check", str(DEMO), "--review", str(record), "--format", fmt,
+                 "-o", str(out)]) == 1
+    return out.read_text(encoding="utf-8")
+
+
+def test_the_json_report_carries_the_record(tmp_path):
+    data = json.loads(_demo_with_record(tmp_path, "json"))
+    schema = json.loads((builtin_rules_dir() / "schema" / "report.schema.json")
+                        .read_text(encoding="utf-8"))
+    jsonschema.validate(data, schema)
+    got = [(c["id"], c["status"], c["finding"], c["to_close"]) for c in data["review"]]
+    # AHU-3's intake and zone 203's Evz fail in the demo; the break room raises no finding
+    assert got == [("PR-0412", "responded", {"severity": "fail", "waived": False}, False),
+                   ("PR-0413", "open", {"severity": "fail", "waived": False}, False),
+                   ("PR-0398", "closed", None, False)]
+    first = data["review"][0]
+    assert first["response"].startswith("Terminal 203 minimum to be raised")
+    assert first["location"] == {"file": str(RECORD), "line": 7, "column": 5}
+    assert list(data).index("review") == list(data).index("waivers_judged_on") + 1
+    # the schema holds the contract: a comment's status is one of the three
+    first["status"] = "pending"
+    with pytest.raises(jsonschema.ValidationError):
+        jsonschema.validate(data, schema)
+
+
+def test_a_record_without_comments_leaves_the_json_report_as_it_was(tmp_path, capsys):
+    empty = _write(tmp_path / "empty.yaml", {"comments": []})
+    assert main(["check", str(DEMO), "--format", "json"]) == 1
+    plain = capsys.readouterr().out
+    assert main(["check", str(DEMO), "--format", "json", "--review", empty]) == 1
+    assert capsys.readouterr().out == plain and '"review"' not in plain
+
+
+def test_junit_carries_the_record_in_properties_and_system_out(tmp_path):
+    import xml.etree.ElementTree as ET
+
+    [suite] = ET.fromstring(_demo_with_record(tmp_path, "junit")).findall("testsuite")
+    props = [(p.get("name"), p.get("value")) for p in suite.find("properties")]
+    assert ("review", "Reviewer's record — 3 comments") in props
+    comments = [v for name, v in props if name == "review_comment"]
+    assert comments[0] == ("PR-0412 AHU-3 system-intake [responded] Quillby Bay plan review "
+                           "(fictional), 2026-11-20: fail finding reported")
+    assert comments[2].startswith("PR-0398 AHU-3 air-class-mixing [closed]")
+    assert comments[2].endswith(": no finding reported")
+    record = suite.find("system-out").text  # the suite's own, after its cases
+    assert "Class 1 confirmed by the owner's programme." in record
+    assert "State the design occupancy of the Tidewater meeting room" in record
+    cases = {c.get("name"): c for c in suite.findall("testcase")}
+    failing = cases["AHU-3/203 zone-limits-ev"].find("failure").text
+    assert ("review PR-0413 [open] Quillby Bay plan review (fictional), 2026-11-20: State the "
+            "design occupancy") in failing
+    assert "review PR-0412" not in failing
+
+
+def test_sarif_carries_the_record_in_run_and_result_properties(tmp_path):
+    from test_report_formats import assert_valid_sarif
+
+    [run] = assert_valid_sarif(_demo_with_record(tmp_path, "sarif"))["runs"]
+    uris = [a["location"]["uri"] for a in run["artifacts"]]
+    assert uris[-1].endswith("review/round-1.yaml")
+    [sched] = run["properties"]["schedules"]
+    got = [(c["id"], c["state"], c["toClose"]) for c in sched["review"]]
+    assert got == [("PR-0412", "fail finding reported", False),
+                   ("PR-0413", "fail finding reported", False),
+                   ("PR-0398", "no finding reported", False)]
+    where = sched["review"][0]["location"]["physicalLocation"]
+    assert where["artifactLocation"]["index"] == len(uris) - 1
+    assert where["region"] == {"startLine": 7, "startColumn": 5}
+    on = {(r["ruleId"], r["properties"]["subject"]): [c["id"] for c in r["properties"]["review"]]
+          for r in run["results"] if "review" in r["properties"]}
+    assert on == {("system-intake", "AHU-3"): ["PR-0412"],
+                  ("zone-limits-ev", "AHU-3/203"): ["PR-0413"]}
+
+
 def test_a_resolved_finding_flags_its_comment_for_closing(tmp_path, capsys):
     # Vot = 5·10 + 0.06·1000 = 110 cfm: 100 cfm fails, 120 cfm passes
     old, new = _write(tmp_path / "a.yaml", _single(100)), _write(tmp_path / "b.yaml", _single(120))

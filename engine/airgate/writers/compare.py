@@ -187,19 +187,9 @@ def _finding(f: Finding, units: str) -> dict[str, Any]:
             "location": _location(f.location), "waived": f.waived}
 
 
-def _comment(s) -> dict[str, Any]:
-    c = s.entry.comment
-    return {"id": c.id, "subject": c.subject, "rule": c.rule, "comment": c.comment,
-            "response": c.response, "status": c.status, "reviewer": c.reviewer,
-            "date": c.date.isoformat(), "location": _location(s.entry.location),
-            "finding": None if s.finding is None else {"severity": s.finding.severity,
-                                                       "waived": s.finding.waived},
-            "resolved": s.resolved, "to_close": s.to_close}
-
-
 def to_dict(cmp: Comparison, batch) -> dict[str, Any]:
     """The comparison as JSON data (compare version 1, docs/compare.md)."""
-    from airgate.writers.json_report import value
+    from airgate.writers.json_report import review_comment, value
 
     u = cmp.new.units
     return {
@@ -220,7 +210,7 @@ def to_dict(cmp: Comparison, batch) -> dict[str, Any]:
                     "change": value(c.change, c.kind, u)} for c in cmp.values],
         "findings": {"resolved": [_finding(f, u) for f in cmp.resolved],
                      "new": [_finding(f, u) for f in cmp.added]},
-        "review": [_comment(s) for s in cmp.review],
+        "review": [review_comment(s, compared=True) for s in cmp.review],
         "cautions": cautions(cmp),
     }
 

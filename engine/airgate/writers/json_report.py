@@ -10,7 +10,7 @@ from __future__ import annotations
 import math
 from collections.abc import Iterator
 from functools import lru_cache
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from airgate import __version__, units
 from airgate.evaluation.findings import Amount, Finding
@@ -18,6 +18,9 @@ from airgate.evaluation.report import ConditionResult, Report, SystemResult, Zon
 from airgate.evaluation.waivers import WaiverStatus
 from airgate.evaluation.trail import Step, Trail
 from airgate.writers.output import Lazy, Streamed, json_chunks, json_text
+
+if TYPE_CHECKING:
+    from airgate.evaluation.review import CommentStatus
 
 REPORT_VERSION = 1
 
@@ -151,6 +154,18 @@ def waiver_status(s: WaiverStatus) -> dict[str, Any]:
             "expires": e.expires, "origin": e.origin, "location": _location(e.location)}
 
 
+def review_comment(s: CommentStatus, compared: bool = False) -> dict[str, Any]:
+    """One comment of the reviewer's record and its finding now; ``compared``: with whether the
+    comparison resolved it (``airgate compare``)."""
+    c = s.entry.comment
+    return {"id": c.id, "subject": c.subject, "rule": c.rule, "comment": c.comment,
+            "response": c.response, "status": c.status, "reviewer": c.reviewer,
+            "date": c.date.isoformat(), "location": _location(s.entry.location),
+            "finding": None if s.finding is None else {"severity": s.finding.severity,
+                                                       "waived": s.finding.waived},
+            **({"resolved": s.resolved} if compared else {}), "to_close": s.to_close}
+
+
 def to_dict(report: Report, series_step: int = 0) -> dict[str, Any]:
     """The JSON report as plain data."""
     return _report(report, series_step, lazy=False)
@@ -187,6 +202,7 @@ def _report(report: Report, series_step: int, lazy: bool,
         "findings": listed(_finding(f, system) for f in report.findings),
         "waivers": [waiver_status(s) for s in report.waivers],
         "waivers_judged_on": report.waiver_date,
+        **({"review": [review_comment(s) for s in report.review]} if report.review else {}),
         "notes": list(report.notes),
         "cautions": list(report.cautions),
     })

@@ -5,7 +5,9 @@ A case fails when it has a finding at or above the run's ``--fail-on`` severity 
 waived (a limit the schedule declares for itself, classname ``STEM.declared``, only under
 ``--fail-on declared``); its ``<failure>`` says required vs provided, the margin, the source and
 where in the schedule. A waived finding is a ``<skipped>`` case with the waiver's reason.
-Waivers themselves are cases too (a stale waiver fails under ``--fail-on warning``). The document
+Waivers themselves are cases too (a stale waiver fails under ``--fail-on warning``). A reviewer's
+record (``--review``) is in the suite's properties and ``<system-out>``, and each comment in the
+text of the case of its check and subject. The document
 uses only the elements and attributes common to JUnit consumers (testsuites, testsuite,
 properties, testcase, failure, skipped, system-out); it has no timestamps or durations, so it is
 deterministic.
@@ -51,6 +53,22 @@ def _failing(case: CheckCase, fail_on: tuple[str, ...]) -> bool:
     return case.status == "fail" or (case.status == "warning" and "warning" in fail_on)
 
 
+def _comment_line(s) -> str:
+    """A comment of the reviewer's record on one line: reference, subject, check, status,
+    reviewer and date, and what its finding is now."""
+    ref, subject, rule, status, reviewer, day, _, _, now = shared.comment_cells(s)
+    return f"{ref} {subject} {rule} [{status}] {reviewer}, {day}: {now}"
+
+
+def _review_lines(statuses) -> list[str]:
+    """The reviewer's record in full: each comment, its response and its finding now."""
+    out = [shared.review_title(statuses)]
+    for s in statuses:
+        *_, comment, response, _ = shared.comment_cells(s)
+        out += [_comment_line(s), f"  comment: {comment}", f"  response: {response}"]
+    return out
+
+
 def _finding_lines(report: Report, case: CheckCase) -> list[str]:
     u = report.units
     # the outcome first, then what the check looks for: a check titled by what it finds
@@ -69,6 +87,11 @@ def _finding_lines(report: Report, case: CheckCase) -> list[str]:
     own = next((f.source for f in case.findings if f.declared), None)
     out.append(f"source: {own or shared.check_source(report, case.rule)}")
     out.append(f"at: {case.location}")
+    for s in report.review:  # the reviewer's comments on this check and subject
+        c = s.entry.comment
+        if (c.rule, c.subject) == (case.rule, case.subject):
+            out.append(f"review {c.id or '–'} [{c.status}] {c.reviewer}, {c.date.isoformat()}: "
+                       f"{c.comment}" + (f" Response: {c.response}" if c.response else ""))
     return out
 
 
@@ -123,13 +146,17 @@ def _suite(root: ET.Element, report: Report, fail_on: tuple[str, ...]) -> tuple[
                         ("rule_pack", report.pack.id), ("units", report.units),
                         ("verdict", report.verdict), ("fail_on", ",".join(fail_on))]
                 + ([("waivers_judged_on", report.waiver_date)] if report.waiver_date else [])
-                + [("caution", c) for c in report.cautions])
+                + [("caution", c) for c in report.cautions]
+                + ([("review", shared.review_title(report.review))] if report.review else [])
+                + [("review_comment", _comment_line(s)) for s in report.review])
     stem = PurePath(report.schedule_file).stem
     code = [c for c in report.cases if c.basis != DECLARED]
     declared = [c for c in report.cases if c.basis == DECLARED]  # own class, after the code
     outcomes = [_case(suite, report, c, f"{stem}.{c.system}", fail_on) for c in code]
     outcomes += [_case(suite, report, c, f"{stem}.declared", fail_on) for c in declared]
     outcomes += [_waiver_case(suite, s, f"{stem}.waivers", fail_on) for s in report.waivers]
+    if report.review:
+        _el(suite, "system-out", "\n".join(_review_lines(report.review)))
     return _finish(suite, outcomes)
 
 

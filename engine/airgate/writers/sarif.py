@@ -5,7 +5,8 @@ with help text and citation. Each finding is a result located by file, line and 
 ``partialFingerprints`` come from rule and subject only, so a result keeps its identity when the
 schedule's lines move. A waived finding carries a suppression (``inSource`` for a schedule's own
 waiver, ``external`` for a waivers file) with the reason as justification. Stale waivers are
-tool notifications. A limit the schedule declares for itself is a result with
+tool notifications. A reviewer's record (``--review``) is in each schedule's run properties, and
+each comment in the properties of the results of its check and subject. A limit the schedule declares for itself is a result with
 ``properties.basis`` ``declared``, after every code result, at level ``warning`` (``error`` under
 ``--fail-on declared``). No timestamps or random ids: the log is deterministic.
 """
@@ -153,9 +154,38 @@ def _result(report: Report, f: Finding, rule_index: dict[str, int],
                        "required": shared.amount(f.required, u),
                        "provided": shared.amount(f.provided, u), "source": _s(f.source),
                        "rulePack": report.pack.id,
-                       **({} if f.condition is None else {"condition": _s(f.condition)})},
+                       **({} if f.condition is None else {"condition": _s(f.condition)}),
+                       **_result_review(report, f)},
     }
     return out
+
+
+def _comment(s) -> dict[str, Any]:
+    """One comment of the reviewer's record, as written."""
+    c = s.entry.comment
+    return {"id": c.id, "subject": _s(c.subject), "rule": _s(c.rule), "status": c.status,
+            "reviewer": _s(c.reviewer), "date": c.date.isoformat(), "comment": _s(c.comment),
+            "response": None if c.response is None else _s(c.response)}
+
+
+def _result_review(report: Report, f: Finding) -> dict[str, Any]:
+    """``review``: the reviewer's comments on the result's check and subject, where any."""
+    on = [_comment(s) for s in report.review
+          if (s.entry.comment.rule, s.entry.comment.subject) == (f.rule, f.subject)]
+    return {"review": on} if on else {}
+
+
+def _review(report: Report, artifacts: dict[str, int]) -> dict[str, Any]:
+    """``review``: every comment of the schedule's reviewer's record, where it is written and
+    what its finding is now (nothing without a record)."""
+    if not report.review:
+        return {}
+    return {"review": [
+        {**_comment(s),
+         "location": {"physicalLocation": _physical(s.entry.location, artifacts)},
+         "finding": None if s.finding is None else {"severity": s.finding.severity,
+                                                    "waived": s.finding.waived},
+         "state": _s(s.state), "toClose": s.to_close} for s in report.review]}
 
 
 def _notification(s: WaiverStatus, artifacts: dict[str, int]) -> dict[str, Any]:
@@ -166,10 +196,12 @@ def _notification(s: WaiverStatus, artifacts: dict[str, int]) -> dict[str, Any]:
 
 
 def _artifacts(batch: Batch) -> list[str]:
-    """Every file a location points at: the schedules, then waivers files, each once."""
+    """Every file a location points at: the schedules, then waivers files, then reviewer's
+    records, each once."""
     files = [r.schedule_file for r in batch.reports]
     for status in [s for r in batch.reports for s in r.waivers] + batch.waivers:
         files.append(status.entry.location.file)
+    files += [s.entry.location.file for r in batch.reports for s in r.review]
     return list(dict.fromkeys(files))
 
 
@@ -207,7 +239,7 @@ def _log(batch: Batch, lazy: bool) -> dict[str, Any]:
         "properties": {
             "schedules": [{"file": _s(r.schedule_file), "project": _s(r.project_name),
                            "rulePack": r.pack.id, "units": r.units, "verdict": r.verdict,
-                           "waiversJudgedOn": r.waiver_date}
+                           "waiversJudgedOn": r.waiver_date, **_review(r, artifacts)}
                           for r in batch.reports],
             "verdict": batch.verdict,
             **({"gate": {"failOn": list(batch.fail_on), "outcome": batch.gate}}
