@@ -286,6 +286,49 @@ def test_a_stored_report_of_the_same_schedule_changes_nothing(tmp_path, capsys):
     assert data["inputs_from"] == "trails"
 
 
+def test_a_stored_report_keeps_its_stale_waivers(tmp_path, capsys):
+    """A stored NEW is gated on its waivers as check judged them: an expired waiver and one that
+    matches nothing fail --fail-on warning (docs/report-format.md, "Waivers"; docs/compare.md)."""
+    # Vot = 5·10 + 0.06·1000 = 110 cfm: 100 cfm fails, so the expired waiver's finding counts
+    new = _single(100)
+    new["waivers"] = [
+        {"rule": "system-intake", "subject": "S-1", "reason": "Interim (invented).",
+         "approved_by": "Plan review (invented)", "expires": "2026-06-30"},
+        {"rule": "zone-limits-ev", "subject": "S-1/1", "reason": "Not needed (invented).",
+         "approved_by": "Plan review (invented)"}]
+    old, new = _pair(tmp_path, _single(90), new)
+    stored = tmp_path / "round-2.json"
+    assert main(["check", str(new), "--as-of", "2026-12-01", "--format",
+                 f"json:{stored}"]) == 1
+    report = compare(old, stored).new
+    got = [(s.entry.waiver.rule, s.state, s.count, s.entry.location.line) for s in report.waivers]
+    lines = new.read_text(encoding="utf-8").splitlines()
+    at = [i for i, t in enumerate(lines, 1) if t.lstrip().startswith("- rule:")]
+    assert got == [("system-intake", "expired", 1, at[0]), ("zone-limits-ev", "unmatched", 0,
+                                                            at[1])]
+    assert report.waiver_date == "2026-12-01"
+    assert report.waivers[0].entry.waiver.expires.isoformat() == "2026-06-30"
+    capsys.readouterr()
+    for side in (new, stored):  # the stored round gates as its schedule does
+        assert main(["compare", str(old), str(side), "--as-of", "2026-12-01", "--fail-on",
+                     "warning", "--format", "json"]) == 1
+        assert json.loads(capsys.readouterr().out)["gate"]["outcome"] == "fail"
+
+
+def test_a_stored_report_with_a_bad_waiver_state_is_refused(tmp_path, capsys):
+    stored = tmp_path / "demo.json"
+    assert main(["check", str(DEMO), "--format", f"json:{stored}", "--waivers",
+                 str(DEMO.parent / "approvals" / "fernhollow-approvals.yaml")]) == 1
+    data = json.loads(stored.read_text(encoding="utf-8"))
+    assert data["waivers"]
+    data["waivers"][0]["state"] = "forgotten"
+    stored.write_text(json.dumps(data), encoding="utf-8")
+    capsys.readouterr()
+    assert main(["compare", str(stored), str(DEMO)]) == 2
+    err = capsys.readouterr().err
+    assert "not a JSON report airgate can read back" in err and "Traceback" not in err
+
+
 def test_a_space_type_change_shows_in_the_trail_inputs(tmp_path, capsys):
     old = _single(120)
     new = copy.deepcopy(old)

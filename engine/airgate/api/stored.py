@@ -3,7 +3,8 @@
 A reviewer often keeps the report of the last round (``check --format json``), not the schedule
 it came from. :func:`load_report` reads such a file (report version 1, docs/report-format.md)
 back into a :class:`~airgate.evaluation.report.Report` holding what the comparison needs: the
-verdicts, the trails of the systems and zones (values in internal units again) and the findings.
+verdicts, the trails of the systems and zones (values in internal units again), the findings and
+what became of each waiver (applied, expired, unmatched, as judged then).
 The rule pack is not loaded; the report names it (:class:`StoredPack`).
 """
 
@@ -18,6 +19,8 @@ from airgate.errors import ScheduleError
 from airgate.evaluation.findings import Amount, Finding, Location, WaiverMark
 from airgate.evaluation.report import Report, SystemResult, ZoneResult
 from airgate.evaluation.trail import Trail
+from airgate.evaluation.waivers import APPLIED, EXPIRED, FILE, UNMATCHED, WaiverEntry, WaiverStatus
+from airgate.models.waivers import Waiver
 from airgate.readers import document
 
 #: a JSON unit → the quantity kind it is written for (the first kind of a shared unit: a
@@ -78,6 +81,19 @@ def _finding(f: dict, system: str, file: str) -> Finding:
                    condition=f.get("condition"))
 
 
+def _waiver(w: dict, i: int, file: str) -> WaiverStatus:
+    """A waiver and what became of it, as the report says (applied, expired or unmatched)."""
+    state = w["state"]
+    if state not in (APPLIED, EXPIRED, UNMATCHED):
+        raise ValueError(f"waivers[{i}].state {state!r}")
+    where = _location(w.get("location"), file)
+    waiver = Waiver(rule=w["rule"], subject=w["subject"], reason=w["reason"],
+                    approved_by=w["approved_by"], expires=w.get("expires"))
+    entry = WaiverEntry(waiver=waiver, location=where, rule_location=where, field=("waivers", i),
+                        origin=w.get("origin", FILE))
+    return WaiverStatus(entry, state, w.get("detail", ""), int(w.get("findings", 0)))
+
+
 def _zone(z: dict, system: str, file: str) -> ZoneResult:
     return ZoneResult(id=str(z["id"]), name=z.get("name"), space=z.get("space", ""),
                       space_label=z.get("space_label", ""),
@@ -117,7 +133,10 @@ def load_report(path: str | Path) -> Report:
                         systems=[_system(s, system, file) for s in data["systems"]],
                         findings=[_finding(f, system, file) for f in data["findings"]],
                         notes=list(data.get("notes", [])),
-                        cautions=list(data.get("cautions", [])))
+                        cautions=list(data.get("cautions", [])),
+                        waivers=[_waiver(w, i, file)
+                                 for i, w in enumerate(data.get("waivers", []))],
+                        waiver_date=data.get("waivers_judged_on"))
     except (KeyError, TypeError, ValueError) as exc:
         raise ScheduleError(f"not a JSON report airgate can read back ({type(exc).__name__}: "
                             f"{exc})", file=str(path),
