@@ -327,7 +327,8 @@ def test_detailed_ev_needs_every_conditions_primary_airflow(tmp_path):
 
 
 def test_a_waiver_covers_its_finding_at_every_condition(tmp_path):
-    """docs/report-format.md, Waivers: a waiver names a rule and a subject, not a condition."""
+    """docs/report-format.md, Waivers: a waiver without ``condition`` covers its finding at every
+    condition."""
     data = schedule([_vav(outdoor_air="160 cfm")])  # short of 170 (cooling) and 194 (heating)
     data["waivers"] = [{"rule": "system-intake", "subject": "AHU-1", "reason": "invented",
                         "approved_by": "Test reviewer (invented)"}]
@@ -337,3 +338,75 @@ def test_a_waiver_covers_its_finding_at_every_condition(tmp_path):
     intake = [f for f in report.findings if f.rule == "system-intake"]
     assert [(f.condition, f.waived) for f in intake] == [("cooling", True), ("heating", True)]
     assert [s.state for s in report.waivers] == ["applied"]
+
+
+def _waived(tmp_path: Path, outdoor_air: str, **waiver) -> tuple[Path, dict]:
+    data = schedule([_vav(outdoor_air=outdoor_air)])
+    data["waivers"] = [{"rule": "system-intake", "subject": "AHU-1", "reason": "invented",
+                        "approved_by": "Test reviewer (invented)", **waiver}]
+    path = tmp_path / "s.yaml"
+    path.write_text(yaml.safe_dump(data, sort_keys=False), encoding="utf-8")
+    return path, data
+
+
+def test_a_waiver_naming_a_condition_covers_that_condition_only(tmp_path):
+    """docs/report-format.md, Waivers: with ``condition`` a waiver covers its finding at that
+    condition only. Vot = Vou / Ev by the hand calculation above (Table 6-1, 6-4 and Appendix A):
+    170 cfm cooling and 194 cfm heating, so 160 cfm is short at both."""
+    path, _ = _waived(tmp_path, "160 cfm", condition="heating")
+    report = check(path)
+    intake = [f for f in report.findings if f.rule == "system-intake"]
+    assert [(f.condition, f.waived) for f in intake] == [("cooling", False), ("heating", True)]
+    assert report.verdict == "fail"  # the cooling finding still counts
+    [status] = report.waivers
+    assert (status.state, status.count) == ("applied", 1)
+    doc = json_report.to_dict(report)
+    assert doc["waivers"][0]["condition"] == "heating"
+    assert "system-intake on AHU-1 [heating]: covers 1 finding" in text.render(report)
+    # read back from the stored report, the waiver keeps its condition
+    from airgate.api.stored import load_report
+
+    stored = tmp_path / "s.json"
+    stored.write_text(json_report.render(report), encoding="utf-8")
+    assert load_report(stored).waivers[0].entry.waiver.condition == "heating"
+
+
+def test_a_waiver_at_a_condition_without_its_finding_matches_nothing(tmp_path):
+    # 185 cfm: enough for cooling (170 cfm), short of heating (194 cfm)
+    path, _ = _waived(tmp_path, "185 cfm", condition="cooling")
+    report = check(path)
+    [status] = report.waivers
+    assert status.state == "unmatched"
+    assert status.detail.startswith("no 'system-intake' finding on AHU-1 at condition cooling")
+    assert [f.waived for f in report.findings if f.rule == "system-intake"] == [False]
+
+
+def test_an_unknown_waiver_condition_is_a_located_input_error(tmp_path, capsys):
+    from airgate.cli import main
+
+    path, _ = _waived(tmp_path, "160 cfm", condition="heatng")
+    line = next(i for i, t in enumerate(path.read_text().splitlines(), 1) if "heatng" in t)
+    assert main(["check", str(path)]) == 2
+    captured = capsys.readouterr()
+    assert captured.out == "" and "Traceback" not in captured.err
+    assert (f"{path}:{line}:" in captured.err and "waivers[0].condition" in captured.err
+            and "system AHU-1 has no design condition 'heatng'; did you mean 'heating'?"
+            in captured.err), captured.err
+    # a waivers file naming a condition of a system that lists none
+    plain = schedule([{"id": "S-1", "kind": "single-zone", "outdoor_air": "100 cfm",
+                       "zones": [{"id": "1", "space": "office-space", "area": "1000 ft2",
+                                  "occupants": 10, "air_distribution": COOL}]}])
+    sched = tmp_path / "plain.yaml"
+    sched.write_text(yaml.safe_dump(plain, sort_keys=False), encoding="utf-8")
+    waivers = tmp_path / "w.yaml"
+    waivers.write_text("waivers:\n  - rule: system-intake\n    subject: S-1\n"
+                       "    reason: invented\n    approved_by: Test reviewer (invented)\n"
+                       "    condition: heating\n", encoding="utf-8")
+    assert main(["check", str(sched), "--waivers", str(waivers)]) == 2
+    err = capsys.readouterr().err
+    assert f"{waivers}:6:16: input error: waivers[0].condition: system S-1 lists no design " \
+           "conditions" in err, err
+    # a subject the schedule does not have is no error: the waiver matches nothing
+    waivers.write_text(waivers.read_text().replace("subject: S-1", "subject: S-9"),
+                       encoding="utf-8")
+    assert main(["check", str(sched), "--waivers", str(waivers)]) == 1

@@ -88,7 +88,8 @@ def _waiver(w: dict, i: int, file: str) -> WaiverStatus:
         raise ValueError(f"waivers[{i}].state {state!r}")
     where = _location(w.get("location"), file)
     waiver = Waiver(rule=w["rule"], subject=w["subject"], reason=w["reason"],
-                    approved_by=w["approved_by"], expires=w.get("expires"))
+                    approved_by=w["approved_by"], expires=w.get("expires"),
+                    condition=w.get("condition"))
     entry = WaiverEntry(waiver=waiver, location=where, rule_location=where, field=("waivers", i),
                         origin=w.get("origin", FILE))
     return WaiverStatus(entry, state, w.get("detail", ""), int(w.get("findings", 0)))

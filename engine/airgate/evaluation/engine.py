@@ -153,7 +153,8 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
     bind.check_pack_checks(pack, set(KNOWN_CHECKS))
     entries = [*waivers.from_schedule(loaded), *extra_waivers]
     # a waiver may name an engine check, a declared limit's check or a requirement of the pack
-    raise_all(waivers.rule_errors(entries, [*KNOWN_CHECKS, *DECLARED_CHECKS, *pack.requirements]))
+    raise_all(waivers.rule_errors(entries, [*KNOWN_CHECKS, *DECLARED_CHECKS, *pack.requirements])
+              + waivers.condition_errors(entries, loaded.model.systems))
     raise_all(iaqp.check_pack(loaded, pack))
     units = loaded.model.project.units
     run = RequirementRun(pack, loaded)

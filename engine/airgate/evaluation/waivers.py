@@ -1,6 +1,7 @@
 """Apply waivers (approved alternatives) to the findings of one evaluation.
 
-A waiver covers the findings of its rule on its subject. A waived finding stays in every report,
+A waiver covers the findings of its rule on its subject (at its design condition, where it names
+one). A waived finding stays in every report,
 marked with the waiver's reason, and no longer fails the gate. A waiver past its ``expires`` date
 no longer applies (the finding counts again) and says so; a waiver that matches no finding is
 reported with the reason, so a stale approval is never forgotten silently. Expiry is judged on
@@ -35,6 +36,7 @@ class WaiverEntry:
     rule_location: Location  #: its ``rule`` field
     field: tuple  #: field path of the entry in its document
     origin: str  #: SCHEDULE or FILE
+    condition_location: Location | None = None  #: its ``condition`` field, where it has one
 
     @property
     def expires(self) -> str | None:
@@ -50,7 +52,15 @@ class WaiverEntry:
 
     def key(self) -> tuple:
         """Identity across the schedules of a batch."""
-        return (self.origin, str(self.location), self.waiver.rule, self.waiver.subject)
+        return (self.origin, str(self.location), self.waiver.rule, self.waiver.subject,
+                self.waiver.condition)
+
+    def covers(self, f: Finding) -> bool:
+        """Whether the waiver names ``f``: its rule and subject, and its design condition where
+        the waiver names one."""
+        w = self.waiver
+        return f.rule == w.rule and f.subject == w.subject and (
+            w.condition is None or f.condition == w.condition)
 
 
 @dataclass(frozen=True)
@@ -73,9 +83,11 @@ def _entries(waivers: Sequence[Waiver], locate, file: str, origin: str,
     out = []
     for i, w in zip(range(len(waivers)) if where is None else where, waivers):
         path = base + (i,)
-        out.append(WaiverEntry(waiver=w, location=Location(file, *locate(path)),
-                               rule_location=Location(file, *locate(path + ("rule",))),
-                               field=path, origin=origin))
+        out.append(WaiverEntry(
+            waiver=w, location=Location(file, *locate(path)),
+            rule_location=Location(file, *locate(path + ("rule",))), field=path, origin=origin,
+            condition_location=(None if w.condition is None else
+                                Location(file, *locate(path + ("condition",))))))
     return out
 
 
@@ -111,6 +123,32 @@ def rule_errors(entries: Iterable, known: Iterable[str]) -> list[AirgateError]:
     return out
 
 
+def condition_errors(entries: Iterable[WaiverEntry], systems) -> list[AirgateError]:
+    """A waiver naming a design condition its subject's system does not list: an input error.
+
+    ``systems``: the schedule's systems (``id`` and ``conditions``). A subject with no such
+    system is left to the waiver's outcome (it matches nothing)."""
+    listed = {s.id: tuple(s.conditions or ()) for s in systems}
+    out: list[AirgateError] = []
+    for e in entries:
+        w = e.waiver
+        system = w.subject.split("/", 1)[0]
+        if w.condition is None or system not in listed or w.condition in listed[system]:
+            continue
+        known = listed[system]
+        close = nearest(w.condition, list(known))
+        cls = ScheduleError if e.origin == SCHEDULE else AirgateError
+        at = e.condition_location or e.location
+        what = (f"system {system} lists no design conditions" if not known else
+                f"system {system} has no design condition '{w.condition}'"
+                + (f"; did you mean '{close[0]}'?" if close else ""))
+        out.append(cls(what, file=at.file, line=at.line, column=at.column,
+                       field=e.field + ("condition",), allowed=list(known),
+                       hint=("name one of the conditions the system lists, or remove "
+                             "'condition' to cover the finding at every condition")))
+    return out
+
+
 def _unmatched(w: Waiver, pack: RulePack, subjects: Sequence[str]) -> str:
     if w.rule not in pack.checks and w.rule not in pack.requirements \
             and w.rule not in DECLARED_CHECKS:
@@ -119,7 +157,8 @@ def _unmatched(w: Waiver, pack: RulePack, subjects: Sequence[str]) -> str:
         close = nearest(w.subject, subjects)
         return (f"no system or zone '{w.subject}' in the schedule"
                 + (f"; did you mean '{close[0]}'?" if close else ""))
-    return (f"no '{w.rule}' finding on {w.subject}: the check passes or does not apply; "
+    at = "" if w.condition is None else f" at condition {w.condition}"
+    return (f"no '{w.rule}' finding on {w.subject}{at}: the check passes or does not apply; "
             "withdraw the waiver if it is no longer needed")
 
 
@@ -133,7 +172,7 @@ def apply(findings: list[Finding], entries: Sequence[WaiverEntry], *, pack: Rule
     statuses: list[WaiverStatus] = []
     for entry in entries:
         w = entry.waiver
-        hits = [i for i, f in enumerate(out) if f.rule == w.rule and f.subject == w.subject]
+        hits = [i for i, f in enumerate(out) if entry.covers(f)]
         plural = "s" if len(hits) != 1 else ""
         if w.expires is not None and as_of > w.expires:
             again = ("the finding it covered counts again" if len(hits) == 1 else

@@ -2,7 +2,8 @@
 
 A waiver is written in the schedule (``waivers:``) or in a separate waivers file (``--waivers``).
 It names the check id and the subject exactly as findings name them, why the alternative is
-acceptable, who approved it and, optionally, the last day it applies. Applying them is
+acceptable, who approved it and, optionally, the last day it applies and the one design condition
+whose finding it covers. Applying them is
 :mod:`airgate.evaluation.waivers`.
 """
 
@@ -69,6 +70,10 @@ class Waiver(BaseModel):
                                                        "reference. [–]")
     expires: ExpiryDate | None = Field(None, description="Last day the waiver applies, "
                                                          "YYYY-MM-DD; none: until withdrawn. [–]")
+    condition: str | None = Field(None, min_length=1,
+                                  description="The design condition whose finding the waiver "
+                                              "covers, one the subject's system lists; none: "
+                                              "its finding at every condition. [–]")
 
 
 class WaiversFile(BaseModel):

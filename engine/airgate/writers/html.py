@@ -427,8 +427,8 @@ def _all_trails(report: Report):
 
 def _status(s) -> dict:
     w = s.entry.waiver
-    return {"state": s.state, "rule": w.rule, "subject": w.subject, "detail": s.detail,
-            "reason": w.reason, "approval": shared.approval(s.entry.mark()),
+    return {"state": s.state, "rule": w.rule, "subject": shared.waiver_subject(w),
+            "detail": s.detail, "reason": w.reason, "approval": shared.approval(s.entry.mark()),
             "where": f"{s.entry.origin} {s.entry.location}"}
 
 

@@ -149,7 +149,9 @@ def _finding(f: Finding, system: str) -> dict[str, Any]:
 def waiver_status(s: WaiverStatus) -> dict[str, Any]:
     """One waiver and what became of it (applied, expired, unmatched)."""
     w, e = s.entry.waiver, s.entry
-    return {"rule": w.rule, "subject": w.subject, "state": s.state, "detail": s.detail,
+    return {"rule": w.rule, "subject": w.subject,
+            **({} if w.condition is None else {"condition": w.condition}),
+            "state": s.state, "detail": s.detail,
             "findings": s.count, "reason": w.reason, "approved_by": w.approved_by,
             "expires": e.expires, "origin": e.origin, "location": _location(e.location)}
 

@@ -115,7 +115,7 @@ def _case(suite: ET.Element, report: Report, case: CheckCase, classname: str,
 def _waiver_case(suite: ET.Element, s: WaiverStatus, classname: str,
                  fail_on: tuple[str, ...]) -> str:
     w = s.entry.waiver
-    tc = _el(suite, "testcase", name=f"waiver {w.subject} {w.rule}", classname=classname)
+    tc = _el(suite, "testcase", name=f"waiver {shared.waiver_subject(w)} {w.rule}", classname=classname)
     line = shared.status_line(s)
     if s.stale and "warning" in fail_on:
         _el(tc, "failure", line, message=f"waiver {s.state}: {s.detail}",

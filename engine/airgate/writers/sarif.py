@@ -191,7 +191,7 @@ def _review(report: Report, artifacts: dict[str, int]) -> dict[str, Any]:
 def _notification(s: WaiverStatus, artifacts: dict[str, int]) -> dict[str, Any]:
     w = s.entry.waiver
     return {"descriptor": {"id": f"waiver-{s.state}"}, "level": "warning",
-            "message": {"text": _s(f"waiver for {w.rule} on {w.subject}: {s.detail}")},
+            "message": {"text": _s(f"waiver for {w.rule} on {shared.waiver_subject(w)}: {s.detail}")},
             "locations": [{"physicalLocation": _physical(s.entry.location, artifacts)}]}
 
 

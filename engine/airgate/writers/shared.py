@@ -145,10 +145,15 @@ def waived_line(mark: WaiverMark) -> str:
     return f"waived: {mark.reason} ({approval(mark)}; {mark.origin} {mark.location})"
 
 
+def waiver_subject(w) -> str:
+    """A waiver's subject, with the design condition it names: ``AHU-3 [heating]``."""
+    return w.subject if w.condition is None else f"{w.subject} [{w.condition}]"
+
+
 def status_line(s: WaiverStatus) -> str:
     """One line for a waiver's outcome: rule, subject, what became of it, approval, where."""
     w = s.entry.waiver
-    return (f"{w.rule} on {w.subject}: {s.detail} — {w.reason} "
+    return (f"{w.rule} on {waiver_subject(w)}: {s.detail} — {w.reason} "
             f"({approval(s.entry.mark())}; {s.entry.origin} {s.entry.location})")
 
 
