@@ -1,11 +1,11 @@
 """Apply waivers (approved alternatives) to the findings of one evaluation.
 
 A waiver covers the findings of its rule on its subject (at its design condition, where it names
-one). A waived finding stays in every report,
-marked with the waiver's reason, and no longer fails the gate. A waiver past its ``expires`` date
-no longer applies (the finding counts again) and says so; a waiver that matches no finding is
-reported with the reason, so a stale approval is never forgotten silently. Expiry is judged on
-one date for the whole run (``check --as-of``, default today) so a run can be reproduced.
+one). A waived finding stays in every report, marked with the waiver's reason, and no longer fails
+the gate. A waiver past its ``expires`` date no longer applies (the finding counts again) and
+says so; a waiver that matches no finding is reported with the reason, so a stale approval is
+never forgotten silently. Expiry is judged on one date for the whole run (``check --as-of``,
+default today) so a run can be reproduced.
 """
 
 from __future__ import annotations
