@@ -47,7 +47,7 @@ def test_folder_is_expanded_to_its_schedules_in_name_order(folder, capsys):
     assert doc["batch_version"] == 1
     assert [r["schedule"]["file"] for r in doc["reports"]] == [
         str(folder / "a-demo.yaml"), str(folder / "b-annex.json")]
-    assert [r["report_version"] for r in doc["reports"]] == [1, 1]
+    assert [r["report_version"] for r in doc["reports"]] == [2, 2]
     assert doc["summary"]["schedules"] == 2 and doc["summary"]["failing_schedules"] == 1
     assert doc["verdict"] == "fail" and "licensed professional" in doc["cautions"][0]
 

@@ -33,7 +33,7 @@ def test_check_passing_schedule_exits_zero(tmp_path, capsys):
 def test_output_file_is_written(tmp_path, capsys):
     out = tmp_path / "report.json"
     assert main(["check", str(DEMO), "--format", "json", "-o", str(out)]) == 1
-    assert json.loads(out.read_text(encoding="utf-8"))["report_version"] == 1
+    assert json.loads(out.read_text(encoding="utf-8"))["report_version"] == 2
     assert capsys.readouterr().out == ""
 
 
@@ -244,7 +244,7 @@ def test_check_one_report_with_o_equals_the_named_file_form(tmp_path, capsys):
                  "--exit-zero"]) == 0
     assert capsys.readouterr().out == ""
     assert a.read_bytes() == b.read_bytes() and b'"version": "2.1.0"' in a.read_bytes()
-    assert json.loads(c.read_text(encoding="utf-8"))["report_version"] == 1
+    assert json.loads(c.read_text(encoding="utf-8"))["report_version"] == 2
 
 
 def test_check_named_files_and_one_o_file_together(tmp_path, capsys):

@@ -255,7 +255,7 @@ def test_a_stored_report_compares_as_its_schedule_did(tmp_path, capsys):
     the same verdicts, values and findings; its inputs come from the trails."""
     old, new = _pair(tmp_path, _single(100, people=10), _single(120, people=12))
     stored = tmp_path / "round-1.json"
-    assert main(["check", str(old), "--format", f"json:{stored}"]) == 1
+    assert main(["check", str(old), "--format", f"json:{stored}", "--trails"]) == 1
     direct, kept = compare(old, new), compare(stored, new)
     assert kept.inputs_from == "trails" and direct.inputs_from == "schedules"
     assert [(c.subject, c.old, c.new) for c in kept.verdicts] == [
@@ -274,9 +274,27 @@ def test_a_stored_report_compares_as_its_schedule_did(tmp_path, capsys):
     assert (vot.old_at.file, vot.old_at.line) == (str(old), line)
 
 
-def test_a_stored_report_of_the_same_schedule_changes_nothing(tmp_path, capsys):
+def test_a_stored_report_without_zone_trails_compares_its_values(tmp_path):
+    """Kept without --trails, a report's zones carry their values only: verdicts, values and
+    findings compare as before; the inputs are the systems' (whose trails every report
+    carries), the zones' being unknown rather than reported as added."""
+    old, new = _pair(tmp_path, _single(100, people=10), _single(120, people=12))
+    stored = tmp_path / "round-1.json"
+    assert main(["check", str(old), "--format", f"json:{stored}"]) == 1
+    direct, kept = compare(old, new), compare(stored, new)
+    assert [(c.subject, c.old, c.new) for c in kept.verdicts] == [
+        (c.subject, c.old, c.new) for c in direct.verdicts]
+    assert [(c.subject, c.symbol) for c in kept.values] == [
+        (c.subject, c.symbol) for c in direct.values]
+    assert [(f.rule, f.subject) for f in kept.resolved] == [("system-intake", "S-1")]
+    got = {(c.subject, c.field): (c.old, c.new) for c in kept.inputs}
+    assert got == {("S-1", "Vot_design"): ("100 cfm", "120 cfm")}
+
+
+@pytest.mark.parametrize("trails", [[], ["--trails"]])
+def test_a_stored_report_of_the_same_schedule_changes_nothing(tmp_path, capsys, trails):
     stored = tmp_path / "demo.json"
-    assert main(["check", str(DEMO), "--format", f"json:{stored}"]) == 1
+    assert main(["check", str(DEMO), "--format", f"json:{stored}", *trails]) == 1
     capsys.readouterr()
     cmp = compare(stored, DEMO)
     assert (cmp.verdicts, cmp.inputs, cmp.values, cmp.resolved, cmp.added) == ([], [], [], [], [])

@@ -27,6 +27,8 @@ def _run(capsys, monkeypatch, *args) -> tuple[int, str]:
 @pytest.mark.parametrize("name, args", [
     ("report.txt", ["check", DEMO_ARG]),
     ("report.json", ["check", DEMO_ARG, "--format", "json"]),
+    # every zone's trail, as a reviewer keeps a round (docs/report-format.md, "Zone object")
+    ("report-trails.json", ["check", DEMO_ARG, "--format", "json", "--trails"]),
     ("explain-zone-203.txt", ["explain", DEMO_ARG, "--zone", "203"]),
     ("explain-system-AHU-3.txt", ["explain", DEMO_ARG, "--system", "AHU-3"]),
 ])

@@ -1,4 +1,4 @@
-"""The JSON report follows contract version 1 (docs/report-format.md)."""
+"""The JSON report follows contract version 2 (docs/report-format.md)."""
 
 from __future__ import annotations
 
@@ -25,16 +25,25 @@ EXHAUST_ZONE_VALUES = {"Az", "Re", "Ve", "Ve_design"}
 NATURAL_ZONE_VALUES = {"A_open", "A_open_min", "depth", "depth_max"}
 
 
-@pytest.fixture(scope="module")
-def report():
+def _check_json(*args):
     import contextlib
     import io
 
     out = io.StringIO()
     with contextlib.redirect_stdout(out):
-        code = main(["check", str(DEMO), "--format", "json"])
+        code = main(["check", str(DEMO), "--format", "json", *args])
     assert code == 1
     return json.loads(out.getvalue())
+
+
+@pytest.fixture(scope="module")
+def report():
+    return _check_json()
+
+
+@pytest.fixture(scope="module")
+def with_trails():
+    return _check_json("--trails")
 
 
 def _values(obj):
@@ -42,7 +51,8 @@ def _values(obj):
 
 
 def test_top_level(report):
-    assert report["report_version"] == 1
+    assert report["report_version"] == 2
+    assert report["trails"] is False
     assert report["verdict"] in ("pass", "fail")
     assert {"id", "title", "document", "edition", "units"} <= set(report["rules"])
     assert isinstance(report["systems"], list) and isinstance(report["findings"], list)
@@ -193,3 +203,41 @@ def test_a_report_with_declared_findings_follows_the_schema(tmp_path):
     assert any(f["basis"] == "declared" for f in doc["findings"])
     assert doc["waivers"] and any(f["waiver"] for f in doc["findings"])
     assert not list(_report_schema().iter_errors(doc))
+
+
+def _zone_parts(report):
+    """Every zone, and every trailed part of it (the zone, its dilution, its contaminants)."""
+    for s in report["systems"]:
+        for z in s["zones"]:
+            yield z
+            if z["dilution"] is not None:
+                yield z["dilution"]
+            yield from z["contaminants"].values()
+
+
+def test_zone_trails_only_on_request(report, with_trails):
+    # docs/report-format.md, "Zone object": a zone carries its values always and its trails
+    # (its own, its dilution's, its contaminants') only with --trails; systems always.
+    assert with_trails["trails"] is True
+    parts, full = list(_zone_parts(report)), list(_zone_parts(with_trails))
+    assert len(parts) == len(full) and any("contaminant" in p for p in parts)
+    assert all("trail" not in p for p in parts) and all("trail" in p for p in full)
+    for p, q in zip(parts, full):  # the values are the same either way
+        assert p["values"] == q["values"]
+        assert list(p["values"]) == [step["symbol"] for step in q["trail"]]
+    assert all(s["trail"] for s in report["systems"] if s["kind"] != "natural")
+    assert [s["trail"] for s in report["systems"]] == [s["trail"] for s in with_trails["systems"]]
+    without = {k: v for k, v in with_trails.items() if k not in ("systems", "trails")}
+    assert without == {k: v for k, v in report.items() if k not in ("systems", "trails")}
+
+
+def test_the_report_with_trails_follows_the_published_schema(report, with_trails):
+    validator = _report_schema()
+    assert not list(validator.iter_errors(with_trails))
+    # the schema holds a report to its trails flag, both ways
+    mixed = json.loads(json.dumps(report))
+    mixed["trails"] = True
+    assert list(validator.iter_errors(mixed))
+    mixed = json.loads(json.dumps(with_trails))
+    mixed["trails"] = False
+    assert list(validator.iter_errors(mixed))

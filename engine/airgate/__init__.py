@@ -5,7 +5,7 @@ The public API (``docs/api.md``)::
     import airgate
     report = airgate.check("building.yaml")          # read, load its pack, evaluate
     report.verdict                                   # "pass" | "fail"
-    report.to_dict()                                 # the JSON report (contract version 1)
+    report.to_dict()                                 # the JSON report (contract version 2)
 
     schedule = airgate.load_schedule("building.yaml")
     pack = airgate.load_pack("ashrae-62.1-2019")

@@ -34,17 +34,18 @@ class Report(results.Report):
     """The result of one evaluation: systems and zones with their trails, findings, verdicts.
 
     ``verdict`` is ``"fail"`` when a finding of severity fail is not waived, else ``"pass"``;
-    :meth:`to_dict` is the JSON report (contract version 1, ``docs/report-format.md``).
+    :meth:`to_dict` is the JSON report (contract version 2, ``docs/report-format.md``).
     """
 
-    def to_dict(self, series_step: int = 0) -> dict[str, Any]:
+    def to_dict(self, series_step: int = 0, trails: bool = False) -> dict[str, Any]:
         """The JSON report as Python data, exactly what ``airgate check --format json`` writes.
 
-        ``series_step`` > 0 adds each zone's design-day CO2 series at that step [minutes].
+        ``series_step`` > 0 adds each zone's design-day CO2 series at that step [minutes];
+        ``trails`` adds every zone's calculation trails (``check --trails``).
         """
         from airgate.writers import json_report
 
-        return json_report.to_dict(self, series_step)
+        return json_report.to_dict(self, series_step, trails)
 
     @classmethod
     def of(cls, report: results.Report) -> Report:

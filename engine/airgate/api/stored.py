@@ -6,6 +6,10 @@ back into a :class:`~airgate.evaluation.report.Report` holding what the comparis
 verdicts, the trails of the systems and zones (values in internal units again), the findings and
 what became of each waiver (applied, expired, unmatched, as judged then).
 The rule pack is not loaded; the report names it (:class:`StoredPack`).
+
+Version 2 writes a zone's trail only on request (``check --trails``); a zone without one is read
+from its values (origin ``computed``), so its values, margins and verdicts still compare, but the
+inputs its trail would have shown do not (docs/compare.md).
 """
 
 from __future__ import annotations
@@ -18,7 +22,7 @@ from airgate import units
 from airgate.errors import ScheduleError
 from airgate.evaluation.findings import Amount, Finding, Location, WaiverMark
 from airgate.evaluation.report import Report, SystemResult, ZoneResult
-from airgate.evaluation.trail import Trail
+from airgate.evaluation.trail import Trail, ValuesTrail
 from airgate.evaluation.waivers import APPLIED, EXPIRED, FILE, UNMATCHED, WaiverEntry, WaiverStatus
 from airgate.models.waivers import Waiver
 from airgate.readers import document
@@ -28,6 +32,10 @@ from airgate.readers import document
 _KINDS: dict[tuple[str, str], str] = {}
 for (_kind, _system), _unit in units.JSON_UNITS.items():
     _KINDS.setdefault((_unit, _system), _kind)
+
+
+#: the report versions read back (2 differs from 1 only in writing zone trails on request)
+READABLE = (1, 2)
 
 
 @dataclass(frozen=True)
@@ -57,6 +65,16 @@ def _trail(steps: list[dict], system: str) -> Trail:
         value, kind = _internal(s, system)
         trail.add(s.get("label") or s["symbol"], value, kind, source=s.get("source", ""),
                   note=s.get("note", ""), origin=s.get("origin", "computed"))
+    return trail
+
+
+def _from_values(values: dict[str, dict], system: str) -> ValuesTrail:
+    """A zone's trail rebuilt from its ``values`` (a report written without ``--trails``): each
+    value under its key (the label of every zone symbol a comparison reads), origin unknown."""
+    trail = ValuesTrail()
+    for key, entry in values.items():
+        value, kind = _internal(entry, system)
+        trail.add(key, value, kind)
     return trail
 
 
@@ -99,7 +117,8 @@ def _zone(z: dict, system: str, file: str) -> ZoneResult:
     return ZoneResult(id=str(z["id"]), name=z.get("name"), space=z.get("space", ""),
                       space_label=z.get("space_label", ""),
                       location=_location(z.get("location"), file),
-                      trail=_trail(z.get("trail", []), system),
+                      trail=(_trail(z["trail"], system) if "trail" in z
+                             else _from_values(z.get("values", {}), system)),
                       air_class=z.get("air_class", 1), verdict=z.get("verdict", "pass"))
 
 
@@ -115,13 +134,13 @@ def _system(s: dict, system: str, file: str) -> SystemResult:
 def load_report(path: str | Path) -> Report:
     """Read an airgate JSON report of one schedule back as a report (for a comparison).
 
-    A batch report (several schedules), or a file that is not an airgate report of version 1, is
-    an input error naming the file and what to give instead.
+    A batch report (several schedules), or a file that is not an airgate report of version 1 or
+    2, is an input error naming the file and what to give instead.
     """
     data: Any = document.load(path, ScheduleError).data  # limits, encoding, syntax: located
-    if not isinstance(data, dict) or data.get("report_version") != 1:
+    if not isinstance(data, dict) or data.get("report_version") not in READABLE:
         kind = "a report of several schedules" if isinstance(data, dict) and \
-            "batch_version" in data else "not an airgate JSON report of version 1"
+            "batch_version" in data else "not an airgate JSON report of version 1 or 2"
         raise ScheduleError(f"{kind}", file=str(path),
                             hint="give the report of one schedule (check SCHEDULE --format "
                                  "json), or the schedule itself")

@@ -66,6 +66,9 @@ def register(sub) -> None:
                   "HTML reports against what each finding is now (one schedule)", "findings fail")
     c.add_argument("--series-step", type=int, default=0, metavar="MINUTES",
                    help="JSON: include each zone's design-day CO2 series at this step")
+    c.add_argument("--trails", action="store_true",
+                   help="JSON: include every zone's calculation trail (each step's formula, "
+                        "source and note; without it a zone carries its values only)")
     c.add_argument("--jobs", type=int, default=0, metavar="N",
                    help="check several schedules in N processes at once (default: one per "
                         "core; 1: one after another); the reports are the same either way")
@@ -320,7 +323,8 @@ def run(args: argparse.Namespace) -> int:
     # every regular file of the run appears together or not at all; streams (standard
     # output, devices, pipes) are written in place before the files are moved into place
     output.write_all([(output.STDOUT if d is None else d,
-                       formats.stream(name, batch, args.series_step)) for name, d in targets])
+                       formats.stream(name, batch, args.series_step, args.trails))
+                      for name, d in targets])
     if batch.gate_fails() and not args.exit_zero:
         return EXIT_FAIL
     return EXIT_PASS

@@ -30,6 +30,7 @@ from airgate import formatting
 from airgate.evaluation.findings import Finding, Location
 from airgate.evaluation.report import Report
 from airgate.evaluation.review import CommentEntry, CommentStatus, statuses
+from airgate.evaluation.trail import ValuesTrail
 from airgate.models.loaded import LoadedSchedule
 
 #: the relative tolerance a value must move by to be listed, when none is given (1 %)
@@ -310,6 +311,13 @@ def _location_of(source: str) -> Location | None:
     return None
 
 
+def _values_only(report: Report) -> set[str]:
+    """The subjects whose trail is known by its values alone (a stored report written without
+    zone trails): what their schedule gave cannot be told from what was computed."""
+    return {f"{s.id}/{z.id}" for s in report.systems for z in s.zones
+            if isinstance(z.trail, ValuesTrail)}
+
+
 def _schedule_values(report: Report) -> dict[tuple[str, str], tuple[Any, str, Any]]:
     """(subject, field) → (value, kind, where) for what the trails took from the schedule (values
     in internal units), and each zone's space type (kind ``""``)."""
@@ -341,15 +349,20 @@ def trail_inputs(old: Report, new: Report) -> Iterator[InputChange]:
     """The inputs that changed as the calculation trails show them, in NEW's order: every value a
     trail took from the schedule (Az, Pz, the scheduled intake …; compared as numbers and shown
     in NEW's units, so a value rewritten in other units is no change) and each zone's space type;
-    a system or zone only one side has is one change with an empty field name."""
+    a system or zone only one side has is one change with an empty field name. A zone whose
+    trail one side knows by its values alone (a report kept without ``--trails``) shows its
+    space type only."""
     a, b = _subjects(old), _subjects(new)
     for subject in _union(a, b):
         if subject not in a or subject not in b:
             yield InputChange(subject, "", None if subject not in a else "present",
                               None if subject not in b else "present", None, None)
     va, vb = _schedule_values(old), _schedule_values(new)
+    unknown = _values_only(old) | _values_only(new)
     for key in _union(va, vb):
         if key[0] not in a or key[0] not in b:
+            continue
+        if key[0] in unknown and key[1] != "space":  # a side without the zone's trail
             continue
         (xa, ka, la), (xb, kb, lb) = va.get(key, (None, "", None)), vb.get(key, (None, "", None))
         if _same(xa, xb):

@@ -71,6 +71,11 @@ class Trail:
         return _PLACEHOLDER.sub(lambda m: render(self.steps[m.group(1)]), step.formula)
 
 
+class ValuesTrail(Trail):
+    """A trail known by its values alone (a JSON report written without zone trails, read back):
+    each value under its symbol, origin, formula and source unknown."""
+
+
 def unit_factor(numerator: tuple[str, ...], denominator: tuple[str, ...], system: str,
                 times: float = 1.0) -> str:
     """The number a formula needs when its inputs are shown in ``system``'s display units.

@@ -36,6 +36,9 @@ class ReportFormat:
     write: Callable[[Batch, int], Body]
     #: bytes, not text: written to a file only (``--format NAME:FILE``)
     binary: bool = False
+    #: the format carries every zone's calculation trails on request (``check --trails``):
+    #: its writer then takes ``trails=`` as a keyword
+    trails: bool = False
 
 
 def _whole_run(module: str) -> Callable[[Batch, int], Body]:
@@ -47,14 +50,15 @@ def _whole_run(module: str) -> Callable[[Batch, int], Body]:
     return write
 
 
-def _json(batch: Batch, series_step: int = 0) -> Body:
+def _json(batch: Batch, series_step: int = 0, trails: bool = False) -> Body:
     """A report object for one schedule, a batch wrapper for several, written piece by piece
     (a large portfolio's indented JSON is never one string)."""
     from airgate.writers import json_report
 
     if batch.single:
-        return json_report.chunks(batch.reports[0], series_step, json_report.gate(batch))
-    return json_report.batch_chunks(batch, series_step)
+        return json_report.chunks(batch.reports[0], series_step, json_report.gate(batch),
+                                  trails=trails)
+    return json_report.batch_chunks(batch, series_step, trails=trails)
 
 
 def _text(batch: Batch, series_step: int = 0) -> str:
@@ -104,7 +108,7 @@ def _text_summary(batch: Batch) -> str:
 #: the report formats by ``--format`` name; the first is the default
 FORMATS: dict[str, ReportFormat] = {f.name: f for f in (
     ReportFormat("text", ".txt", _text),
-    ReportFormat("json", ".json", _json),
+    ReportFormat("json", ".json", _json, trails=True),
     ReportFormat("junit", ".xml", _whole_run("junit")),
     ReportFormat("sarif", ".sarif", _whole_run("sarif")),
     ReportFormat("markdown", ".md", _whole_run("markdown")),
@@ -149,17 +153,20 @@ def compare_stream(name: str, cmp: Comparison, batch: Batch) -> Body:
     return fmt.write(cmp, batch)
 
 
-def stream(name: str, batch: Batch, series_step: int = 0) -> Body:
-    """The whole run in format ``name`` (a key of :data:`FORMATS`): text, or its pieces."""
+def stream(name: str, batch: Batch, series_step: int = 0, trails: bool = False) -> Body:
+    """The whole run in format ``name`` (a key of :data:`FORMATS`): text, or its pieces;
+    ``trails``: every zone's calculation trails, in a format that carries them on request."""
     fmt = FORMATS.get(name)
     if fmt is None:
         raise UsageError(f"unknown report format '{name}'", allowed=list(FORMATS),
                          field=("--format",))
+    if fmt.trails:
+        return fmt.write(batch, series_step, trails=trails)
     return fmt.write(batch, series_step)
 
 
-def render(name: str, batch: Batch, series_step: int = 0) -> str:
+def render(name: str, batch: Batch, series_step: int = 0, trails: bool = False) -> str:
     """:func:`stream` as one string."""
     from airgate.writers import output
 
-    return output.joined(stream(name, batch, series_step))
+    return output.joined(stream(name, batch, series_step, trails))

@@ -1,8 +1,12 @@
-"""JSON report, contract version 1 (docs/report-format.md).
+"""JSON report, contract version 2 (docs/report-format.md).
 
 Values are ``{"value": 425.0, "unit": "ft**3/min"}`` in the schedule's unit system; units are pint
 expressions (a stock pint registry parses them once ``person = [people]`` is defined). Output is
 deterministic: keys in a fixed order, numbers rounded to 6 significant digits, no timestamps.
+
+Every zone carries its values; its calculation trails (the zone's, its dilution's, its
+contaminants') only when asked (``trails=True``, ``check --trails``), so that a portfolio's
+report stays a small multiple of its input. Systems always carry their trail.
 """
 
 from __future__ import annotations
@@ -22,7 +26,7 @@ from airgate.writers.output import Lazy, Streamed, json_chunks, json_text
 if TYPE_CHECKING:
     from airgate.evaluation.review import CommentStatus
 
-REPORT_VERSION = 1
+REPORT_VERSION = 2
 
 
 def _round(x: float) -> float | None:
@@ -73,25 +77,35 @@ def _series(z: ZoneResult, step_minutes: int) -> dict[str, Any] | None:
             "occupancy": {"values": [_round(v) for v in series.occupancy[::every]], "unit": ""}}
 
 
-def _dilution(z: ZoneResult, system: str, step_minutes: int) -> dict[str, Any] | None:
+def _trailed(trail: Trail, system: str, trails: bool) -> dict[str, Any]:
+    """A trail's values, and its steps when ``trails``."""
+    out: dict[str, Any] = {"values": _values(trail, system)}
+    if trails:
+        out["trail"] = _trail(trail, system)
+    return out
+
+
+def _dilution(z: ZoneResult, system: str, step_minutes: int,
+              trails: bool) -> dict[str, Any] | None:
     if z.dilution is None:
         return None
     out: dict[str, Any] = {"contaminant": "CO2 from occupants",
-                           "values": _values(z.dilution, system),
-                           "trail": _trail(z.dilution, system)}
+                           **_trailed(z.dilution, system, trails)}
     series = _series(z, step_minutes)
     if series is not None:
         out["series"] = series
     return out
 
 
-def _zone(z: ZoneResult, system: str, step_minutes: int = 0) -> dict[str, Any]:
+def _zone(z: ZoneResult, system: str, step_minutes: int = 0,
+          trails: bool = False) -> dict[str, Any]:
     out = {
         "id": z.id, "name": z.name, "space": z.space, "space_label": z.space_label,
         "air_class": z.air_class, "verdict": z.verdict, "values": _values(z.trail, system),
-        "location": _location(z.location), "trail": _trail(z.trail, system),
-        "dilution": _dilution(z, system, step_minutes),
-        "contaminants": {cid: {"values": _values(t, system), "trail": _trail(t, system)}
+        "location": _location(z.location),
+        **({"trail": _trail(z.trail, system)} if trails else {}),
+        "dilution": _dilution(z, system, step_minutes, trails),
+        "contaminants": {cid: _trailed(t, system, trails)
                          for cid, t in sorted(z.contaminants.items())},
     }
     if z.makeup is not None:  # only an exhausted zone that states its makeup
@@ -102,8 +116,8 @@ def _zone(z: ZoneResult, system: str, step_minutes: int = 0) -> dict[str, Any]:
 
 
 def _system(s: SystemResult, system: str, step_minutes: int = 0,
-            lazy: bool = False) -> dict[str, Any]:
-    zones = (_zone(z, system, step_minutes) for z in s.zones)
+            lazy: bool = False, trails: bool = False) -> dict[str, Any]:
+    zones = (_zone(z, system, step_minutes, trails) for z in s.zones)
     out = dict(
         id=s.id, name=s.name, kind=s.kind, procedure=s.procedure, verdict=s.verdict,
         ventilation_efficiency_method=s.method, critical_zone=s.critical_zone,
@@ -168,9 +182,9 @@ def review_comment(s: CommentStatus, compared: bool = False) -> dict[str, Any]:
             **({"resolved": s.resolved} if compared else {}), "to_close": s.to_close}
 
 
-def to_dict(report: Report, series_step: int = 0) -> dict[str, Any]:
-    """The JSON report as plain data."""
-    return _report(report, series_step, lazy=False)
+def to_dict(report: Report, series_step: int = 0, trails: bool = False) -> dict[str, Any]:
+    """The JSON report as plain data; ``trails``: every zone's calculation trails too."""
+    return _report(report, series_step, lazy=False, trails=trails)
 
 
 def gate(batch) -> dict[str, Any] | None:
@@ -182,7 +196,7 @@ def gate(batch) -> dict[str, Any] | None:
 
 
 def _report(report: Report, series_step: int, lazy: bool,
-            gated: dict[str, Any] | None = None) -> dict[str, Any]:
+            gated: dict[str, Any] | None = None, trails: bool = False) -> dict[str, Any]:
     """The report; ``lazy``: systems, zones and findings are made while they are written
     (output.Lazy), so memory holds one zone at a time, not the whole portfolio."""
     system = report.units
@@ -193,6 +207,7 @@ def _report(report: Report, series_step: int, lazy: bool,
         "generator": f"airgate {__version__}",
         "verdict": report.verdict,
         **({"gate": gated} if gated else {}),
+        "trails": trails,
         "schedule": {"file": report.schedule_file, "project": report.project_name,
                      "units": system},
         "rules": {"id": pack.id, "title": pack.title, "document": pack.document,
@@ -200,7 +215,8 @@ def _report(report: Report, series_step: int, lazy: bool,
                   "verify": pack.verify},
         "summary": {**report.counts(), "declared": report.declared_count(),
                     "waived": report.waived_count()},
-        "systems": listed(_system(s, system, series_step, lazy) for s in report.systems),
+        "systems": listed(_system(s, system, series_step, lazy, trails)
+                          for s in report.systems),
         "findings": listed(_finding(f, system) for f in report.findings),
         "waivers": [waiver_status(s) for s in report.waivers],
         "waivers_judged_on": report.waiver_date,
@@ -210,33 +226,35 @@ def _report(report: Report, series_step: int, lazy: bool,
     })
 
 
-def chunks(report: Report, series_step: int = 0, gated: dict[str, Any] | None = None
-           ) -> Iterator[str]:
+def chunks(report: Report, series_step: int = 0, gated: dict[str, Any] | None = None,
+           trails: bool = False) -> Iterator[str]:
     """:func:`render` piece by piece, each zone's data made as it is written; ``gated``: the
     run's :func:`gate`, where there is one."""
-    return json_chunks(_report(report, series_step, lazy=True, gated=gated))
+    return json_chunks(_report(report, series_step, lazy=True, gated=gated, trails=trails))
 
 
-def render(report: Report, series_step: int = 0) -> str:
-    """The JSON report; ``series_step`` > 0 adds each zone's design-day CO2 series [minutes]."""
-    return json_text(to_dict(report, series_step))
+def render(report: Report, series_step: int = 0, trails: bool = False) -> str:
+    """The JSON report; ``series_step`` > 0 adds each zone's design-day CO2 series [minutes];
+    ``trails``: every zone's calculation trails too."""
+    return json_text(to_dict(report, series_step, trails))
 
 
 BATCH_VERSION = 1
 
 
-def render_batch(batch, series_step: int = 0) -> str:
+def render_batch(batch, series_step: int = 0, trails: bool = False) -> str:
     """Several schedules: a wrapper with the run's summary around one report object each."""
-    return json_text(_batch_dict(batch, series_step))
+    return json_text(_batch_dict(batch, series_step, trails=trails))
 
 
-def batch_chunks(batch, series_step: int = 0) -> Iterator[str]:
+def batch_chunks(batch, series_step: int = 0, trails: bool = False) -> Iterator[str]:
     """:func:`render_batch` piece by piece, each zone's data made as it is written."""
-    return json_chunks(_batch_dict(batch, series_step, lazy=True))
+    return json_chunks(_batch_dict(batch, series_step, lazy=True, trails=trails))
 
 
-def _batch_dict(batch, series_step: int, lazy: bool = False) -> dict[str, Any]:
-    reports = (_report(r, series_step, lazy) for r in batch.reports)
+def _batch_dict(batch, series_step: int, lazy: bool = False,
+                trails: bool = False) -> dict[str, Any]:
+    reports = (_report(r, series_step, lazy, trails=trails) for r in batch.reports)
     out = (Streamed if lazy else dict)({
         "batch_version": BATCH_VERSION,
         "generator": f"airgate {__version__}",
