@@ -91,8 +91,10 @@ def _row(loaded: LoadedSchedule, pack: RulePack, ref: str | StatedDistribution,
          path: Path_) -> AirDistributionRow:
     if isinstance(ref, StatedDistribution):
         return _match(loaded, pack, ref, path)
+    # the hint only matters when the id is not a row (a number tried as an id)
     hint = (f"to state the zone's Ez directly, write ez: {ref} with ez_basis: (why it "
-            "applies) instead of air_distribution") if _is_number(ref) else None
+            "applies) instead of air_distribution") \
+        if ref not in pack.configurations and _is_number(ref) else None
     return table_row(loaded, pack, pack.configurations, "air_distribution",
                      "air distribution row", ref, path, hint=hint,
                      allowed=sorted(pack.configurations))

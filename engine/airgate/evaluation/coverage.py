@@ -119,6 +119,14 @@ def applicable(model: Schedule, pack: RulePack, results: list[SystemResult],
     """Every check the pack runs, and every limit the schedule declares, that applies to each
     system and zone, in schedule order."""
     out: list[CheckCase] = []
+    located: dict[tuple, Location] = {}  # a zone's checks mostly share its own location
+
+    def locate_once(path: tuple) -> Location:
+        at = located.get(path)
+        if at is None:
+            at = located[path] = locate(path)
+        return at
+
     for i, (system, result) in enumerate(zip(model.systems, results)):
         base = ("systems", i)
         for rule, field, required, provided in _system_checks(system, result):
@@ -130,7 +138,7 @@ def applicable(model: Schedule, pack: RulePack, results: list[SystemResult],
             for rule, field, required, provided in _zone_checks(system, z, result, pack):
                 if rule in pack.checks or rule in DECLARED_CHECKS:
                     out.append(CheckCase(rule, f"{system.id}/{z.id}", system.id, z.id,
-                                         locate(zbase + field), required, provided))
+                                         locate_once(zbase + field), required, provided))
     return out
 
 

@@ -3,8 +3,8 @@
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass
 from functools import lru_cache
+from typing import NamedTuple
 
 from airgate import units
 
@@ -17,12 +17,13 @@ def _symbolic(formula: str) -> str:
     return _PLACEHOLDER.sub(lambda m: m.group(1), formula)
 
 
-@dataclass(frozen=True)
-class Step:
+class Step(NamedTuple):
     """One quantity of a trail.
 
     ``formula`` uses ``{Symbol}`` placeholders naming earlier steps of the same trail, e.g.
     ``"{Rp}·{Pz} + {Ra}·{Az}"``; writers show it symbolically and with the values substituted.
+    A named tuple, not a dataclass: a portfolio makes some twenty per zone, and a tuple is made
+    four times faster than a frozen dataclass.
     """
 
     symbol: str

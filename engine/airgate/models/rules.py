@@ -117,7 +117,15 @@ class OccupancyCategory:
         """Citation of one value of the row (``Rp``, ``Ra``, ``density``) with its provenance."""
         if name in self.cited:
             return self.cited[name]
-        return f"{self.source.cite()}, row '{self.label}' ({self.provenance_of(name)})"
+        cache = self.__dict__.get("_cite_cache")
+        if cache is None:  # cited on every zone's trail: one text per value, not per zone
+            cache = {}
+            object.__setattr__(self, "_cite_cache", cache)
+        text = cache.get(name)
+        if text is None:
+            text = cache[name] = (f"{self.source.cite()}, row '{self.label}' "
+                                  f"({self.provenance_of(name)})")
+        return text
 
 
 #: what an exhaust row's rate is counted per, and how a report names one such unit

@@ -40,6 +40,20 @@ def value(x: float, kind: str, system: str) -> dict[str, Any]:
             "unit": units.JSON_UNITS[(kind, system)]}
 
 
+#: (kind, system) → (internal per display unit, display scale, JSON unit): what
+#: :func:`units.to_json_unit` divides by, looked up once per kind rather than once per value
+_JSON_UNIT: dict[tuple[str, str], tuple[float, float, str]] = {}
+
+
+def _json_unit(kind: str, system: str) -> tuple[float, float, str]:
+    got = _JSON_UNIT.get((kind, system))
+    if got is None:
+        got = _JSON_UNIT[(kind, system)] = (units.to_internal(1.0, kind, system),
+                                            units.KINDS[kind].scale(system),
+                                            units.JSON_UNITS[(kind, system)])
+    return got
+
+
 @lru_cache(maxsize=4096)
 def _symbol_key(symbol: str) -> str:
     """ASCII keys for machine use: ``ΣRp·Pz`` → ``sum_Rp_Pz``, ``max Zpz`` → ``max_Zpz``."""
@@ -48,7 +62,20 @@ def _symbol_key(symbol: str) -> str:
 
 
 def _values(trail: Trail, system: str) -> dict[str, Any]:
-    return {_symbol_key(s.symbol): value(s.value, s.kind, system) for s in trail.steps.values()}
+    """Every step's value: :func:`value` of each, with the unit looked up once per kind (the
+    same divisions in the same order, so the same numbers)."""
+    out: dict[str, Any] = {}
+    for s in trail.steps.values():
+        factor, scale, unit = _json_unit(s.kind, system)
+        x = s.value / factor / scale
+        if x != x or x in _INFINITE:
+            out[_symbol_key(s.symbol)] = {"value": None, "unit": unit}
+        else:
+            out[_symbol_key(s.symbol)] = {"value": float(f"{x:.6g}"), "unit": unit}
+    return out
+
+
+_INFINITE = (math.inf, -math.inf)
 
 
 def _trail(trail: Trail, system: str) -> list[dict[str, Any]]:
