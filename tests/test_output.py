@@ -173,7 +173,7 @@ import sys, time
 from airgate.cli import main
 from airgate.writers import formats
 
-def slow(name, batch, series_step=0):
+def slow(name, batch, series_step=0, trails=False):
     yield "{" + " " * 100000
     print("writing", flush=True)
     time.sleep(120)
