@@ -1,7 +1,7 @@
 """A round kept as its JSON report: an airgate report read back for ``airgate compare``.
 
 A reviewer often keeps the report of the last round (``check --format json``), not the schedule
-it came from. :func:`load_report` reads such a file (report version 1, docs/report-format.md)
+it came from. :func:`load_report` reads such a file (report version 2 or 1, docs/report-format.md)
 back into a :class:`~airgate.evaluation.report.Report` holding what the comparison needs: the
 verdicts, the trails of the systems and zones (values in internal units again), the findings and
 what became of each waiver (applied, expired, unmatched, as judged then).
