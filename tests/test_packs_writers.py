@@ -65,9 +65,19 @@ def _schedules(pack_id: str, folder: Path) -> tuple[list[Path], list[Path]]:
     return good, refused
 
 
+def _rules(pack_id: str, files: list[Path]) -> list[str]:
+    """``--rules PACK``; a supplement pack goes beside the rates pack the first schedule names
+    first (docs/schedule-format.md, several rule packs)."""
+    if load_document(pack_id).data.get("role") != "supplement":
+        return ["--rules", pack_id]
+    named = yaml.safe_load(files[0].read_text(encoding="utf-8"))["rules"]
+    rates = named if isinstance(named, str) else named[0]
+    return ["--rules", rates, "--rules", pack_id]
+
+
 def _check(tmp: Path, capsys, stem: str, pack_id: str, files: list[Path]) -> tuple[int, dict]:
     targets = {f: tmp / f"{stem}.{ext}" for f, ext in FORMATS.items()}
-    args = ["check", *map(str, files), "--rules", pack_id]
+    args = ["check", *map(str, files), *_rules(pack_id, files)]
     for f, path in targets.items():
         args += ["--format", f"{f}:{path}"]
     code = main(args)

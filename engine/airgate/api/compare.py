@@ -37,12 +37,13 @@ def _evaluated(path: str | Path, rules: str | None, search: Search,
             report.review = statuses(report.findings, review)
         return None, report
     loaded: LoadedSchedule = load_schedule(path)
-    ref = rules or loaded.model.rules
+    ref = rules or (loaded.model.rule_refs or (None,))[0]
     if ref is None:
         raise loaded.error("no rule pack: give 'rules:' in the schedule or --rules", ("rules",),
                            hint="e.g. rules: ashrae-62.1-2019")
     pack = _pack(loaded, ref, from_option=bool(rules), search=tuple(search or ()))
-    return loaded, evaluate(loaded, pack, waivers=waivers, as_of=as_of, review=review)
+    return loaded, evaluate(loaded, pack, waivers=waivers, as_of=as_of, review=review,
+                            also=[] if rules else None, search=search)
 
 
 def compare(old: str | Path, new: str | Path, rules: str | None = None, *,

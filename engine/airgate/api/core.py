@@ -90,8 +90,14 @@ def load_pack(id_or_path: str | Path, search: Search = None, *,
 
 
 def evaluate(schedule: LoadedSchedule, pack: RulePack, *, waivers: Sequence[WaiverEntry] = (),
-             as_of: dt.date | None = None, review: Sequence[CommentEntry] = ()) -> Report:
+             as_of: dt.date | None = None, review: Sequence[CommentEntry] = (),
+             also: Sequence[RulePack] | None = None, search: Search = None) -> Report:
     """Evaluate ``schedule`` under ``pack``: findings, trails and verdicts.
+
+    ``also``: supplement packs (``role: supplement``) checked beside ``pack`` on every system;
+    None: those the schedule lists after its first pack in ``rules:``. The supplement packs a
+    system lists under ``extra_rules`` are loaded (relative to the schedule's folder, on the
+    search path ``search``) and checked on that system.
 
     A pack with options must have been loaded with the schedule's choices
     (``load_pack(..., options=schedule.model.project.options)``); otherwise the difference is
@@ -101,30 +107,87 @@ def evaluate(schedule: LoadedSchedule, pack: RulePack, *, waivers: Sequence[Waiv
     ``Report.review``; a comment naming a check id the engine does not know is an input error.
     """
     _same_options(schedule, pack)
+    _rates(pack, None)
+    search = tuple(search or ())
+    if also is None:
+        also = [_pack(schedule, ref, False, search, ("rules", k + 1))
+                for k, ref in enumerate(schedule.model.rule_refs[1:])]
+    supplements = _supplements(schedule, list(also), search)
     if review:
-        raise_all(rule_errors(review, [*KNOWN_CHECKS, *DECLARED_CHECKS, *pack.requirements]))
-    report = Report.of(engine.evaluate(schedule, pack, datatables.BUILTIN, waivers, as_of))
+        raise_all(rule_errors(review, [*KNOWN_CHECKS, *DECLARED_CHECKS, *pack.requirements,
+                                       *(r for s in supplements for r in s.pack.requirements)]))
+    report = Report.of(engine.evaluate(schedule, pack, datatables.BUILTIN, waivers, as_of,
+                                       supplements))
     report.review = statuses(report.findings, review)
     report.notes.extend(import_notes(schedule))  # rooms read/mapped/rejected; what was not mapped
     return report
 
 
-def check(path: str | Path, rules: str | None = None, *, search: Search = None,
+def check(path: str | Path, rules: str | Sequence[str] | None = None, *, search: Search = None,
           waivers: Sequence[WaiverEntry] = (), as_of: dt.date | None = None,
           review: Sequence[CommentEntry] = ()) -> Report:
-    """Read the schedule at ``path``, load its rule pack (or ``rules``) and evaluate it.
+    """Read the schedule at ``path``, load its rule packs (or ``rules``) and evaluate it.
 
-    The pack named in the schedule (``rules:``) is looked up relative to the schedule's folder;
-    ``rules`` (as ``--rules`` on the command line) relative to the working directory.
+    The packs named in the schedule (``rules:``, one or a list) are looked up relative to the
+    schedule's folder; ``rules`` (as ``--rules`` on the command line: one pack, or a list whose
+    first is the rates pack and the rest supplements) relative to the working directory.
     ``review``: a reviewer's comments, as for :func:`evaluate`.
     """
     loaded = load_schedule(path)
-    ref = rules or loaded.model.rules
-    if ref is None:
+    given = (rules,) if isinstance(rules, (str, Path)) else tuple(rules or ())
+    refs = given or loaded.model.rule_refs
+    if not refs:
         raise loaded.error("no rule pack: give 'rules:' in the schedule or --rules", ("rules",),
                            hint="e.g. rules: ashrae-62.1-2019")
-    pack = _pack(loaded, ref, from_option=bool(rules), search=tuple(search or ()))
-    return evaluate(loaded, pack, waivers=waivers, as_of=as_of, review=review)
+    search = tuple(search or ())
+    where = (lambda k: ("--rules",)) if given else (
+        (lambda k: ("rules", k)) if isinstance(loaded.model.rules, list) else (lambda k: ("rules",)))
+    packs = [_pack(loaded, str(ref), bool(given), search, where(k)) for k, ref in enumerate(refs)]
+    _rates(packs[0], loaded if not given else None, where(0))
+    return evaluate(loaded, packs[0], waivers=waivers, as_of=as_of, review=review,
+                    also=packs[1:], search=search)
+
+
+def _rates(pack: RulePack, loaded: LoadedSchedule | None, field: tuple = ("rules",)) -> None:
+    """The first pack is the one a schedule is evaluated under: a rates pack."""
+    if pack.role == "rates":
+        return
+    message = (f"rule pack {pack.id} is a supplement pack (requirements only): list a rates "
+               "pack first, and it after")
+    hint = f"e.g. rules: [ashrae-62.1-2019, {pack.id}]"
+    if loaded is not None:
+        raise loaded.error(message, field, hint=hint)
+    raise RulePackError(message, field=field, hint=hint)
+
+
+def _supplements(loaded: LoadedSchedule, also: list[RulePack], search: tuple) -> list:
+    """The supplement packs of an evaluation: ``also`` on every system, then each pack a system
+    lists under ``extra_rules`` on the systems that list it (a pack already on every system is
+    not repeated). A rates pack here is an input error where it is named."""
+    from airgate.evaluation.report import Supplement
+
+    for k, p in enumerate(also):
+        if p.role != "supplement":
+            raise RulePackError(
+                f"rule pack {p.id} is a rates pack: a schedule is evaluated under one rates "
+                "pack, listed first; the packs after it must be supplement packs",
+                field=("rules", k + 1), hint="check the schedule under each rates pack in its "
+                "own run (airgate compare shows the difference)")
+    out = [Supplement(p) for p in also]
+    wide = {p.id for p in also}
+    scoped: dict[str, tuple[RulePack, set[str]]] = {}
+    for i, system in enumerate(loaded.model.systems):
+        for k, ref in enumerate(system.extra_rules):
+            at = ("systems", i, "extra_rules", k)
+            p = _pack(loaded, ref, False, search, at)
+            if p.role != "supplement":
+                raise loaded.error(f"rule pack {p.id} is a rates pack; extra_rules lists "
+                                   "supplement packs only", at,
+                                   hint="give the schedule's rates pack under rules:")
+            if p.id not in wide:
+                scoped.setdefault(p.id, (p, set()))[1].add(system.id)
+    out += [Supplement(p, frozenset(ids)) for p, ids in scoped.values()]
+    return out
 
 
 def _same_options(loaded: LoadedSchedule, pack: RulePack) -> None:
@@ -141,7 +204,7 @@ def _same_options(loaded: LoadedSchedule, pack: RulePack) -> None:
 
 
 def _pack(loaded: LoadedSchedule, ref: str, from_option: bool,
-          search: Sequence[str | Path] = ()) -> RulePack:
+          search: Sequence[str | Path] = (), field: tuple = ("rules",)) -> RulePack:
     """Load the rule pack ``ref``; a pack that cannot be found is reported where it was named.
 
     A path in the schedule is relative to the schedule's folder and confined to it and the pack
@@ -160,9 +223,11 @@ def _pack(loaded: LoadedSchedule, ref: str, from_option: bool,
         if from_option:
             exc.field = ("--rules",)
             raise
-        raise loaded.error(exc.message, ("rules",), allowed=exc.allowed, hint=exc.hint) from None
+        raise loaded.error(exc.message, field, allowed=exc.allowed, hint=exc.hint) from None
     try:
-        return rulepack.load_pack(str(path), options=loaded.model.project.options, search=search)
+        doc = rulepack.load_document(str(path), search=search)
+        options = None if doc.data.get("role") == "supplement" else loaded.model.project.options
+        return rulepack.load_pack(str(path), options=options, search=search)
     except OptionError as exc:
         raise as_schedule_error(exc, loaded) from None
 
@@ -186,7 +251,7 @@ def sweep(schedule: LoadedSchedule | str | Path, *, system: str, outdoor_air,
 
     loaded = schedule if isinstance(schedule, LoadedSchedule) else load_schedule(schedule)
     if pack is None:
-        ref = loaded.model.rules
+        ref = (loaded.model.rule_refs or (None,))[0]
         if ref is None:
             raise loaded.error("no rule pack: give 'rules:' in the schedule or pack=",
                                ("rules",), hint="e.g. rules: ashrae-62.1-2019")

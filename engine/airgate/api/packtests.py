@@ -130,11 +130,29 @@ def _schedule(doc: Document) -> LoadedSchedule:
 
 
 def _run(loaded: LoadedSchedule, pack_ref: str, roots: tuple[Root, ...]):
+    """The pack under test and the case's report. A supplement pack is checked beside the rates
+    pack the case's schedule names first in ``rules:`` (and beside its other supplements)."""
+    options = loaded.model.project.options
     try:
-        pack = load_pack(pack_ref, options=loaded.model.project.options, search=roots)
+        if load_document(pack_ref, search=roots).data.get("role") == "supplement":
+            pack = load_pack(pack_ref, search=roots)
+            refs = loaded.model.rule_refs
+            if not refs:
+                raise loaded.error(f"rule pack {pack.id} is a supplement pack: the case's "
+                                   "schedule names the rates pack it is checked beside",
+                                   ("rules",), hint="add rules: ashrae-62.1-2019 (or another "
+                                   "rates pack) to the case's schedule")
+            rates = load_pack(refs[0], options=options, search=roots)
+            also = [load_pack(r, search=roots) for r in refs[1:]]
+            scoped = any(pack.id in s.extra_rules or pack_ref in s.extra_rules
+                         for s in loaded.model.systems)
+            if not scoped and all(p.id != pack.id for p in also):
+                also.append(pack)  # on every system, unless the schedule says where
+            return pack, evaluate(loaded, rates, also=also, search=roots)
+        pack = load_pack(pack_ref, options=options, search=roots)
     except OptionError as exc:
         raise as_schedule_error(exc, loaded) from None
-    return pack, evaluate(loaded, pack)
+    return pack, evaluate(loaded, pack, search=roots)
 
 
 def _actual(report: Any, pack: Any, subject: str, rule: str | None) -> tuple[str, str | None]:
@@ -147,10 +165,11 @@ def _actual(report: Any, pack: Any, subject: str, rule: str | None) -> tuple[str
                     return z.verdict, None
     if rule in pack.requirements:
         for o in report.requirements:
-            if o.rule == rule and o.subject == subject:
+            if o.rule == rule and o.subject == subject and (o.pack or report.pack.id) == pack.id:
                 return o.verdict, (o.finding.severity if o.finding else None)
         return "not-applicable", None
-    found = [f for f in report.findings if f.rule == rule and f.subject == subject]
+    found = [f for f in report.findings if f.rule == rule and f.subject == subject
+             and report.pack_of(f) == pack.id]
     if not found:
         return "pass", None
     real = [f for f in found if not f.message.startswith("not evaluated")]

@@ -14,7 +14,7 @@ import os
 import sys
 from pathlib import Path
 
-from airgate.commands.common import add_output, add_rules, input_suffixes
+from airgate.commands.common import add_output, add_rules_path, input_suffixes
 from airgate.errors import (EXIT_FAIL, EXIT_PASS, AirgateError, ErrorGroup, ScheduleError,
                             UsageError, raise_all)
 from airgate.escaping import terminal
@@ -57,7 +57,11 @@ def register(sub) -> None:
     c.add_argument("paths", nargs="+", metavar="PATH",
                    help=f"schedule files ({input_suffixes()}; see docs/importing.md) or "
                         f"folders holding {', '.join(SCHEDULE_SUFFIXES)} schedules")
-    add_rules(c)
+    c.add_argument("--rules", action="append", metavar="ID|PATH",
+                   help="rule pack id or path (overrides the schedule's 'rules:'); repeat it to "
+                        "check supplement packs beside the first, the rates pack "
+                        "(docs/schedule-format.md)")
+    add_rules_path(c)
     c.add_argument("--format", action="append", metavar="NAME[:FILE]", dest="formats",
                    help=f"report format: {', '.join(FORMATS)} (default: {next(iter(FORMATS))}); "
                         "NAME:FILE writes it to FILE; repeatable, one evaluation for all")

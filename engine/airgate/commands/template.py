@@ -42,6 +42,10 @@ def run(args: argparse.Namespace) -> int:
     from airgate.writers import workbook
 
     pack = load_pack(args.rules, search=args.rules_path)
+    if pack.role == "supplement":
+        raise UsageError(f"--rules: {pack.id} is a supplement pack (requirements only); a "
+                         "template is made from a rates pack",
+                         hint="give the rates pack, e.g. --rules ashrae-62.1-2019")
     system = args.units or pack.units
     conditions = tuple(dict.fromkeys(
         c.strip() for c in (args.conditions or "").split(",") if c.strip()))

@@ -9,6 +9,7 @@ whose check this module does not derive still gets its own case, so no finding i
 
 from __future__ import annotations
 
+import dataclasses
 from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass
 
@@ -36,6 +37,8 @@ class CheckCase:
     required: Amount | None = None
     provided: Amount | None = None
     findings: tuple[Finding, ...] = ()
+    #: the pack whose rule this is, where the report lists several packs (None: the first)
+    pack: str | None = None
 
     @property
     def basis(self) -> str:
@@ -181,6 +184,24 @@ def cases(model: Schedule, pack: RulePack, results: list[SystemResult],
     seen.update(by_key)
     out += extra + _requirement_cases(outcomes, results, seen)
     rank = {rule: n for n, rule in enumerate([*pack.checks, *pack.requirements])}
+    return sorted(out, key=lambda c: (order.get(c.subject, len(order)), c.subject,
+                                      rank.get(c.rule, len(rank)), c.rule))
+
+
+def pack_cases(pack: RulePack, results: list[SystemResult], findings: list[Finding],
+               outcomes: Sequence = ()) -> list[CheckCase]:
+    """The cases of a supplement pack (:mod:`airgate.evaluation.supplements`): one per finding
+    of its rules and one per requirement that passed, each naming the pack; kept apart from the
+    rates pack's cases, so a rule id both packs use is two cases."""
+    by_key: dict[tuple[str, str], list[Finding]] = {}
+    for f in findings:
+        by_key.setdefault((f.rule, f.subject), []).append(f)
+    out = [_from_findings(fs) for fs in by_key.values()]
+    out += _requirement_cases(outcomes, results, set(by_key))
+    order = {s: n for n, s in enumerate(
+        [r.id for r in results] + [f"{r.id}/{z.id}" for r in results for z in r.zones])}
+    rank = {rule: n for n, rule in enumerate(pack.requirements)}
+    out = [dataclasses.replace(c, pack=pack.id) for c in out]
     return sorted(out, key=lambda c: (order.get(c.subject, len(order)), c.subject,
                                       rank.get(c.rule, len(rank)), c.rule))
 

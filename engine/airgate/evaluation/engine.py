@@ -19,6 +19,7 @@ from airgate.evaluation import (
     exhaust,
     iaqp,
     makeup,
+    supplements as supplement_packs,
     systems,
     waivers,
 )
@@ -26,7 +27,13 @@ from airgate.evaluation.checks import DECLARED_CHECKS, KNOWN_CHECKS, Emitter
 from airgate.evaluation.system_kinds import kind_of
 from airgate.evaluation.findings import Location
 from airgate.evaluation.requirements import Run as RequirementRun
-from airgate.evaluation.report import SAFETY_CAUTION, ConditionResult, Report, SystemResult
+from airgate.evaluation.report import (
+    SAFETY_CAUTION,
+    ConditionResult,
+    Report,
+    Supplement,
+    SystemResult,
+)
 from airgate.evaluation.trail import Trail
 from airgate.evaluation.unused import unused_fields
 from airgate.evaluation.zones import ZoneContext, evaluate_zone
@@ -142,22 +149,29 @@ def _exhaust_fan(loaded: LoadedSchedule, pack: RulePack, emitter: Emitter, i: in
 
 def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
              extra_waivers: Sequence[waivers.WaiverEntry] = (),
-             as_of: dt.date | None = None) -> Report:
+             as_of: dt.date | None = None, supplements: Sequence[Supplement] = ()) -> Report:
     """Evaluate every system and zone of ``loaded`` under ``pack``.
 
     ``tables``: the physical data tables by id (:data:`airgate.readers.datatables.BUILTIN`).
+    ``supplements``: supplement packs whose requirements are checked beside ``pack``, each on
+    the systems it applies to (:mod:`airgate.evaluation.supplements`).
 
     The schedule's own waivers, then ``extra_waivers`` (a waivers file), are applied with expiry
     judged on ``as_of`` (default today).
     """
     bind.check_pack_checks(pack, set(KNOWN_CHECKS))
+    raise_all([e for s in supplements for e in supplement_packs.check_names(pack, s.pack)])
     entries = [*waivers.from_schedule(loaded), *extra_waivers]
-    # a waiver may name an engine check, a declared limit's check or a requirement of the pack
-    raise_all(waivers.rule_errors(entries, [*KNOWN_CHECKS, *DECLARED_CHECKS, *pack.requirements])
+    packs = [pack, *(s.pack for s in supplements)]
+    # a waiver may name an engine check, a declared limit's check or a requirement of a pack
+    raise_all(waivers.rule_errors(entries, [*KNOWN_CHECKS, *DECLARED_CHECKS,
+                                            *(r for p in packs for r in p.requirements)])
               + waivers.condition_errors(entries, loaded.model.systems))
+    raise_all(waivers.pack_errors(entries, packs))
     raise_all(iaqp.check_pack(loaded, pack))
     units = loaded.model.project.units
     run = RequirementRun(pack, loaded)
+    extra = supplement_packs.Runs(supplements, loaded)
     bound = _bind_all(loaded, pack, tables, run)
     emitter = Emitter(pack, units, lambda path: _location(loaded, path))
     results = []
@@ -181,13 +195,16 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
                    _location(loaded, conditions.keyed(("systems", i, "outdoor_air"),
                                                       result.condition)), first)
         run.evaluate(i, system, ctxs, result, emitter)
+        extra.evaluate(i, system, ctxs, result, emitter)
         conditions.tag(emitter.findings, start, result.condition)
         results.append(result)
     model = loaded.model.model_copy(update={"systems": governed})
     makeup_notes = makeup.check(loaded, pack, results, emitter,
                                 lambda path: _location(loaded, path))
     findings = sorted(emitter.findings, key=lambda f: f.sort_key())
-    findings, statuses, waiver_date = waivers.review(findings, entries, pack, results, as_of)
+    if supplements:  # every finding names its pack
+        findings = supplement_packs.tag_base(findings, pack)
+    findings, statuses, waiver_date = waivers.review(findings, entries, packs, results, as_of)
     _verdicts(results, findings)
     by_system: dict[str, list] = {}  # each system's findings, so the verdicts take linear time
     for f in findings:
@@ -199,19 +216,27 @@ def evaluate(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
                                        lambda path: str(_location(loaded, path)))
     notes += [f"{s.id}: {note}" for s in results for note in s.notes]
     notes += makeup_notes
-    if pack.units != units:
-        notes.append(f"The schedule is in {units} units and rule pack {pack.id} in {pack.units}; "
-                     "the pack's table values were converted exactly (1 cfm = 0.471947 L/s, "
-                     "1 ft = 0.3048 m). The standard's own table for your unit system is rounded "
-                     "separately; use that pack where one exists.")
+    notes += extra.notes(results)
+    for p in packs:
+        if p.units != units:
+            notes.append(f"The schedule is in {units} units and rule pack {p.id} in {p.units}; "
+                         "the pack's table values were converted exactly (1 cfm = 0.471947 L/s, "
+                         "1 ft = 0.3048 m). The standard's own table for your unit system is "
+                         "rounded separately; use that pack where one exists.")
     cautions = [SAFETY_CAUTION, *pack.cautions]
-    cases = coverage.cases(model, pack, results, findings,
+    cautions += [c for s in supplements for c in s.pack.cautions if c not in cautions]
+    base_findings = [f for f in findings if f.pack in (None, pack.id)]
+    cases = coverage.cases(model, pack, results, base_findings,
                            lambda path: _location(loaded, path), run.outcomes)
+    for s, srun in zip(supplements, extra.runs):
+        cases += coverage.pack_cases(s.pack, results,
+                                     [f for f in findings if f.pack == s.pack.id], srun.outcomes)
     return Report(schedule_file=loaded.file, project_name=loaded.model.project.name, units=units,
                   pack=pack, systems=results, findings=findings, notes=notes, cautions=cautions,
                   waivers=statuses, waiver_date=waiver_date, cases=cases,
-                  requirements=run.outcomes,
-                  contaminant_units={c.id: c.unit for c in loaded.model.contaminants})
+                  requirements=[*run.outcomes, *extra.outcomes()],
+                  contaminant_units={c.id: c.unit for c in loaded.model.contaminants},
+                  supplements=list(supplements))
 
 
 def _verdicts(results: list[SystemResult], findings) -> None:

@@ -98,6 +98,9 @@ class Finding:
     #: the design condition the finding is about (None: the system lists no conditions, or the
     #: finding holds at every condition)
     condition: str | None = None
+    #: the rule pack whose rule this is; None: the report's (first) pack, set on every finding
+    #: of a report that lists several packs
+    pack: str | None = None
 
     @property
     def waived(self) -> bool:

@@ -21,6 +21,18 @@ SAFETY_CAUTION = (
 )
 
 
+@dataclass(frozen=True)
+class Supplement:
+    """A supplement pack checked beside the rate pack, on every system (``systems`` None) or on
+    the systems named."""
+
+    pack: RulePack
+    systems: frozenset[str] | None = None
+
+    def applies(self, system_id: str) -> bool:
+        return self.systems is None or system_id in self.systems
+
+
 @dataclass
 class ZoneResult:
     id: str
@@ -45,6 +57,8 @@ class ZoneResult:
     #: where the zone's makeup air comes from (``evaluation.makeup.Makeup``); None: the zone
     #: states no exhaust, or not where its makeup comes from
     makeup: object | None = None
+    #: what supplement packs computed on the zone, by pack id (e.g. its equivalent clean airflow)
+    packs: dict[str, Trail] = field(default_factory=dict)
 
 
 @dataclass
@@ -110,6 +124,18 @@ class Report:
     contaminant_units: dict[str, str] = field(default_factory=dict)
     #: the reviewer's record given (``--review``), each comment against this report's findings
     review: list[CommentStatus] = field(default_factory=list)
+    #: the supplement packs checked beside ``pack`` (docs/schedule-format.md, several packs),
+    #: each with the systems it applies to (None: every system)
+    supplements: list[Supplement] = field(default_factory=list)
+
+    @property
+    def packs(self) -> list[RulePack]:
+        """Every pack of the report: ``pack`` first, then the supplements."""
+        return [self.pack, *(s.pack for s in self.supplements)]
+
+    def pack_of(self, finding: Finding) -> str:
+        """The id of the pack whose rule a finding names."""
+        return finding.pack or self.pack.id
 
     @property
     def verdict(self) -> str:

@@ -149,10 +149,39 @@ def condition_errors(entries: Iterable[WaiverEntry], systems) -> list[AirgateErr
     return out
 
 
-def _unmatched(w: Waiver, pack: RulePack, subjects: Sequence[str]) -> str:
-    if w.rule not in pack.checks and w.rule not in pack.requirements \
+def pack_errors(entries: Sequence[WaiverEntry], packs: Sequence[RulePack]) -> list[AirgateError]:
+    """A schedule's waiver's ``pack`` must be a pack of the evaluation (a waivers file serves
+    several schedules: its waiver for another pack matches nothing here, and says so); where
+    several packs name the waived rule, the waiver must say which pack's finding it covers."""
+    ids = [p.id for p in packs]
+    out: list[AirgateError] = []
+    for e in entries:
+        w = e.waiver
+        cls = ScheduleError if e.origin == SCHEDULE else AirgateError
+        if w.pack is not None and w.pack not in ids and e.origin == SCHEDULE:
+            close = nearest(w.pack, ids)
+            out.append(cls(f"waiver names rule pack '{w.pack}', which this schedule is not "
+                           "checked under" + (f"; did you mean '{close[0]}'?" if close else ""),
+                           file=e.location.file, line=e.location.line,
+                           column=e.location.column, field=e.field + ("pack",), allowed=ids,
+                           hint="name one of the schedule's rule packs, or leave pack out"))
+            continue
+        owners = [p.id for p in packs if w.rule in p.checks or w.rule in p.requirements]
+        if w.pack is None and len(owners) > 1:
+            out.append(cls(f"rule '{w.rule}' is a rule of {len(owners)} packs of this schedule "
+                           f"({', '.join(owners)}): say which pack's finding the waiver covers",
+                           file=e.location.file, line=e.location.line,
+                           column=e.location.column, field=e.field, allowed=owners,
+                           hint=f"add pack: {owners[0]} (or another of them) to the waiver"))
+    return out
+
+
+def _unmatched(w: Waiver, packs: Sequence[RulePack], subjects: Sequence[str]) -> str:
+    named = [p for p in packs if w.pack in (None, p.id)]
+    if not any(w.rule in p.checks or w.rule in p.requirements for p in named) \
             and w.rule not in DECLARED_CHECKS:
-        return f"rule pack {pack.id} does not run check '{w.rule}'"
+        which = " or ".join(p.id for p in named)
+        return f"rule pack {which} does not run check '{w.rule}'"
     if w.subject not in subjects:
         close = nearest(w.subject, subjects)
         return (f"no system or zone '{w.subject}' in the schedule"
@@ -162,17 +191,21 @@ def _unmatched(w: Waiver, pack: RulePack, subjects: Sequence[str]) -> str:
             "withdraw the waiver if it is no longer needed")
 
 
-def apply(findings: list[Finding], entries: Sequence[WaiverEntry], *, pack: RulePack,
-          subjects: Sequence[str], as_of: dt.date) -> tuple[list[Finding], list[WaiverStatus]]:
+def apply(findings: list[Finding], entries: Sequence[WaiverEntry], *,
+          pack: RulePack | Sequence[RulePack], subjects: Sequence[str],
+          as_of: dt.date) -> tuple[list[Finding], list[WaiverStatus]]:
     """Mark the findings each live waiver covers; say what became of every waiver.
 
     The first waiver that covers a finding marks it (schedule waivers come before file ones).
     """
+    packs = [pack] if isinstance(pack, RulePack) else list(pack)
+    base = packs[0].id
     out = list(findings)
     statuses: list[WaiverStatus] = []
     for entry in entries:
         w = entry.waiver
-        hits = [i for i, f in enumerate(out) if entry.covers(f)]
+        hits = [i for i, f in enumerate(out) if entry.covers(f)
+                and w.pack in (None, f.pack or base)]
         plural = "s" if len(hits) != 1 else ""
         if w.expires is not None and as_of > w.expires:
             again = ("the finding it covered counts again" if len(hits) == 1 else
@@ -182,7 +215,7 @@ def apply(findings: list[Finding], entries: Sequence[WaiverEntry], *, pack: Rule
             statuses.append(WaiverStatus(entry, EXPIRED, detail, len(hits)))
             continue
         if not hits:
-            statuses.append(WaiverStatus(entry, UNMATCHED, _unmatched(w, pack, subjects), 0))
+            statuses.append(WaiverStatus(entry, UNMATCHED, _unmatched(w, packs, subjects), 0))
             continue
         for i in hits:
             if not out[i].waived:
@@ -192,8 +225,8 @@ def apply(findings: list[Finding], entries: Sequence[WaiverEntry], *, pack: Rule
     return out, statuses
 
 
-def review(findings: list[Finding], entries: Sequence[WaiverEntry], pack: RulePack, results,
-           as_of: dt.date | None) -> tuple[list[Finding], list[WaiverStatus], str | None]:
+def review(findings: list[Finding], entries: Sequence[WaiverEntry],
+           pack: RulePack | Sequence[RulePack], results, as_of: dt.date | None) -> tuple[list[Finding], list[WaiverStatus], str | None]:
     """:func:`apply` for an evaluation: findings, statuses, and the date expiry was judged on.
 
     The date is only returned (and so only shown in reports) when some waiver has an expiry.

@@ -68,6 +68,10 @@ KINDS: dict[str, RequirementKind] = {k.name: k for k in (
                     summary="air class on a recirculating system at most max_class"),
     RequirementKind("minimum-filter", "system", {"merv": None},
                     summary="filter MERV at least merv"),
+    RequirementKind("clean-airflow", "zone", {"per_person": "airflow_per_person"},
+                    frozenset({"credit"}),
+                    summary="equivalent clean airflow per person, summed over the credited "
+                            "mechanisms, at least per_person"),
     RequirementKind("formula", "", {},
                     frozenset({"subject", "required", "provided", "compare", "quantity", "params"}),
                     formulas=True, summary="provided compared with required, both formulas"),
@@ -168,6 +172,8 @@ class Requirement:
     at: str = "Voz"  #: larger-of: figures are compared at Voz (default) or Vbz
     instead_of_sum: bool = False  #: larger-of: the procedure's sum is not one of the figures
     only_when_mixed: bool = False  #: air-class-limit: only where the system serves lower classes
+    #: clean-airflow: the removal mechanisms whose equivalent clean airflow is credited
+    credit: tuple[str, ...] = ()
     formula: Formula | None = None
 
     def cite(self) -> str:

@@ -334,6 +334,9 @@ class RulePack:
     natural_ventilation: NaturalVentilationRules | None = None
     #: minimum exhaust rates by row id (empty: the pack has no exhaust table)
     exhaust: dict[str, ExhaustRow] = field(default_factory=dict)
+    #: ``rates``: a pack with a rate procedure, which a schedule is evaluated under;
+    #: ``supplement``: requirements only, checked beside a rates pack on its calculation
+    role: str = "rates"
 
     def cite(self, key: str) -> str:
         """Citation of an equation key, with its provenance (e.g. for a trail step)."""

@@ -341,6 +341,19 @@ class Zone(_Model):
         return self
 
 
+def _pack_list(items: list[str]) -> list[str]:
+    """A list of rule pack ids or paths: none empty, none twice."""
+    if not items:
+        raise ValueError("list at least one rule pack")
+    for item in items:
+        if not item.strip():
+            raise ValueError("a rule pack id or path cannot be empty")
+    twice = sorted({p for p in items if items.count(p) > 1})
+    if twice:
+        raise ValueError(f"rule pack '{twice[0]}' is listed twice")
+    return items
+
+
 @dataclass(frozen=True)
 class SystemKindRules:
     """What the schedule contract says of a system kind."""
@@ -399,6 +412,10 @@ class System(_Model):
     recirculates: bool | None = Field(
         None, description="Return air is recirculated; default: not for outdoor-air systems. [–]")
     zones: list[Zone] = Field(min_length=1, description="Zones served. [–]")
+    extra_rules: list[str] = Field(
+        default_factory=list,
+        description="Supplement packs checked on this system only, beside the schedule's rule "
+                    "packs (e.g. an infection-risk target for one room). [–]")
     notes: str | None = Field(None, description="Free text. [–]")
 
     @model_validator(mode="after")
@@ -433,6 +450,11 @@ class System(_Model):
                 raise cross_field(("zones", j, "space"), "missing required field 'space' "
                                   "(occupancy category id of the rule pack)")
         return self
+
+    @field_validator("extra_rules")
+    @classmethod
+    def _extra_rules(cls, items: list[str]) -> list[str]:
+        return _pack_list(items) if items else items
 
     @field_validator("conditions")
     @classmethod
@@ -469,7 +491,11 @@ class Schedule(_Model):
 
     schedule: Literal[1] = Field(description="Schedule format version. [–]")
     project: Project
-    rules: str | None = Field(None, description="Rule pack id or path; --rules overrides. [–]")
+    rules: str | list[str] | None = Field(
+        None, description="Rule pack id or path; or a list of them: the first is the rate pack "
+                          "the schedule is evaluated under, each further one a supplement pack "
+                          "whose requirements are checked beside it (docs/schedule-format.md); "
+                          "--rules overrides. [–]")
     profiles: dict[str, Profile] = Field(default_factory=dict,
                                          description="Named occupancy profiles. [–]")
     contaminants: list[Contaminant] = Field(
@@ -478,6 +504,18 @@ class Schedule(_Model):
     waivers: list[Waiver] = Field(
         default_factory=list, description="Approved alternatives: findings the reviewer "
                                           "accepted, by rule and subject. [–]")
+
+    @field_validator("rules")
+    @classmethod
+    def _rule_list(cls, value: str | list[str] | None) -> str | list[str] | None:
+        return value if value is None or isinstance(value, str) else _pack_list(value)
+
+    @property
+    def rule_refs(self) -> tuple[str, ...]:
+        """The packs ``rules:`` names, in order (one for a single pack; none when absent)."""
+        if self.rules is None:
+            return ()
+        return (self.rules,) if isinstance(self.rules, str) else tuple(self.rules)
 
     @field_validator("contaminants")
     @classmethod

@@ -65,6 +65,10 @@ class Waiver(BaseModel):
     rule: str = Field(min_length=1, description="Check id the waiver covers, e.g. "
                                                 "'zone-limits-ev'. [–]")
     subject: Subject
+    pack: str | None = Field(None, min_length=1,
+                             description="The rule pack whose finding is waived, by id: needed "
+                                         "only where several packs on the schedule name the "
+                                         "same rule; none: the rule of any pack. [–]")
     reason: str = Field(min_length=1, description="Why the alternative is acceptable. [–]")
     approved_by: str = Field(min_length=1, description="Who approved it: name, role or "
                                                        "reference. [–]")

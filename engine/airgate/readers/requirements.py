@@ -25,14 +25,18 @@ _ZONE_TERMS = ("space", "group", "zone", "air_class", "air_distribution")
 class _Refs:
     """What a selector may name, for the cross-reference checks."""
 
-    def __init__(self, categories: dict[str, OccupancyCategory],
-                 configurations: dict[str, AirDistributionRow], retired: dict) -> None:
+    def __init__(self, categories: dict[str, OccupancyCategory] | None,
+                 configurations: dict[str, AirDistributionRow] | None, retired: dict) -> None:
+        #: None (a supplement pack, which has no tables): checked against the rates pack beside
+        #: it when a schedule is evaluated (airgate.evaluation.supplements)
         self.spaces = categories
-        self.groups = sorted({c.group for c in categories.values()})
+        self.groups = None if categories is None else sorted({c.group for c in categories.values()})
         self.rows = configurations
         self.retired = retired
 
     def check(self, doc: Any, what: str, ids: list, known, collection: str, path: Path_) -> None:
+        if known is None:
+            return
         for k, value in enumerate(ids):
             if value in known:
                 continue
@@ -104,10 +108,11 @@ def _formula(doc: Any, r: dict[str, Any], path: Path_, system: str, subject: str
 
 
 def build_requirements(doc: Any, data: dict[str, Any], system: str,
-                       categories: dict[str, OccupancyCategory],
-                       configurations: dict[str, AirDistributionRow], checks: dict,
+                       categories: dict[str, OccupancyCategory] | None,
+                       configurations: dict[str, AirDistributionRow] | None, checks: dict,
                        retired: dict) -> dict[str, Requirement]:
-    """The pack's requirements, checked against the tables they refer to."""
+    """The pack's requirements, checked against the tables they refer to (a supplement pack's
+    tables, ``None``, are the rates pack's: checked when a schedule is evaluated)."""
     refs = _Refs(categories, configurations, retired)
     out: dict[str, Requirement] = {}
     for i, r in enumerate(data.get("requirements", [])):
@@ -143,6 +148,7 @@ def build_requirements(doc: Any, data: dict[str, Any], system: str,
             provenance=r["provenance"], selector=selector, params=params, printed=printed,
             at=r.get("at", "Voz"), instead_of_sum=bool(r.get("instead_of_sum", False)),
             only_when_mixed=bool(r.get("only_when_mixed", False)),
+            credit=tuple(r.get("credit", ())),
             formula=_formula(doc, r, path, system, subject) if spec.formulas else None,
         )
     return out

@@ -353,6 +353,8 @@ def _check_declared_units(doc: Any, data: dict[str, Any]) -> None:
     """Table unit declarations must agree with the pack's unit system (no silent mixing)."""
     expected = _DECLARED_UNITS[data["units"]]
     for table in ("occupancy", "air_distribution"):
+        if table not in data:  # a supplement pack has neither table
+            continue
         for key, unit in data[table]["units"].items():
             if unit not in expected[key]:
                 raise doc.error(
@@ -394,9 +396,30 @@ def _natural(doc: Any, data: dict[str, Any]) -> NaturalVentilationRules | None:
         depth_ratio={row["arrangement"]: cited(row, row["ratio"]) for row in nv["depth"]})
 
 
+def _supplement(doc: Any) -> RulePack:
+    """A supplement pack: requirements only (its selectors' space types are the rates pack's)."""
+    data = doc.data
+    whole = Source(data["document"], data["edition"])
+    lineage = getattr(doc, "lineage", (data["id"],))
+    return RulePack(
+        id=data["id"], title=data["title"], document=data["document"], edition=data["edition"],
+        units=data["units"], jurisdiction=data.get("jurisdiction"),
+        effective=data.get("effective"), provenance=data["provenance"],
+        verify=bool(data.get("verify", True)), cautions=tuple(data.get("cautions", [])),
+        equations={}, occupancy_source=whole, occupancy_provenance=data["provenance"],
+        categories={}, air_distribution_source=whole,
+        air_distribution_provenance=data["provenance"], configurations={},
+        default_configuration=None, default_method=None, methods={}, checks={}, file=doc.file,
+        document_positions=doc, lineage=tuple(lineage),
+        requirements=build_requirements(doc, data, data["units"], None, None, {}, {}),
+        role="supplement")
+
+
 def build(doc: Any) -> RulePack:
     """Build the typed pack from a schema-valid document (options resolved), checking references."""
     data = doc.data
+    if data.get("role") == "supplement":
+        return _supplement(doc)
     system = data["units"]
     _check_declared_units(doc, data)
     _unique(doc, data["checks"], ("checks",))

@@ -121,7 +121,8 @@ class _View:
         state = "waived" if f.waived else "warning" if f.declared else f.severity
         return {"state": state, "label": "missed" if f.declared and not f.waived else None,
                 "subject": f.subject, "name": self.names.get(f.subject, ""),
-                "rule": f.rule, "required": self.amount(f.required),
+                "rule": shared.rule_label(self.r, f.pack, f.rule),
+                "required": self.amount(f.required),
                 "provided": self.amount(f.provided), "margin": self.margin(f.required, f.provided),
                 "message": f.message, "waived": shared.waived_line(f.waiver) if f.waiver else "",
                 "source": f.source, "location": str(f.location)}
@@ -253,8 +254,10 @@ class _View:
         return " ".join(parts)
 
     def check_row(self, c) -> dict:
-        return {"status": c.status, "subject": c.subject, "rule": c.rule,
-                "title": shared.check_title(self.r, c.rule), "required": self.amount(c.required),
+        return {"status": c.status, "subject": c.subject,
+                "rule": shared.rule_label(self.r, c.pack, c.rule),
+                "title": shared.check_title(self.r, c.rule, c.pack),
+                "required": self.amount(c.required),
                 "provided": self.amount(c.provided), "margin": self.margin(c.required, c.provided)}
 
     _COLUMNS = [("Az", "area"), ("Pz", "people"), ("Vbz", "airflow"), ("Ez", "fraction"),
@@ -335,15 +338,18 @@ class _View:
         cap = USED_FOR_LIMIT if self.summarised else None
         rows = [{"symbol": sym, "value": val, "source": src, "used_for": _listed(subs, cap)}
                 for (sym, val, src), subs in values.items()]
-        ran = {c.rule for c in r.cases}
+        ran = {c.rule for c in r.cases if c.pack in (None, r.pack.id)}
         pack = r.pack
+        also = [{"id": f"{s.pack.id}: {x.id}", "severity": x.severity, "source": x.source}
+                for s in r.supplements for x in shared.pack_rules(s.pack).values()
+                if any(c.pack == s.pack.id and c.rule == x.id for c in r.cases)]
         return {"id": pack.id, "document": pack.document, "edition": pack.edition,
                 "units": pack.units, "provenance": pack.provenance,
                 "file": PurePath(pack.file).name, "table_values": rows,
                 "equations": [{"gives": ", ".join(syms), "source": src}
                               for src, syms in cited.items()],
                 "checks": [{"id": x.id, "severity": x.severity, "source": x.source}
-                           for x in shared.pack_rules(pack).values() if x.id in ran]}
+                           for x in shared.pack_rules(pack).values() if x.id in ran] + also}
 
     def waivers(self) -> dict | None:
         waived = [f for f in self.r.findings if f.waived]
@@ -372,7 +378,8 @@ class _View:
         passing = [s for s in r.systems if not self.detailed(s)]
         return {
             "pid": self.pid, "project": r.project_name, "schedule_file": r.schedule_file,
-            "pack_id": pack.id, "pack_title": pack.title, "verify": bool(pack.verify),
+            "pack_id": pack.id, "verify": bool(pack.verify),
+            "pack_title": "; also ".join([pack.title, *shared.supplement_lines(r)]),
             "units": r.units, "verdict": r.verdict, "caution": r.cautions[0],
             "airflow_unit": units.label("airflow", self.u),
             "tally": [{"cls": "fail", "n": c["fail"], "label": "failing"},

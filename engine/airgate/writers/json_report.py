@@ -135,6 +135,8 @@ def _zone(z: ZoneResult, system: str, step_minutes: int = 0,
         "contaminants": {cid: _trailed(t, system, trails)
                          for cid, t in sorted(z.contaminants.items())},
     }
+    if z.packs:  # only where a supplement pack computed figures on the zone
+        out["packs"] = {pid: _trailed(t, system, trails) for pid, t in sorted(z.packs.items())}
     if z.makeup is not None:  # only an exhausted zone that states its makeup
         m = z.makeup
         out["makeup"] = ({"from": "outdoor"} if m.source == "outdoor" else
@@ -184,6 +186,7 @@ def _finding(f: Finding, system: str) -> dict[str, Any]:
             "reason": f.waiver.reason, "approved_by": f.waiver.approved_by,
             "expires": f.waiver.expires, "origin": f.waiver.origin,
             "location": _location(f.waiver.location)},
+        **({} if f.pack is None else {"pack": f.pack}),
     }
 
 
@@ -207,6 +210,13 @@ def review_comment(s: CommentStatus, compared: bool = False) -> dict[str, Any]:
             "finding": None if s.finding is None else {"severity": s.finding.severity,
                                                        "waived": s.finding.waived},
             **({"resolved": s.resolved} if compared else {}), "to_close": s.to_close}
+
+
+def _also(s) -> dict[str, Any]:
+    p = s.pack
+    return {"id": p.id, "title": p.title, "document": p.document, "edition": p.edition,
+            "units": p.units, "provenance": p.provenance, "verify": p.verify,
+            "systems": None if s.systems is None else sorted(s.systems)}
 
 
 def to_dict(report: Report, series_step: int = 0, trails: bool = False) -> dict[str, Any]:
@@ -240,6 +250,7 @@ def _report(report: Report, series_step: int, lazy: bool,
         "rules": {"id": pack.id, "title": pack.title, "document": pack.document,
                   "edition": pack.edition, "units": pack.units, "provenance": pack.provenance,
                   "verify": pack.verify},
+        **({"also": [_also(s) for s in report.supplements]} if report.supplements else {}),
         "summary": {**report.counts(), "declared": report.declared_count(),
                     "waived": report.waived_count()},
         "systems": listed(_system(s, system, series_step, lazy, trails)

@@ -74,8 +74,9 @@ def _finding_lines(report: Report, case: CheckCase) -> list[str]:
     # the outcome first, then what the check looks for: a check titled by what it finds
     # ("The occupancy category requires no outdoor air") must not read as found when it passed
     outcome = "pass, nothing found" if case.status == "pass" else case.status
-    out = [f"{case.subject} — {case.rule}: {outcome}",
-           f"check: {shared.check_title(report, case.rule)}"]
+    rule = shared.rule_label(report, case.pack, case.rule)
+    out = [f"{case.subject} — {rule}: {outcome}",
+           f"check: {shared.check_title(report, case.rule, case.pack)}"]
     for f in case.findings:
         out.append(f"{f.severity}{' (waived)' if f.waived else ''}: {f.message}")
         if f.waiver is not None:
@@ -85,7 +86,7 @@ def _finding_lines(report: Report, case: CheckCase) -> list[str]:
         out.append(f"provided: {shared.amount(case.provided, u)}")
         out.append(f"margin: {shared.margin(case.required, case.provided, u)}")
     own = next((f.source for f in case.findings if f.declared), None)
-    out.append(f"source: {own or shared.check_source(report, case.rule)}")
+    out.append(f"source: {own or shared.check_source(report, case.rule, case.pack)}")
     out.append(f"at: {case.location}")
     for s in report.review:  # the reviewer's comments on this check and subject
         c = s.entry.comment
@@ -97,7 +98,8 @@ def _finding_lines(report: Report, case: CheckCase) -> list[str]:
 
 def _case(suite: ET.Element, report: Report, case: CheckCase, classname: str,
           fail_on: tuple[str, ...]) -> str:
-    tc = _el(suite, "testcase", name=f"{case.subject} {case.rule}", classname=classname)
+    tc = _el(suite, "testcase", name=f"{case.subject} {shared.rule_label(report, case.pack, case.rule)}",
+             classname=classname)
     lines = _finding_lines(report, case)
     if _failing(case, fail_on):
         first = next(f for f in case.findings if not f.waived and f.severity in ("fail", "warning"))

@@ -110,7 +110,7 @@ def _items_table(report: Report, items: list[Finding]) -> list[str]:
     out = ["| subject | check | required | provided | margin | where |",
            "|---|---|---:|---:|---:|---|"]
     for f in items:
-        out.append(f"| {md(f.subject)} | {md(f.rule)} | {md(shared.amount(f.required, u))} | "
+        out.append(f"| {md(f.subject)} | {md(shared.rule_label(report, f.pack, f.rule))} | {md(shared.amount(f.required, u))} | "
                    f"{md(shared.amount(f.provided, u))} | "
                    f"{md(shared.margin(f.required, f.provided, u))} | {md(f.location)} |")
     return out
@@ -124,7 +124,7 @@ def _failing(report: Report) -> list[str]:
     shown = live[:MAX_ITEMS]
     out = [f"#### Failing items ({len(live)})", ""] + _items_table(report, shown) + [""]
     for f in shown:
-        out.append(f"- **{md(f.severity.upper())} {md(f.subject)}** `{f.rule}` — {md(f.message)}"
+        out.append(f"- **{md(f.severity.upper())} {md(f.subject)}** `{shared.rule_label(report, f.pack, f.rule)}` — {md(f.message)}"
                    f" _({md(f.source)})_")
     if len(live) > len(shown):
         out.append(f"- … and {len(live) - len(shown)} more: see the full report")
@@ -139,7 +139,7 @@ def _declared(report: Report) -> list[str]:
     out = ["", f"#### {shared.DECLARED_HEADING}: {md(shared.declared_summary(report))}", "",
            f"_{md(shared.DECLARED_NOTE)}_"]
     if live:
-        out += [""] + [f"- **MISSED {md(f.subject)}** `{f.rule}` — {md(f.message)} "
+        out += [""] + [f"- **MISSED {md(f.subject)}** `{shared.rule_label(report, f.pack, f.rule)}` — {md(f.message)} "
                        f"_({md(f.source)})_" for f in live[:MAX_ITEMS]]
         if len(live) > MAX_ITEMS:
             out.append(f"- … and {len(live) - MAX_ITEMS} more: see the full report")
@@ -154,7 +154,7 @@ def _waived(report: Report) -> list[str]:
         out += ["", f"Waiver expiry judged on {report.waiver_date}."]
     if items:
         out += ["", f"#### Waived ({len(items)})", ""]
-        out += [f"- {md(f.severity.upper())} {md(f.subject)} `{f.rule}` — "
+        out += [f"- {md(f.severity.upper())} {md(f.subject)} `{shared.rule_label(report, f.pack, f.rule)}` — "
                 f"{md(shared.waived_line(f.waiver))}" for f in items[:MAX_ITEMS]]
     if stale:
         out += ["", f"#### Waivers to renew or withdraw ({len(stale)})", ""]
@@ -168,7 +168,7 @@ def _notes(report: Report) -> list[str]:
     if not info:
         return []
     out = ["", f"<details><summary>{count(len(info), 'info finding')}</summary>", ""]
-    out += [f"- {md(f.subject)} `{f.rule}` — {md(f.message)}" for f in info[:MAX_NOTES]]
+    out += [f"- {md(f.subject)} `{shared.rule_label(report, f.pack, f.rule)}` — {md(f.message)}" for f in info[:MAX_NOTES]]
     if len(info) > MAX_NOTES:
         out.append(f"- … and {len(info) - MAX_NOTES} more")
     return out + ["", "</details>"]
@@ -179,6 +179,7 @@ def _report(report: Report, level: str = "###", gate: str | None = None) -> list
     head = (f"{level} airgate: {md(report.project_name)} — {_verdict(report.verdict)}")
     out = [head, "",
            f"{md(report.schedule_file, line_start=True)} · rule pack {md(report.pack.id)} · {report.units} units",
+           *(f"also: {md(line)}" for line in shared.supplement_lines(report)),
            "",
            f"{c['fail']} failing · {count(c['warning'], 'warning')} · {c['info']} info · "
            f"{report.waived_count()} waived"

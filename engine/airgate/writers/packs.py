@@ -137,6 +137,8 @@ def _requirements(pack: RulePack, raw: list[dict]) -> list[str]:
                 params += f"; {name} = {choice_text(p['value'])} ({p['quantity']})"
         if r.kind == "larger-of":
             params += f" at {r.at}" + (", instead of the sum" if r.instead_of_sum else "")
+        if r.credit:
+            params += "; credited: " + ", ".join(r.credit)
         out.append(f"  {r.id:34} {r.kind:16} {r.severity:8} {r.subject}: {_selector_text(r.selector)}")
         out.append(f"      {params}")
         out.append(f"      {r.message}  [{r.cite()}]")
@@ -178,6 +180,13 @@ def pack_summary(pack: RulePack, doc: Any = None) -> str:
     data = doc.data if doc is not None else pack.document_positions.data \
         if pack.document_positions is not None else {}
     raw_rows = {r["id"]: r for r in data.get("occupancy", {}).get("categories", [])}
+    if pack.role == "supplement":  # requirements only, checked beside a rates pack
+        out = _header(pack) + ["", "Supplement pack: no rate procedure of its own; checked beside "
+                               "the rates pack a schedule lists first (its selectors name that "
+                               "pack's space types)"]
+        out += _requirements(pack, data.get("requirements", []))
+        out += ["", GOVERN, "", provenance_line(pack.value_provenance_counts())]
+        return lines(out)
     out = _header(pack) + _options(pack, chosen) + _categories(pack, raw_rows, chosen)
     out += ["", f"Air distribution ({pack.air_distribution_source.table or pack.air_distribution_source.section})"]
     for r in pack.configurations.values():

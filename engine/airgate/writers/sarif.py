@@ -80,7 +80,7 @@ def _rules(batch: Batch) -> list[dict[str, Any]]:
     of first use), citations of all packs; each pack is read once however many schedules
     use it."""
     seen: dict[str, dict[str, Any]] = {}
-    packs = {id(r.pack): r.pack for r in batch.reports}
+    packs = {id(p): p for r in batch.reports for p in r.packs}
     for pack in packs.values():
         for check in shared.pack_rules(pack).values():
             rule = seen.get(check.id)
@@ -153,7 +153,7 @@ def _result(report: Report, f: Finding, rule_index: dict[str, int],
         "properties": {"subject": _s(f.subject), "severity": f.severity, "basis": f.basis,
                        "required": shared.amount(f.required, u),
                        "provided": shared.amount(f.provided, u), "source": _s(f.source),
-                       "rulePack": report.pack.id,
+                       "rulePack": report.pack_of(f),
                        **({} if f.condition is None else {"condition": _s(f.condition)}),
                        **_result_review(report, f)},
     }

@@ -108,21 +108,41 @@ def pack_rules(pack: RulePack) -> dict[str, PackRule]:
     return out
 
 
-def check_title(report: Report, rule: str) -> str:
-    """The pack's title of a check or requirement, or what the engine says it verifies."""
-    found = pack_rules(report.pack).get(rule)
+def _rules_of(report: Report, pack: str | None) -> dict[str, PackRule]:
+    chosen = next((p for p in report.packs if p.id == pack), report.pack)
+    return pack_rules(chosen)
+
+
+def check_title(report: Report, rule: str, pack: str | None = None) -> str:
+    """The pack's title of a check or requirement, or what the engine says it verifies;
+    ``pack``: the id of the pack whose rule it is (default the report's first)."""
+    found = _rules_of(report, pack).get(rule)
     return found.title if found is not None else what_it_verifies(rule)
 
 
-def check_source(report: Report, rule: str) -> str:
+def check_source(report: Report, rule: str, pack: str | None = None) -> str:
     """The pack's citation of a check or requirement; for a declared limit, the schedule that
     declares it."""
-    found = pack_rules(report.pack).get(rule)
+    found = _rules_of(report, pack).get(rule)
     if found is not None:
         return found.source
     if rule in DECLARED_CHECKS:
         return f"limit declared by the schedule {report.schedule_file}"
     return ""
+
+
+def rule_label(report: Report, pack: str | None, rule: str) -> str:
+    """A rule as a finding line names it: its id, prefixed with its pack's id where the rule is
+    a supplement pack's (a report with one pack reads as it always did)."""
+    return rule if pack in (None, report.pack.id) else f"{pack}: {rule}"
+
+
+def supplement_lines(report: Report) -> list[str]:
+    """One line per supplement pack checked beside the rates pack: id, title, where it applies."""
+    return [f"{s.pack.id} — {s.pack.title}"
+            + (" (on every system)" if s.systems is None
+               else f" (on {', '.join(sorted(s.systems))})")
+            for s in report.supplements]
 
 
 def declared_summary(report: Report) -> str:

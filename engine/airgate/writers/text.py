@@ -129,7 +129,28 @@ def _system(s: SystemResult, system: str, amounts: dict[str, str]) -> list[str]:
     lines += _exhaust_rows(s, system)
     lines += _dilution_rows(s, system)
     lines += _contaminant_rows(s, system, amounts)
+    lines += _pack_rows(s, system)
     return lines
+
+
+def _pack_rows(s: SystemResult, system: str) -> list[str]:
+    """What supplement packs computed on the zones (their equivalent clean airflow)."""
+    out: list[str] = []
+    for pid in sorted({p for z in s.zones for p in z.packs}):
+        q, pp = units.label("airflow", system), units.label("airflow_per_person", system)
+        rows = [["zone", f"ECA {q}", "Pz", f"ECA {pp}", f"target {pp}", "credited"]]
+        for z in s.zones:
+            t = z.packs.get(pid)
+            if t is None:
+                continue
+            credited = ", ".join(step.symbol for step in t.steps.values()
+                                 if step.symbol.startswith("Qc_"))
+            rows.append([clean(z.id), _num(t, "ECA", system), _num(t, "Pz", system),
+                         _num(t, "ECA_pp", system) if "ECA_pp" in t else "–",
+                         _num(t, "ECAi", system), credited])
+        out += ["", f"    {clean(pid)}: equivalent clean airflow of the credited mechanisms"]
+        out += _table(rows, right={1, 2, 3, 4})
+    return out
 
 
 def _condition_rows(s: SystemResult, system: str) -> list[str]:
@@ -207,11 +228,12 @@ def _dilution_rows(s: SystemResult, system: str) -> list[str]:
     return out + _table(rows, right=set(range(1, len(head))))
 
 
-def _findings(findings: list, label: str | None = None) -> list[str]:
+def _findings(report: Report, findings: list, label: str | None = None) -> list[str]:
     """Each finding: severity (or ``label``), subject, rule; message; where and source."""
     out = []
     for f in findings:
-        out.append(f"  {label or f.severity.upper():<8}{clean(f.subject)}  [{f.rule}]"
+        out.append(f"  {label or f.severity.upper():<8}{clean(f.subject)}  "
+                   f"[{clean(shared.rule_label(report, f.pack, f.rule))}]"
                    + ("  WAIVED" if f.waived else ""))
         out.append(f"      {clean(f.message)}")
         out.append(f"      at {clean(f.location)} · {clean(f.source)}")
@@ -226,7 +248,7 @@ def _declared(report: Report) -> list[str]:
         return []
     out = [f"{shared.DECLARED_HEADING} — {shared.declared_summary(report)}",
            f"    ({shared.DECLARED_NOTE})"]
-    out += _findings(report.declared_findings, "MISSED")
+    out += _findings(report, report.declared_findings, "MISSED")
     return out + [""]
 
 
@@ -260,6 +282,7 @@ def render(report: Report, gate: str | None = None) -> str:
     if pack.verify:
         out.append("           table values partly entered from memory: verify against the "
                    "adopted edition")
+    out += [f"also     : {clean(line)}" for line in shared.supplement_lines(report)]
     out += [f"note     : {n}" for n in report.notes]
     out.append("")
     for s in report.systems:
@@ -282,7 +305,7 @@ def render(report: Report, gate: str | None = None) -> str:
                + (f", {waived} waived" if waived else ""))
     if not report.code_findings:
         out.append("    none")
-    out += _findings(report.code_findings)
+    out += _findings(report, report.code_findings)
     out.append("")
     out += _declared(report)
     out += _waivers(report)

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 from airgate.evaluation.requirement_kinds import (
     air_class_limit,
+    clean_airflow,
     density_limit,
     ez_cap,
     formula,
@@ -26,5 +27,6 @@ EVALUATORS: dict[str, Behaviour] = {
     "density-limit": density_limit.BEHAVIOUR,
     "air-class-limit": air_class_limit.BEHAVIOUR,
     "minimum-filter": minimum_filter.BEHAVIOUR,
+    "clean-airflow": clean_airflow.BEHAVIOUR,
     "formula": formula.BEHAVIOUR,
 }

@@ -33,6 +33,8 @@ class Outcome:
     subject: str
     verdict: str
     finding: Finding | None = None
+    #: the pack of the requirement where the report lists several packs
+    pack: str | None = None
 
 
 @dataclass(frozen=True)
