@@ -85,6 +85,7 @@ SYSTEM_COLUMNS = (
     Column("recirculates", "Recirculates", "bool"),
     Column("filter.merv", "Filter MERV", "integer"),
     Column("filter.efficiency", "Filter efficiency", "number"),
+    Column("extra_rules", "Extra rules", "ids", aliases=("supplement packs",)),
     Column("notes", "Notes", "text"),
 )
 
