@@ -252,3 +252,17 @@ def test_unlisted_categories_are_said_to_be_unchecked(tmp_path):
     report = check(_write(tmp_path, data))
     assert any("ashrae-241-2023: no requirement of the pack applies to C/c (corridors)" in n
                for n in report.notes)
+
+
+def test_explain_writes_the_supplement_trail(tmp_path, capsys):
+    # the hand sum of the first test: (120 + 0.5*480 + 90) cfm = 450 cfm for 10 people
+    from airgate.cli import main
+
+    data = _schedule(["ashrae-62.1-2019", "ashrae-241-2023"], [
+        _system("A", "120 cfm", supply_airflow="600 cfm", filter={"efficiency": 0.5},
+                zone={"air_cleaners": [{"cadr": "90 cfm"}]})])
+    assert main(["explain", str(_write(tmp_path, data)), "--zone", "a"]) == 0
+    out = capsys.readouterr().out
+    assert "also rule pack ashrae-241-2023" in out
+    assert "rule pack ashrae-241-2023 (supplement pack)" in out
+    assert "= 120 + 240 + 90" in out and "= 45 cfm/person" in out

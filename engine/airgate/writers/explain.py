@@ -57,7 +57,8 @@ def _findings(report: Report, subject_prefix: str, exact: bool,
         mine = f.subject == subject_prefix or (not exact and f.subject.startswith(subject_prefix + "/"))
         if mine and f.condition in (None, condition):
             label = "MISSED (declared limit)" if f.declared else f.severity.upper()
-            out.append(f"  {label} [{f.rule}] {clean(f.subject)}: {clean(f.message)}")
+            rule = clean(shared.rule_label(report, f.pack, f.rule))
+            out.append(f"  {label} [{rule}] {clean(f.subject)}: {clean(f.message)}")
             out.append(f"      {f.source} · at {clean(f.location)}")
             if f.waiver is not None:
                 out.append(f"      {clean(shared.waived_line(f.waiver))}")
@@ -84,6 +85,8 @@ def zone(report: Report, s: SystemResult, z: ZoneResult) -> str:
         f"{head} — {clean(z.space)} ({z.space_label}) — {z.verdict.upper()}",
         f"  served by {clean(s.id)} ({s.kind}); written at {clean(z.location)}",
         f"  rule pack {report.pack.id} ({report.units} report units)",
+        *(f"  also rule pack {s_.pack.id}" for s_ in report.supplements
+          if s_.applies(s.id)),
         *_condition_line(report, s),
         "",
     ]
@@ -93,6 +96,9 @@ def zone(report: Report, s: SystemResult, z: ZoneResult) -> str:
         out += trail_lines(z.dilution, system)
     for cid, t in sorted(z.contaminants.items()):
         out += ["", f"  {clean(cid)} (well-mixed mass balance, every removal mechanism)"]
+        out += trail_lines(t, system)
+    for pid, t in sorted(z.packs.items()):
+        out += ["", f"  rule pack {clean(pid)} (supplement pack)"]
         out += trail_lines(t, system)
     out += ["", "Findings"] + _findings(report, f"{s.id}/{z.id}", exact=True,
                                         condition=s.condition)
