@@ -132,7 +132,8 @@ def test_a_rates_pack_listed_second_is_a_located_error(tmp_path):
     data = _schedule(["ashrae-62.1-2019", "imc-2018"], [_system("A", "120 cfm")])
     with pytest.raises(AirgateError) as info:
         check(_write(tmp_path, data))
-    assert "rates pack" in info.value.message and info.value.field == ("rules", 1)
+    err = info.value
+    assert "rates pack" in err.message and err.field == ("rules", 1) and err.line is not None
 
 
 def test_a_supplement_listed_first_is_a_located_error(tmp_path):

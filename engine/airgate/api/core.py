@@ -19,6 +19,7 @@ from airgate.errors import RulePackError, raise_all
 from airgate.evaluation import engine
 from airgate.evaluation import report as results
 from airgate.evaluation.checks import DECLARED_CHECKS, KNOWN_CHECKS
+from airgate.evaluation.report import Supplement
 from airgate.evaluation.review import CommentEntry, rule_errors, statuses
 from airgate.evaluation.waivers import WaiverEntry
 from airgate.models.loaded import LoadedSchedule
@@ -112,6 +113,8 @@ def evaluate(schedule: LoadedSchedule, pack: RulePack, *, waivers: Sequence[Waiv
     if also is None:
         also = [_pack(schedule, ref, False, search, ("rules", k + 1))
                 for k, ref in enumerate(schedule.model.rule_refs[1:])]
+        for k, p in enumerate(also):
+            _supplement(p, schedule, ("rules", k + 1))
     supplements = _supplements(schedule, list(also), search)
     if review:
         raise_all(rule_errors(review, [*KNOWN_CHECKS, *DECLARED_CHECKS, *pack.requirements,
@@ -144,6 +147,8 @@ def check(path: str | Path, rules: str | Sequence[str] | None = None, *, search:
         (lambda k: ("rules", k)) if isinstance(loaded.model.rules, list) else (lambda k: ("rules",)))
     packs = [_pack(loaded, str(ref), bool(given), search, where(k)) for k, ref in enumerate(refs)]
     _rates(packs[0], loaded if not given else None, where(0))
+    for k, p in enumerate(packs[1:], 1):
+        _supplement(p, loaded if not given else None, where(k))
     return evaluate(loaded, packs[0], waivers=waivers, as_of=as_of, review=review,
                     also=packs[1:], search=search)
 
@@ -160,19 +165,26 @@ def _rates(pack: RulePack, loaded: LoadedSchedule | None, field: tuple = ("rules
     raise RulePackError(message, field=field, hint=hint)
 
 
+def _supplement(pack: RulePack, loaded: LoadedSchedule | None, field: tuple) -> None:
+    """A pack after the first is a supplement pack: a rates pack there is an input error,
+    located in the schedule where ``loaded`` is given."""
+    if pack.role == "supplement":
+        return
+    message = (f"rule pack {pack.id} is a rates pack: a schedule is evaluated under one rates "
+               "pack, listed first; the packs after it must be supplement packs")
+    hint = "check the schedule under each rates pack in its own run (airgate compare shows " \
+           "the difference)"
+    if loaded is not None:
+        raise loaded.error(message, field, hint=hint)
+    raise RulePackError(message, field=field, hint=hint)
+
+
 def _supplements(loaded: LoadedSchedule, also: list[RulePack], search: tuple) -> list:
     """The supplement packs of an evaluation: ``also`` on every system, then each pack a system
     lists under ``extra_rules`` on the systems that list it (a pack already on every system is
     not repeated). A rates pack here is an input error where it is named."""
-    from airgate.evaluation.report import Supplement
-
     for k, p in enumerate(also):
-        if p.role != "supplement":
-            raise RulePackError(
-                f"rule pack {p.id} is a rates pack: a schedule is evaluated under one rates "
-                "pack, listed first; the packs after it must be supplement packs",
-                field=("rules", k + 1), hint="check the schedule under each rates pack in its "
-                "own run (airgate compare shows the difference)")
+        _supplement(p, None, ("also", k))
     out = [Supplement(p) for p in also]
     wide = {p.id for p in also}
     scoped: dict[str, tuple[RulePack, set[str]]] = {}
