@@ -171,3 +171,105 @@ def test_the_code_pack_keeps_the_iaq_procedure_under_its_section_403_2_exception
     intake = next(f for f in report.findings if f.rule == "iaqp-intake")
     assert intake.required.value == pytest.approx(100.0, rel=1e-6)  # L/s
     assert "International Mechanical Code" in intake.source
+
+
+# --- the 2021 edition (imc-2021), a layer on imc-2018 -------------------------------------------
+
+#: Washington State Register WSR 23-15-016 (2023): WAC 51-52-0403 Table 403.3.1.1, the state's
+#: adoption of the 2021 International Mechanical Code, row 'Gym, stadium, arena (play area)':
+#: (occupant density /1000 ft², Rp cfm/person, Ra cfm/ft²)
+WSR_23_15_016_PLAY_AREA = (7, 20, 0.18)
+
+
+def test_the_2021_pack_cites_the_2021_edition_where_it_amends_and_2018_where_it_inherits():
+    pack = load_pack("imc-2021")
+    assert pack.lineage == ("imc-2021", "imc-2018", "ashrae-62.1-2019")
+    gym = pack.categories["gym-sports-arena-play-area"]
+    # International Mechanical Code 2021 Table 403.3.1.1, compared with WSR 23-15-016
+    assert (gym.printed["density"], gym.printed["Rp"], gym.printed["Ra"]) == WSR_23_15_016_PLAY_AREA
+    assert all(gym.provenance_of(k) == "published" for k in ("Rp", "Ra", "density"))
+    assert gym.provenance_of("air_class") == "from memory" and gym.air_class == 1
+    assert gym.cite("Rp").startswith("International Mechanical Code, 2021 edition, Table 403.3.1.1")
+    assert "WSR 23-15-016" in gym.notes
+    office = pack.categories["office-space"]  # not amended in 2021: the 2018 edition's row
+    assert office.cite("Rp").startswith("International Mechanical Code, 2018 edition, Table 403.3.1.1")
+    # the equations the code prints are re-cited by the 2021 edition's section numbers
+    code_eqs = {k for k, e in load_pack("imc-2018").equations.items()
+                if e.source.document == "International Mechanical Code"}
+    assert code_eqs and all(pack.equations[k].source.edition == "2021" for k in code_eqs)
+    amended = {c.id for c in pack.checks.values()
+               if c.source.document == "International Mechanical Code"}
+    assert amended and all(pack.checks[i].source.edition == "2021" for i in amended)
+    assert set(pack.methods) == {"table", "detailed"} and pack.default_method == "table"
+    # only the play-area row is published for 2021; the rest is the 2018 pack's
+    published_2021 = {c.id for c in pack.categories.values()
+                      if c.provenance_of("Rp") == "published" and "2021 edition" in c.cite("Rp")}
+    assert published_2021 == {"gym-sports-arena-play-area"}
+
+
+def _diff(capsys, old: str, new: str, fmt: str) -> str:
+    assert main(["rules", "diff", old, new, "--format", fmt]) == 0
+    return capsys.readouterr().out
+
+
+def test_diff_between_the_two_editions_lists_only_what_2021_changes(capsys):
+    d = json.loads(_diff(capsys, "imc-2018", "imc-2021", "json"))
+    assert (d["from"]["edition"], d["to"]["edition"]) == ("2018", "2021")
+    assert d["to"]["extends"] == "imc-2018"
+    sections = {s["name"]: s for s in d["sections"]}
+    assert not any(s["added"] or s["removed"] for s in d["sections"])
+    occ = sections["occupancy"]["changed"]
+    assert [c["id"] for c in occ] == ["gym-sports-arena-play-area"]
+    fields = {f["field"]: (f["from"], f["to"]) for f in occ[0]["fields"]}
+    assert fields["label"] == ("Gym, sports arena (play area)", "Gym, stadium, arena (play area)")
+    assert fields["air_class"] == (2, 1)
+    assert "Rp" not in fields  # the 2018 pack already keeps the standard's 20 cfm/person
+    for name in ("checks", "equations"):  # re-cited to 2021, nothing else changed
+        for c in sections[name]["changed"]:
+            assert {f["field"].rsplit(".", 1)[-1] for f in c["fields"]} == {"edition"}, c
+            assert all((f["from"], f["to"]) == ("2018", "2021") for f in c["fields"])
+    for name in ("air_distribution", "ventilation_efficiency", "exhaust", "requirements"):
+        assert not sections[name]["changed"], name
+    pack = {c["field"]: (c["from"], c["to"]) for c in d["pack"]}
+    assert pack["edition"] == ("2018", "2021") and pack["extends"] == ("ashrae-62.1-2019", "imc-2018")
+
+
+@pytest.mark.parametrize(("old", "new"), [("imc-2018", "imc-2021"),
+                                          ("ashrae-62.1-2019", "imc-2021")])
+def test_diff_of_the_editions_in_text_and_markdown_holds_every_entry_of_the_json(capsys, old, new):
+    d = json.loads(_diff(capsys, old, new, "json"))
+    markdown = _diff(capsys, old, new, "markdown")
+    text = _diff(capsys, old, new, "text")
+    assert markdown.startswith(f"# Rule pack diff: {old} → {new}\n")
+    rows = [line for line in markdown.splitlines() if line.startswith("| ") and
+            not line.startswith(("| id ", "| field ", "| |", "| from ", "| to "))]
+    assert len(rows) == len(d["pack"]) + sum(
+        len(s["added"]) + len(s["removed"]) + sum(len(c["fields"]) for c in s["changed"])
+        for s in d["sections"])
+    for s in d["sections"]:
+        for c in s["changed"]:
+            assert f"  ~ {c['id']}  " in text, c["id"]
+        for a in s["added"]:
+            assert f"  + {a['id']}" in text, a["id"]
+    for out in (markdown, text):
+        assert out.rstrip().endswith("licensed professional of record govern.")
+
+
+@pytest.mark.parametrize(("pack_id", "edition"), [("imc-2018", "2018"), ("imc-2021", "2021")])
+def test_the_demo_checks_under_each_edition_and_the_report_names_the_governing_code(
+        capsys, pack_id, edition):
+    code = main(["check", str(DEMO), "--rules", pack_id, "--format", "json"])
+    assert code in (0, 1)
+    report = json.loads(capsys.readouterr().out)
+    rules = report["rules"]
+    assert (rules["id"], rules["document"], rules["edition"]) == (
+        pack_id, "International Mechanical Code", edition)
+    assert any("the adopted local code and the licensed professional of record govern" in c
+               for c in report["cautions"])
+    assert main(["check", str(DEMO), "--rules", pack_id]) == code
+    text = capsys.readouterr().out
+    assert f"rule pack: {pack_id} — International Mechanical Code {edition}" in text
+    chain = " → ".join(load_pack(pack_id).lineage)
+    assert f"layers: {chain}" in text
+    # the findings cite the edition whose sections they apply
+    assert f"International Mechanical Code, {edition} edition, Section 403.3.1.1.2" in text

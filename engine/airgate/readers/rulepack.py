@@ -202,11 +202,14 @@ def _amended(doc: Any, row: dict[str, Any]) -> dict[str, dict[str, Any]]:
 
 
 def _value_provenance(doc: Any, row: dict[str, Any]) -> dict[str, str]:
-    """Provenance of single values: the row's own, then that of each amendment of a value."""
+    """Provenance of single values: the row's own, then that of each amendment of a value (or,
+    where the amendment sets ``value_provenance`` too, the one it gives that value)."""
     out = dict(row.get("value_provenance", {}))
-    for name, rec in _amended(doc, row).items():
+    amended = _amended(doc, row)
+    own = row.get("value_provenance", {}) if "value_provenance" in amended else {}
+    for name, rec in amended.items():
         if name in OccupancyCategory.VALUES:
-            out[name] = rec["provenance"]
+            out[name] = own.get(name, rec["provenance"])
     return out
 
 
