@@ -164,6 +164,38 @@ def test_larger_of_instead_of_the_sum(tmp_path, evaluate):
     assert finding.provided.value / CFM == pytest.approx(190.0)  # a single-zone system's intake
 
 
+def test_larger_of_air_changes_per_hour_of_the_zone_volume(tmp_path, evaluate):
+    # "n air changes per hour but not less than the table's rate" (invented figure: 2 /h). An
+    # office of 1000 ft² × 10 ft = 10,000 ft³ with 10 people: 2 × 10,000 / 60 = 333.3 cfm, larger
+    # than 5 × 10 + 0.06 × 1000 = 110 cfm, so Vbz = 333.3 cfm (Ez 1.0). With a volume stated
+    # instead: 6,000 ft³ → 200 cfm. Without height or volume the figure cannot be worked out:
+    # not evaluated, and the table's 110 cfm stands.
+    pack(tmp_path, """\
+      - id: ach
+        kind: larger-of
+        severity: fail
+        missing: warning
+        message: "At least 2 air changes per hour (invented)"
+        air_changes: 2
+        at: Vbz
+        applies_to: {space: [office-space]}
+        source: {section: "Section 3"}
+        provenance: invented
+""")
+    zones = [zone("101", "office-space", "1000 ft2", 10, height="10 ft"),
+             zone("102", "office-space", "1000 ft2", 10, volume="6000 ft3"),
+             zone("103", "office-space", "1000 ft2", 10)]
+    data = schedule([{"id": "DOAS-1", "kind": "outdoor-air", "outdoor_air": "700 cfm",
+                      "zones": zones}], rules=str(tmp_path / "city-1.yaml"))
+    report = evaluate(data)
+    vbz = [z.trail.value("Vbz") / CFM for z in report.systems[0].zones]
+    assert vbz == pytest.approx([2 * 10_000 / 60, 2 * 6_000 / 60, 110.0])
+    assert outcome(report, "ach", "DOAS-1/101") == "pass"
+    assert outcome(report, "ach", "DOAS-1/103") == "not-evaluated"
+    finding = next(f for f in report.findings if f.rule == "ach")
+    assert finding.severity == "warning" and "states no height or volume" in finding.message
+
+
 def test_formula_requirement_on_systems_and_missing_inputs(tmp_path, evaluate):
     # An invented over-supply limit: a system's intake at most 1.5 × Vot.
     pack(tmp_path, """\

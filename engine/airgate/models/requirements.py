@@ -56,7 +56,8 @@ class RequirementKind:
 #: evaluation in ``evaluation/requirement_kinds/``, and its keys in the pack schema)
 KINDS: dict[str, RequirementKind] = {k.name: k for k in (
     RequirementKind("larger-of", "zone",
-                    {"per_person": "airflow_per_person", "per_area": "airflow_per_area"},
+                    {"per_person": "airflow_per_person", "per_area": "airflow_per_area",
+                     "air_changes": "rate"},
                     frozenset({"at", "instead_of_sum"}), modifies=True,
                     summary="Vbz (or Voz) is the larger of the procedure's and the pack's figures"),
     RequirementKind("ez-cap", "zone", {"max_ez": None}, modifies=True,
@@ -165,7 +166,7 @@ class Requirement:
     provenance: str
     selector: Selector
     #: kind parameters in internal units: per_person [L/s per person], per_area [L/s per m²],
-    #: max_ez [–], max_density [person/m²], merv [–], max_class [–]
+    #: air_changes [1/h], max_ez [–], max_density [person/m²], merv [–], max_class [–]
     params: dict[str, float] = field(default_factory=dict)
     #: the same parameters as written in the pack, in the pack's units
     printed: dict[str, Any] = field(default_factory=dict)

@@ -1,5 +1,6 @@
 """``larger-of``: the zone's outdoor airflow is the larger of the procedure's figure and the pack's
-(a per-person floor, a per-area minimum), compared at Voz (default) or Vbz.
+(a per-person floor, a per-area minimum, a number of air changes per hour of the zone's volume),
+compared at Voz (default) or Vbz.
 
 The governing figure is carried by effective rates, Rp·Pz + Ra·Az = the larger figure, so the
 zone and system calculations that follow (Voz, ΣVoz, Vou, Zpz, Ev, Vot) all use it. The trail
@@ -15,11 +16,20 @@ from airgate.evaluation.requirement_kinds.common import (
     TOL,
     Behaviour,
     Effect,
+    Target,
     modified,
     occupants,
 )
 from airgate.models.requirements import Requirement
 from airgate.models.rules import OccupancyCategory
+from airgate.procedures.numeric import PER_HOUR
+
+
+def zone_volume(zone: Any) -> float | None:
+    """The zone's volume as stated, else height × floor area, else None [m³]."""
+    if zone.volume is not None:
+        return zone.volume
+    return None if zone.height is None else zone.height * zone.area
 
 
 def adjust(run: Any, req: Requirement, system: Any, zone: Any, cat: OccupancyCategory, ez: Any):
@@ -38,6 +48,13 @@ def adjust(run: Any, req: Requirement, system: Any, zone: Any, cat: OccupancyCat
     if "per_area" in req.params:
         figures.append((f"{req.printed['per_area']:g} {ra_unit} × Az",
                         req.params["per_area"] * k * az, (0.0, req.params["per_area"] * k)))
+    volume = zone_volume(zone)
+    if "air_changes" in req.params and volume is not None and az > 0:
+        # n air changes per hour of V [m³] are n·V/3.6 L/s, carried as an area rate over Az
+        flow = req.params["air_changes"] * volume / PER_HOUR
+        figures.append((f"{req.printed['air_changes']:g} /h × V", flow * k, (0.0, flow * k / az)))
+    if len(figures) == 0:
+        return cat, ez
     best = figures[0]
     for f in figures[1:]:
         if f[1] > best[1] * (1 + TOL) + TOL:
@@ -55,4 +72,15 @@ def adjust(run: Any, req: Requirement, system: Any, zone: Any, cat: OccupancyCat
     return dataclasses.replace(cat, rp=rp, ra=ra, cited={**cat.cited, "Rp": text, "Ra": text}), ez
 
 
-BEHAVIOUR = Behaviour(evaluate=modified, adjust=adjust)
+def evaluate(run: Any, req: Requirement, t: Target) -> None:
+    """As every modifying kind (:func:`modified`); not evaluated where a figure of air changes
+    needs a volume the zone does not state."""
+    if "air_changes" in req.params and zone_volume(t.ctx.zone) is None:
+        run.missing(req, t.subject, f"{t.subject} states no height or volume, so "
+                    f"{req.printed['air_changes']:g} air changes per hour cannot be worked out",
+                    t.where, t.emitter, system=t.system.id, zone=t.zone_id)
+        return
+    modified(run, req, t)
+
+
+BEHAVIOUR = Behaviour(evaluate=evaluate, adjust=adjust)
