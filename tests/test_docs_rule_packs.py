@@ -92,9 +92,10 @@ YAML = [yaml.safe_load(body) for lang, body in BLOCKS if lang == "yaml"]
                          ids=lambda y: next(iter(y)))
 def test_yaml_excerpts_are_the_packs_own(fragment):
     candidates = []
-    state = ROOT / "docs" / "examples" / "tarrow-packs" / "imc-2018-tarrow.yaml"
+    states = [ROOT / "docs" / "examples" / "tarrow-packs" / f"imc-{edition}-tarrow.yaml"
+              for edition in (2018, 2021)]
     for data in [_pack("ashrae-62.1-2019-quillby-bay"), _pack("en-16798-1-2019"),
-                 yaml.safe_load(state.read_text(encoding="utf-8"))]:
+                 *(yaml.safe_load(state.read_text(encoding="utf-8")) for state in states)]:
         amend = data.get("amend", {})
         candidates += [data, amend, *amend.values(), *data.get("requirements", []),
                        *data.get("occupancy", {}).get("categories", [])]

@@ -26,16 +26,19 @@ def test_each_file_shown_is_the_example_file():
              for p in sorted(FOLDER.rglob("*.yaml"))}
     assert shown == files
     assert len([n for n in files if "/tests/imc-2018-tarrow/" in n]) == 3
+    assert len([n for n in files if "/tests/imc-2021-tarrow/" in n]) == 2
 
 
 def test_the_state_layer_validates_and_its_cases_pass(capsys):
-    assert main(["rules", "validate", "imc-2018-tarrow", "--rules-path", str(FOLDER)]) == 0
+    for pack_id in ("imc-2018-tarrow", "imc-2021-tarrow"):  # one layer per adopted edition
+        assert main(["rules", "validate", pack_id, "--rules-path", str(FOLDER)]) == 0
     assert main(["rules", "test", str(FOLDER)]) == 0
     out = capsys.readouterr().out
-    assert "Result: PASS — 1 pack, 3 cases, 5 expectations; 0 failed" in out
+    assert "Result: PASS — 2 packs, 5 cases, 9 expectations; 0 failed" in out
 
 
 def test_the_state_layer_is_not_a_built_in_pack(capsys):
     # Only the fictional city ships in rules/; the state layer is an example beside the docs.
     assert main(["rules", "list"]) == 0
-    assert "imc-2018-tarrow" not in capsys.readouterr().out
+    out = capsys.readouterr().out
+    assert "imc-2018-tarrow" not in out and "imc-2021-tarrow" not in out
