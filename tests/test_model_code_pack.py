@@ -273,3 +273,25 @@ def test_the_demo_checks_under_each_edition_and_the_report_names_the_governing_c
     assert f"layers: {chain}" in text
     # the findings cite the edition whose sections they apply
     assert f"International Mechanical Code, {edition} edition, Section 403.3.1.1.2" in text
+
+
+#: the published schema of `airgate rules diff --format json` (rules/schema/pack-diff.schema.json)
+PACK_DIFF_SCHEMA = json.loads((Path(__file__).resolve().parents[1] / "rules" / "schema"
+                               / "pack-diff.schema.json").read_text(encoding="utf-8"))
+
+
+@pytest.mark.parametrize(("old", "new"), [
+    ("ashrae-62.1-2019", "imc-2018"), ("imc-2018", "imc-2021"), ("ashrae-62.1-2019", "imc-2021"),
+    ("ashrae-62.1-2019", "ashrae-62.1-2019-quillby-bay"), ("ashrae-62.1-2019", "ashrae-62.1-2019-si"),
+    ("ashrae-62.1-2019", "en-16798-1-2019"), ("imc-2021", "imc-2018")])
+def test_json_diffs_follow_the_published_schema(capsys, old, new):
+    import jsonschema
+
+    jsonschema.Draft202012Validator.check_schema(PACK_DIFF_SCHEMA)
+    d = json.loads(_diff(capsys, old, new, "json"))
+    jsonschema.Draft202012Validator(PACK_DIFF_SCHEMA).validate(d)
+    assert [s["name"] for s in d["sections"]] == PACK_DIFF_SCHEMA["$defs"]["section"][
+        "properties"]["name"]["enum"]
+    assert any("licensed professional of record govern" in c for c in d["cautions"])
+    assert main(["schema", "pack-diff"]) == 0
+    assert json.loads(capsys.readouterr().out) == PACK_DIFF_SCHEMA

@@ -9,11 +9,11 @@ from airgate.commands.common import add_output, emit
 from airgate.errors import EXIT_PASS
 
 #: the published schemas: the schedule, a rule pack, a pack test case, the JSON report, the
-#: JSON comparison (airgate compare)
-SCHEMAS = ("schedule", "rules", "pack-test", "report", "compare")
+#: JSON comparison (airgate compare), the JSON difference of two packs (airgate rules diff)
+SCHEMAS = ("schedule", "rules", "pack-test", "report", "compare", "pack-diff")
 #: schemas kept as files under rules/schema/
 _FILES = {"pack-test": "pack-test.schema.json", "report": "report.schema.json",
-          "compare": "compare.schema.json"}
+          "compare": "compare.schema.json", "pack-diff": "pack-diff.schema.json"}
 
 
 def register(sub) -> None:

@@ -126,6 +126,7 @@ def diff_json(d: PackDiff) -> dict[str, Any]:
                       "changed": [{"id": k, "fields": [ch(c) for c in cs]} for k, cs in s.changed]}
                      for s in d.sections],
         "summary": d.counts(),
+        "cautions": [GOVERN],
     }
 
 
