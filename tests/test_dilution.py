@@ -116,7 +116,7 @@ def test_loss_breakdown_adds_up_to_equivalent_clean_airflow():
     parts = dil.loss_breakdown(v, 240.0, 600.0, 0.9997, 180.0, 0.2, 0.5)
     assert parts == pytest.approx({"outdoor_air": 240.0, "recirculation_filter": 599.82,
                                    "air_cleaner": 180.0, "deposition": 24.0,
-                                   "inactivation": 60.0}, rel=1e-14)
+                                   "inactivation": 60.0, "makeup_air": 0.0}, rel=1e-14)
     lam = dil.loss_rate(v, 240.0, 600.0, 0.9997, 180.0, 0.2, 0.5)
     assert sum(parts.values()) == pytest.approx(lam * v, rel=1e-14)
 

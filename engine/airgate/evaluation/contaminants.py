@@ -14,6 +14,7 @@ import math
 
 import numpy as np
 
+from airgate.evaluation import zone_air
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.dilution import (
     MB,
@@ -38,7 +39,8 @@ MECHANISMS = (("outdoor_air", "Qc_oa", "outdoor air"),
               ("recirculation_filter", "Qc_filter", "filtration of recirculated air"),
               ("air_cleaner", "Qc_cleaner", "in-room air cleaners"),
               ("deposition", "Qc_dep", "deposition"),
-              ("inactivation", "Qc_inact", "inactivation"))
+              ("inactivation", "Qc_inact", "inactivation"),
+              ("makeup_air", "Qc_mu", "makeup air entering with the zone's exhaust"))
 
 
 def filter_efficiency(system: System, c: Contaminant, table: DataTable) -> tuple[float, str]:
@@ -111,15 +113,22 @@ def _single(ctx, z, c, system: System, schedule: Schedule, emitter: Emitter,
     kw = dict(recirc_airflow=q_rec, recirc_efficiency=t.value("eta"),
               cadr=t.value("CADR"), k_deposition=t.value("k_dep"),
               k_inactivation=t.value("k_inact"))
+    if "Q_mu" in co2:
+        t.add("Q_mu", co2.value("Q_mu"), "airflow", note=co2["Q_mu"].note)
+        t.add("C_mu", c.outdoor, "concentration", note=f"{c.unit}/m³: outdoor air, through no "
+              "system filter")
+        kw["makeup_airflow"] = t.value("Q_mu")
     if dilution.loss_rate(t.value("V"), q_oa, **kw) <= 0:
         return None  # nothing removes it: no steady state
+    mu = dict(makeup_concentration=c.outdoor) if "Q_mu" in co2 else {}
     c_ss = dilution.steady_state_concentration(
         per_second(t.value("E")), t.value("V"), q_oa, c.outdoor,
-        outdoor_filter_efficiency=t.value("eta"),
-        **kw)
+        outdoor_filter_efficiency=t.value("eta"), **kw, **mu)
     t.add("C_ss", float(c_ss), "concentration", note=f"{c.unit}/m³ at steady state", source=MB)
     parts = dilution.loss_breakdown(t.value("V"), q_oa, **kw)
     for key, symbol, what in MECHANISMS:
+        if key == "makeup_air" and "Q_mu" not in t:
+            continue  # no exhaust made up besides the supply
         t.add(symbol, float(parts[key]), "airflow", note=f"equivalent clean airflow: {what}")
     _totals(t, z)
     pieces = _profile_pieces(schedule, ctx)
@@ -128,7 +137,7 @@ def _single(ctx, z, c, system: System, schedule: Schedule, emitter: Emitter,
         b2, f2 = _two_days(*pieces)
         sol = dilution.piecewise_solution(
             b2, per_second(people * f2 + rest), t.value("V"), q_oa, c.outdoor,
-            outdoor_concentration=c.outdoor, outdoor_filter_efficiency=t.value("eta"), **kw)
+            outdoor_concentration=c.outdoor, outdoor_filter_efficiency=t.value("eta"), **kw, **mu)
         t.add("C_peak", float(dilution.peak_concentration(sol, 24.0, 48.0)[0]), "concentration",
               note=f"peak over the design day, profile '{ctx.zone.profile}'", source=MB)
         t.add("C_twa", float(dilution.time_weighted_average(sol, 24.0, 48.0)), "concentration",
@@ -137,7 +146,7 @@ def _single(ctx, z, c, system: System, schedule: Schedule, emitter: Emitter,
 
 
 def _totals(t: Trail, z: ZoneResult) -> None:
-    total = sum(t.value(s) for _, s, _ in MECHANISMS)
+    total = sum(t.value(s) for _, s, _ in MECHANISMS if s in t)
     t.add("Qc", total, "airflow", note="equivalent clean airflow, all mechanisms")
     pz = z.trail.value("Pz")
     if pz > 0:
@@ -151,6 +160,7 @@ def _coupled(system: System, ctxs, result: SystemResult, c: Contaminant, schedul
     """Steady state (and design day) of one contaminant over a multiple-zone system."""
     if any(z.dilution is None for z in result.zones):
         return None
+    air = zone_air.system_air(system, result, schedule)
     trails = [_start(ctx, z, c, filt) for ctx, z in zip(ctxs, result.zones)]
     eta = trails[0].value("eta")
     vpz = np.array([z.trail.value("Vpz") for z in result.zones])
@@ -159,10 +169,11 @@ def _coupled(system: System, ctxs, result: SystemResult, c: Contaminant, schedul
               recirc_filter_efficiency=eta,
               cadr=np.array([t.value("CADR") for t in trails]),
               k_deposition=np.array([t.value("k_dep") for t in trails]),
-              k_inactivation=np.array([t.value("k_inact") for t in trails]))
+              k_inactivation=np.array([t.value("k_inact") for t in trails]),
+              makeup_concentration=c.outdoor, **air.kwargs())
     gen = per_second(np.array([t.value("E") for t in trails]))
-    steady = coupled.coupled_steady_state(gen, vol, vpz, system.outdoor_air, **kw)
-    for t, z, cz, v in zip(trails, result.zones, steady.zone, vpz):
+    steady = coupled.coupled_steady_state(gen, vol, vpz, air.intake, **kw)
+    for t, z, cz, v, mu in zip(trails, result.zones, steady.zone, vpz, air.makeup):
         t.add("C_ss", float(cz), "concentration", note=f"{c.unit}/m³ at steady state; zones "
               "coupled through the return air", source=MB)
         t.add("C_s", float(steady.supply), "concentration", note="mixed supply air")
@@ -179,21 +190,26 @@ def _coupled(system: System, ctxs, result: SystemResult, c: Contaminant, schedul
                                     ("Qc_inact", parts["inactivation"], "inactivation")):
             t.add(symbol, value, "airflow", note=f"equivalent clean airflow: {what}")
         total = supply + t.value("Qc_cleaner") + t.value("Qc_dep") + t.value("Qc_inact")
+        if mu > 0:
+            t.add("Qc_mu", mu * (1 - c.outdoor / cz) if cz > 0 else 0.0, "airflow",
+                  note="equivalent clean airflow delivered by the outdoor makeup air entering "
+                       "with the zone's exhaust (coupled)")
+            total += t.value("Qc_mu")
         t.add("Qc", total, "airflow", note="equivalent clean airflow, all mechanisms")
         if z.trail.value("Pz") > 0:
             t.add("Qc_pp", total / z.trail.value("Pz"), "airflow_per_person",
                   note="equivalent clean airflow per person")
         t.add("ACHe", dilution.air_change_rate(total, t.value("V")), "rate",
               note="equivalent air changes per hour")
-    _coupled_day(system, ctxs, result, c, schedule, trails, vol, vpz, kw)
+    _coupled_day(system, ctxs, result, c, schedule, trails, vol, vpz, air.intake, kw)
     return trails
 
 
-def _coupled_day(system, ctxs, result, c, schedule, trails, vol, vpz, kw) -> None:
+def _coupled_day(system, ctxs, result, c, schedule, trails, vol, vpz, intake, kw) -> None:
     parts = [_generation(ctx, z, c) for ctx, z in zip(ctxs, result.zones)]
     day = coupled_design_day(schedule, system, ctxs, per_second(np.array([p for p, _ in parts])),
                              per_second(np.array([r for _, r in parts])), vol, vpz, c.outdoor,
-                             **kw)
+                             intake, **kw)
     if day is None:
         return
     times, conc, _, _ = day

@@ -13,6 +13,7 @@ Alvarez-Cohen 2001, docs/references.md).
 
 from __future__ import annotations
 
+import dataclasses
 import functools
 import math
 from dataclasses import dataclass
@@ -20,6 +21,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from airgate import units
+from airgate.evaluation import zone_air
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.report import SystemResult, ZoneResult
 from airgate.evaluation.system_kinds import kind_of
@@ -104,12 +106,37 @@ def _per_airflow(flow: str, u: str) -> str:
     return f"({k}·{{{flow}}})" if k else f"{{{flow}}}"
 
 
-def _steady_single(t: Trail, q_oa: float, q_note: str, u: str) -> None:
-    t.add("Q_oa", q_oa, "airflow", note=q_note)
-    c = dilution.steady_state_concentration(PPM * t.value("G"), t.value("V"), q_oa,
-                                            t.value("C_out"))
-    t.add("C_ss", float(c), "concentration_ppm",
-          formula="{C_out} + 10⁶·{G} / " + _per_airflow("Q_oa", u), source=MB,
+def _airflow_sum(flows: tuple[str, ...], u: str) -> str:
+    """``{Q1} + {Q2}`` as L/s in a formula: ``(0.4719·({Q1} + {Q2}))`` when shown in cfm."""
+    if len(flows) == 1:
+        return _per_airflow(flows[0], u)
+    k = unit_factor(("airflow",), (), u)
+    inner = " + ".join(f"{{{f}}}" for f in flows)
+    return f"({k}·({inner}))" if k else f"({inner})"
+
+
+def makeup_of(t: Trail) -> dict:
+    """The makeup inflow of a single-path zone's trail as procedure arguments."""
+    if "Q_mu" not in t:
+        return {}
+    c = t.value("C_mu") if "C_mu" in t else t.value("C_out")
+    return dict(makeup_airflow=t.value("Q_mu"), makeup_concentration=c)
+
+
+def _steady_single(t: Trail, u: str) -> None:
+    """C_ss of a single-path zone: outdoor air Q_oa and makeup air Q_mu at C_mu (the outdoor
+    level unless transferred) dilute the generation G."""
+    mu = makeup_of(t)
+    c = dilution.steady_state_concentration(PPM * t.value("G"), t.value("V"), t.value("Q_oa"),
+                                            t.value("C_out"), **mu)
+    if not mu:
+        formula = "{C_out} + 10⁶·{G} / " + _per_airflow("Q_oa", u)
+    elif "C_mu" in t:
+        formula = ("{C_out} + (10⁶·{G} + " + _per_airflow("Q_mu", u) + "·({C_mu} − {C_out})) / "
+                   + _airflow_sum(("Q_oa", "Q_mu"), u))
+    else:
+        formula = "{C_out} + 10⁶·{G} / " + _airflow_sum(("Q_oa", "Q_mu"), u)
+    t.add("C_ss", float(c), "concentration_ppm", formula=formula, source=MB,
           note="steady state at design occupancy")
     _excess(t)
 
@@ -119,14 +146,21 @@ def _excess(t: Trail) -> None:
           formula="{C_ss} − {C_out}", note="CO2 above outdoor at steady state")
 
 
-def _rates(t: Trail, u: str) -> None:
-    """Change rate, time constant, time to 95 % of steady state, purge times."""
+def _rates(t: Trail, u: str, coupled: bool = False) -> None:
+    """Change rate, time constant, time to 95 % of steady state, purge times (``coupled``: Q_oa
+    is the CO2-equivalent airflow, which already counts the makeup air)."""
     q = t.value("Q_oa")
-    lam = float(dilution.loss_rate(t.value("V"), q))
+    mu = 0.0 if coupled else makeup_of(t).get("makeup_airflow", 0.0)
+    lam = float(dilution.loss_rate(t.value("V"), q, makeup_airflow=mu))
     ach = unit_factor(("airflow",), ("volume", "rate"), u,
                       times=units.factor("L/s/m**3", "1/hour"))
-    t.add("ACH", lam, "rate", formula=f"{ach}·{{Q_oa}} / {{V}}", source=MB,
-          note="outdoor-air changes per hour (CO2 has no other removal)")
+    if mu > 0:
+        t.add("ACH", lam, "rate", formula=f"{ach}·({{Q_oa}} + {{Q_mu}}) / {{V}}", source=MB,
+              note="air changes per hour of the outdoor and makeup air that dilute the zone "
+                   "(CO2 has no other removal)")
+    else:
+        t.add("ACH", lam, "rate", formula=f"{ach}·{{Q_oa}} / {{V}}", source=MB,
+              note="outdoor-air changes per hour (CO2 has no other removal)")
     if lam <= 0:
         return
     per_hour = unit_factor((), ("rate", "time"), u) or "1"
@@ -266,7 +300,7 @@ def _weekend_peak(t: Trail, profile) -> None:
     b2, f2 = _two_days(breaks, fractions)
     sol = dilution.piecewise_solution(b2, PPM * t.value("G") * f2, t.value("V"),
                                       t.value("Q_oa"), t.value("C_out"),
-                                      outdoor_concentration=t.value("C_out"))
+                                      outdoor_concentration=t.value("C_out"), **makeup_of(t))
     t.add("C_peak_weekend", float(dilution.peak_concentration(sol, 24.0, 48.0)[0]),
           "concentration_ppm", source=MB, note="peak over a weekend day (the profile's weekend "
           "variant, exact piecewise solution)")
@@ -276,7 +310,8 @@ def _day_series_single(t: Trail, breaks, fractions, name: str) -> Series:
     b2, f2 = _two_days(breaks, fractions)
     gen = PPM * t.value("G") * f2
     sol = dilution.piecewise_solution(b2, gen, t.value("V"), t.value("Q_oa"),
-                                      t.value("C_out"), outdoor_concentration=t.value("C_out"))
+                                      t.value("C_out"), outdoor_concentration=t.value("C_out"),
+                                      **makeup_of(t))
     t.add("C_peak", float(dilution.peak_concentration(sol, 24.0, 48.0)[0]), "concentration_ppm",
           note=f"peak over the design day, profile '{name}' (exact piecewise solution)",
           source=MB)
@@ -295,7 +330,7 @@ def _rise_single(t: Trail) -> Series:
     steady state C_ss, exact (one piece of the piecewise solution)."""
     sol = dilution.piecewise_solution(np.array([0.0, 24.0]), np.array([PPM * t.value("G")]),
                                       t.value("V"), t.value("Q_oa"), t.value("C_out"),
-                                      outdoor_concentration=t.value("C_out"))
+                                      outdoor_concentration=t.value("C_out"), **makeup_of(t))
     ppm = np.asarray(dilution.evaluate_piecewise(sol, DAY_TIMES), dtype=float)
     return Series(DAY_TIMES, ppm, np.ones_like(DAY_TIMES), RISE)
 
@@ -316,16 +351,24 @@ def _limit(t: Trail, ctx: ZoneContext, schedule: Schedule, emitter: Emitter) -> 
 
 
 def _single_path(system, ctxs, result, schedule, emitter, out, table) -> None:
+    airs = zone_air.zone_air(schedule)
     for ctx, z in zip(ctxs, result.zones):
         volume = volume_of(ctx)
+        air = airs.get(z.id)
         if volume is None:
+            continue
+        if air is not None and air.makeup == "transfer":
+            result.notes.append(zone_air.transfer_note(z.id, air))
             continue
         t = _start(ctx, z, schedule, volume, table)
         t.copy_from(z.trail, "Voz_delivered")
-        q, note = t.value("Voz_delivered"), "= Voz_delivered, the outdoor air the zone receives"
-        if q <= 0:
-            t.add("Q_oa", 0.0, "airflow", note="no outdoor air reaches the zone: CO2 rises "
-                  "without bound while it is occupied (no steady state)")
+        q = t.value("Voz_delivered")
+        t.add("Q_oa", q, "airflow", note="= Voz_delivered, the outdoor air the zone receives")
+        zone_air.single_path(t, air, z.trail)
+        if q + makeup_of(t).get("makeup_airflow", 0.0) <= 0:
+            t.steps["Q_oa"] = dataclasses.replace(
+                t["Q_oa"], note="no outdoor air reaches the zone: CO2 rises without bound while "
+                                "it is occupied (no steady state)")
             if schedule.project.co2_limit is not None and t.value("G") > 0:
                 emitter.declare("concentration-limit", ctx.subject, "no outdoor air reaches "
                                 "the occupied zone: CO2 rises without bound, above the "
@@ -334,14 +377,14 @@ def _single_path(system, ctxs, result, schedule, emitter, out, table) -> None:
             z.dilution = t
             out.append(z)
             continue
-        _steady_single(t, q, note, emitter.units)
+        _steady_single(t, emitter.units)
         _rates(t, emitter.units)
         _dcv(t, z, emitter.units)
         _capacity(t, z, q, result.notes)
         pieces = _profile_pieces(schedule, ctx)
-        if pieces is None and t.value("Q_oa") > 0:
+        if pieces is None:
             z.rise = _rise_single(t)
-        if pieces is not None and t.value("Q_oa") > 0:
+        else:
             z.series = _day_series_single(t, *pieces, ctx.zone.profile)
             _short_term(t, ctx, z, z.series.occupancy[:-1], emitter)
             _weekend_peak(t, schedule.profiles[ctx.zone.profile])
@@ -351,22 +394,31 @@ def _single_path(system, ctxs, result, schedule, emitter, out, table) -> None:
 
 
 def _coupled_steady(system: System, ctxs, result: SystemResult, trails: list[Trail],
-                    units_: str) -> bool:
+                    units_: str, air) -> bool:
     """Steady CO2 of every zone of a multiple-zone system through the coupled balance."""
     vpz = np.array([z.trail.value("Vpz") for z in result.zones])
     vot = system.outdoor_air
-    if vot > vpz.sum() * (1 + 1e-12) or vot <= 0:
+    if vot > vpz.sum() * (1 + 1e-12) or vot <= 0 or air.intake > vpz.sum() * (1 + 1e-12):
         return False
+    if air.intake > vot:
+        result.notes.append(zone_air.intake_note(system.id, vot, air.intake, units_))
     gen = np.array([PPM * t.value("G") for t in trails])
     c_out = trails[0].value("C_out")
     volume = np.array([t.value("V") for t in trails])
-    steady = coupled.coupled_steady_state(gen, volume, vpz, vot, outdoor_concentration=c_out)
-    x = vot / vpz.sum()
-    for t, z, c in zip(trails, result.zones, steady.zone):
+    steady = coupled.coupled_steady_state(gen, volume, vpz, air.intake,
+                                          outdoor_concentration=c_out,
+                                          makeup_concentration=c_out, **air.kwargs())
+    x = air.intake / vpz.sum()
+    for t, z, c, za in zip(trails, result.zones, steady.zone, air.airs):
         t.copy_from(z.trail, "Vpz")
-        t.add("x", x, "fraction", note="outdoor fraction of the supply at the scheduled intake")
+        t.add("x", x, "fraction", note="outdoor fraction of the supply at the scheduled intake"
+              if air.intake == vot else "outdoor fraction of the supply at the intake the "
+              "balance uses, ΣE_z (above the scheduled intake; assumed)")
+        zone_air.coupled_steps(t, za, z.trail)
         t.add("C_ss", float(c), "concentration_ppm", source=MB,
-              note="steady state at design occupancy; zones coupled through the return air")
+              note="steady state at design occupancy; zones coupled through the return air"
+                   + ("; the air it exhausts or gives away leaves unreturned"
+                      if za and za.any else ""))
         _excess(t)
         excess = t.value("C_excess")
         if excess > 0 and t.value("G") > 0:
@@ -374,6 +426,10 @@ def _coupled_steady(system: System, ctxs, result: SystemResult, trails: list[Tra
                   formula="10⁶·{G} / " + _per_airflow("C_excess", units_), source=MB,
                   note="CO2-equivalent outdoor airflow: the clean air that alone would hold the "
                        "zone at C_ss (coupled balance; the procedure's measure is Voz_delivered)")
+        elif "Q_mu" in t:
+            t.add("Q_oa", z.trail.value("Vpz") * x + t.value("Q_mu"), "airflow",
+                  formula="{Vpz}·{x} + {Q_mu}", note="outdoor air in the zone's primary air and "
+                  "its outdoor makeup (no CO2 is generated in the zone)")
         else:
             t.add("Q_oa", z.trail.value("Vpz") * x, "airflow", formula="{Vpz}·{x}",
                   note="outdoor air in the zone's primary air (no CO2 is generated in the zone)")
@@ -382,11 +438,11 @@ def _coupled_steady(system: System, ctxs, result: SystemResult, trails: list[Tra
 
 def coupled_design_day(schedule: Schedule, system: System, ctxs, people: np.ndarray,
                        constant: np.ndarray, volume: np.ndarray, primary_airflow: np.ndarray,
-                       c0: float, **losses):
+                       c0: float, intake: float, **losses):
     """Exact coupled run over two design days (the second is reported, so it starts periodic).
 
     Zone generation on each piece is ``people·fraction + constant`` [C·L/s]; zones without a
-    profile stay at design occupancy. Returns ``(times, zone_concentrations, breaks,
+    profile stay at design occupancy; ``intake`` [L/s] is the intake the balance uses. Returns ``(times, zone_concentrations, breaks,
     fractions)`` for the second day (times in h after midnight, concentrations (n_t, n_zones),
     the day's breaks and per-zone fractions), or None when no zone has a profile.
     """
@@ -405,7 +461,7 @@ def coupled_design_day(schedule: Schedule, system: System, ctxs, people: np.ndar
     try:
         run = coupled.coupled_piecewise_transient(
             b2, f2 * people[None, :] + constant[None, :], volume, primary_airflow,
-            system.outdoor_air, np.full(len(ctxs), c0), times, **losses)
+            intake, np.full(len(ctxs), c0), times, **losses)
     except coupled.TooManyRates:
         return None  # above the size limit no design day is computed (docs/dilution.md)
     return DAY_TIMES, run.zone, breaks, frac
@@ -420,13 +476,13 @@ def add_day_statistics(t: Trail, series: np.ndarray, times: np.ndarray, kind: st
           note="24-hour time-weighted average")
 
 
-def _coupled_series(schedule: Schedule, system: System, ctxs, result, trails) -> None:
+def _coupled_series(schedule: Schedule, system: System, ctxs, result, trails, air) -> None:
     c_out = trails[0].value("C_out")
     day = coupled_design_day(
         schedule, system, ctxs, np.array([PPM * t.value("G") for t in trails]),
         np.zeros(len(ctxs)), np.array([t.value("V") for t in trails]),
-        np.array([z.trail.value("Vpz") for z in result.zones]), c_out,
-        outdoor_concentration=c_out)
+        np.array([z.trail.value("Vpz") for z in result.zones]), c_out, air.intake,
+        outdoor_concentration=c_out, makeup_concentration=c_out, **air.kwargs())
     if day is None:
         return
     times, conc, breaks, frac = day
@@ -441,12 +497,15 @@ def _multiple_zone(system, ctxs, result, schedule, emitter, out, table) -> None:
     volumes = [volume_of(c) for c in ctxs]
     if any(v is None for v in volumes) or any("Vpz" not in z.trail for z in result.zones):
         return  # the coupled balance needs every zone's volume and primary airflow
-    trails = [_start(c, z, schedule, v, table) for c, z, v in zip(ctxs, result.zones, volumes)]
-    if not _coupled_steady(system, ctxs, result, trails, emitter.units):
+    air = zone_air.system_air(system, result, schedule)
+    if air is None:
         return
-    _coupled_series(schedule, system, ctxs, result, trails)
+    trails = [_start(c, z, schedule, v, table) for c, z, v in zip(ctxs, result.zones, volumes)]
+    if not _coupled_steady(system, ctxs, result, trails, emitter.units, air):
+        return
+    _coupled_series(schedule, system, ctxs, result, trails, air)
     for ctx, z, t in zip(ctxs, result.zones, trails):
-        _rates(t, emitter.units)
+        _rates(t, emitter.units, coupled=True)
         _dcv(t, z, emitter.units)
         if z.series is not None and ctx.zone.profile is not None:
             _short_term(t, ctx, z, z.series.occupancy[:-1], emitter)

@@ -12,18 +12,21 @@ of [2]_ Section 6.2.5, whose detailed ventilation efficiency (Normative Appendix
 condition that every zone does as well as if it alone received its Voz of clean air.
 
 - Zone z (volume V_z) receives primary airflow Vpz of mixed supply at concentration C_s. It
-  loses E_z of exhaust straight outdoors (0 <= E_z <= Vpz); the rest, Vpz − E_z, returns to
-  the air handler. Air mass is balanced: what enters a zone leaves it; transfer air between
-  zones and infiltration are not modelled.
+  loses E_z of exhaust straight outdoors (0 <= E_z <= Vpz), drawn from its supply; the rest,
+  Vpz − E_z, returns to the air handler. Besides its supply it may receive makeup air M_z at a
+  concentration C_mu,z (outdoor air, infiltration, or air transferred from a zone outside the
+  system whose concentration is known), which leaves again at C_z with an exhaust that is not
+  drawn from the supply: a diagonal term, so the structure below is kept. What enters a zone
+  leaves it. Transfer air between zones of one system adds off-diagonal terms: not here.
 - The air handler supplies Vps = ΣVpz: an outdoor intake Vot (fraction x = Vot/Vps) through a
   filter of efficiency η_oa, and recirculated return Vps − Vot through a filter of efficiency
   η_rec. The recirculated air has the mixed-return concentration C_r = Σ(Vpz − E_z)·C_z / R
   with R = Σ(Vpz − E_z); the return not recirculated, R − (Vps − Vot) = Vot − ΣE_z, is relieved
   at the air handler. Hence ΣE_z <= Vot <= Vps.
 - ``C_s = [Vot·(1 − η_oa)·C_out + (Vps − Vot)·(1 − η_rec)·C_r] / Vps = a + Σ w_z·C_z``.
-- Zone balance: ``V_z·dC_z/dt = 3.6·[G_z + Vpz·C_s − (Vpz + L_z)·C_z]`` (3.6 = PER_HOUR:
-  airflows in L/s, V in m³, t in h) with the in-room losses
-  ``L_z = CADR_z + (k_dep,z + k_inact,z)·V_z/3.6``.
+- Zone balance: ``V_z·dC_z/dt = 3.6·[G_z + M_z·C_mu,z + Vpz·C_s − (Vpz + L_z)·C_z]``
+  (3.6 = PER_HOUR: airflows in L/s, V in m³, t in h) with the in-room losses and makeup
+  outflow ``L_z = CADR_z + (k_dep,z + k_inact,z)·V_z/3.6 + M_z``.
 
 The system matrix is diagonal plus rank one (coupling only through the scalar C_s), which
 gives the O(N) steady state below (Sherman–Morrison in closed form) and the exact transient.
@@ -47,6 +50,8 @@ import numpy as np
 from airgate.procedures.numeric import (
     PER_HOUR,
     check_breaks as _check_breaks,
+    in_room_loss as _in_room_loss,
+    layout_pieces as _layout_pieces,
     exp_and_integral as _exp_and_integral,
     exp_convolution as _exp_convolution,
     exp_convolution_ramp as _exp_convolution_ramp,
@@ -189,7 +194,8 @@ def _steady(gen, vpz, loss, a, sysm):
 def coupled_steady_state(generation, volume, primary_airflow, outdoor_intake,
                          outdoor_concentration=0.0, outdoor_filter_efficiency=0.0,
                          recirc_filter_efficiency=0.0, zone_exhaust=0.0, cadr=0.0,
-                         k_deposition=0.0, k_inactivation=0.0):
+                         k_deposition=0.0, k_inactivation=0.0, makeup_airflow=0.0,
+                         makeup_concentration=0.0):
     """Steady zone and supply concentrations of a multiple-zone recirculating system.
 
     Zone balances ``0 = G_z + Vpz·C_s − (Vpz + L_z)·C_z`` with ``C_s = a + Σ w_z·C_z``
@@ -219,6 +225,11 @@ def coupled_steady_state(generation, volume, primary_airflow, outdoor_intake,
         In-room air cleaner clean-air delivery rate. [L/s]
     k_deposition, k_inactivation : float or array_like, shape (n_zones,)
         Deposition and inactivation rates. [1/h]
+    makeup_airflow : float or array_like, shape (n_zones,)
+        Makeup air M_z entering each zone besides its supply, leaving with an exhaust not
+        drawn from the supply (>= 0). [L/s]
+    makeup_concentration : float or array_like, shape (n_zones,)
+        Its concentration C_mu,z (C_out for outdoor makeup or infiltration; no filter). [C]
 
     Returns
     -------
@@ -238,13 +249,26 @@ def coupled_steady_state(generation, volume, primary_airflow, outdoor_intake,
     >>> res = coupled_steady_state([600.0, 200.0], 50.0, [1000.0, 1000.0], 500.0)
     >>> round(res.supply, 12), [round(float(c), 12) for c in res.zone]
     (1.2, [1.8, 1.4])
+
+    The second zone also exhausts 500 L/s made up by clean outdoor air (its return stays
+    1000 L/s), by hand: C_2 = (200 + 1000·C_s)/1500 and
+    C_s = 0.75·(C_1 + C_2)/2 with C_1 = 0.6 + C_s give C_s = 0.75·(0.6 + 200/1500)/(2 − 0.75
+    − 0.5) = 0.733333…, C_1 = 1.333333…, C_2 = 0.622222…:
+
+    >>> res = coupled_steady_state([600.0, 200.0], 50.0, [1000.0, 1000.0], 500.0,
+    ...                            makeup_airflow=[0.0, 500.0])
+    >>> round(res.supply, 9), [round(float(c), 9) for c in res.zone]
+    (0.733333333, [1.333333333, 0.622222222])
     """
     sysm = _system(primary_airflow, outdoor_intake, zone_exhaust, recirc_filter_efficiency)
     a, _ = supply_coupling(primary_airflow, outdoor_intake, outdoor_concentration,
                            outdoor_filter_efficiency, recirc_filter_efficiency, zone_exhaust)
     vpz = np.asarray(primary_airflow, dtype=float)
-    gen = np.broadcast_to(_nonneg("generation", generation), vpz.shape)
+    makeup = np.broadcast_to(_nonneg("makeup_airflow", makeup_airflow), vpz.shape)
+    gen = np.broadcast_to(_nonneg("generation", generation), vpz.shape) + makeup * np.broadcast_to(
+        _nonneg("makeup_concentration", makeup_concentration), vpz.shape)
     loss = np.broadcast_to(_in_room_loss(volume, cadr, k_deposition, k_inactivation), vpz.shape)
+    loss = loss + makeup
     cz, cs = _steady(gen, vpz, loss, a, sysm)
     cr = float(np.sum(sysm.rho * cz)) if sysm.rho.sum() > 0 else float("nan")
     return CoupledSteadyState(cz, cs, cr)
@@ -253,7 +277,8 @@ def coupled_steady_state(generation, volume, primary_airflow, outdoor_intake,
 def coupled_required_intake(limit, generation, volume, primary_airflow,
                             outdoor_concentration=0.0, outdoor_filter_efficiency=0.0,
                             recirc_filter_efficiency=0.0, zone_exhaust=0.0, cadr=0.0,
-                            k_deposition=0.0, k_inactivation=0.0, ez=1.0):
+                            k_deposition=0.0, k_inactivation=0.0, ez=1.0, makeup_airflow=0.0,
+                            makeup_concentration=0.0):
     """Least outdoor air intake that holds every zone of a coupled system at its limit.
 
     The steady state of :func:`coupled_steady_state` with each zone's generation counted as
@@ -268,9 +293,10 @@ def coupled_required_intake(limit, generation, volume, primary_airflow,
     limit : array_like, shape (n_zones,)
         Concentration limit of each zone (> 0; ``inf`` for a zone without one). [C]
     generation, volume, primary_airflow, outdoor_concentration, outdoor_filter_efficiency, \
-recirc_filter_efficiency, zone_exhaust, cadr, k_deposition, k_inactivation
+recirc_filter_efficiency, zone_exhaust, cadr, k_deposition, k_inactivation, makeup_airflow, \
+makeup_concentration
         As in :func:`coupled_steady_state`. [C·L/s], [m3], [L/s], [C], [-], [-], [L/s],
-        [L/s], [1/h], [1/h]
+        [L/s], [1/h], [1/h], [L/s], [C]
     ez : float or array_like, shape (n_zones,)
         Zone air distribution effectiveness Ez (> 0). [-]
 
@@ -301,7 +327,8 @@ recirc_filter_efficiency, zone_exhaust, cadr, k_deposition, k_inactivation
     kw = dict(outdoor_concentration=outdoor_concentration,
               outdoor_filter_efficiency=outdoor_filter_efficiency,
               recirc_filter_efficiency=recirc_filter_efficiency, zone_exhaust=zone_exhaust,
-              cadr=cadr, k_deposition=k_deposition, k_inactivation=k_inactivation)
+              cadr=cadr, k_deposition=k_deposition, k_inactivation=k_inactivation,
+              makeup_airflow=makeup_airflow, makeup_concentration=makeup_concentration)
 
     def worst(vot: float) -> float:
         try:
@@ -324,14 +351,6 @@ recirc_filter_efficiency, zone_exhaust, cadr, k_deposition, k_inactivation
         else:
             lo = mid
     return hi
-
-
-def _in_room_loss(volume, cadr, k_deposition, k_inactivation):
-    """L_z = CADR + (k_dep + k_inact)·V/PER_HOUR [L/s]."""
-    v = _positive("volume", volume)
-    return (_nonneg("cadr", cadr)
-            + (_nonneg("k_deposition", k_deposition)
-               + _nonneg("k_inactivation", k_inactivation)) * v / PER_HOUR)
 
 
 # --------------------------------------------------------------------------- exact transient
@@ -452,31 +471,12 @@ class CoupledTransient(NamedTuple):
     supply: np.ndarray
 
 
-def _layout(n, zone_inputs, system_inputs):
-    """Broadcast zone inputs to (n_pieces, n_zones) and system inputs to (n_pieces,)."""
-    zone = {}
-    for name, value in zone_inputs.items():
-        a = np.asarray(value, dtype=float)
-        if a.ndim > 2 or a.ndim == 2 and a.shape[0] not in (1, n):
-            raise ValueError(f"{name}: shape {a.shape}, expected (n_zones,) or (n_pieces={n}, "
-                             f"n_zones)")
-        zone[name] = a.reshape((1,) * (2 - a.ndim) + a.shape)
-    shape = (n, np.broadcast_shapes(*(a.shape for a in zone.values()))[1])
-    zone = {k: np.broadcast_to(a, shape) for k, a in zone.items()}
-    system = {}
-    for name, value in system_inputs.items():
-        a = np.asarray(value, dtype=float)
-        if a.ndim > 1 or a.ndim == 1 and a.shape[0] not in (1, n):
-            raise ValueError(f"{name}: shape {a.shape}, expected a scalar or (n_pieces={n},)")
-        system[name] = np.broadcast_to(a, (n,))
-    return zone, system
-
-
 def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, primary_airflow,
                                 outdoor_intake, c0, output_times, *, outdoor_concentration=0.0,
                                 outdoor_filter_efficiency=0.0, recirc_filter_efficiency=0.0,
                                 zone_exhaust=0.0, cadr=0.0, k_deposition=0.0,
-                                k_inactivation=0.0):
+                                k_inactivation=0.0, makeup_airflow=0.0,
+                                makeup_concentration=0.0):
     """Exact transient of a coupled system for inputs constant on each piece.
 
     Solves ``V_z·dC_z/dt = 3.6·[G_z + Vpz·C_s − (Vpz + L_z)·C_z]``, ``C_s = a + Σ w_z C_z`` (module
@@ -521,6 +521,10 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
         Zone exhaust E_z and in-room CADR. [L/s]
     k_deposition, k_inactivation : float or array_like, shape (n_zones,) or (n_pieces, n_zones)
         In-room first-order losses. [1/h]
+    makeup_airflow, makeup_concentration : float or array_like, shape (n_zones,) or \
+(n_pieces, n_zones)
+        Makeup air besides the supply and its concentration, as in
+        :func:`coupled_steady_state` (a diagonal term: the structure is kept). [L/s], [C]
 
     Returns
     -------
@@ -550,18 +554,21 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
     """
     b = _check_breaks(times_breaks)
     n = b.size - 1
-    zone, system = _layout(
+    zone, system = _layout_pieces(
         n,
         dict(generation=generation_per_piece, primary_airflow=primary_airflow,
              zone_exhaust=zone_exhaust, cadr=cadr, k_deposition=k_deposition,
-             k_inactivation=k_inactivation),
+             k_inactivation=k_inactivation, makeup_airflow=makeup_airflow,
+             makeup_concentration=makeup_concentration),
         dict(outdoor_intake=outdoor_intake, outdoor_concentration=outdoor_concentration,
              outdoor_filter_efficiency=outdoor_filter_efficiency,
              recirc_filter_efficiency=recirc_filter_efficiency))
     vol = np.broadcast_to(_positive("volume", volume), zone["generation"].shape[1:])
     c = np.broadcast_to(_nonneg("c0", c0), vol.shape).astype(float)
-    gen = _nonneg("generation_per_piece", zone["generation"])
-    loss = _in_room_loss(vol, zone["cadr"], zone["k_deposition"], zone["k_inactivation"])
+    makeup = _nonneg("makeup_airflow", zone["makeup_airflow"])
+    gen = (_nonneg("generation_per_piece", zone["generation"])
+           + makeup * _nonneg("makeup_concentration", zone["makeup_concentration"]))
+    loss = _in_room_loss(vol, zone["cadr"], zone["k_deposition"], zone["k_inactivation"]) + makeup
     outdoor = (_nonneg("outdoor_concentration", system["outdoor_concentration"])
                * (1 - _fraction("outdoor_filter_efficiency",
                                 system["outdoor_filter_efficiency"])))

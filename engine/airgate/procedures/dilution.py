@@ -12,8 +12,11 @@ come from airflows as ``PER_HOUR·Q/V`` (:mod:`airgate.procedures.numeric`).
 
 The zone balance, a completely mixed flow reactor with first-order losses [1]_::
 
-    V·dC/dt = 3.6·[G + Q_oa·(1 − η_oa)·C_out − (Q_oa + η_rec·Q_rec + CADR)·C]
+    V·dC/dt = 3.6·[G + Q_oa·(1 − η_oa)·C_out + Q_mu·C_mu − (Q_oa + Q_mu + η_rec·Q_rec + CADR)·C]
               − (k_dep + k_inact)·V·C
+
+where Q_mu is makeup air entering besides the supply at concentration C_mu (outdoor air, or air
+transferred from another zone) and leaving, with the zone's exhaust, at the zone's concentration.
 
 is linear with constant coefficients between changes of its inputs, so every result here and
 in :mod:`airgate.procedures.piecewise` is its exact solution, never a numerical integration.
@@ -73,8 +76,9 @@ __all__ = [
 def steady_state_concentration(generation, volume, outdoor_airflow, outdoor_concentration=0.0,
                                outdoor_filter_efficiency=0.0, recirc_airflow=0.0,
                                recirc_efficiency=0.0, cadr=0.0, k_deposition=0.0,
-                               k_inactivation=0.0):
-    """Steady concentration of a well-mixed zone, ``C_ss = (G + Q_oa·(1 − η_oa)·C_out) / Q_c``.
+                               k_inactivation=0.0, makeup_airflow=0.0, makeup_concentration=0.0):
+    """Steady concentration of a well-mixed zone,
+    ``C_ss = (G + Q_oa·(1 − η_oa)·C_out + Q_mu·C_mu) / Q_c``.
 
     Q_c is the equivalent clean airflow (:func:`~airgate.procedures.losses.
     equivalent_clean_airflow`), λ·V/3.6 in L/s.
@@ -96,6 +100,12 @@ def steady_state_concentration(generation, volume, outdoor_airflow, outdoor_conc
     recirc_airflow, recirc_efficiency, cadr, k_deposition, k_inactivation
         As in :func:`~airgate.procedures.losses.loss_breakdown`. [L/s], [-], [L/s], [1/h],
         [1/h]
+    makeup_airflow : float or array_like
+        Makeup air Q_mu entering besides the supply and leaving with the zone's exhaust
+        (>= 0). [L/s]
+    makeup_concentration : float or array_like
+        Its concentration C_mu (>= 0): C_out for outdoor makeup (no filter), a source zone's
+        concentration for transferred air. [C]
 
     Returns
     -------
@@ -109,7 +119,8 @@ def steady_state_concentration(generation, volume, outdoor_airflow, outdoor_conc
 
     References
     ----------
-    Nazaroff & Alvarez-Cohen (2001), CMFR steady state.
+    Nazaroff & Alvarez-Cohen (2001), CMFR steady state (every inflow a source, every outflow at
+    the zone concentration a loss).
 
     Examples
     --------
@@ -117,17 +128,27 @@ def steady_state_concentration(generation, volume, outdoor_airflow, outdoor_conc
 
     >>> steady_state_concentration(100.0, 50.0, 50.0)
     2.0
+
+    The same zone exhausting 30 L/s made up by air transferred from a zone at 1.5, by hand
+    (100 + 30·1.5) / (50 + 30) = 145 / 80 = 1.8125:
+
+    >>> steady_state_concentration(100.0, 50.0, 50.0, makeup_airflow=30.0,
+    ...                            makeup_concentration=1.5)
+    1.8125
     """
     q_clean = np.asarray(equivalent_clean_airflow(volume, outdoor_airflow, recirc_airflow,
                                                   recirc_efficiency, cadr, k_deposition,
-                                                  k_inactivation))
+                                                  k_inactivation, makeup_airflow))
     if np.any(q_clean <= 0):
-        raise ValueError("outdoor_airflow, recirc_airflow·recirc_efficiency, cadr, k_deposition "
-                         "and k_inactivation are all 0 (no removal): no steady state")
+        raise ValueError("outdoor_airflow, makeup_airflow, recirc_airflow·recirc_efficiency, "
+                         "cadr, k_deposition and k_inactivation are all 0 (no removal): no "
+                         "steady state")
     source = (_nonneg("generation", generation)
               + _nonneg("outdoor_airflow", outdoor_airflow)
               * (1 - _fraction("outdoor_filter_efficiency", outdoor_filter_efficiency))
-              * _nonneg("outdoor_concentration", outdoor_concentration))
+              * _nonneg("outdoor_concentration", outdoor_concentration)
+              + _nonneg("makeup_airflow", makeup_airflow)
+              * _nonneg("makeup_concentration", makeup_concentration))
     with np.errstate(over="ignore"):  # a removal too small for the float range gives inf
         return _out(source / q_clean)
 

@@ -6,10 +6,11 @@ Pure functions on plain floats and numpy arrays (broadcasting), in the procedure
 (:mod:`airgate.procedures.numeric`). A float in gives a float out; an invalid input raises
 ValueError naming the parameter.
 
-Every first-order loss term of ``V·dC/dt = G + Q_oa·(1 − η_oa)·C_out − λ·V·C`` written as the
-airflow of clean air that would remove as much: outdoor air Q_oa, filtration η_rec·Q_rec,
-in-room air cleaners CADR, deposition k_dep·V and inactivation k_inact·V (each V/PER_HOUR in
-L/s); they add to λ·V.
+Every first-order loss term of ``V·dC/dt = G + Q_oa·(1 − η_oa)·C_out + Q_mu·C_mu − λ·V·C``
+written as the airflow of clean air that would remove as much: outdoor air Q_oa, the makeup air
+Q_mu that enters besides the supply and leaves with the zone's exhaust (its own concentration
+C_mu is a source term, not a loss), filtration η_rec·Q_rec, in-room air cleaners CADR,
+deposition k_dep·V and inactivation k_inact·V (each V/PER_HOUR in L/s); they add to λ·V.
 
 References
 ----------
@@ -36,7 +37,7 @@ __all__ = ["air_change_rate", "equivalent_clean_airflow", "inactivation_rate_fro
 
 
 def loss_breakdown(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficiency=0.0,
-                   cadr=0.0, k_deposition=0.0, k_inactivation=0.0):
+                   cadr=0.0, k_deposition=0.0, k_inactivation=0.0, makeup_airflow=0.0):
     """Equivalent clean airflow of each removal mechanism.
 
     Each first-order loss term of the zone balance written as the airflow of clean air that
@@ -58,17 +59,22 @@ def loss_breakdown(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficienc
         Deposition rate on surfaces (>= 0). [1/h]
     k_inactivation : float or array_like
         Inactivation (decay) rate (>= 0). [1/h]
+    makeup_airflow : float or array_like
+        Makeup air Q_mu entering the zone besides its supply, which leaves at the zone's
+        concentration with its exhaust (>= 0): the outflow it adds removes Q_mu·C. [L/s]
 
     Returns
     -------
     dict of str to float or ndarray
         ``outdoor_air`` = Q_oa, ``recirculation_filter`` = η_rec·Q_rec, ``air_cleaner`` = CADR,
-        ``deposition`` = k_dep·V/3.6, ``inactivation`` = k_inact·V/3.6. [L/s]
+        ``deposition`` = k_dep·V/3.6, ``inactivation`` = k_inact·V/3.6, ``makeup_air`` =
+        Q_mu. [L/s]
 
     References
     ----------
-    Nazaroff & Alvarez-Cohen (2001), CMFR balance with first-order losses; ASHRAE 241-2023
-    (equivalent clean airflow: outdoor air, filtration as airflow × efficiency, air cleaners).
+    Nazaroff & Alvarez-Cohen (2001), CMFR balance with first-order losses (an outflow at the
+    zone concentration is such a loss); ASHRAE 241-2023 (equivalent clean airflow: outdoor
+    air, filtration as airflow × efficiency, air cleaners).
 
     Examples
     --------
@@ -79,7 +85,7 @@ def loss_breakdown(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficienc
     ...                        cadr=40.0, k_deposition=0.2)
     >>> {k: round(v, 9) for k, v in parts.items()}
     {'outdoor_air': 50.0, 'recirculation_filter': 100.0, 'air_cleaner': 40.0,
-     'deposition': 5.0, 'inactivation': 0.0}
+     'deposition': 5.0, 'inactivation': 0.0, 'makeup_air': 0.0}
     """
     v = _nonneg("volume", volume)
     parts = {
@@ -89,6 +95,7 @@ def loss_breakdown(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficienc
         "air_cleaner": _nonneg("cadr", cadr),
         "deposition": _nonneg("k_deposition", k_deposition) * v / PER_HOUR,
         "inactivation": _nonneg("k_inactivation", k_inactivation) * v / PER_HOUR,
+        "makeup_air": _nonneg("makeup_airflow", makeup_airflow),
     }
     if all(np.ndim(p) == 0 for p in parts.values()):  # one zone: floats, no copies
         return {k: float(p) for k, p in parts.items()}
@@ -97,13 +104,14 @@ def loss_breakdown(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficienc
 
 
 def equivalent_clean_airflow(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficiency=0.0,
-                             cadr=0.0, k_deposition=0.0, k_inactivation=0.0):
-    """Equivalent clean airflow ``Q_oa + η_rec·Q_rec + CADR + (k_dep + k_inact)·V/3.6``.
+                             cadr=0.0, k_deposition=0.0, k_inactivation=0.0, makeup_airflow=0.0):
+    """Equivalent clean airflow ``Q_oa + η_rec·Q_rec + CADR + (k_dep + k_inact)·V/3.6 + Q_mu``.
 
     Parameters
     ----------
-    volume, outdoor_airflow, recirc_airflow, recirc_efficiency, cadr, k_deposition, k_inactivation
-        As in :func:`loss_breakdown`. [m3], [L/s], [L/s], [-], [L/s], [1/h], [1/h]
+    volume, outdoor_airflow, recirc_airflow, recirc_efficiency, cadr, k_deposition, \
+k_inactivation, makeup_airflow
+        As in :func:`loss_breakdown`. [m3], [L/s], [L/s], [-], [L/s], [1/h], [1/h], [L/s]
 
     Returns
     -------
@@ -120,14 +128,14 @@ def equivalent_clean_airflow(volume, outdoor_airflow, recirc_airflow=0.0, recirc
     195.0
     """
     parts = loss_breakdown(volume, outdoor_airflow, recirc_airflow, recirc_efficiency, cadr,
-                           k_deposition, k_inactivation)
+                           k_deposition, k_inactivation, makeup_airflow)
     return _out(parts["outdoor_air"] + parts["recirculation_filter"] + parts["air_cleaner"]
-                + parts["deposition"] + parts["inactivation"])
+                + parts["deposition"] + parts["inactivation"] + parts["makeup_air"])
 
 
 def loss_rate(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficiency=0.0, cadr=0.0,
-              k_deposition=0.0, k_inactivation=0.0):
-    """First-order loss rate, ``λ = 3.6·(Q_oa + η_rec·Q_rec + CADR)/V + k_dep + k_inact``.
+              k_deposition=0.0, k_inactivation=0.0, makeup_airflow=0.0):
+    """First-order loss rate, ``λ = 3.6·(Q_oa + Q_mu + η_rec·Q_rec + CADR)/V + k_dep + k_inact``.
 
     With outdoor air alone it is the outdoor-air change rate (ACH).
 
@@ -135,8 +143,9 @@ def loss_rate(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficiency=0.0
     ----------
     volume : float or array_like
         Zone volume (> 0). [m3]
-    outdoor_airflow, recirc_airflow, recirc_efficiency, cadr, k_deposition, k_inactivation
-        As in :func:`loss_breakdown`. [L/s], [L/s], [-], [L/s], [1/h], [1/h]
+    outdoor_airflow, recirc_airflow, recirc_efficiency, cadr, k_deposition, k_inactivation, \
+makeup_airflow
+        As in :func:`loss_breakdown`. [L/s], [L/s], [-], [L/s], [1/h], [1/h], [L/s]
 
     Returns
     -------
@@ -157,7 +166,7 @@ def loss_rate(volume, outdoor_airflow, recirc_airflow=0.0, recirc_efficiency=0.0
     v = _positive("volume", volume)
     return _out(PER_HOUR * equivalent_clean_airflow(v, outdoor_airflow, recirc_airflow,
                                                     recirc_efficiency, cadr, k_deposition,
-                                                    k_inactivation) / v)
+                                                    k_inactivation, makeup_airflow) / v)
 
 
 def air_change_rate(airflow, volume):

@@ -414,3 +414,31 @@ def finite(name, value):
     if not (math.isfinite(float(a)) if a.ndim == 0 else bool(np.all(np.isfinite(a)))):
         raise ValueError(f"{name} must be finite, got {value!r}")
     return a
+
+
+def layout_pieces(n, zone_inputs, system_inputs):
+    """Broadcast zone inputs to (n_pieces, n_zones) and system inputs to (n_pieces,)."""
+    zone = {}
+    for name, value in zone_inputs.items():
+        a = np.asarray(value, dtype=float)
+        if a.ndim > 2 or a.ndim == 2 and a.shape[0] not in (1, n):
+            raise ValueError(f"{name}: shape {a.shape}, expected (n_zones,) or (n_pieces={n}, "
+                             f"n_zones)")
+        zone[name] = a.reshape((1,) * (2 - a.ndim) + a.shape)
+    shape = (n, np.broadcast_shapes(*(a.shape for a in zone.values()))[1])
+    zone = {k: np.broadcast_to(a, shape) for k, a in zone.items()}
+    system = {}
+    for name, value in system_inputs.items():
+        a = np.asarray(value, dtype=float)
+        if a.ndim > 1 or a.ndim == 1 and a.shape[0] not in (1, n):
+            raise ValueError(f"{name}: shape {a.shape}, expected a scalar or (n_pieces={n},)")
+        system[name] = np.broadcast_to(a, (n,))
+    return zone, system
+
+
+def in_room_loss(volume, cadr, k_deposition, k_inactivation):
+    """L_z = CADR + (k_dep + k_inact)·V/PER_HOUR [L/s]."""
+    v = positive("volume", volume)
+    return (nonneg("cadr", cadr)
+            + (nonneg("k_deposition", k_deposition)
+               + nonneg("k_inactivation", k_inactivation)) * v / PER_HOUR)

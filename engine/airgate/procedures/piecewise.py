@@ -90,7 +90,7 @@ class PiecewiseSolution(NamedTuple):
     loss_rate : ndarray, shape (n_pieces, *zone_shape)
         λ on each piece. [1/h]
     source_rate : ndarray, shape (n_pieces, *zone_shape)
-        s = (G + Q_oa·(1 − η_oa)·C_out) / V on each piece. [C/h]
+        s = 3.6·(G + Q_oa·(1 − η_oa)·C_out + Q_mu·C_mu) / V on each piece. [C/h]
     c_end : ndarray, shape zone_shape
         Concentration at ``breaks[-1]``. [C]
     """
@@ -116,7 +116,7 @@ def _per_piece(name, value, n_pieces, zone_nd, *, allow_pieces=True):
 def piecewise_solution(times_breaks, generation_per_piece, volume, outdoor_airflow, c0, *,
                        outdoor_concentration=0.0, outdoor_filter_efficiency=0.0,
                        recirc_airflow=0.0, recirc_efficiency=0.0, cadr=0.0, k_deposition=0.0,
-                       k_inactivation=0.0):
+                       k_inactivation=0.0, makeup_airflow=0.0, makeup_concentration=0.0):
     """Exact solution of the zone balance for inputs constant on each piece.
 
     Piece by piece ``C(t) = C_ss + (C0 − C_ss)·e^(−λt)`` (the CMFR transient, exact for a
@@ -147,6 +147,9 @@ def piecewise_solution(times_breaks, generation_per_piece, volume, outdoor_airfl
         η_oa. [-]
     recirc_airflow, recirc_efficiency, cadr, k_deposition, k_inactivation
         As in :func:`~airgate.procedures.losses.loss_rate`. [L/s], [-], [L/s], [1/h], [1/h]
+    makeup_airflow, makeup_concentration
+        Makeup air besides the supply and its concentration (constant on each piece), as in
+        :func:`~airgate.procedures.dilution.steady_state_concentration`. [L/s], [C]
 
     Returns
     -------
@@ -180,12 +183,16 @@ def piecewise_solution(times_breaks, generation_per_piece, volume, outdoor_airfl
     q_clean = np.asarray(equivalent_clean_airflow(v, q_oa, piece("recirc_airflow", recirc_airflow),
                              piece("recirc_efficiency", recirc_efficiency), piece("cadr", cadr),
                              piece("k_deposition", k_deposition),
-                             piece("k_inactivation", k_inactivation)))
+                             piece("k_inactivation", k_inactivation),
+                             piece("makeup_airflow", makeup_airflow)))
     source = (_nonneg("generation_per_piece", g) + _nonneg("outdoor_airflow", q_oa)
               * (1 - _fraction("outdoor_filter_efficiency",
                                piece("outdoor_filter_efficiency", outdoor_filter_efficiency)))
               * _nonneg("outdoor_concentration",
-                        piece("outdoor_concentration", outdoor_concentration)))
+                        piece("outdoor_concentration", outdoor_concentration))
+              + _nonneg("makeup_airflow", piece("makeup_airflow", makeup_airflow))
+              * _nonneg("makeup_concentration",
+                        piece("makeup_concentration", makeup_concentration)))
     c_init = _nonneg("c0", c0)
     if c_init.ndim > nd:
         raise ValueError("c0 must have at most the zone shape")
@@ -252,7 +259,8 @@ def evaluate_piecewise(solution, times):
 def piecewise_transient(times_breaks, generation_per_piece, volume, outdoor_airflow, c0,
                         output_times, *, outdoor_concentration=0.0,
                         outdoor_filter_efficiency=0.0, recirc_airflow=0.0,
-                        recirc_efficiency=0.0, cadr=0.0, k_deposition=0.0, k_inactivation=0.0):
+                        recirc_efficiency=0.0, cadr=0.0, k_deposition=0.0, k_inactivation=0.0,
+                        makeup_airflow=0.0, makeup_concentration=0.0):
     """Concentration at output times for piecewise-constant inputs (exact).
 
     :func:`piecewise_solution` then :func:`evaluate_piecewise`.
@@ -265,8 +273,8 @@ def piecewise_transient(times_breaks, generation_per_piece, volume, outdoor_airf
         Times within the span of ``times_breaks``, any order. [h]
     outdoor_concentration, outdoor_filter_efficiency, recirc_airflow, recirc_efficiency
         As in :func:`piecewise_solution`. [C], [-], [L/s], [-]
-    cadr, k_deposition, k_inactivation
-        As in :func:`piecewise_solution`. [L/s], [1/h], [1/h]
+    cadr, k_deposition, k_inactivation, makeup_airflow, makeup_concentration
+        As in :func:`piecewise_solution`. [L/s], [1/h], [1/h], [L/s], [C]
 
     Returns
     -------
@@ -291,7 +299,8 @@ def piecewise_transient(times_breaks, generation_per_piece, volume, outdoor_airf
         outdoor_concentration=outdoor_concentration,
         outdoor_filter_efficiency=outdoor_filter_efficiency, recirc_airflow=recirc_airflow,
         recirc_efficiency=recirc_efficiency, cadr=cadr, k_deposition=k_deposition,
-        k_inactivation=k_inactivation)
+        k_inactivation=k_inactivation, makeup_airflow=makeup_airflow,
+        makeup_concentration=makeup_concentration)
     t, b = np.atleast_1d(np.asarray(output_times, dtype=float)), sol.breaks
     if t.ndim != 1 or np.any(~np.isfinite(t)) or np.any((t < b[0]) | (t > b[-1])):
         raise ValueError(f"output_times must be 1-D and lie within [{b[0]}, {b[-1]}] h")
