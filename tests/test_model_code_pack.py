@@ -17,6 +17,8 @@ import pytest
 from airgate.cli import main
 from airgate.readers.rulepack import load_pack
 
+from conftest import CFM, schedule
+
 DEMO = Path(__file__).resolve().parents[1] / "fixtures" / "demo" / "fernhollow-civic-centre.yaml"
 
 CHILD = """\
@@ -295,3 +297,31 @@ def test_json_diffs_follow_the_published_schema(capsys, old, new):
     assert any("licensed professional of record govern" in c for c in d["cautions"])
     assert main(["schema", "pack-diff"]) == 0
     assert json.loads(capsys.readouterr().out) == PACK_DIFF_SCHEMA
+
+
+def test_the_code_pack_toilet_rows_are_toilet_rooms_for_transfer_air(evaluate):
+    # The code's toilet rows amend the standard's with `change`, which keeps the base row's
+    # toilet_room mark, and add the dwelling toilet and bathroom row with its own: class 2 air
+    # may then be transferred to them (ANSI/ASHRAE 62.1-2019 Section 5.16.3.2, from memory; the
+    # code's Section 403.2.2 lets transfer air make up toilet room exhaust, from memory).
+    pack = load_pack("imc-2018")
+    marked = {r.id for r in pack.exhaust.values() if r.toilet_room}
+    assert {"toilets-public", "toilets-private", "toilets-bathrooms-dwelling"} <= marked
+    # By hand, Table 403.3.1.1 note f (from memory): private toilets 25 cfm per room
+    # continuous, 50 intermittent; 3 rooms intermittent = 150 cfm. Class 2 air from a
+    # corridor zone into them: allowed, no makeup finding.
+    data = schedule([
+        {"id": "D", "kind": "outdoor-air", "outdoor_air": "400 cfm", "zones": [
+            {"id": "corr", "space": "office-space", "area": "1000 ft2", "occupants": 5,
+             "air_class": 2, "outdoor_air": "400 cfm",
+             "air_distribution": "ceiling-supply-cool"}]},
+        {"id": "EF", "kind": "exhaust", "zones": [
+            {"id": "wc", "area": "150 ft2", "exhaust": {
+                "category": "toilets-private", "airflow": "150 cfm", "fixtures": 3,
+                "operation": "intermittent", "makeup": {"transfer_from": "corr"}}}]},
+    ], rules="imc-2018")
+    r = evaluate(data)
+    wc = r.systems[1].zones[0]
+    assert wc.trail.value("Ve") / CFM == pytest.approx(150, rel=1e-9)
+    assert not [f for f in r.findings if f.rule.startswith("makeup-transfer")]
+    assert wc.makeup.source == "transfer" and wc.makeup.air_class == 2

@@ -70,7 +70,7 @@ def _valid_calls():
     """One valid call of every public procedure (outside procedures/numeric.py, whose helpers
     are the checks themselves), as keyword arguments."""
     from airgate.procedures import (categories, coupled, dilution, dwelling, efficiency, losses,
-                                    piecewise, zone_rates)
+                                    network, piecewise, zone_rates)
 
     sol = piecewise.piecewise_solution([0.0, 1.0, 2.0], [[150.0], [0.0]], 90.0, 150.0, 0.0)
     air = dict(volume=90.0, outdoor_airflow=50.0, recirc_airflow=200.0, recirc_efficiency=0.5,
@@ -134,6 +134,14 @@ def _valid_calls():
         (losses.inactivation_rate_from_half_life, dict(half_life=1.5)),
         (losses.loss_breakdown, air),
         (losses.loss_rate, air),
+        (network.network_march, dict(volume=[90.0, 60.0], inflow=[[0.0, 0.0], [30.0, 0.0]],
+                                     removal=[80.0, 50.0], step=0.25,
+                                     generation_per_step=[[100.0, 0.0]], c0=[0.0, 0.0])),
+        (network.network_propagator, dict(volume=[90.0, 60.0], inflow=[[0.0, 0.0], [30.0, 0.0]],
+                                          removal=[80.0, 50.0], step=0.25)),
+        (network.network_steady_state, dict(generation=[100.0, 0.0], volume=[90.0, 60.0],
+                                            inflow=[[0.0, 0.0], [30.0, 0.0]],
+                                            removal=[80.0, 50.0])),
         (piecewise.evaluate_piecewise, dict(solution=sol, times=[0.5])),
         (piecewise.peak_concentration, dict(solution=sol, t_start=0.5, t_end=1.5)),
         (piecewise.piecewise_solution, pw),

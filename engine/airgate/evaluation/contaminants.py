@@ -14,7 +14,7 @@ import math
 
 import numpy as np
 
-from airgate.evaluation import zone_air
+from airgate.evaluation import dilution_network, zone_air, zone_network
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.dilution import (
     MB,
@@ -256,7 +256,11 @@ def analyse(system: System, ctxs: list[ZoneContext], result: SystemResult, sched
         return
     for index, c in enumerate(schedule.contaminants):
         filt = filter_efficiency(system, c, tables[MERV_TABLE])
-        if kind_of(system).coupled:
+        if zone_network.transfers_within(system, result, schedule):
+            trails = dilution_network.contaminant(system, ctxs, result, c, schedule, filt,
+                                                  _start, _generation, per_second)
+            pairs = zip(ctxs, result.zones, trails or [])
+        elif kind_of(system).coupled:
             trails = _coupled(system, ctxs, result, c, schedule, filt)
             pairs = zip(ctxs, result.zones, trails or [])
         else:

@@ -21,7 +21,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from airgate import units
-from airgate.evaluation import zone_air
+from airgate.evaluation import zone_air, zone_network
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.report import SystemResult, ZoneResult
 from airgate.evaluation.system_kinds import kind_of
@@ -123,20 +123,22 @@ def makeup_of(t: Trail) -> dict:
     return dict(makeup_airflow=t.value("Q_mu"), makeup_concentration=c)
 
 
+def single_path_formula(t: Trail, u: str) -> str:
+    """The steady state of a single-path zone as a formula: outdoor air Q_oa and makeup air
+    Q_mu at C_mu (the outdoor level unless transferred) dilute the generation G."""
+    if "Q_mu" not in t:
+        return "{C_out} + 10⁶·{G} / " + _per_airflow("Q_oa", u)
+    if "C_mu" in t:
+        return ("{C_out} + (10⁶·{G} + " + _per_airflow("Q_mu", u) + "·({C_mu} − {C_out})) / "
+                + _airflow_sum(("Q_oa", "Q_mu"), u))
+    return "{C_out} + 10⁶·{G} / " + _airflow_sum(("Q_oa", "Q_mu"), u)
+
+
 def _steady_single(t: Trail, u: str) -> None:
-    """C_ss of a single-path zone: outdoor air Q_oa and makeup air Q_mu at C_mu (the outdoor
-    level unless transferred) dilute the generation G."""
-    mu = makeup_of(t)
+    """C_ss of a single-path zone (:func:`single_path_formula`)."""
     c = dilution.steady_state_concentration(PPM * t.value("G"), t.value("V"), t.value("Q_oa"),
-                                            t.value("C_out"), **mu)
-    if not mu:
-        formula = "{C_out} + 10⁶·{G} / " + _per_airflow("Q_oa", u)
-    elif "C_mu" in t:
-        formula = ("{C_out} + (10⁶·{G} + " + _per_airflow("Q_mu", u) + "·({C_mu} − {C_out})) / "
-                   + _airflow_sum(("Q_oa", "Q_mu"), u))
-    else:
-        formula = "{C_out} + 10⁶·{G} / " + _airflow_sum(("Q_oa", "Q_mu"), u)
-    t.add("C_ss", float(c), "concentration_ppm", formula=formula, source=MB,
+                                            t.value("C_out"), **makeup_of(t))
+    t.add("C_ss", float(c), "concentration_ppm", formula=single_path_formula(t, u), source=MB,
           note="steady state at design occupancy")
     _excess(t)
 
@@ -525,7 +527,10 @@ def analyse(system: System, ctxs: list[ZoneContext], result: SystemResult, sched
     out: list[ZoneResult] = []
     if not kind_of(system).intake or math.isinf(result.trail.value("Vot")):
         return out
-    if kind_of(system).coupled:
+    if zone_network.transfers_within(system, result, schedule):
+        from airgate.evaluation import dilution_network  # the network path uses these steps
+        dilution_network.analyse(system, ctxs, result, schedule, emitter, out, tables[CO2_TABLE])
+    elif kind_of(system).coupled:
         _multiple_zone(system, ctxs, result, schedule, emitter, out, tables[CO2_TABLE])
     else:
         _single_path(system, ctxs, result, schedule, emitter, out, tables[CO2_TABLE])

@@ -195,18 +195,19 @@ def coupled_steps(t: Trail, air: ZoneAir | None, zone_trail: Trail) -> None:
     if air is None or not air.any:
         return
     add_steps(t, air, zone_trail)
-    terms = ["{Ve_design}"] if air.makeup == "outdoor" else []
+    terms = ["{Ve_design}"] if air.makeup in ("outdoor", "transfer") else []
     infiltration = max(air.drawn - t.value("Vpz"), 0.0)
     if infiltration > 0:
         t.add("Q_inf", infiltration, "airflow", formula="{Vd} − {Vpz}", source=SOURCE,
               origin="assumed", note=INFILTRATION.format(what="the zone's primary airflow"))
         terms.append("{Q_inf}")
     if terms:
-        what = [makeup_note(air)] if air.makeup == "outdoor" else []
+        what = [makeup_note(air)] if air.makeup in ("outdoor", "transfer") else []
         what += ["outdoor air infiltrating"] if infiltration > 0 else []
-        t.add("Q_mu", air.outdoor_makeup + infiltration, "airflow", formula=" + ".join(terms),
-              source=SOURCE, note="outdoor air entering besides the supply, leaving with the "
-                                  "exhaust at the zone's concentration: " + "; ".join(what))
+        t.add("Q_mu", air.outdoor_makeup + air.transferred_in + infiltration, "airflow",
+              formula=" + ".join(terms), source=SOURCE,
+              note="makeup air entering besides the supply, leaving with the exhaust at the "
+                   "zone's concentration: " + "; ".join(what))
 
 
 def intake_note(system_id: str, vot: float, intake: float, units: str) -> str:
