@@ -22,6 +22,7 @@ from airgate.evaluation import (
     supplements as supplement_packs,
     systems,
     waivers,
+    zone_air,
 )
 from airgate.evaluation.checks import DECLARED_CHECKS, KNOWN_CHECKS, Emitter
 from airgate.evaluation.system_kinds import kind_of

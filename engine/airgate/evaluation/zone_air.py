@@ -77,9 +77,31 @@ class ZoneAir:
         return self.exhaust > 0 or self.given > 0
 
 
+#: the last schedule read and its zones' air: every system of one evaluation asks for it, so it
+#: is worked out once per schedule, not once per system (a portfolio has thousands of systems)
+#: (one tuple, replaced whole, so that evaluations in threads never read each other's)
+_LAST: tuple = (None, {})
+
+
+def forget() -> None:
+    """Drop the remembered schedule (the engine calls it as an evaluation starts)."""
+    global _LAST
+    _LAST = (None, {})
+
+
 def zone_air(schedule: Schedule) -> dict[str, ZoneAir]:
     """Every zone's :class:`ZoneAir`, by zone id (zones with no exhaust and giving no makeup
     air are left out)."""
+    global _LAST
+    last = _LAST
+    if last[0] is schedule:
+        return last[1]
+    found = _zone_air(schedule)
+    _LAST = (schedule, found)
+    return found
+
+
+def _zone_air(schedule: Schedule) -> dict[str, ZoneAir]:
     given: dict[str, list[tuple[str, float]]] = {}
     own: dict[str, tuple[float, str | None, str | None]] = {}
     for system in schedule.systems:
