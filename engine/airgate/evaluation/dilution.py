@@ -13,7 +13,6 @@ Alvarez-Cohen 2001, docs/references.md).
 
 from __future__ import annotations
 
-import dataclasses
 import functools
 import math
 from dataclasses import dataclass
@@ -368,9 +367,9 @@ def _single_path(system, ctxs, result, schedule, emitter, out, table) -> None:
         t.add("Q_oa", q, "airflow", note="= Voz_delivered, the outdoor air the zone receives")
         zone_air.single_path(t, air, z.trail)
         if q + makeup_of(t).get("makeup_airflow", 0.0) <= 0:
-            t.steps["Q_oa"] = dataclasses.replace(
-                t["Q_oa"], note="no outdoor air reaches the zone: CO2 rises without bound while "
-                                "it is occupied (no steady state)")
+            t.steps["Q_oa"] = t["Q_oa"]._replace(
+                note="no outdoor air reaches the zone: CO2 rises without bound while it is "
+                     "occupied (no steady state)")
             if schedule.project.co2_limit is not None and t.value("G") > 0:
                 emitter.declare("concentration-limit", ctx.subject, "no outdoor air reaches "
                                 "the occupied zone: CO2 rises without bound, above the "
