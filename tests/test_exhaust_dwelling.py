@@ -1,9 +1,11 @@
 """Local exhaust of dwellings against ANSI/ASHRAE 62.2-2019 Section 5 (the 62.2 packs).
 
-Rates as recalled (`from memory`), written out in each test: bathroom 50 cfm (25 L/s) on demand
-(Table 5.1), 20 cfm (10 L/s) continuous (Table 5.2); vented range hood 100 cfm (50 L/s) per
-kitchen; other demand-controlled kitchen fans 300 cfm (150 L/s); continuous kitchen exhaust
-5 air changes per hour of the kitchen's volume. Expected airflows are computed here by hand:
+Rates written out in each test: bathroom 50 cfm (25 L/s) on demand (Table 5.1), 20 cfm (10 L/s)
+continuous (Table 5.2); vented range hood 100 cfm (50 L/s) per kitchen; other demand-controlled
+kitchen fans 300 cfm (150 L/s); continuous kitchen exhaust 5 air changes per hour of the
+kitchen's volume. The cfm rates 50, 20 and 100 and the 5 air changes per hour are published
+(Lawrence Berkeley National Laboratory, "Ventilate Right", Step 2, docs/references.md); the
+300 cfm and every L/s rate are from memory; the table numbers are from memory. Expected airflows are computed here by hand:
 5 /h × V [ft³] ÷ 60 min/h gives cfm, 5 /h × V [m³] × 1000 L/m³ ÷ 3600 s/h gives L/s.
 """
 

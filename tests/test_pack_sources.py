@@ -14,6 +14,10 @@ The expected values are those of the public copies (docs/references.md), typed h
 - 2020 Mechanical Code of New York State, Table 403.3.1.1.2.3.2: Ev against the largest Zp;
 - International Mechanical Code 2018, public online copy (flipbook "2018_IMC", page 56), Table
   403.3.1.1 continued: the Workrooms rows (density, Rp, Ra, exhaust);
+- Lawrence Berkeley National Laboratory, "Ventilate Right", Step 2: the 62.2 local exhaust rates
+  in cfm and the 5 air changes per hour (the 62.2 packs' published exhaust rows);
+- agreement only (rows stay `from memory`): the 2022 New York City Mechanical Code's Table
+  403.3.1.1 office and retail rows as reproduced by an engineering firm's public posts;
 - exhaust columns that agree with the packs' exhaust rows without being copies of the standard's
   table (the rows stay `from memory`): Indiana Mechanical Code 2014 Table 403.3 (private
   bathrooms/toilets 25/50 cfm) and the 2018 International Mechanical Code Table 403.3.1.1
@@ -335,3 +339,68 @@ def test_exhaust_rows_agree_with_the_mechanical_code_copies():
         row = pack.exhaust[row_id]
         assert row.printed == pytest.approx(cells), row_id
         assert row.provenance == "from memory"  # agreement with a code, not the standard
+
+
+#: Lawrence Berkeley National Laboratory, "Ventilate Right", Step 2. Kitchen and Bath Ventilation
+#: (homes.lbl.gov/ventilate-right/step-2-kitchen-and-bath-ventilation), what "ASHRAE Standard 62.2
+#: requires" (no edition named): kitchens 100 cfm or more if intermittently operated or 5 air
+#: changes per hour of kitchen volume if continuously operated; bathrooms 50 cfm or more if
+#: operated intermittently or 20 cfm if continuously operated. id → its cells.
+LBL_62_2_EXHAUST = {
+    "bathrooms": {"intermittent": 50, "continuous": 20},
+    "kitchens-vented-range-hood": {"rate": 100},
+    "kitchens-continuous": {"rate": 5},
+}
+
+
+def test_dwelling_exhaust_rows_marked_published_equal_the_national_laboratory_guide():
+    ip = load_pack("ashrae-62.2-2019").exhaust
+    for row_id, cells in LBL_62_2_EXHAUST.items():
+        assert ip[row_id].printed == pytest.approx(cells), row_id
+        assert ip[row_id].provenance == "published", row_id
+    assert {k for k, r in ip.items() if r.provenance == "published"} == set(LBL_62_2_EXHAUST)
+    # SI: only the unit-free 5 air changes per hour is the guide's; the L/s rates are the
+    # standard's own SI values as recalled (from memory).
+    si = load_pack("ashrae-62.2-2019-si").exhaust
+    assert si["kitchens-continuous"].printed == pytest.approx({"rate": 5})
+    assert {k for k, r in si.items() if r.provenance == "published"} == {"kitchens-continuous"}
+
+
+#: 2022 New York City Mechanical Code, Table 403.3.1.1, rows as reproduced in two public posts of
+#: an engineering firm (builtengineers.com: "Minimum ventilation rates for NYC office spaces …"
+#: and "Minimum ventilation requirements in NYC retail stores and showrooms …"): id → (density
+#: /1000 ft², Rp cfm/person, Ra cfm/ft²). A firm's reproduction of a city code's table, not the
+#: adopted text nor the standard: agreement only, so the rows stay `from memory` (conference/
+#: meeting is published from the Indiana code). The code's shipping and receiving row (Ra 0.12
+#: only) is the model code's earlier row, not the 2019 standard's (Rp 10, Ra 0.12, density 2).
+NYC_2022_REPRODUCED = {
+    "conference-meeting": (50, 5, 0.06),
+    "main-entry-lobbies": (10, 5, 0.06),
+    "office-space": (5, 5, 0.06),
+    "reception-areas": (30, 5, 0.06),
+    "telephone-data-entry": (60, 5, 0.06),
+    "mall-common-areas": (40, 7.5, 0.06),
+    "retail-sales": (15, 7.5, 0.12),
+}
+
+
+def test_office_and_retail_rows_agree_with_the_nyc_code_reproduction():
+    cats = load_pack("ashrae-62.1-2019").categories
+    for row_id, (density, rp, ra) in NYC_2022_REPRODUCED.items():
+        c = cats[row_id]
+        assert (c.printed["density"], c.printed["Rp"], c.printed["Ra"]) == (density, rp, ra)
+        expected = "published" if row_id in INDIANA else "from memory"
+        assert c.provenance_of("Rp") == expected, row_id
+
+
+def test_rules_show_says_which_exhaust_values_are_from_memory(capsys):
+    # The 62.2 bathroom row's rates are published (LBNL Ventilate Right), its air class (taken
+    # from the 62.1 exhaust table) from memory: `rules show` says both, as for occupancy rows.
+    from airgate.cli import main
+
+    assert main(["rules", "show", "ashrae-62.2-2019"]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    row = next(line for line in lines if line.strip().startswith("bathrooms "))
+    assert row.endswith("class 2  published; class from memory")
+    other = next(line for line in lines if line.strip().startswith("kitchens-other-demand"))
+    assert other.endswith("class 2  from memory")

@@ -156,7 +156,9 @@ def _exhaust(pack: RulePack) -> list[str]:
                if r.per_volume else f"{unit} per {EXHAUST_PER[r.per]}")
         rates = " / ".join(f"{v:g}" for v in r.printed.values())
         cols = "" if "rate" in r.printed else " (continuous / intermittent)"
-        out.append(f"  {r.id:40} {rates} {per}{cols}  class {r.air_class}  {r.provenance}")
+        mixed = sorted({k: p for k, p in r.value_provenance.items() if p != r.provenance}.items())
+        own = "".join(f"; {_VALUE_NAMES.get(k, k)} {p}" for k, p in mixed)
+        out.append(f"  {r.id:40} {rates} {per}{cols}  class {r.air_class}  {r.provenance}{own}")
     return out
 
 
