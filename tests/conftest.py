@@ -22,6 +22,17 @@ settings.load_profile(os.environ.get("HYPOTHESIS_PROFILE")
                       or ("ci" if os.environ.get("CI") else "dev"))
 
 
+# The suite keeps its own cache of packs and tables (airgate.cache), away from the user's, and
+# removes it when it ends; subprocesses inherit it.
+if not os.environ.get("AIRGATE_CACHE_DIR"):
+    import atexit
+    import shutil
+    import tempfile
+
+    os.environ["AIRGATE_CACHE_DIR"] = tempfile.mkdtemp(prefix="airgate-test-cache-")
+    atexit.register(shutil.rmtree, os.environ["AIRGATE_CACHE_DIR"], True)
+
+
 def examples(weight: float = 1.0) -> int:
     """A test's number of examples: ``weight`` times the profile's (at least 5), for tests whose
     examples are much cheaper or dearer than the usual."""

@@ -43,6 +43,7 @@ import re
 from dataclasses import dataclass
 from functools import lru_cache
 
+from airgate import cache
 from airgate.escaping import excerpt
 
 IP = "IP"
@@ -57,7 +58,18 @@ def registry() -> pint.UnitRegistry:
     """airgate's pint registry: pint's defaults plus the trade's shorthand units."""
     import pint  # imported on first use: a command that converts nothing starts without it
 
-    ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
+    ureg = None
+    where = cache.folder()
+    if where is not None:
+        # pint's own cache of its parsed definitions, beside airgate's (airgate.cache), saves
+        # most of the registry's build; a cache that cannot be written or read is done without
+        try:
+            ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=False,
+                                     cache_folder=where / "pint")
+        except Exception:  # noqa: BLE001 - an unwritable folder, a cache file half written
+            ureg = None
+    if ureg is None:
+        ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
     # pint would otherwise read "cfm" as centi-fermi.
     ureg.define("cubic_foot_per_minute = foot ** 3 / minute = cfm")
     ureg.define("feet_per_minute = foot / minute = fpm")
@@ -261,7 +273,9 @@ def _read_text(raw: str, kind: str) -> tuple[float, str]:
     if match is None:
         raise QuantityError(f"cannot read {raw!r}: expected a number first, then a unit, "
                             f"such as {k.example}")
-    unit = _normalise(match["unit"], kind) if match["unit"].strip() else ""
+    unit, well_formed = _unit_text(match["unit"], kind)
+    if well_formed:
+        return float(match["number"]), unit
     if unit and not unit[0].isalpha():
         share = kind == "people" and unit.startswith("%")
         raise QuantityError(f"cannot read {raw!r} as a number followed by a unit; expected "
@@ -272,6 +286,14 @@ def _read_text(raw: str, kind: str) -> tuple[float, str]:
         raise QuantityError(f"cannot read the unit of {raw!r} (unit names with powers 2 or 3, "
                             f"joined by '/' or '*'); expected a quantity such as {k.example}")
     return float(match["number"]), unit
+
+
+@lru_cache(maxsize=1024)
+def _unit_text(written: str, kind: str) -> tuple[str, bool]:
+    """The normalised unit expression of a quantity's unit text ('' if bare) and whether it is
+    well formed (a schedule repeats a handful of unit texts thousands of times)."""
+    unit = _normalise(written, kind) if written.strip() else ""
+    return unit, not unit or unit[0].isalpha() and _UNIT_EXPR.match(unit) is not None
 
 
 def parse(raw: object, kind: str, system: str) -> float:
@@ -300,6 +322,14 @@ def parse(raw: object, kind: str, system: str) -> float:
                             "no building has such a value")
     if isinstance(raw, (int, float)):
         return _finite(to_internal(_finite(float(raw), raw), kind, system), raw, kind)
+    return _parse_text(raw, kind, system)
+
+
+@lru_cache(maxsize=4096)
+def _parse_text(raw: str, kind: str, system: str) -> float:
+    """:func:`parse` of quantity text, kept per text (a schedule repeats many of its values;
+    a text that cannot be read raises each time, and is not kept)."""
+    k = KINDS[kind]
     value, unit = _read_text(raw, kind)
     _finite(value, raw)
     if not unit:

@@ -9,11 +9,11 @@ from __future__ import annotations
 import json
 from collections.abc import Iterator, Mapping
 from functools import lru_cache
-
-import jsonschema
+from pathlib import Path
 
 from airgate import units
 from airgate.errors import RulePackError
+from airgate import cache
 from airgate.models.datatables import DataRow, DataTable
 from airgate.readers.document import load
 from airgate.readers.rulepack import builtin_rules_dir
@@ -21,10 +21,19 @@ from airgate.readers.rulepack import builtin_rules_dir
 
 @lru_cache(maxsize=8)
 def data_table(table_id: str) -> DataTable:
-    """Load ``rules/data/<table_id>.yaml`` and validate it against the data-table schema."""
+    """Load ``rules/data/<table_id>.yaml`` and validate it against the data-table schema (kept
+    in the cache of :mod:`airgate.cache` while neither file changes)."""
     root = builtin_rules_dir()
-    doc = load(root / "data" / f"{table_id}.yaml", RulePackError)
-    schema = json.loads((root / "schema" / "data-table.schema.json").read_text(encoding="utf-8"))
+    files = [root / "data" / f"{table_id}.yaml", root / "schema" / "data-table.schema.json"]
+    return cache.cached("table", [str(f) for f in files], lambda: (_read(*files), files))
+
+
+def _read(path: Path, schema_path: Path) -> DataTable:
+    import jsonschema  # imported on use: a table kept in the cache needs none
+
+    table_id = path.stem
+    doc = load(path, RulePackError)
+    schema = json.loads(schema_path.read_text(encoding="utf-8"))
     error = jsonschema.exceptions.best_match(
         jsonschema.Draft202012Validator(schema).iter_errors(doc.data))
     if error is not None:

@@ -14,8 +14,6 @@ from importlib import resources
 from pathlib import Path
 from typing import Any
 
-import jsonschema
-
 from airgate import units
 from airgate.errors import RulePackError, nearest
 from airgate.escaping import EXCERPT, excerpt
@@ -29,11 +27,15 @@ def builtin_rules_dir() -> Path:
     return Path(__file__).resolve().parents[3] / "rules"
 
 
+def schema_path(name: str = "rule-pack") -> Path:
+    """The file of a published JSON Schema of ``rules/schema/``."""
+    return builtin_rules_dir() / "schema" / f"{name}.schema.json"
+
+
 @lru_cache(maxsize=4)
 def schema(name: str = "rule-pack") -> dict[str, Any]:
     """A published JSON Schema (draft 2020-12) of ``rules/schema/``: rule-pack or pack-test."""
-    path = builtin_rules_dir() / "schema" / f"{name}.schema.json"
-    return json.loads(path.read_text(encoding="utf-8"))
+    return json.loads(schema_path(name).read_text(encoding="utf-8"))
 
 
 def pack_schema() -> dict[str, Any]:
@@ -124,6 +126,8 @@ def validate(doc: Any, name: str = "rule-pack", error_cls: type = RulePackError)
         raise doc.error(error_cls, f"{shown} is out of the range airgate reads: "
                         f"{units.range_text()}", bad, hint="give the table value in the pack's "
                         "units; no table of a ventilation standard holds such a value")
+    import jsonschema  # imported on use: a pack kept in the cache (readers.cache) needs none
+
     validator = jsonschema.Draft202012Validator(schema(name))
     error = jsonschema.exceptions.best_match(validator.iter_errors(doc.data))
     if error is None:

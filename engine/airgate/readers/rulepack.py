@@ -34,7 +34,8 @@ from airgate.models.rules import (
     Source,
     TableEv,
 )
-from airgate.readers import layering
+from airgate import cache
+from airgate.readers import layering, packschema
 from airgate.readers import options as opts
 from airgate.readers.layering import PACK_SUFFIXES, PackDocument, Root
 from airgate.readers.packschema import builtin_rules_dir, pack_schema
@@ -138,12 +139,36 @@ def load_document(ref: str, base: Path | None = None, *,
         stamps, doc = _DOCS[key]
         if stamps is not None and stamps == _stamps(doc.files):
             return doc
-    doc = layering.read(path, roots, expected_id=None if is_path(ref) else ref)
-    opts.check_choices(doc)
-    _check_declared_units(doc, doc.data)
+    expected = None if is_path(ref) else ref
+    if key is None:
+        doc = _read_document(path, roots, expected)[0]
+    else:
+        doc = cache.cached("pack", (key[0], *key[1], str(expected)),
+                           lambda: _read_document(path, roots, expected),
+                           still=lambda d: _same_bases(d, roots))
     if key is not None:
         _DOCS[key] = (_stamps(doc.files), doc)
     return doc
+
+
+def _read_document(path: Path, roots: Sequence[Root],
+                   expected: str | None) -> tuple[PackDocument, list[Path]]:
+    """Read, merge and check a pack document: (the document, the files it depends on)."""
+    doc = layering.read(path, roots, expected_id=expected)
+    opts.check_choices(doc)
+    _check_declared_units(doc, doc.data)
+    return doc, [*map(Path, doc.files), packschema.schema_path("rule-pack")]
+
+
+def _same_bases(doc: PackDocument, roots: Sequence[Root]) -> bool:
+    """Whether each base of a kept document is still the file its id is found in (a pack
+    added to an earlier folder of the search path takes its place)."""
+    base = doc.base
+    while base is not None:
+        if str(layering.find(base.pack_id, roots)) != base.file:
+            return False
+        base = base.base
+    return True
 
 
 def load_pack(ref: str, base: Path | None = None, *, options: Mapping[str, str] | None = None,
