@@ -139,3 +139,53 @@ def test_json_positions_and_texts_are_those_of_a_yaml_composition(value, indent,
     except AirgateError:
         return  # text YAML does not compose (a key over 1024 characters): composed as before
     assert docmod._scan_json_positions(text) == expected
+
+
+def _eager(text: str):
+    """What parse_json gave before positions were found lazily: every value walked, the
+    positions found at once."""
+    import json
+
+    data = json.loads(text, object_pairs_hook=docmod._json_pairs,
+                      parse_constant=docmod._Constant, parse_int=docmod._json_int)
+    return data, docmod._walk_json(data)
+
+
+@settings(max_examples=examples(2), suppress_health_check=[HealthCheck.too_slow])
+@given(value=_values, indent=st.sampled_from([None, 2]), nodes=st.integers(1, 40),
+       depth=st.integers(0, 6))
+def test_json_read_lazily_is_json_read_at_once(value, indent, nodes, depth):
+    # The fast reading (C decoder, values counted without paths, positions found when first
+    # asked for) gives the data, positions, texts and refusals of the walk value by value.
+    import json
+
+    from airgate.readers import limits
+
+    text = json.dumps({"schedule": 1, "data": value}, indent=indent)
+    saved = limits.MAX_NODES, limits.MAX_DEPTH
+    limits.MAX_NODES, limits.MAX_DEPTH = nodes, depth
+    try:
+        data, problem = _eager(text)
+        try:
+            doc = docmod.parse_json(text, "f.json", ScheduleError)
+        except AirgateError as exc:
+            assert problem is not None and problem[0] in ("nodes", "depth")
+            assert "limit stops it" in exc.message
+            return
+    finally:
+        limits.MAX_NODES, limits.MAX_DEPTH = saved
+    assert problem is None
+    assert doc.data == data
+    assert isinstance(doc.positions, docmod.Lazy) and not dict.__len__(doc.positions)
+    expected = docmod._scan_json_positions(text)
+    assert doc.positions == expected[0] and doc.texts == expected[1]
+    assert doc.locate(("data",)) == expected[0][("data",)]
+
+
+def test_a_duplicate_key_or_constant_in_json_is_located_as_before():
+    # the C decoder's reading flags them; the walk value by value then says where
+    for text, message, line in (('{\n  "a": 1,\n  "b": {"c": 1,\n   "c": 2}\n}', "duplicate key 'c'", 4),
+                                ('{\n  "a": [1,\n  NaN]\n}', "NaN is not a number", 3)):
+        with pytest.raises(AirgateError) as err:
+            docmod.parse_json(text, "f.json", ScheduleError)
+        assert message in err.value.message and err.value.line == line

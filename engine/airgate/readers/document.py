@@ -142,6 +142,88 @@ for _cls in _LOADERS:
     _cls.add_constructor("tag:yaml.org,2002:int", _cls.construct_yaml_int)
 
 
+class Lazy(dict):
+    """A mapping filled the first time it is read: the positions and number texts of a JSON
+    document are found only when a message or a report asks for one (:func:`parse_json`)."""
+
+    __slots__ = ("_fill",)
+
+    def __init__(self, fill: Any) -> None:
+        super().__init__()
+        self._fill = fill
+
+    def _load(self) -> None:
+        fill, self._fill = self._fill, None
+        if fill is not None:
+            dict.update(self, fill())
+
+    def __getitem__(self, key: Any) -> Any:
+        self._load()
+        return dict.__getitem__(self, key)
+
+    def __contains__(self, key: Any) -> bool:
+        self._load()
+        return dict.__contains__(self, key)
+
+    def __iter__(self):
+        self._load()
+        return dict.__iter__(self)
+
+    def __len__(self) -> int:
+        self._load()
+        return dict.__len__(self)
+
+    def __setitem__(self, key: Any, value: Any) -> None:
+        self._load()
+        dict.__setitem__(self, key, value)
+
+    def __eq__(self, other: Any) -> bool:
+        self._load()
+        return dict.__eq__(self, other)
+
+    __hash__ = None  # type: ignore[assignment]
+
+    def __repr__(self) -> str:
+        self._load()
+        return dict.__repr__(self)
+
+    def __reduce__(self):  # kept (pickled) as the plain mapping it stands for
+        self._load()
+        return (dict, (dict(self),))
+
+    def get(self, key: Any, default: Any = None) -> Any:
+        self._load()
+        return dict.get(self, key, default)
+
+    def pop(self, *args: Any) -> Any:
+        self._load()
+        return dict.pop(self, *args)
+
+    def setdefault(self, key: Any, default: Any = None) -> Any:
+        self._load()
+        return dict.setdefault(self, key, default)
+
+    def update(self, *args: Any, **kw: Any) -> None:
+        self._load()
+        dict.update(self, *args, **kw)
+
+    def keys(self):
+        self._load()
+        return dict.keys(self)
+
+    def values(self):
+        self._load()
+        return dict.values(self)
+
+    def items(self):
+        self._load()
+        return dict.items(self)
+
+    def copy(self) -> dict:
+        self._load()
+        return dict(self)
+
+
 @dataclass
 class Document:
     """Plain data plus where each value was written.
@@ -553,15 +635,73 @@ def _same_problem(problem: tuple[str, Path_, str] | None, exc: AirgateError) -> 
     return problem[0] in ("nodes", "depth") and "limit stops it" in exc.message
 
 
-def parse_json(text: str, file: str, error_cls: type[AirgateError]) -> Document:
-    """Parse strict JSON; positions come from a YAML composition of the same text if possible."""
+def _extent(data: Any) -> tuple[int, int]:
+    """(values, deepest path length) of parsed JSON, counted as :func:`_walk_json` counts them
+    but without building a path per value (a problem found is located by that walk)."""
+    values, deepest = 1, 0
+    todo: list[tuple[Any, int]] = [(data, 0)]
+    containers = (dict, list)
+    while todo:
+        node, depth = todo.pop()
+        items = node.values() if type(node) is dict else node
+        if items:
+            values += len(items)
+            depth += 1
+            deepest = max(deepest, depth)
+            todo.extend((v, depth) for v in items if type(v) in containers)
+    return values, deepest
+
+
+def _json_index(text: str, file: str,
+                error_cls: type[AirgateError]) -> tuple[dict[Path_, tuple[int, int]], dict[Path_, str]]:
+    """The positions and number texts of well-formed JSON text with no problem to report."""
     try:
-        data = json.loads(text, object_pairs_hook=_json_pairs, parse_constant=_Constant,
+        if not _OTHER_BREAKS.search(text):
+            return _scan_json_positions(text)
+        composed = _json_positions(text, file, error_cls)
+        return composed.positions, composed.texts
+    except AirgateError:  # the YAML reading meets a limit JSON's does not: no positions
+        return {}, {}
+
+
+def parse_json(text: str, file: str, error_cls: type[AirgateError]) -> Document:
+    """Parse strict JSON with the C decoder; positions are found from the text when first asked
+    for (:class:`Lazy`), from a scan of its tokens or a YAML composition of the same text.
+
+    A duplicate key, ``NaN`` or a document beyond a limit is walked value by value to report
+    where, with the positions found at once."""
+    flagged: list[str] = []
+
+    def pairs(items: list[tuple[str, Any]]) -> dict[str, Any]:
+        out = dict(items)
+        if len(out) != len(items):
+            flagged.append("duplicate")
+            return _json_pairs(items)
+        return out
+
+    def constant(name: str) -> _Constant:
+        flagged.append("constant")
+        return _Constant(name)
+
+    try:
+        data = json.loads(text, object_pairs_hook=pairs, parse_constant=constant,
                           parse_int=_json_int)
     except json.JSONDecodeError as exc:
         raise _json_decode_error(exc, text, file, error_cls) from None
     except RecursionError:
         raise limit_error(error_cls, "depth", file, ()) from None
+    if not flagged:
+        values, deepest = _extent(data)
+        if values <= L.MAX_NODES and deepest <= L.MAX_DEPTH:
+            index: list = []
+
+            def found(part: int) -> Any:
+                if not index:
+                    index.append(_json_index(text, file, error_cls))
+                return index[0][part]
+
+            return Document(file=file, data=data, positions=Lazy(lambda: found(0)),
+                            texts=Lazy(lambda: found(1)))
     problem = _walk_json(data)
     try:
         if problem is None and not _OTHER_BREAKS.search(text):

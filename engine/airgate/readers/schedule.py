@@ -117,9 +117,30 @@ def _shown(value: Any) -> str:
 _NUMERAL = re.compile(r"[-+]?[0-9]+(?:\.[0-9]*)?(?:[eE][-+]?[0-9]+)?")
 
 
+def _all_in_range(data: Any) -> bool:
+    """Whether every number in ``data`` is finite and in the range airgate reads (one pass
+    without paths: the usual case, which then has nothing to locate)."""
+    if type(data) not in (dict, list):
+        return False
+    low, high = units.MIN_MAGNITUDE, units.MAX_MAGNITUDE
+    todo = [data]
+    while todo:
+        node = todo.pop()
+        for value in (node.values() if type(node) is dict else node):
+            kind = type(value)
+            if kind is dict or kind is list:
+                todo.append(value)
+            elif (kind is float or kind is int) and value != 0 and \
+                    not low <= abs(value) <= high:  # NaN too: no comparison holds
+                return False
+    return True
+
+
 def _out_of_range(doc: Document) -> list[AirgateError]:
     """Numbers outside the range airgate reads (docs/limits.md), each at its position; a whole
     number too long to read arrives here as infinity and is described by its digits."""
+    if _all_in_range(doc.data):
+        return []
     errors: list[AirgateError] = []
     todo: list[tuple[Any, Path_]] = [(doc.data, ())]
     while todo and len(errors) < MAX_ERRORS:
@@ -129,12 +150,14 @@ def _out_of_range(doc: Document) -> list[AirgateError]:
         elif isinstance(value, list):
             todo.extend((v, path + (i,)) for i, v in enumerate(value))
         elif isinstance(value, (int, float)) and not isinstance(value, bool):
-            text = doc.texts.get(path, "")
             if isinstance(value, int) and abs(value) > units.MAX_MAGNITUDE:
-                pass  # beyond any float: out of range (math.isfinite would overflow)
-            elif math.isfinite(value) and units.in_range(value) or \
-                    not math.isfinite(value) and not _NUMERAL.fullmatch(text):
-                continue  # in range; or .inf / .nan as written, refused by the model
+                text = doc.texts.get(path, "")  # beyond any float: out of range
+            elif math.isfinite(value) and units.in_range(value):
+                continue
+            else:  # the text as written is looked up only here (docs found lazily)
+                text = doc.texts.get(path, "")
+                if not math.isfinite(value) and not _NUMERAL.fullmatch(text):
+                    continue  # .inf / .nan as written, refused by the model
             digits = sum(c.isdigit() for c in text)
             what = (f"a number of {digits} digits" if digits > 20
                     else text if text else _shown(value))
@@ -226,28 +249,32 @@ _TEXT_FIELDS: dict[type[BaseModel], frozenset[str]] = {
 }
 
 
+_CHILDREN: dict[str, type[BaseModel]] = {"project": Project, "systems": System, "zones": Zone}
+
+
 def _as_written(doc: Document, node: Any, path: Path_, model: type[BaseModel]) -> None:
     """Replace numbers YAML read in text fields by their source text (in place)."""
     if not isinstance(node, dict):
         return
-    for key, value in node.items():
-        at = path + (key,)
-        if key in _TEXT_FIELDS.get(model, ()):
-            items = enumerate(value) if isinstance(value, list) else [(None, value)]
-            for i, item in items:
-                where = at if i is None else at + (i,)
-                if (isinstance(item, (int, float)) and not isinstance(item, bool)
-                        and where in doc.texts):
-                    if i is None:
-                        node[key] = doc.texts[where]
-                    else:
-                        value[i] = doc.texts[where]
-        child = {"project": Project, "systems": System, "zones": Zone}.get(key)
+    for key in _TEXT_FIELDS.get(model, frozenset()) & node.keys():
+        value = node[key]
+        items = enumerate(value) if isinstance(value, list) else [(None, value)]
+        for i, item in items:
+            if not isinstance(item, (int, float)) or isinstance(item, bool):
+                continue  # text already: the usual case, nothing to look up
+            where = path + (key,) if i is None else path + (key, i)
+            if where in doc.texts:
+                if i is None:
+                    node[key] = doc.texts[where]
+                else:
+                    value[i] = doc.texts[where]
+    for key in _CHILDREN.keys() & node.keys():
+        value, child = node[key], _CHILDREN[key]
         if child is Project:
-            _as_written(doc, value, at, Project)
+            _as_written(doc, value, path + (key,), Project)
         elif child is not None and isinstance(value, list) and model in (Schedule, System):
             for i, item in enumerate(value):
-                _as_written(doc, item, at + (i,), child)
+                _as_written(doc, item, path + (key, i), child)
 
 
 def _items(value: Any) -> list[Any]:
