@@ -82,7 +82,7 @@ def test_bench_run_prints_every_figure_with_its_ratio_and_target():
     from conftest import subprocess_env
 
     run = subprocess.run([sys.executable, str(ROOT / "bench" / "run"), "--zones", "60",
-                          "--sweep", "20"], capture_output=True, text=True, env=subprocess_env(),
+                          "--sweep", "20", "--demo-zones", "40"], capture_output=True, text=True, env=subprocess_env(),
                          cwd=ROOT)
     assert run.returncode == 0, run.stderr
     out = run.stdout
@@ -90,8 +90,10 @@ def test_bench_run_prints_every_figure_with_its_ratio_and_target():
                    "scale yaml no heights vs C loader", "scale json dilution on",
                    "scale yaml dilution on", "peak memory", "JSON report size",
                    "defaults: the 60-zone YAML schedule", "evaluation core (100 zones)",
-                   "numpy Vot agrees", "sweep 20×20"):
+                   "numpy Vot agrees", "sweep 20×20", "read and validate (json)",
+                   "read and validate (yaml)", "defaults: the demo repeated to 40 zones"):
         assert figure in out, figure
     rows = [line for line in out.splitlines() if line.rstrip().endswith(("met", "NOT MET"))]
     assert len(rows) == 11  # startup, 4 × (scale, memory), evaluation core, sweep
     assert "read under the default limits" in out
+    assert "MiB), is read (" in out  # the demo portfolio, read and validated
