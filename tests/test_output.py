@@ -72,7 +72,12 @@ def test_fifo_is_written_in_place(tmp_path, capsys):
         code = main(["check", str(DEMO), "--format", f"json:{fifo}"])
     finally:
         if reader.is_alive():  # a failed open: unblock the reader
-            with open(fifo, "wb"):
+            # without blocking: had the reader just finished, a plain open for writing would
+            # wait for a reader forever (POSIX open(2): O_NONBLOCK on a FIFO with no reader
+            # fails with ENXIO)
+            try:
+                os.close(os.open(fifo, os.O_WRONLY | os.O_NONBLOCK))
+            except OSError:
                 pass
         reader.join(30)
     assert code == 1 and capsys.readouterr().err == ""

@@ -63,7 +63,8 @@ def _systems_table(report: Report) -> list[str]:
     for s in report.systems:
         name = md(s.id) + (f" {md(s.name)}" if s.name else "")
         if "Vot" not in s.trail:
-            out.append(f"| {name} | {md(s.kind)} | no intake (natural ventilation) | – | – | "
+            why = "exhaust fan" if not s.supplies else "natural ventilation"
+            out.append(f"| {name} | {md(s.kind)} | no intake ({why}) | – | – | "
                        f"{_verdict(s.verdict)} |")
             continue
         req, prov = _intake(s)
