@@ -18,6 +18,7 @@ from hypothesis import strategies as st
 
 from airgate.errors import AirgateError, ScheduleError
 from airgate.readers import document as docmod
+from airgate.readers import document_json as jsonmod
 
 from conftest import DEMO, ROOT, examples
 from fuzzing import damage
@@ -91,7 +92,7 @@ JSON_FILES = sorted(p for top in ("fixtures", "rules", "tests")
 
 
 def _composed(text):
-    doc = docmod._json_positions(text, "f.json", ScheduleError)
+    doc = jsonmod._json_positions(text, "f.json", ScheduleError)
     return doc.positions, doc.texts
 
 
@@ -102,14 +103,14 @@ def test_every_shipped_json_file_is_located_as_yaml_composes_it():
     for path in JSON_FILES:
         text = path.read_bytes().decode("utf-8-sig", errors="replace")
         try:
-            data = json.loads(text, object_pairs_hook=docmod._json_pairs,
-                              parse_constant=docmod._Constant)
+            data = json.loads(text, object_pairs_hook=jsonmod._json_pairs,
+                              parse_constant=jsonmod._Constant)
             expected = _composed(text)
         except (ValueError, AirgateError):
             continue  # not JSON, or JSON the YAML composer refuses: composed as before
-        if docmod._walk_json(data) is not None or docmod._OTHER_BREAKS.search(text):
+        if jsonmod._walk_json(data) is not None or jsonmod._OTHER_BREAKS.search(text):
             continue  # a problem to report, or another line break: composed as before
-        assert docmod._scan_json_positions(text) == expected, path
+        assert jsonmod._scan_json_positions(text) == expected, path
         checked += 1
     assert checked >= 3
 
@@ -138,7 +139,7 @@ def test_json_positions_and_texts_are_those_of_a_yaml_composition(value, indent,
         expected = _composed(text)
     except AirgateError:
         return  # text YAML does not compose (a key over 1024 characters): composed as before
-    assert docmod._scan_json_positions(text) == expected
+    assert jsonmod._scan_json_positions(text) == expected
 
 
 def _eager(text: str):
@@ -146,9 +147,9 @@ def _eager(text: str):
     positions found at once."""
     import json
 
-    data = json.loads(text, object_pairs_hook=docmod._json_pairs,
-                      parse_constant=docmod._Constant, parse_int=docmod._json_int)
-    return data, docmod._walk_json(data)
+    data = json.loads(text, object_pairs_hook=jsonmod._json_pairs,
+                      parse_constant=jsonmod._Constant, parse_int=jsonmod._json_int)
+    return data, jsonmod._walk_json(data)
 
 
 @settings(max_examples=examples(2), suppress_health_check=[HealthCheck.too_slow])
@@ -167,7 +168,7 @@ def test_json_read_lazily_is_json_read_at_once(value, indent, nodes, depth):
     try:
         data, problem = _eager(text)
         try:
-            doc = docmod.parse_json(text, "f.json", ScheduleError)
+            doc = jsonmod.parse_json(text, "f.json", ScheduleError)
         except AirgateError as exc:
             assert problem is not None and problem[0] in ("nodes", "depth")
             assert "limit stops it" in exc.message
@@ -177,7 +178,7 @@ def test_json_read_lazily_is_json_read_at_once(value, indent, nodes, depth):
     assert problem is None
     assert doc.data == data
     assert isinstance(doc.positions, docmod.Lazy) and not dict.__len__(doc.positions)
-    expected = docmod._scan_json_positions(text)
+    expected = jsonmod._scan_json_positions(text)
     assert doc.positions == expected[0] and doc.texts == expected[1]
     assert doc.locate(("data",)) == expected[0][("data",)]
 
@@ -187,5 +188,5 @@ def test_a_duplicate_key_or_constant_in_json_is_located_as_before():
     for text, message, line in (('{\n  "a": 1,\n  "b": {"c": 1,\n   "c": 2}\n}', "duplicate key 'c'", 4),
                                 ('{\n  "a": [1,\n  NaN]\n}', "NaN is not a number", 3)):
         with pytest.raises(AirgateError) as err:
-            docmod.parse_json(text, "f.json", ScheduleError)
+            jsonmod.parse_json(text, "f.json", ScheduleError)
         assert message in err.value.message and err.value.line == line

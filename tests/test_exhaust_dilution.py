@@ -192,6 +192,12 @@ def test_outdoor_air_system_zone_with_outdoor_makeup_ip(evaluate):
     assert t.value("C_ss") == pytest.approx(420 + 1e6 * 4 * N_OFFICE / (400 * CFM), rel=REL)
 
 
+#: the multiple-zone case of :func:`_multi`: primary airflows, CO2 generation and volumes
+VPZ = np.array([900, 500, 200]) * CFM
+GEN = 1e6 * np.array([12, 20, 3]) * N_OFFICE
+VOL = np.array([2000, 1000, 600]) * 9 * FT**3
+
+
 def _multi(zone_exhaust: dict, extra_zones=(), outdoor_air="600 cfm"):
     zones = [{"id": f"z{i}", "space": "office-space", "area": f"{a} ft2", "occupants": p,
               "height": "9 ft", "air_distribution": "ceiling-supply-cool",
@@ -200,6 +206,14 @@ def _multi(zone_exhaust: dict, extra_zones=(), outdoor_air="600 cfm"):
     zones[2]["exhaust"] = zone_exhaust
     return schedule([{"id": "M", "kind": "multiple-zone", "outdoor_air": outdoor_air,
                       "zones": zones}, *extra_zones])
+
+
+def _mornings(data: dict) -> dict:
+    """Every zone of the first system occupied 08:00-12:00 on weekdays (a design day)."""
+    data["profiles"] = {"am": {"weekday": {"08:00-12:00": 1.0}}}
+    for z in data["systems"][0]["zones"]:
+        z["profile"] = "am"
+    return data
 
 
 def _dense(vpz, gen, vot, exhaust, makeup, c_out=420.0):
@@ -220,8 +234,8 @@ def test_multiple_zone_exhaust_against_dense_solve(evaluate, airflow, makeup, ex
     if makeup:
         ex["makeup"] = makeup
     r = evaluate(_multi(ex))
-    vpz = np.array([900, 500, 200]) * CFM
-    gen = 1e6 * np.array([12, 20, 3]) * N_OFFICE
+    vpz = VPZ
+    gen = GEN
     expected = _dense(vpz, gen, 600 * CFM, np.array([0, 0, exhaust]) * CFM,
                       np.array([0, 0, inflow]) * CFM)
     got = [z.dilution.value("C_ss") for z in r.systems[0].zones]
@@ -240,8 +254,8 @@ def test_transfer_out_to_an_exhaust_fan_zone_reduces_the_return(evaluate):
             "makeup": {"transfer_from": "z2"}}}]}
     r = evaluate(_multi({"category": "kitchenettes", "airflow": "0 cfm", "makeup": "outdoor"},
                         [fan]))
-    vpz = np.array([900, 500, 200]) * CFM
-    gen = 1e6 * np.array([12, 20, 3]) * N_OFFICE
+    vpz = VPZ
+    gen = GEN
     expected = _dense(vpz, gen, 600 * CFM, np.array([0, 0, 120]) * CFM, np.zeros(3))
     got = [z.dilution.value("C_ss") for z in r.systems[0].zones]
     assert got == pytest.approx(expected, rel=1e-9)
@@ -253,13 +267,10 @@ def test_transfer_out_to_an_exhaust_fan_zone_reduces_the_return(evaluate):
 def test_multiple_zone_design_day_with_exhaust_against_solve_ivp(evaluate):
     solve_ivp = pytest.importorskip("scipy.integrate").solve_ivp
     data = _multi({"category": "kitchenettes", "airflow": "150 cfm"})
-    data["profiles"] = {"am": {"weekday": {"08:00-12:00": 1.0}}}
-    for z in data["systems"][0]["zones"]:
-        z["profile"] = "am"
-    r = evaluate(data)
-    vpz = np.array([900, 500, 200]) * CFM
-    gen = 1e6 * np.array([12, 20, 3]) * N_OFFICE
-    vol = np.array([2000, 1000, 600]) * 9 * FT**3
+    r = evaluate(_mornings(data))
+    vpz = VPZ
+    gen = GEN
+    vol = VOL
     exhaust = np.array([0, 0, 150]) * CFM
 
     def rhs(t, c):
@@ -295,8 +306,8 @@ def test_exhaust_beyond_the_intake_raises_the_balance_intake_ip(evaluate):
     # (assumed, docs/dilution.md) and the dense N×N system at Vot = 150 cfm gives the figures.
     r = evaluate(_multi({"category": "kitchenettes", "airflow": "150 cfm"},
                         outdoor_air="100 cfm"))
-    vpz = np.array([900, 500, 200]) * CFM
-    gen = 1e6 * np.array([12, 20, 3]) * N_OFFICE
+    vpz = VPZ
+    gen = GEN
     expected = _dense(vpz, gen, 150 * CFM, np.array([0, 0, 150]) * CFM, np.zeros(3))
     got = [z.dilution.value("C_ss") for z in r.systems[0].zones]
     assert got == pytest.approx(expected, rel=1e-9)
@@ -377,8 +388,8 @@ def test_transfer_within_a_multiple_zone_system_against_dense_solve(evaluate):
     # written here from the equations: the rank-one return coupling plus the transfer entry.
     r = evaluate(_multi({"category": "kitchenettes", "airflow": "150 cfm",
                          "makeup": {"transfer_from": "z0"}}))
-    vpz = np.array([900, 500, 200]) * CFM
-    gen = 1e6 * np.array([12, 20, 3]) * N_OFFICE
+    vpz = VPZ
+    gen = GEN
     exhaust = np.array([150, 0, 0]) * CFM  # z0's air leaving unreturned
     makeup = np.array([0, 0, 150]) * CFM
     a, b, _ = _full_matrix(gen, vpz, 600 * CFM, exhaust, makeup, 0.0, 420.0)
@@ -393,13 +404,10 @@ def test_transfer_within_a_multiple_zone_system_design_day_against_solve_ivp(eva
     solve_ivp = pytest.importorskip("scipy.integrate").solve_ivp
     data = _multi({"category": "kitchenettes", "airflow": "150 cfm",
                    "makeup": {"transfer_from": "z0"}})
-    data["profiles"] = {"am": {"weekday": {"08:00-12:00": 1.0}}}
-    for z in data["systems"][0]["zones"]:
-        z["profile"] = "am"
-    r = evaluate(data)
-    vpz = np.array([900, 500, 200]) * CFM
-    gen = 1e6 * np.array([12, 20, 3]) * N_OFFICE
-    vol = np.array([2000, 1000, 600]) * 9 * FT**3
+    r = evaluate(_mornings(data))
+    vpz = VPZ
+    gen = GEN
+    vol = VOL
     exhaust = np.array([150, 0, 0]) * CFM
     makeup = np.array([0, 0, 150]) * CFM
 
