@@ -275,6 +275,9 @@ def test_the_demo_checks_under_each_edition_and_the_report_names_the_governing_c
     assert f"layers: {chain}" in text
     # the findings cite the edition whose sections they apply
     assert f"International Mechanical Code, {edition} edition, Section 403.3.1.1.2" in text
+    assert main(["check", str(DEMO), "--rules", pack_id, "--format", "markdown"]) == code
+    assert f"rule pack {pack_id} — International Mechanical Code {edition}" in \
+        capsys.readouterr().out
 
 
 #: the published schema of `airgate rules diff --format json` (rules/schema/pack-diff.schema.json)

@@ -179,7 +179,7 @@ def _report(report: Report, level: str = "###", gate: str | None = None) -> list
     c = report.counts()
     head = (f"{level} airgate: {md(report.project_name)} — {_verdict(report.verdict)}")
     out = [head, "",
-           f"{md(report.schedule_file, line_start=True)} · rule pack {md(report.pack.id)} · {report.units} units",
+           f"{md(report.schedule_file, line_start=True)} · rule pack {md(report.pack.id)} — {md(report.pack.title)} · {report.units} units",
            *(f"also: {md(line)}" for line in shared.supplement_lines(report)),
            "",
            f"{c['fail']} failing · {count(c['warning'], 'warning')} · {c['info']} info · "
