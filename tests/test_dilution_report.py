@@ -162,7 +162,7 @@ def test_an_averaging_time_longer_than_the_day_is_the_mean_over_whole_days(evalu
 def test_largest_window_mean_against_a_brute_force_sum():
     # the sliding mean over a repeating day, summed term by term over the tiled profile
     # (plain Python arithmetic as the independent computation)
-    from airgate.evaluation.dilution import largest_window_mean
+    from airgate.procedures.piecewise import largest_window_mean
 
     rng = np.random.default_rng(7)
     day = rng.random(50)

@@ -28,7 +28,7 @@ from airgate.evaluation.trail import Trail, unit_factor
 from airgate.evaluation.zones import ZoneContext
 from airgate.models.datatables import DataTable, Tables
 from airgate.models.schedule import Schedule, System
-from airgate.procedures import coupled, dilution
+from airgate.procedures import coupled, dilution, piecewise
 
 PPM = 1e6  #: ppm per unit volume fraction
 MB = "well-mixed mass balance (Nazaroff & Alvarez-Cohen 2001, CMFR material balance)"
@@ -224,7 +224,7 @@ def _short_term(t: Trail, ctx: ZoneContext, z: ZoneResult, fractions: np.ndarray
     t.add("T", 3 / dilution.air_change_rate(vbz, t.value("V")), "time",
           formula=f"{k}·{{V}} / {{Vbz}}",
           note="averaging time for short-term conditions (50·v/Vbz in SI, minutes)")
-    best = largest_window_mean(fractions, t.value("T") / STEP_H)
+    best = piecewise.largest_window_mean(fractions, t.value("T") / STEP_H)
     peak = float(np.max(fractions))
     # a zone without occupants (Pz = 0, e.g. a corridor) has no population to average
     if peak > 0 and z.trail.value("Pz") > 0 and best < peak * (1 - 1e-9):
@@ -237,31 +237,6 @@ def _short_term(t: Trail, ctx: ZoneContext, z: ZoneResult, fractions: np.ndarray
                      f"{t.value('T') * 60:.0f} min; the population may be averaged over T to "
                      f"{shown} people (the design uses Pz)",
                      ctx.location, system=ctx.system_id, zone=z.id)
-
-
-def largest_window_mean(fractions: np.ndarray, samples: float) -> float:
-    """The largest mean of the daily, repeating profile ``fractions`` [–] (one value per
-    sample) over any window of ``samples`` samples (rounded, at least one) [–].
-
-    No array is longer than two days, whatever the window: a window of ``k`` whole days and
-    ``r`` samples holds ``k`` times the day's sum plus the sum of ``r`` consecutive samples, so
-    only windows shorter than a day are slid. A window too long to count (an infinite T) is the
-    day's mean, the limit of ever longer windows.
-    """
-    n = fractions.size
-    if not np.isfinite(samples):
-        return float(np.mean(fractions))
-    window = max(1, int(round(samples)))
-    if window <= n:
-        kernel = np.ones(window) / window
-        cyclic = np.concatenate([fractions, fractions[: window - 1]])
-        return float(np.max(np.convolve(cyclic, kernel, mode="valid")))
-    days, rest = divmod(window, n)
-    part = 0.0
-    if rest:
-        cyclic = np.concatenate([fractions, fractions[: rest - 1]])
-        part = float(np.max(np.convolve(cyclic, np.ones(rest), mode="valid")))
-    return (days * float(np.sum(fractions)) + part) / window
 
 
 def _profile_pieces(schedule: Schedule, ctx: ZoneContext) -> tuple[np.ndarray, np.ndarray] | None:

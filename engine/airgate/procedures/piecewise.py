@@ -399,3 +399,28 @@ def peak_concentration(solution, t_start=None, t_end=None):
     values = evaluate_piecewise(solution, candidates)
     k = np.argmax(values, axis=0)
     return _out(np.max(values, axis=0)), _out(candidates[k])
+
+
+def largest_window_mean(fractions: np.ndarray, samples: float) -> float:
+    """The largest mean of the daily, repeating profile ``fractions`` [–] (one value per
+    sample) over any window of ``samples`` samples (rounded, at least one) [–].
+
+    No array is longer than two days, whatever the window: a window of ``k`` whole days and
+    ``r`` samples holds ``k`` times the day's sum plus the sum of ``r`` consecutive samples, so
+    only windows shorter than a day are slid. A window too long to count (an infinite T) is the
+    day's mean, the limit of ever longer windows.
+    """
+    n = fractions.size
+    if not np.isfinite(samples):
+        return float(np.mean(fractions))
+    window = max(1, int(round(samples)))
+    if window <= n:
+        kernel = np.ones(window) / window
+        cyclic = np.concatenate([fractions, fractions[: window - 1]])
+        return float(np.max(np.convolve(cyclic, kernel, mode="valid")))
+    days, rest = divmod(window, n)
+    part = 0.0
+    if rest:
+        cyclic = np.concatenate([fractions, fractions[: rest - 1]])
+        part = float(np.max(np.convolve(cyclic, np.ones(rest), mode="valid")))
+    return (days * float(np.sum(fractions)) + part) / window
