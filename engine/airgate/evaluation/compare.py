@@ -303,8 +303,10 @@ def input_changes(old: LoadedSchedule, new: LoadedSchedule) -> Iterator[InputCha
                           None if pb is None else _where(new, pb))
 
 
-def _location_of(source: str) -> Location | None:
+def _location_of(source: str | Location) -> Location | None:
     """The ``file:line:column`` a schedule value's trail source names, or None."""
+    if isinstance(source, Location):  # an evaluated report's: found when shown
+        return source
     parts = source.rsplit(":", 2)
     if len(parts) == 3 and parts[1].isdigit() and parts[2].isdigit():
         return Location(parts[0], int(parts[1]), int(parts[2]))

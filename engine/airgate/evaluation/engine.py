@@ -45,7 +45,9 @@ from airgate.models.schedule import SYSTEM_KINDS
 
 
 def _location(loaded: LoadedSchedule, path: tuple) -> Location:
-    return Location(*loaded.locate(path))
+    """Where ``path`` is written, looked up only when a finding, an error or a writer reads it
+    (:meth:`Location.deferred`): the evaluation makes several locations per zone."""
+    return Location.deferred(loaded, path, loaded.file if loaded.one_file else None)
 
 
 def _bind_all(loaded: LoadedSchedule, pack: RulePack, tables: Tables,

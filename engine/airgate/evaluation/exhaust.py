@@ -91,12 +91,12 @@ def evaluate(trail: Trail, zone: Zone, row: ExhaustRow, emitter: Emitter, *, sub
         per = EXHAUST_PER[row.per]
         trail.add("Re", rate, "airflow", origin="table", source=row.cite(column),
                   note=f"minimum exhaust rate per {per}{how}")
-        trail.add("Ne", float(ex.fixtures), "count", origin="schedule", source=str(fixtures_at),
+        trail.add("Ne", float(ex.fixtures), "count", origin="schedule", source=fixtures_at,
                   note=f"number of each {per} exhausted")
         required = trail.add("Ve", rate * ex.fixtures, "airflow", formula="{Re}·{Ne}",
                              source=row.cite(column), note="minimum exhaust airflow")
     provided = trail.add("Ve_design", ex.airflow, "airflow", origin="schedule",
-                         source=str(airflow_at), note=f"scheduled exhaust ({row.id})")
+                         source=airflow_at, note=f"scheduled exhaust ({row.id})")
     emitter.compare("zone-exhaust", subject, f"exhaust airflow ({row.label})", required,
                     provided, "airflow", airflow_at, system=system_id, zone=zone.id,
                     advice="raise the zone's exhaust airflow")
@@ -128,7 +128,7 @@ def fan_zone(ctx: FanZone, emitter: Emitter, locate) -> ZoneResult:
     """The trail of a zone of an exhaust fan: ``Az``, then as :func:`evaluate`."""
     zone = ctx.zone
     trail = Trail()
-    trail.add("Az", zone.area, "area", origin="schedule", source=str(locate(ctx.path + ("area",))))
+    trail.add("Az", zone.area, "area", origin="schedule", source=locate(ctx.path + ("area",)))
     at = locate(ctx.path + ("exhaust", "airflow"))
     evaluate(trail, zone, ctx.row, emitter, subject=ctx.subject, system_id=ctx.system_id,
              airflow_at=at, fixtures_at=locate(ctx.path + ("exhaust", "fixtures")))

@@ -9,9 +9,10 @@ gates the run only under ``--fail-on declared``.
 
 from __future__ import annotations
 
+import dataclasses
 import math
-
 from dataclasses import dataclass, field
+from typing import Protocol
 
 SEVERITY_RANK = {"fail": 0, "warning": 1, "info": 2}
 CODE = "code"
@@ -52,19 +53,109 @@ def margin(required: Amount | None, provided: Amount | None) -> Margin | None:
     return Margin(diff, diff / required.value if required.value > 0 else None)
 
 
-@dataclass(frozen=True)
+class _Locator(Protocol):
+    """Anything that finds where a field path was written: ``(file, line, column)``
+    (:class:`airgate.models.loaded.LoadedSchedule`)."""
+
+    def locate(self, path: tuple) -> tuple[str, int | None, int | None]: ...
+
+
 class Location:
-    file: str
-    line: int | None
-    column: int | None
+    """Where something is written: ``file``, and its 1-based ``line`` and ``column`` (None where
+    unknown). ``str()`` gives ``file:line:column``.
+
+    A location made by :meth:`deferred` holds a field path and what it was read from, and finds
+    its file, line and column only when one is first read (``file``, ``line``, ``column``,
+    ``str()``, equality, hashing, pickling), then keeps them: a portfolio's evaluation makes
+    several locations per zone and a report shows few of them. Immutable, compared and hashed by
+    its file, line and column; pickled as those three values (``check --jobs`` hands reports
+    between processes).
+    """
+
+    __slots__ = ("_file", "_line", "_column", "_of", "_path")
+    __match_args__ = ("file", "line", "column")
+
+    def __init__(self, file: str, line: int | None, column: int | None) -> None:
+        setattr_ = object.__setattr__
+        setattr_(self, "_file", file)
+        setattr_(self, "_line", line)
+        setattr_(self, "_column", column)
+        setattr_(self, "_of", None)
+
+    @classmethod
+    def deferred(cls, of: _Locator, path: tuple, file: str | None = None) -> Location:
+        """The location of field ``path`` of ``of`` (a loaded schedule), found when first
+        read; ``file``: the file it is in where that is known already (reading it then finds
+        nothing)."""
+        loc = cls.__new__(cls)
+        setattr_ = object.__setattr__
+        setattr_(loc, "_file", file)
+        setattr_(loc, "_of", of)
+        setattr_(loc, "_path", path)
+        return loc
+
+    def _find(self) -> None:
+        file, line, column = self._of.locate(self._path)
+        setattr_ = object.__setattr__
+        setattr_(self, "_file", file)
+        setattr_(self, "_line", line)
+        setattr_(self, "_column", column)
+        setattr_(self, "_of", None)  # found: what it was read from is no longer needed here
+        setattr_(self, "_path", None)
+
+    @property
+    def file(self) -> str:
+        if self._file is None and self._of is not None:
+            self._find()
+        return self._file
+
+    @property
+    def line(self) -> int | None:
+        if self._of is not None:
+            self._find()
+        return self._line
+
+    @property
+    def column(self) -> int | None:
+        if self._of is not None:
+            self._find()
+        return self._column
+
+    @property
+    def found(self) -> bool:
+        """Whether the file, line and column are known yet (False: not looked up so far)."""
+        return self._of is None
+
+    def _key(self) -> tuple[str, int | None, int | None]:
+        if self._of is not None:
+            self._find()
+        return (self._file, self._line, self._column)
+
+    def __eq__(self, other: object) -> bool:
+        if not isinstance(other, Location):
+            return NotImplemented
+        return self._key() == other._key()
+
+    def __hash__(self) -> int:
+        return hash(self._key())
+
+    def __setattr__(self, name: str, value: object) -> None:
+        raise dataclasses.FrozenInstanceError(f"cannot assign to field {name!r}")
+
+    def __delattr__(self, name: str) -> None:
+        raise dataclasses.FrozenInstanceError(f"cannot delete field {name!r}")
+
+    def __reduce__(self):  # pickled (and copied) as the plain location it stands for
+        return (Location, self._key())
+
+    def __repr__(self) -> str:
+        return f"Location(file={self.file!r}, line={self.line!r}, column={self.column!r})"
 
     def __str__(self) -> str:
-        parts = [self.file]
-        if self.line is not None:
-            parts.append(str(self.line))
-            if self.column is not None:
-                parts.append(str(self.column))
-        return ":".join(parts)
+        file, line, column = self._key()
+        if line is None:
+            return file
+        return f"{file}:{line}" if column is None else f"{file}:{line}:{column}"
 
 
 @dataclass(frozen=True)

@@ -25,7 +25,7 @@ def intake(trail: Trail, system: System, result: SystemResult, emitter: Emitter,
     if not advice and math.isfinite(vot):
         advice = f"raise the intake to at least {formatting.amount(vot, 'airflow', emitter.units)}"
     trail.add("Vot_design", system.outdoor_air, "airflow", origin="schedule",
-              note="scheduled minimum outdoor-air intake", source=str(where))
+              note="scheduled minimum outdoor-air intake", source=where)
     emitter.compare("system-intake", system.id, "outdoor-air intake", trail.value("Vot"),
                     system.outdoor_air, "airflow", where, system=system.id, advice=advice)
 

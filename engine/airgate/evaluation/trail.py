@@ -4,9 +4,12 @@ from __future__ import annotations
 
 import re
 from functools import lru_cache
-from typing import NamedTuple
+from typing import TYPE_CHECKING, NamedTuple
 
 from airgate import units
+
+if TYPE_CHECKING:
+    from airgate.evaluation.findings import Location
 
 _PLACEHOLDER = re.compile(r"\{([^{}]+)\}")
 
@@ -30,7 +33,9 @@ class Step(NamedTuple):
     value: float  #: in internal units of ``kind`` (see airgate.units)
     kind: str
     formula: str = ""
-    source: str = ""
+    #: a citation, or where the schedule states the value (a :class:`~airgate.evaluation.findings.
+    #: Location`, found when first shown: writers write ``str(source)``)
+    source: str | Location = ""
     note: str = ""
     origin: str = "computed"  #: computed | schedule | table | explicit | assumed | system
 
@@ -47,7 +52,8 @@ class Trail:
     def __init__(self) -> None:
         self.steps: dict[str, Step] = {}
 
-    def add(self, symbol: str, value: float, kind: str, formula: str = "", source: str = "",
+    def add(self, symbol: str, value: float, kind: str, formula: str = "",
+            source: str | Location = "",
             note: str = "", origin: str = "computed") -> float:
         value = float(value)
         self.steps[symbol] = Step(symbol, value, kind, formula, source, note, origin)

@@ -33,8 +33,10 @@ class ZoneContext:
     #: the row of the pack's exhaust table the zone's exhaust names (None: no exhaust stated)
     exhaust: ExhaustRow | None = None
 
-    def where(self, name: str) -> str:
-        return str(self.fields.get(name, self.location))
+    def where(self, name: str) -> Location:
+        """Where the stated field ``name`` is written: a trail step's source, found only when
+        a writer shows it (:meth:`Location.deferred`)."""
+        return self.fields.get(name, self.location)
 
     @property
     def air_class(self) -> int:

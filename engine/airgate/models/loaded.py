@@ -26,6 +26,9 @@ class LoadedSchedule:
 
     model: Schedule
     doc: Positions
+    #: every field is written in :attr:`file` (False: an import whose fields come from several
+    #: files, :class:`airgate.readers.sources.ImportedSchedule`)
+    one_file = True
 
     @property
     def file(self) -> str:

@@ -97,6 +97,7 @@ class Summary:
 class ImportedSchedule(LoadedSchedule):
     """A schedule read from a table, gbXML or IFC file; locations point into that source."""
 
+    one_file = False  # each field's origin names its own file
     summary: Summary = field(default_factory=lambda: Summary(""))
     #: elements or values of the source that were not mapped, and why
     notes: list[str] = field(default_factory=list)

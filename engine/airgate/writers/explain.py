@@ -44,7 +44,7 @@ def trail_lines(trail: Trail, system: str, indent: str = "  ") -> list[str]:
         why = [step.note or ("" if step.formula else _ORIGIN.get(step.origin, ""))]
         why = [w for w in why if w]
         if step.source:
-            why.append(step.source)
+            why.append(str(step.source))
         for w in why:
             out.append(f"{pad}   {clean(w)}")
     return out

@@ -311,7 +311,7 @@ class _View:
                          "substituted": subst,
                          "value": formatting.amount(step.value, step.kind, self.u),
                          "origin": _ORIGIN.get(step.origin, step.origin),
-                         "why": " · ".join(x for x in (step.note, step.source) if x)})
+                         "why": " · ".join(str(x) for x in (step.note, step.source) if x)})
         return rows
 
     def bare(self, step: Step) -> str:
@@ -327,10 +327,10 @@ class _View:
             for step in trail.steps.values():
                 if step.origin in ("table", "explicit", "assumed"):
                     key = (step.symbol, step.value, step.kind,
-                           step.source or step.note or _ORIGIN[step.origin])
+                           str(step.source or step.note or _ORIGIN[step.origin]))
                     raw.setdefault(key, {})[subject] = None  # ordered set
                 elif step.formula and step.source and step.origin == "computed":
-                    cited.setdefault(step.source, {})[step.symbol] = None
+                    cited.setdefault(str(step.source), {})[step.symbol] = None
         # one row per value as shown (each distinct value formatted once)
         values: dict[tuple[str, str, str], dict[str, None]] = {}
         for (sym, value, kind, src), subjects in raw.items():

@@ -85,7 +85,7 @@ def _trail(trail: Trail, system: str) -> list[dict[str, Any]]:
         if s.formula:
             out["formula"] = s.symbolic()
         if s.source:
-            out["source"] = s.source
+            out["source"] = str(s.source)  # a schedule value's location is found here
         if s.note:
             out["note"] = s.note
         return out

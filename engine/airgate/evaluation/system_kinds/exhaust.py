@@ -42,7 +42,7 @@ def exhaust_fan(system: System, ctxs: list, zones: list[ZoneResult], result: Sys
                       note="sum of the zones' scheduled exhaust airflows")
     if system.airflow is None:
         return
-    fan = trail.add("V_fan", system.airflow, "airflow", origin="schedule", source=str(where),
+    fan = trail.add("V_fan", system.airflow, "airflow", origin="schedule", source=where,
                     note="the fan's scheduled airflow")
     emitter.compare("exhaust-fan-airflow", system.id, "exhaust fan airflow against the "
                     "exhaust its zones schedule (ΣVe_design)", total, fan, "airflow", where,

@@ -228,7 +228,7 @@ def multiple_zone(system: System, ctxs: list[ZoneContext], zones: list[ZoneResul
                      system=system.id)
         trail.add("Vot", math.inf, "airflow", note="Ev ≤ 0: no intake suffices")
         trail.add("Vot_design", system.outdoor_air, "airflow", origin="schedule",
-                  note="scheduled minimum outdoor-air intake", source=str(where))
+                  note="scheduled minimum outdoor-air intake", source=where)
         delivered.multiple_zone(result, pack)
         return
     trail.add("Vot", eff.outdoor_air_intake(trail.value("Vou"), ev), "airflow",

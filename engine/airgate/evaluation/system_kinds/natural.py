@@ -44,7 +44,7 @@ def natural(system: System, ctxs: list[ZoneContext], zones: list[ZoneResult],
         t = z.trail
         at = {name: locate(base + (name,)) for name in _FIELDS}
         t.add("A_open", nv.openable_area, "area", origin="schedule",
-              note="openable area of the openings to the outdoors", source=str(at["openable_area"]))
+              note="openable area of the openings to the outdoors", source=at["openable_area"])
         t.add("f_open", rules.openable_fraction.value, "fraction", origin="table",
               note="least openable area per net occupiable floor area",
               source=rules.openable_fraction.cite())
@@ -56,7 +56,7 @@ def natural(system: System, ctxs: list[ZoneContext], zones: list[ZoneResult],
                                                  "mechanically")
         ratio = rules.depth_ratio[nv.arrangement]
         t.add("H", ctx.zone.height, "length", origin="schedule", note="ceiling height",
-              source=str(locate(ctx.path + ("height",))))
+              source=locate(ctx.path + ("height",)))
         t.add("k_depth", ratio.value, "fraction", origin="table",
               note=f"greatest depth per ceiling height, {nv.arrangement} openings",
               source=ratio.cite())
@@ -64,7 +64,7 @@ def natural(system: System, ctxs: list[ZoneContext], zones: list[ZoneResult],
                       formula="{k_depth}·{H}", source=ratio.cite())
         t.add("depth", nv.depth, "length", origin="schedule",
               note="distance from the openings the naturally ventilated floor reaches",
-              source=str(at["depth"]))
+              source=at["depth"])
         if nv.depth > limit * (1 + _TOLERANCE):
             amt = lambda v: formatting.amount(v, "length", emitter.units)  # noqa: E731
             emitter.emit(
