@@ -40,6 +40,10 @@ def test_same_text_as_the_standard_library(value, level):
     {1: "a whole-number key", "s": [1, (2, 3)]},
     {"enum": Colour.RED, "flat": {"bool": True, "none": None}},
     [[], {}, [{}], {"k": []}],
+    # where the compiled serializer's text differs from Python's, the text is built again
+    {"small": [1e-05, 3.2e-06, 7.775781272096648e-09, 1e-09, 0.0001, 4.95e-05]},
+    {None: "a None key", "text": ["NaN", "Infinity", "None", "0.00001", "1e-5", "age-9"]},
+    {"surrogate": "\ud800"},
 ])
 def test_edge_values(value):
     assert json_encode.dumps(value) == _std(value)
@@ -57,3 +61,10 @@ def test_streamed_report_text_equals_json_dumps():
     data = {"a": [{"id": "1", "v": 1.5}, {"id": "2", "v": [1, 2]}], "b": {"c": None}}
     streamed = Streamed(a=Lazy(iter(data["a"])), b=data["b"])
     assert json_text(streamed) == _std(data) + "\n"
+
+
+def test_every_decimal_exponent():
+    """Floats of every decimal exponent a double has, as Python's json writes them."""
+    values = [m * 10.0 ** e for e in range(-323, 308) for m in (1.0, 2.5, 7.775781272096648)]
+    assert json_encode.dumps(values) == _std(values)
+    assert json_encode.dumps(values, 2) == _std(values, 2)

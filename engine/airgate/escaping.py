@@ -51,6 +51,8 @@ def invisible(text: object) -> str:
     """``text`` with the bidirectional controls and line/paragraph separators escaped visibly
     (``\\u202e``); other characters unchanged, for writers that escape the rest themselves."""
     s = str(text)
+    if s.isascii():  # every character it escapes is beyond ASCII
+        return s
     return _INVISIBLE.sub(_escape, s) if _INVISIBLE.search(s) else s
 
 

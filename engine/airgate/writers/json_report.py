@@ -62,17 +62,31 @@ def _symbol_key(symbol: str) -> str:
 
 
 def _values(trail: Trail, system: str) -> dict[str, Any]:
-    """Every step's value: :func:`value` of each, with the unit looked up once per kind (the
-    same divisions in the same order, so the same numbers)."""
+    """Every step's value: :func:`value` of each, with the key, unit and factors looked up once
+    per symbol and kind (the same divisions in the same order, so the same numbers)."""
     out: dict[str, Any] = {}
+    entries = _VALUE_ENTRIES
     for s in trail.steps.values():
-        factor, scale, unit = _json_unit(s.kind, system)
+        entry = entries.get((s.symbol, s.kind, system))
+        if entry is None:
+            entry = _value_entry(s.symbol, s.kind, system)
+        key, factor, scale, unit = entry
         x = s.value / factor / scale
         if x != x or x in _INFINITE:
-            out[_symbol_key(s.symbol)] = {"value": None, "unit": unit}
+            out[key] = {"value": None, "unit": unit}
         else:
-            out[_symbol_key(s.symbol)] = {"value": float(f"{x:.6g}"), "unit": unit}
+            out[key] = {"value": float(f"{x:.6g}"), "unit": unit}
     return out
+
+
+#: (symbol, kind, system) → (JSON key, internal per display unit, display scale, JSON unit)
+_VALUE_ENTRIES: dict[tuple[str, str, str], tuple[str, float, float, str]] = {}
+
+
+def _value_entry(symbol: str, kind: str, system: str) -> tuple[str, float, float, str]:
+    entry = _VALUE_ENTRIES[(symbol, kind, system)] = (_symbol_key(symbol),
+                                                     *_json_unit(kind, system))
+    return entry
 
 
 _INFINITE = (math.inf, -math.inf)
@@ -235,7 +249,7 @@ def gate(batch) -> dict[str, Any] | None:
 def _report(report: Report, series_step: int, lazy: bool,
             gated: dict[str, Any] | None = None, trails: bool = False) -> dict[str, Any]:
     """The report; ``lazy``: systems, zones and findings are made while they are written
-    (output.Lazy), so memory holds one zone at a time, not the whole portfolio."""
+    (output.Lazy), so memory holds a few dozen zones at a time, not the whole portfolio."""
     system = report.units
     pack = report.pack
     listed = Lazy if lazy else list

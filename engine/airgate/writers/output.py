@@ -92,7 +92,7 @@ def json_chunks(data: object) -> Iterator[str]:
     bidirectional controls and line separators, which can only stand inside a JSON string, are
     written as their JSON escapes (``\\u202e``): the same data, shown visibly. :class:`Lazy`
     lists and :class:`Streamed` objects in ``data`` are produced while they are written: memory
-    holds one item of a lazy list at a time."""
+    holds a few dozen items of a lazy list at a time (:data:`_BATCH`)."""
     if isinstance(data, (Lazy, Streamed)):
         yield from map(invisible, _streamed(data, 0))
     else:
@@ -115,13 +115,40 @@ def _streamed(value: object, level: int) -> Iterator[str]:
         yield "\n" + "  " * level + "}"
     elif isinstance(value, Lazy):
         sep = "["
-        for item in value.items:
-            yield sep + inner
+        for batch in _batches(value.items):
+            if isinstance(batch, list):  # plain items: encoded together, without the brackets
+                text = json_encode.dumps(batch, level)
+                yield sep + text[1:-2 - 2 * level]
+            else:
+                yield sep + inner
+                yield from _streamed(batch, level + 1)
             sep = ","
-            yield from _streamed(item, level + 1)
         yield "[]" if sep == "[" else "\n" + "  " * level + "]"
     else:
         yield json_encode.dumps(value, level)
+
+
+#: how many plain items of a lazy list are made and encoded at a time
+_BATCH = 64
+
+
+def _batches(items: Iterable[object]) -> Iterator[object]:
+    """The items of a lazy list: runs of up to :data:`_BATCH` plain items as lists (one encoder
+    call each), and each streamed item alone."""
+    run: list[object] = []
+    for item in items:
+        if isinstance(item, (Lazy, Streamed)):
+            if run:
+                yield run
+                run = []
+            yield item
+        else:
+            run.append(item)
+            if len(run) == _BATCH:
+                yield run
+                run = []
+    if run:
+        yield run
 
 
 def json_text(data: object) -> str:

@@ -212,7 +212,7 @@ def to_dict(batch: Batch) -> dict[str, Any]:
 
 def _log(batch: Batch, lazy: bool) -> dict[str, Any]:
     """The log; ``lazy``: each result is made while it is written (output.Lazy), so memory
-    holds one result at a time however many findings the run has."""
+    holds a few dozen results at a time however many findings the run has."""
     rules = _rules(batch)
     rule_index = {r["id"]: i for i, r in enumerate(rules)}
     files = _artifacts(batch)
