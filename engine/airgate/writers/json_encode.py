@@ -4,9 +4,10 @@ encoder (which the C accelerator does not cover when ``indent`` is set).
 
 The text is first made by pydantic-core's compiled serializer (``pydantic_core.to_json``, a
 dependency of pydantic), about five times faster than the pieces below. Its text differs from the
-standard library's in three known ways, each recognisable in its output: a number between
+standard library's in four known ways, each recognisable in its output: a number between
 1e-9 and 1e-4 (``1e-7`` or ``0.00003`` where Python writes ``1e-07`` and ``3e-05``; a sweep of
-every decimal exponent found no other), a ``None`` key (``"None"`` where Python writes
+every decimal exponent found no other), an exponent without its sign (``1e16``, older
+pydantic-core releases), a ``None`` key (``"None"`` where Python writes
 ``"null"``), and ``NaN``/``Infinity`` (which Python refuses here). When its text holds any of
 these — or the words ``NaN``, ``Infinity``, ``"None"``, ``0.0000`` or such an exponent appear
 anywhere, even inside a string — or it refuses the value, the text is built by the pieces below
@@ -50,9 +51,10 @@ def _flat_encoder(newline: str):
 
 
 #: what in the compiled serializer's text may differ from the standard library's: these words
-#: anywhere (found by the C substring search), and a one-digit negative exponent after a digit
+#: anywhere (found by the C substring search), and after a digit a one-digit negative exponent
+#: or an exponent without its sign (``1e16``: pydantic-core before 2.2x writes no ``+``)
 _DOUBTFUL_WORDS = (b"0.0000", b"NaN", b"Infinity", b'"None"')
-_EXPONENT = re.compile(rb"e-[1-9](?![0-9])")
+_EXPONENT = re.compile(rb"e-[1-9](?![0-9])|e[0-9]")
 
 
 def _doubtful(text: bytes) -> bool:
