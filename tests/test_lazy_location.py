@@ -78,6 +78,13 @@ def test_a_passing_district_finds_no_position(tmp_path, counted):
     assert counted == {"locate": 0, "scan": 0}  # common practice: nothing shown, nothing found
     zone = report.systems[0].zones[0]
     assert not zone.location.found
+    json_report.render(report)  # without zone trails: a zone's line and column are not written
+    # common practice: what the report shows, the systems' locations and the schedule values
+    # of their trails (the intake), is found; no zone's position
+    shown = [st.source for s in report.systems for st in s.trail.steps.values()
+             if isinstance(st.source, Location)]
+    assert shown and counted["locate"] == len(report.systems) + len(shown)
+    assert not any(z.location.found for s in report.systems for z in s.zones)
 
 
 def test_a_district_finds_the_positions_of_its_findings_only(tmp_path, counted):
@@ -137,3 +144,17 @@ def test_a_deferred_location_behaves_as_a_plain_one(tmp_path):
     assert Location("a.yaml", None, None) != Location("a.yaml", 1, None)
     assert str(Location("a.yaml", None, None)) == "a.yaml"
     assert str(Location("a.yaml", 3, None)) == "a.yaml:3"
+
+def test_zone_lines_come_with_the_trails(tmp_path):
+    loaded, report = _checked(tmp_path, synthetic.vav_portfolio(40, per_system=20))
+    short = json.loads(json_report.render(report))
+    full = json.loads(json_report.render(report, trails=True))
+    for s_short, s_full, s in zip(short["systems"], full["systems"], report.systems):
+        assert s_short["location"] == s_full["location"] == {
+            "file": s.location.file, "line": s.location.line, "column": s.location.column}
+        for z_short, z_full, z in zip(s_short["zones"], s_full["zones"], s.zones):
+            assert z_short["location"] == {"file": loaded.file, "line": None, "column": None}
+            assert z_full["location"] == {"file": loaded.file, "line": z.location.line,
+                                          "column": z.location.column}
+            assert z_full["location"]["line"] is not None
+    assert [f["location"] for f in short["findings"]] == [f["location"] for f in full["findings"]]

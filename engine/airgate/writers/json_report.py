@@ -5,8 +5,9 @@ expressions (a stock pint registry parses them once ``person = [people]`` is def
 deterministic: keys in a fixed order, numbers rounded to 6 significant digits, no timestamps.
 
 Every zone carries its values; its calculation trails (the zone's, its dilution's, its
-contaminants') only when asked (``trails=True``, ``check --trails``), so that a portfolio's
-report stays a small multiple of its input. Systems always carry their trail.
+contaminants') and its line and column only when asked (``trails=True``, ``check --trails``),
+so that a portfolio's report stays a small multiple of its input and its zones' positions are
+not looked up for it. Systems always carry their trail and location.
 """
 
 from __future__ import annotations
@@ -143,7 +144,7 @@ def _zone(z: ZoneResult, system: str, step_minutes: int = 0,
     out = {
         "id": z.id, "name": z.name, "space": z.space, "space_label": z.space_label,
         "air_class": z.air_class, "verdict": z.verdict, "values": _values(z.trail, system),
-        "location": _location(z.location),
+        "location": _location(z.location) if trails else _file_of(z.location),
         **({"trail": _trail(z.trail, system)} if trails else {}),
         "dilution": _dilution(z, system, step_minutes, trails),
         "contaminants": {cid: _trailed(t, system, trails)
@@ -182,6 +183,13 @@ def _condition(c: ConditionResult, system: str) -> dict[str, Any]:
 
 def _location(loc) -> dict[str, Any]:
     return {"file": loc.file, "line": loc.line, "column": loc.column}
+
+
+def _file_of(loc) -> dict[str, Any]:
+    """A zone's location in a report without zone trails: its file, line and column null. A
+    zone's line and column come with its trails (``trails=True``), so a report that shows no
+    zone's working finds no zone's position (the findings and systems keep theirs)."""
+    return {"file": loc.file, "line": None, "column": None}
 
 
 def _amount(a: Amount | None, system: str) -> dict[str, Any] | None:
