@@ -70,7 +70,7 @@ def _valid_calls():
     """One valid call of every public procedure (outside procedures/numeric.py, whose helpers
     are the checks themselves), as keyword arguments."""
     from airgate.procedures import (categories, coupled, dilution, dwelling, efficiency, losses,
-                                    network, piecewise, zone_rates)
+                                    multizone, network, piecewise, zone_rates)
 
     sol = piecewise.piecewise_solution([0.0, 1.0, 2.0], [[150.0], [0.0]], 90.0, 150.0, 0.0)
     air = dict(volume=90.0, outdoor_airflow=50.0, recirc_airflow=200.0, recirc_efficiency=0.5,
@@ -134,6 +134,17 @@ def _valid_calls():
         (losses.inactivation_rate_from_half_life, dict(half_life=1.5)),
         (losses.loss_breakdown, air),
         (losses.loss_rate, air),
+        (multizone.delivered_by_system_ev, dict(voz=[100.0, 50.0], vot_design=900.0,
+                                                vot=1000.0)),
+        (multizone.delivered_by_zone_ev, dict(vpz=[300.0, 200.0], xs=0.25, vou=250.0,
+                                              vot_design=312.5, ep=[1.0, 0.6], fa=[1.0, 0.8],
+                                              fb=[1.0, 0.6], fc=[1.0, 0.96],
+                                              secondary=np.array([False, True]))),
+        (multizone.multiple_zone_figures, dict(
+            rp=[2.5, 2.5], pz=[10.0, 5.0], ra=[0.3, 0.3], az=[100.0, 50.0], ez=[1.0, 0.8],
+            vpz=[200.0, 100.0], starts=[0], ps=12.0, vps=400.0, ep=[1.0, 0.6], er=[0.0, 0.5],
+            method="table", breakpoint=0.6, slope=0.88, intercept=0.22, above_breakpoint=0.75,
+            rows=[(0.15, 1.0), (0.55, 0.6)], above_table=0.5)),
         (network.network_march, dict(volume=[90.0, 60.0], inflow=[[0.0, 0.0], [30.0, 0.0]],
                                      removal=[80.0, 50.0], step=0.25,
                                      generation_per_step=[[100.0, 0.0]], c0=[0.0, 0.0])),

@@ -28,9 +28,12 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from airgate.evaluation.report import SystemResult
-from airgate.evaluation.trail import Trail
+from airgate.evaluation.trail import Step, Trail
 from airgate.models.rules import RulePack
+from airgate.procedures import multizone
 
 SYMBOL = "Voz_delivered"
 _NOTE = "outdoor air the zone receives at the scheduled intake"
@@ -66,53 +69,79 @@ def outdoor_air(result: SystemResult, pack: RulePack) -> None:
                     f"{_NOTE}: no zone requires outdoor air, so none is shared out")
 
 
-def _appendix_a(zt: Trail, st: Trail, pack: RulePack) -> None:
-    """Voz the scheduled intake satisfies in a zone with its own Evz (Appendix A, derived)."""
-    for symbol in ("Vou", "Vot_design"):
-        zt.copy_from(st, symbol)
-    if "Xs" not in zt:
-        zt.copy_from(st, "Xs")
-    vou, design, xs, vpz = (zt.value(s) for s in ("Vou", "Vot_design", "Xs", "Vpz"))
-    secondary = "Fa" in zt
-    key = "detailed_ev_secondary" if secondary else "detailed_ev"
+def _appendix_a(zones, st: Trail, pack: RulePack, f) -> None:
+    """Voz the scheduled intake satisfies in each zone with its own Evz (Appendix A, derived):
+    :func:`airgate.procedures.multizone.delivered_by_zone_ev` over the zones ``zones`` (indices
+    into the system's zones, each with Evz and Vpz in its trail)."""
+    design = st.value("Vot_design")
+    secondary = np.array(["Fa" in f.zones[i].trail for i in zones], dtype=bool)
+    index = np.asarray(zones, dtype=int)
+    values = np.atleast_1d(multizone.delivered_by_zone_ev(
+        np.asarray(f.vpz_list)[index], st.value("Xs"), st.value("Vou"), design,
+        np.where(secondary, [f.zones[i].trail.steps["Ep"].value if s else 1.0
+                             for i, s in zip(zones, secondary)], 1.0),
+        f.fa[index], f.fb[index], f.fc[index], secondary)).tolist()
+    shared = [_copy(st, s) for s in ("Vou", "Vot_design", "Xs")]
     why = ("derived from Appendix A: Evz ≥ Vou/Vot_design solved for the zone outdoor airflow")
-    if design <= 0:
-        zt.add(SYMBOL, 0.0, "airflow", source=pack.cite(key),
-               note=f"{_NOTE}: no intake is scheduled, so the zone receives none")
-        return
-    if secondary:
-        fa, fb, fc, ep = (zt.value(s) for s in ("Fa", "Fb", "Fc", "Ep"))
-        value = vpz * (fa * (1 - vou / design) + xs * fb) / (ep * fc) if ep * fc > 0 else 0.0
-        formula = "{Vpz}·({Fa}·(1 − {Vou} / {Vot_design}) + {Xs}·{Fb}) / ({Ep}·{Fc})"
-    else:
-        value = vpz * (1 + xs - vou / design)
-        formula = "{Vpz}·(1 + {Xs} − {Vou} / {Vot_design})"
-    note = f"{_NOTE}; {why}"
-    if not value > 0:
-        note += ("; the intake is below what the other zones take, so none is left for this "
-                 "zone (shown as 0)")
-        value = 0.0
-    zt.add(SYMBOL, value, "airflow", formula=formula, source=pack.cite(key), note=note)
+    cite = {False: pack.cite("detailed_ev"), True: pack.cite("detailed_ev_secondary")}
+    for k, i in enumerate(zones):
+        steps = f.zones[i].trail.steps
+        steps["Vou"], steps["Vot_design"] = shared[0], shared[1]
+        if "Xs" not in steps:
+            steps["Xs"] = shared[2]
+        if design <= 0:
+            steps[SYMBOL] = Step(SYMBOL, 0.0, "airflow", "", cite[bool(secondary[k])],
+                                 f"{_NOTE}: no intake is scheduled, so the zone receives none",
+                                 "computed")
+            continue
+        formula = _SECONDARY if secondary[k] else _SINGLE
+        note = f"{_NOTE}; {why}"
+        if not values[k] > 0:
+            note += ("; the intake is below what the other zones take, so none is left for this "
+                     "zone (shown as 0)")
+        steps[SYMBOL] = Step(SYMBOL, values[k], "airflow", formula, cite[bool(secondary[k])],
+                             note, "computed")
 
 
-def multiple_zone(result: SystemResult, pack: RulePack) -> None:
-    """Multiple-zone recirculating system: by Evz where the zone has one, else by Vot."""
+_SINGLE = "{Vpz}·(1 + {Xs} − {Vou} / {Vot_design})"
+_SECONDARY = "{Vpz}·({Fa}·(1 − {Vou} / {Vot_design}) + {Xs}·{Fb}) / ({Ep}·{Fc})"
+
+
+def _copy(trail: Trail, symbol: str) -> Step | None:
+    """A system step as a zone's trail shows it (:meth:`Trail.copy_from`), made once."""
+    step = trail.steps.get(symbol)
+    if step is None:
+        return None
+    return Step(step.symbol, step.value, step.kind, "", step.source,
+                step.note or "system value", "system")
+
+
+def multiple_zone(result: SystemResult, pack: RulePack, f) -> None:
+    """Multiple-zone recirculating system: by Evz where the zone has one, else by Vot;
+    ``f``: the system's figures (:func:`airgate.evaluation.system_kinds.multiple_zone.figures`,
+    with its zones)."""
     st = result.trail
     vot = st.value("Vot")
-    for z in result.zones:
-        zt = z.trail
-        if "Evz" in zt and "Vpz" in zt and "Xs" in st:
-            _appendix_a(zt, st, pack)
-            continue
-        if math.isinf(vot):
-            continue  # Ev ≤ 0 without zone efficiencies: no figure (the system trail says why)
-        zt.copy_from(st, "Vot_design")
-        zt.copy_from(st, "Vot")
-        if vot <= 0:
-            zt.add(SYMBOL, zt.value("Vot_design") if zt.value("Voz") > 0 else 0.0, "airflow",
-                   note=f"{_NOTE}: the system requires no outdoor air")
-            continue
-        zt.add(SYMBOL, zt.value("Voz") * zt.value("Vot_design") / vot, "airflow",
-               formula="{Voz}·{Vot_design} / {Vot}", source=pack.cite("multiple_zone_intake"),
-               note=f"{_NOTE}: Ev is one figure for the system, so each zone receives its Voz "
-                    "in the ratio of the scheduled to the required intake")
+    by_zone, by_system = [], []
+    has_xs = "Xs" in st
+    for i, z in enumerate(result.zones):
+        steps = z.trail.steps
+        (by_zone if "Evz" in steps and "Vpz" in steps and has_xs else by_system).append(i)
+    if by_zone:
+        _appendix_a(by_zone, st, pack, f)
+    if math.isinf(vot) or not by_system:
+        return  # Ev ≤ 0 without zone efficiencies: no figure (the system trail says why)
+    design = _copy(st, "Vot_design")
+    required = _copy(st, "Vot")
+    voz = [f.zones[i].trail.steps["Voz"].value for i in by_system]
+    values = np.atleast_1d(multizone.delivered_by_system_ev(voz, design.value, vot)).tolist()
+    if vot <= 0:
+        note, formula, source = f"{_NOTE}: the system requires no outdoor air", "", ""
+    else:
+        note = (f"{_NOTE}: Ev is one figure for the system, so each zone receives its Voz "
+                "in the ratio of the scheduled to the required intake")
+        formula, source = "{Voz}·{Vot_design} / {Vot}", pack.cite("multiple_zone_intake")
+    for k, i in enumerate(by_system):
+        steps = f.zones[i].trail.steps
+        steps["Vot_design"], steps["Vot"] = design, required
+        steps[SYMBOL] = Step(SYMBOL, values[k], "airflow", formula, source, note, "computed")

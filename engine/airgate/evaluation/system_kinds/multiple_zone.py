@@ -16,26 +16,54 @@ from airgate.evaluation.findings import Amount, Location
 from airgate.evaluation.report import SystemResult, ZoneResult
 from airgate.evaluation.system_kinds.common import SystemKind
 from airgate.evaluation.systems import intake
-from airgate.evaluation.trail import Trail
+from airgate.evaluation.trail import Step, Trail
 from airgate.evaluation.zones import ZoneContext
 from airgate.models.loaded import LoadedSchedule
 from airgate.models.rules import DetailedEv, RulePack, SimplifiedEv, TableEv
 from airgate.models.schedule import System, at_condition
 from airgate.procedures import efficiency as eff
+from airgate.procedures import multizone as mz
 
 
-def _population(system: System, zones: list[ZoneResult], trail: Trail, pack: RulePack,
-                emitter: Emitter, where: Location) -> float:
-    trail.add("ΣPz", float(sum(z.trail.value("Pz") for z in zones)), "people",
-              note=f"sum over {len(zones)} zones")
+#: the Ev methods' names in :func:`airgate.procedures.multizone.multiple_zone_figures`
+_METHOD = {SimplifiedEv: "simplified", DetailedEv: "detailed", TableEv: "table"}
+_VPZ_NOTE = "zone primary airflow at the condition analysed"
+
+
+def core_inputs(system: System, fields: list, zones: list[ZoneResult], method) -> dict:
+    """The arguments of :func:`airgate.procedures.multizone.multiple_zone_figures` for one
+    system: Rp, Pz, Ra, Az, Ez from the zones' trails, Vpz, Ep, Er from their schedule fields
+    ``fields`` (a zone without a Vpz as 0), Ps and Vps where stated, the Ev method's
+    parameters."""
+    steps = [z.trail.steps for z in zones]
+    rp, pz, ra, az, ez = ([s[k].value for s in steps] for k in ("Rp", "Pz", "Ra", "Az", "Ez"))
+    kwargs = {}
+    if isinstance(method, SimplifiedEv):
+        kwargs = dict(breakpoint=method.breakpoint, slope=method.slope,
+                      intercept=method.intercept, above_breakpoint=method.above_breakpoint)
+    elif isinstance(method, TableEv):
+        kwargs = dict(rows=method.rows, interpolate=method.interpolate,
+                      above_table=None if method.above_last == "detailed"
+                      else float(method.above_last))
+    return dict(
+        rp=rp, pz=pz, ra=ra, az=az, ez=ez, vpz=[f.primary_airflow or 0.0 for f in fields],
+        starts=[0], ps=system.population or 0.0, ps_stated=system.population is not None,
+        vps=system.supply_airflow or 0.0, vps_stated=system.supply_airflow is not None,
+        ep=[1.0 if f.ep is None else f.ep for f in fields], er=[f.er or 0.0 for f in fields],
+        method=_METHOD[type(method)], **kwargs)
+
+
+def _population(system: System, f, n: int, trail: Trail, pack: RulePack, emitter: Emitter,
+                where: Location) -> float:
+    """ΣPz, Ps and D (Section 6.2.5) in the system trail."""
+    sum_pz, d = float(f.sum_pz[0]), float(f.d[0])
+    trail.add("ΣPz", sum_pz, "people", note=f"sum over {n} zones")
     if system.population is None:
-        trail.add("Ps", trail.value("ΣPz"), "people", formula="{ΣPz}", origin="assumed",
+        trail.add("Ps", sum_pz, "people", formula="{ΣPz}", origin="assumed",
                   note="system population not stated: ΣPz (no diversity credit)")
     else:
         trail.add("Ps", system.population, "people", origin="schedule",
                   note="stated in the schedule")
-    sum_pz = trail.value("ΣPz")
-    d = eff.occupant_diversity(trail.value("Ps"), sum_pz) if sum_pz > 0 else 1.0
     trail.add("D", d, "fraction", formula="{Ps} / {ΣPz}" if sum_pz > 0 else "",
               source=pack.cite("occupant_diversity"),
               note="" if sum_pz > 0 else "no occupants: D = 1")
@@ -47,43 +75,101 @@ def _population(system: System, zones: list[ZoneResult], trail: Trail, pack: Rul
     return d
 
 
-def _detailed(system: System, ctxs: list[ZoneContext], zones: list[ZoneResult], trail: Trail,
-              method: DetailedEv, pack: RulePack) -> tuple[float, int]:
-    xs = trail.value("Xs")
-    evz = []
-    for ctx, z in zip(ctxs, zones):
-        zt = z.trail
-        zt.copy_from(trail, "Xs")
-        ep, er = ctx.zone.ep, ctx.zone.er
+def _primary_airflows(system: System, ctxs, zones, f, trail: Trail, pack: RulePack,
+                      emitter: Emitter, locate) -> None:
+    """Vpz, Zpz per zone (with the zone-primary-airflow check) and Vps, Xs for the system."""
+    src = pack.cite("detailed_ev")
+    vpz, zpz = f.vpz_list, f.zpz.tolist()
+    for i, z in enumerate(zones):
+        if vpz[i] > 0:
+            steps = z.trail.steps
+            steps["Vpz"] = Step("Vpz", vpz[i], "airflow", "", "", _VPZ_NOTE, "schedule")
+            steps["Zpz"] = Step("Zpz", zpz[i], "fraction", "{Voz} / {Vpz}", src, "", "computed")
+    vpz_a = np.asarray(vpz)
+    known = vpz_a > 0
+    voz = f.voz
+    for i in np.flatnonzero(known & ~(vpz_a >= voz * (1 - 1e-9))).tolist():
+        ctx, z = ctxs[i], zones[i]
+        emitter.compare("zone-primary-airflow", ctx.subject, "zone primary airflow",
+                        float(voz[i]), vpz[i], "airflow",
+                        locate(ctx.path + ("primary_airflow",)), system=system.id, zone=z.id,
+                        advice="no outdoor-air intake can make up for it; raise the zone's "
+                               "minimum primary airflow")
+    if system.supply_airflow is not None:
+        trail.add("Vps", system.supply_airflow, "airflow", origin="schedule",
+                  note="system primary airflow stated in the schedule")
+    elif known.all():
+        trail.add("Vps", float(f.vps[0]), "airflow", note="ΣVpz (not stated)")
+    if "Vps" in trail:
+        trail.add("Xs", float(f.xs[0]), "fraction", formula="{Vou} / {Vps}", source=src)
+
+
+def _vav_minimum(system, ctxs, zones, f, method: SimplifiedEv, emitter: Emitter,
+                 locate) -> None:
+    ratio = method.vav_minimum_primary_ratio
+    if not system.variable_air_volume or ratio is None:
+        return
+    required = ratio * f.voz
+    vpz = np.asarray(f.vpz_list)
+    # only the zones short of it (by the tolerance of Emitter.compare) are located and reported
+    for i in np.flatnonzero((vpz == 0) | ~(vpz >= required * (1 - 1e-9))).tolist():
+        ctx, z = ctxs[i], zones[i]
+        if ctx.zone.primary_airflow is None:
+            emitter.emit("simplified-vav-minimum", ctx.subject,
+                         f"not evaluated: no primary_airflow scheduled for a VAV zone; the "
+                         f"simplified procedure needs Vpz ≥ {ratio}·Voz = "
+                         f"{formatting.amount(float(required[i]), 'airflow', emitter.units)}",
+                         ctx.location, system=system.id, zone=z.id, severity="info")
+            continue
+        emitter.compare("simplified-vav-minimum", ctx.subject,
+                        f"VAV minimum primary airflow (simplified procedure needs {ratio}·Voz)",
+                        float(required[i]), ctx.zone.primary_airflow, "airflow",
+                        locate(ctx.path + ("primary_airflow",)), system=system.id, zone=z.id,
+                        advice="raise the minimum or use the detailed procedure")
+
+
+def _zone_efficiencies(ctxs, zones, f, trail: Trail, pack: RulePack) -> None:
+    """Each zone's Evz (Appendix A) in its trail, with Ep, Er, Fa, Fb, Fc where Ep is stated."""
+    xs = _shared(trail, "Xs")
+    src, sec = pack.cite("detailed_ev"), pack.cite("detailed_ev_secondary")
+    evz = f.evz.tolist()
+    fa, fb, fc = f.fa.tolist(), f.fb.tolist(), f.fc.tolist()
+    for i, (ctx, z) in enumerate(zip(ctxs, zones)):
+        steps = z.trail.steps
+        steps["Xs"] = xs
+        ep = ctx.zone.ep
         if ep is None:
-            value = eff.zone_ventilation_efficiency_single_path(xs, zt.value("Zpz"))
-            zt.add("Evz", value, "fraction", formula="1 + {Xs} − {Zpz}",
-                   source=pack.cite("detailed_ev"))
-        else:
-            er = 0.0 if er is None else er
-            zt.add("Ep", ep, "fraction", origin="schedule")
-            zt.add("Er", er, "fraction", origin="schedule")
-            fa, fb, fc = eff.secondary_recirculation_factors(ep, er, zt.value("Ez"))
-            zt.add("Fa", fa, "fraction", formula="{Ep} + (1 − {Ep})·{Er}",
-                   source=pack.cite("detailed_ev_secondary"))
-            zt.add("Fb", fb, "fraction", formula="{Ep}", source=pack.cite("detailed_ev_secondary"))
-            zt.add("Fc", fc, "fraction", formula="1 − (1 − {Ez})·(1 − {Er})·(1 − {Ep})",
-                   source=pack.cite("detailed_ev_secondary"))
-            value = eff.zone_ventilation_efficiency(xs, zt.value("Zpz"), ep, er, zt.value("Ez"))
-            zt.add("Evz", value, "fraction", formula="({Fa} + {Xs}·{Fb} − {Zpz}·{Ep}·{Fc}) / {Fa}",
-                   source=pack.cite("detailed_ev_secondary"))
-        evz.append(value)
-    critical = int(np.argmin(evz))
-    return eff.system_ventilation_efficiency_detailed(evz), critical
+            steps["Evz"] = Step("Evz", evz[i], "fraction", "1 + {Xs} − {Zpz}", src, "",
+                                "computed")
+            continue
+        er = ctx.zone.er
+        steps["Ep"] = Step("Ep", float(ep), "fraction", "", "", "", "schedule")
+        steps["Er"] = Step("Er", 0.0 if er is None else float(er), "fraction", "", "", "",
+                           "schedule")
+        steps["Fa"] = Step("Fa", fa[i], "fraction", "{Ep} + (1 − {Ep})·{Er}", sec, "",
+                           "computed")
+        steps["Fb"] = Step("Fb", fb[i], "fraction", "{Ep}", sec, "", "computed")
+        steps["Fc"] = Step("Fc", fc[i], "fraction", "1 − (1 − {Ez})·(1 − {Er})·(1 − {Ep})",
+                           sec, "", "computed")
+        steps["Evz"] = Step("Evz", evz[i], "fraction",
+                            "({Fa} + {Xs}·{Fb} − {Zpz}·{Ep}·{Fc}) / {Fa}", sec, "", "computed")
 
 
-def _ev(system: System, ctxs, zones, trail: Trail, method_name: str, pack: RulePack,
-        d: float) -> tuple[float, int | None]:
+def _shared(trail: Trail, symbol: str) -> Step:
+    """A system step as every zone's trail shows it (:meth:`Trail.copy_from`), made once."""
+    step = trail.steps[symbol]
+    return Step(step.symbol, step.value, step.kind, "", step.source,
+                step.note or "system value", "system")
+
+
+def _ev(system: System, ctxs, zones, f, trail: Trail, method_name: str,
+        pack: RulePack) -> tuple[float, int | None]:
     method = pack.methods[method_name]
     src = f"{method.source.cite()} ({method.provenance})"
+    ev = float(f.ev[0])
+    critical = int(f.critical[0]) if f.critical[0] >= 0 else None
     if isinstance(method, SimplifiedEv):
-        ev = eff.system_ventilation_efficiency_simplified(
-            d, method.breakpoint, method.slope, method.intercept, method.above_breakpoint)
+        d = float(f.d[0])
         formula = ("{slope}·{D} + {intercept}" if d < method.breakpoint else "")
         trail.add("slope", method.slope, "fraction", origin="table", source=src)
         trail.add("intercept", method.intercept, "fraction", origin="table", source=src)
@@ -92,79 +178,26 @@ def _ev(system: System, ctxs, zones, trail: Trail, method_name: str, pack: RuleP
         trail.add("Ev", ev, "fraction", formula=formula, source=src, note=note)
         return ev, None
     if isinstance(method, DetailedEv):
-        ev, critical = _detailed(system, ctxs, zones, trail, method, pack)
+        _zone_efficiencies(ctxs, zones, f, trail, pack)
         trail.add("Ev", ev, "fraction", source=src,
                   note=f"lowest Evz: zone {zones[critical].id} (critical zone)")
         return ev, critical
     assert isinstance(method, TableEv)
-    zp = [z.trail.value("Zpz") for z in zones]
-    critical = int(np.argmax(zp))
-    trail.add("max Zpz", zp[critical], "fraction", note=f"zone {zones[critical].id}")
-    ev = eff.system_ventilation_efficiency_table(zp[critical], method.rows, method.interpolate)
-    if math.isnan(ev):
-        if method.above_last == "detailed":
-            detailed = pack.methods.get("detailed") or DetailedEv(method.source, method.provenance)
-            ev, critical = _detailed(system, ctxs, zones, trail, detailed, pack)
-            trail.add("Ev", ev, "fraction",
-                      source=f"{detailed.source.cite()} ({detailed.provenance})",
-                      note="largest Zpz above the table: detailed calculation, lowest Evz")
-            return ev, critical
-        ev = float(method.above_last)
+    top = int(np.argmax(f.zpz))
+    trail.add("max Zpz", float(f.max_zpz[0]), "fraction", note=f"zone {zones[top].id}")
+    if f.from_zones[0]:
+        detailed = pack.methods.get("detailed") or DetailedEv(method.source, method.provenance)
+        _zone_efficiencies(ctxs, zones, f, trail, pack)
+        trail.add("Ev", ev, "fraction",
+                  source=f"{detailed.source.cite()} ({detailed.provenance})",
+                  note="largest Zpz above the table: detailed calculation, lowest Evz")
+        return ev, critical
     trail.add("Ev", ev, "fraction", source=src,
               note=f"table against the largest Zpz ({'interpolated' if method.interpolate else 'step'})")
     return ev, critical
 
 
-def _primary_airflows(system: System, ctxs, zones, trail: Trail, pack: RulePack,
-                      emitter: Emitter, locate) -> bool:
-    """Vpz, Zpz per zone and Vps; False when some zone has no primary airflow scheduled."""
-    known = all(c.zone.primary_airflow is not None for c in ctxs)
-    for ctx, z in zip(ctxs, zones):
-        if ctx.zone.primary_airflow is None:
-            continue
-        zt = z.trail
-        zt.add("Vpz", ctx.zone.primary_airflow, "airflow", origin="schedule",
-               note="zone primary airflow at the condition analysed")
-        zt.add("Zpz", eff.primary_outdoor_air_fraction(zt.value("Voz"), zt.value("Vpz")),
-               "fraction", formula="{Voz} / {Vpz}", source=pack.cite("detailed_ev"))
-        emitter.compare("zone-primary-airflow", ctx.subject, "zone primary airflow",
-                        zt.value("Voz"), zt.value("Vpz"), "airflow",
-                        locate(ctx.path + ("primary_airflow",)), system=system.id, zone=z.id,
-                        advice="no outdoor-air intake can make up for it; raise the zone's "
-                               "minimum primary airflow")
-    if system.supply_airflow is not None:
-        trail.add("Vps", system.supply_airflow, "airflow", origin="schedule",
-                  note="system primary airflow stated in the schedule")
-    elif known:
-        trail.add("Vps", float(sum(c.zone.primary_airflow for c in ctxs)), "airflow",
-                  note="ΣVpz (not stated)")
-    if "Vps" in trail:
-        trail.add("Xs", eff.average_outdoor_air_fraction(trail.value("Vou"), trail.value("Vps")),
-                  "fraction", formula="{Vou} / {Vps}", source=pack.cite("detailed_ev"))
-    return known
-
-
-def _vav_minimum(system, ctxs, zones, method: SimplifiedEv, emitter: Emitter, locate) -> None:
-    ratio = method.vav_minimum_primary_ratio
-    if not system.variable_air_volume or ratio is None:
-        return
-    for ctx, z in zip(ctxs, zones):
-        required = ratio * z.trail.value("Voz")
-        if ctx.zone.primary_airflow is None:
-            emitter.emit("simplified-vav-minimum", ctx.subject,
-                         f"not evaluated: no primary_airflow scheduled for a VAV zone; the "
-                         f"simplified procedure needs Vpz ≥ {ratio}·Voz = "
-                         f"{formatting.amount(required, 'airflow', emitter.units)}",
-                         ctx.location, system=system.id, zone=z.id, severity="info")
-            continue
-        emitter.compare("simplified-vav-minimum", ctx.subject,
-                        f"VAV minimum primary airflow (simplified procedure needs {ratio}·Voz)",
-                        required, ctx.zone.primary_airflow, "airflow",
-                        locate(ctx.path + ("primary_airflow",)), system=system.id, zone=z.id,
-                        advice="raise the minimum or use the detailed procedure")
-
-
-def _limiting_zones(system, ctxs, zones, trail: Trail, emitter: Emitter, locate) -> list[str]:
+def _limiting_zones(system, ctxs, zones, f, trail: Trail, emitter: Emitter, locate) -> list[str]:
     """Zones whose Evz is below the Ev the scheduled intake needs, with the Vpz that would do."""
     needed = trail.value("Vou") / system.outdoor_air if system.outdoor_air > 0 else math.inf
     trail.add("Ev_needed", needed, "fraction", formula="{Vou} / {Vot_design}",
@@ -172,30 +205,35 @@ def _limiting_zones(system, ctxs, zones, trail: Trail, emitter: Emitter, locate)
     fixes: list[str] = []
     if needed > 1.0:
         return fixes  # intake below Vou: no primary airflow can help, only more intake
-    for ctx, z in zip(ctxs, zones):
+    below = np.flatnonzero(~(f.evz >= needed * (1 - 1e-9)))
+    if below.size == 0:
+        return fixes
+    shared = _shared(trail, "Ev_needed")
+    ep = np.array([ctxs[i].zone.ep or 1.0 for i in below])
+    er = np.array([ctxs[i].zone.er or 0.0 for i in below])
+    vpz_min = np.atleast_1d(eff.minimum_primary_airflow(
+        f.voz[below], trail.value("Xs"), needed, ep, er, np.array(
+            [zones[i].trail.steps["Ez"].value for i in below]))).tolist()
+    for k, i in enumerate(below.tolist()):
+        ctx, z = ctxs[i], zones[i]
         zt = z.trail
-        if "Evz" not in zt or zt.value("Evz") >= needed * (1 - 1e-9):
-            continue
-        zt.copy_from(trail, "Ev_needed")
-        vpz_min = eff.minimum_primary_airflow(
-            zt.value("Voz"), trail.value("Xs"), needed, ctx.zone.ep or 1.0, ctx.zone.er or 0.0,
-            zt.value("Ez"))
+        zt.steps["Ev_needed"] = shared
         formula = ("{Voz} / (1 + {Xs} − {Ev_needed})" if ctx.zone.ep is None else
                    "{Voz}·{Ep}·{Fc} / ({Fa}·(1 − {Ev_needed}) + {Xs}·{Fb})")
-        zt.add("Vpz_min", vpz_min, "airflow", note="least Vpz for Evz ≥ Ev_needed, Xs held",
+        zt.add("Vpz_min", vpz_min[k], "airflow", note="least Vpz for Evz ≥ Ev_needed, Xs held",
                formula=formula)
-        if math.isinf(vpz_min):
+        if math.isinf(vpz_min[k]):
             text = "no primary airflow reaches it at this intake; raise the system intake"
             fixes.append(f"{z.id} (no Vpz suffices)")
         else:
-            text = (f"raise its primary airflow to at least "
-                    f"{formatting.amount(vpz_min, 'airflow', emitter.units)}")
-            fixes.append(f"{z.id} ≥ {formatting.amount(vpz_min, 'airflow', emitter.units)}")
+            amount = formatting.amount(vpz_min[k], 'airflow', emitter.units)
+            text = f"raise its primary airflow to at least {amount}"
+            fixes.append(f"{z.id} ≥ {amount}")
         emitter.emit(
             "zone-limits-ev", ctx.subject,
             f"Evz {zt.value('Evz'):.3f} is below the {needed:.3f} the scheduled intake needs; "
             + text, locate(ctx.path + ("primary_airflow",)),
-            required=Amount(vpz_min, "airflow") if not math.isinf(vpz_min) else None,
+            required=Amount(vpz_min[k], "airflow") if not math.isinf(vpz_min[k]) else None,
             provided=Amount(zt.value("Vpz"), "airflow"), system=system.id, zone=z.id)
     return fixes
 
@@ -203,22 +241,25 @@ def _limiting_zones(system, ctxs, zones, trail: Trail, emitter: Emitter, locate)
 def multiple_zone(system: System, ctxs: list[ZoneContext], zones: list[ZoneResult],
                   result: SystemResult, pack: RulePack, emitter: Emitter, where: Location,
                   locate) -> None:
-    """Multiple-zone recirculating system: D, Vou, Ev, Vot (Section 6.2.5, Appendix A)."""
+    """Multiple-zone recirculating system: D, Vou, Ev, Vot (Section 6.2.5, Appendix A), every
+    figure from :func:`airgate.procedures.multizone.multiple_zone_figures` in one pass over the
+    system's zones, recorded in the system's and the zones' trails."""
     method_name = ev_method(pack, system)
-    trail = result.trail
-    d = _population(system, zones, trail, pack, emitter, result.location)
-    trail.add("Σ(Rp·Pz)", float(sum(z.trail.value("Rp") * z.trail.value("Pz") for z in zones)),
-              "airflow", note="people component summed over the zones")
-    trail.add("Σ(Ra·Az)", float(sum(z.trail.value("Ra") * z.trail.value("Az") for z in zones)),
-              "airflow", note="area component summed over the zones")
-    trail.add("Vou", eff.uncorrected_outdoor_air_intake(d, trail.value("Σ(Rp·Pz)"),
-                                                        trail.value("Σ(Ra·Az)")),
-              "airflow", formula="{D}·{Σ(Rp·Pz)} + {Σ(Ra·Az)}", source=pack.cite("uncorrected_intake"))
-    _primary_airflows(system, ctxs, zones, trail, pack, emitter, locate)
     method = pack.methods[method_name]
+    f = mz.multiple_zone_figures(**core_inputs(system, [c.zone for c in ctxs], zones, method))
+    f = _Figures(f, [c.zone.primary_airflow or 0.0 for c in ctxs], zones)
+    trail = result.trail
+    _population(system, f, len(zones), trail, pack, emitter, result.location)
+    trail.add("Σ(Rp·Pz)", float(f.sum_rp_pz[0]), "airflow",
+              note="people component summed over the zones")
+    trail.add("Σ(Ra·Az)", float(f.sum_ra_az[0]), "airflow",
+              note="area component summed over the zones")
+    trail.add("Vou", float(f.vou[0]), "airflow", formula="{D}·{Σ(Rp·Pz)} + {Σ(Ra·Az)}",
+              source=pack.cite("uncorrected_intake"))
+    _primary_airflows(system, ctxs, zones, f, trail, pack, emitter, locate)
     if isinstance(method, SimplifiedEv):
-        _vav_minimum(system, ctxs, zones, method, emitter, locate)
-    ev, critical = _ev(system, ctxs, zones, trail, method_name, pack, d)
+        _vav_minimum(system, ctxs, zones, f, method, emitter, locate)
+    ev, critical = _ev(system, ctxs, zones, f, trail, method_name, pack)
     result.method = method_name
     result.critical_zone = zones[critical].id if critical is not None else None
     if ev <= 0:
@@ -229,21 +270,31 @@ def multiple_zone(system: System, ctxs: list[ZoneContext], zones: list[ZoneResul
         trail.add("Vot", math.inf, "airflow", note="Ev ≤ 0: no intake suffices")
         trail.add("Vot_design", system.outdoor_air, "airflow", origin="schedule",
                   note="scheduled minimum outdoor-air intake", source=where)
-        delivered.multiple_zone(result, pack)
+        delivered.multiple_zone(result, pack, f)
         return
-    trail.add("Vot", eff.outdoor_air_intake(trail.value("Vou"), ev), "airflow",
-              formula="{Vou} / {Ev}", source=pack.cite("multiple_zone_intake"))
+    trail.add("Vot", float(f.vot[0]), "airflow", formula="{Vou} / {Ev}",
+              source=pack.cite("multiple_zone_intake"))
     advice = ""
-    if system.outdoor_air < trail.value("Vot") * (1 - 1e-9) and "Xs" in trail and any(
-            "Evz" in z.trail for z in zones):
+    if (system.outdoor_air < trail.value("Vot") * (1 - 1e-9) and "Xs" in trail
+            and f.from_zones[0]):
         trail.add("Vot_design", system.outdoor_air, "airflow", origin="schedule")
-        fixes = _limiting_zones(system, ctxs, zones, trail, emitter, locate)
+        fixes = _limiting_zones(system, ctxs, zones, f, trail, emitter, locate)
         if fixes:
             advice = "or raise the primary airflow of zone " + "; ".join(fixes)
     need = formatting.amount(trail.value("Vot"), "airflow", emitter.units)
     intake(trail, system, result, emitter, where,
-            advice=f"raise the intake to at least {need}" + (f", {advice}" if advice else ""))
-    delivered.multiple_zone(result, pack)
+           advice=f"raise the intake to at least {need}" + (f", {advice}" if advice else ""))
+    delivered.multiple_zone(result, pack, f)
+
+
+class _Figures:
+    """The core's figures of one system, with its zones' Vpz as floats (0: none scheduled)."""
+
+    def __init__(self, figures: mz.MultipleZoneFigures, vpz: list[float],
+                 zones: list[ZoneResult]) -> None:
+        self.__dict__.update(figures._asdict())
+        self.vpz_list = [float(v) for v in vpz]
+        self.zones = zones
 
 
 def ev_method(pack: RulePack, system: System) -> str:
