@@ -1,6 +1,7 @@
-"""The per-zone path of the multiple-zone system kind: the evaluation as it was before the
-vectorised core (:mod:`airgate.procedures.multizone`), zone by zone with scalar procedures,
-kept as the reference the core is held to (``tests/test_multizone.py``). Not a test module.
+"""The per-zone path: a zone's Vbz and Voz (``evaluate_zone``) and the multiple-zone system
+kind (``multiple_zone``) as they were evaluated before the vectorised core
+(:mod:`airgate.procedures.multizone`), zone by zone with scalar procedures, kept as the
+reference the engine is held to (``tests/test_multizone.py``). Not a test module.
 
 Each zone's Evz, the system's sums and the delivered outdoor air are computed here one zone at
 a time by :mod:`airgate.procedures.efficiency`, as ANSI/ASHRAE 62.1-2019 Section 6.2.5 and
@@ -21,10 +22,13 @@ from airgate.evaluation.report import SystemResult, ZoneResult
 from airgate.evaluation.system_kinds.multiple_zone import ev_method
 from airgate.evaluation.systems import intake
 from airgate.evaluation.trail import Trail
+from airgate.evaluation import exhaust
 from airgate.evaluation.zones import ZoneContext
+from airgate.evaluation.zones import _population as _zone_population
 from airgate.models.rules import DetailedEv, RulePack, SimplifiedEv, TableEv
 from airgate.models.schedule import System
 from airgate.procedures import efficiency as eff
+from airgate.procedures import zone_rates
 
 
 def _population(system: System, zones: list[ZoneResult], trail: Trail, pack: RulePack,
@@ -300,3 +304,38 @@ def _delivered(result: SystemResult, pack: RulePack) -> None:
                formula="{Voz}·{Vot_design} / {Vot}", source=pack.cite("multiple_zone_intake"),
                note=f"{_NOTE}: Ev is one figure for the system, so each zone receives its Voz "
                     "in the ratio of the scheduled to the required intake")
+
+
+def evaluate_zone(ctx: ZoneContext, pack: RulePack, emitter: Emitter) -> ZoneResult:
+    """Compute Vbz and Voz for one zone, keeping every step of the trail."""
+    zone, cat = ctx.zone, ctx.category
+    trail = Trail()
+    trail.add("Az", zone.area, "area", origin="schedule", source=ctx.where("area"))
+    trail.add("Rp", cat.rp, "airflow_per_person", origin="table", source=cat.cite("Rp"))
+    trail.add("Ra", cat.ra, "airflow_per_area", origin="table", source=cat.cite("Ra"))
+    _zone_population(trail, ctx, pack, emitter)
+    vbz = zone_rates.breathing_zone_outdoor_airflow(
+        cat.rp, trail.value("Pz"), cat.ra, trail.value("Az"))
+    trail.add("Vbz", vbz, "airflow", formula="{Rp}·{Pz} + {Ra}·{Az}",
+              source=pack.cite("breathing_zone_outdoor_airflow"))
+    trail.add("Ez", ctx.ez.ez, "fraction", origin=ctx.ez.origin, note=ctx.ez.note,
+              source=ctx.ez.source)
+    trail.add("Voz", zone_rates.zone_outdoor_airflow(vbz, ctx.ez.ez), "airflow",
+              formula="{Vbz} / {Ez}", source=pack.cite("zone_outdoor_airflow"))
+    if ctx.ez.origin == "assumed" and ctx.mechanical:
+        emitter.emit("air-distribution-assumed", ctx.subject,
+                     f"air distribution not stated; Ez {ctx.ez.ez:.1f} assumed ({ctx.ez.note}) — "
+                     "state air_distribution or an explicit ez with its basis",
+                     ctx.location, system=ctx.system_id, zone=zone.id)
+    if cat.rp == 0 and cat.ra == 0:
+        emitter.emit("space-without-rates", ctx.subject,
+                     f"'{cat.id}' ({cat.label}) has no outdoor air rates in the table; "
+                     "no outdoor air is required by this procedure",
+                     ctx.location, system=ctx.system_id, zone=zone.id)
+    if ctx.exhaust is not None:
+        exhaust.evaluate(trail, zone, ctx.exhaust, emitter, subject=ctx.subject,
+                         system_id=ctx.system_id, airflow_at=ctx.fields["exhaust.airflow"],
+                         fixtures_at=ctx.fields.get("exhaust.fixtures", ctx.location))
+    return ZoneResult(id=zone.id, name=zone.name, space=cat.id, space_label=cat.label,
+                      location=ctx.location, trail=trail, air_class=ctx.air_class,
+                      exhaust=ctx.exhaust.id if ctx.exhaust is not None else None)

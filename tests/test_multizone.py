@@ -214,16 +214,20 @@ def _pack_cases() -> list[Path]:
 
 @pytest.fixture
 def per_zone(monkeypatch):
-    """Evaluate with the per-zone path: the multiple-zone kind's procedure replaced by the
-    scalar reference for the duration of a call."""
-    from airgate.evaluation import system_kinds
+    """Evaluate with the per-zone path: the zones' Vbz and Voz and the multiple-zone kind's
+    procedure replaced by the scalar reference for the duration of a call."""
+    from airgate.evaluation import engine, system_kinds
 
     kind = system_kinds.SYSTEM_KINDS["multiple-zone"]
     scalar = dataclasses.replace(kind, evaluate=scalar_multiple_zone.multiple_zone)
 
+    def zones(ctxs, pack, emitter):
+        return [scalar_multiple_zone.evaluate_zone(c, pack, emitter) for c in ctxs]
+
     def run(fn, *args):
         with monkeypatch.context() as m:
             m.setitem(system_kinds.SYSTEM_KINDS, "multiple-zone", scalar)
+            m.setattr(engine, "evaluate_zones", zones)
             return fn(*args)
 
     return run

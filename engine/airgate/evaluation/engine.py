@@ -37,7 +37,7 @@ from airgate.evaluation.report import (
 )
 from airgate.evaluation.trail import Trail
 from airgate.evaluation.unused import unused_fields
-from airgate.evaluation.zones import ZoneContext, evaluate_zone
+from airgate.evaluation.zones import ZoneContext, evaluate_zones
 from airgate.models.datatables import Tables
 from airgate.models.loaded import LoadedSchedule
 from airgate.models.rules import RulePack
@@ -111,7 +111,7 @@ def _evaluate_system(loaded: LoadedSchedule, pack: RulePack, emitter: Emitter, i
         locate = lambda path, c=cond: _location(loaded, conditions.keyed(path, c))  # noqa: E731
         intake_at = locate(("systems", i, "outdoor_air"))
         start = len(emitter.findings)
-        zones = [evaluate_zone(ctx, pack, emitter) for ctx in ctxs]
+        zones = evaluate_zones(ctxs, pack, emitter)
         result = SystemResult(id=system.id, name=system.name, kind=system.kind, location=where,
                               trail=Trail(), zones=zones)
         kind_of(system).evaluate(system, ctxs, zones, result, pack, emitter, intake_at, locate)

@@ -4,12 +4,14 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
+import numpy as np
+
 from airgate.evaluation import exhaust
 from airgate.evaluation.bind import EzChoice
 from airgate.evaluation.checks import Emitter
 from airgate.evaluation.findings import Location
 from airgate.evaluation.report import ZoneResult
-from airgate.evaluation.trail import Trail, unit_factor
+from airgate.evaluation.trail import Step, Trail, unit_factor
 from airgate.models.rules import ExhaustRow, OccupancyCategory, RulePack
 from airgate.models.schedule import Zone
 from airgate.procedures import dwelling, zone_rates
@@ -82,25 +84,86 @@ def _population(trail: Trail, ctx: ZoneContext, pack: RulePack, emitter: Emitter
                      note="occupants not stated: default density × Az")
 
 
-def evaluate_zone(ctx: ZoneContext, pack: RulePack, emitter: Emitter) -> ZoneResult:
-    """Compute Vbz and Voz for one zone, keeping every step of the trail."""
-    zone, cat = ctx.zone, ctx.category
-    trail = Trail()
-    trail.add("Az", zone.area, "area", origin="schedule", source=ctx.where("area"))
-    trail.add("Rp", cat.rp, "airflow_per_person", origin="table", source=cat.cite("Rp"))
-    trail.add("Ra", cat.ra, "airflow_per_area", origin="table", source=cat.cite("Ra"))
-    _population(trail, ctx, pack, emitter)
+def evaluate_zones(ctxs: list[ZoneContext], pack: RulePack, emitter: Emitter) -> list[ZoneResult]:
+    """Vbz and Voz of a system's zones, every step in each zone's trail: the population of each
+    zone first (its own steps and findings; a default density's Pz = density × Az over
+    arrays), then Vbz and Voz of all of them at once over arrays
+    (:mod:`airgate.procedures.zone_rates`), recorded zone by zone. A step that is the same on
+    many zones (a category's Rp, Ra and density, an Ez) is made once and shared."""
+    if not ctxs:
+        return []
+    shared: dict = {}
+    trails, pz, by_density = [], [], []
+    for ctx in ctxs:
+        trail = Trail()
+        zone, cat = ctx.zone, ctx.category
+        steps = trail.steps
+        steps["Az"] = Step("Az", float(zone.area), "area", "", ctx.where("area"), "", "schedule")
+        rates = shared.get(id(cat))
+        if rates is None:
+            rates = shared[id(cat)] = _category_steps(cat)
+        steps["Rp"], steps["Ra"] = rates[0], rates[1]
+        if (zone.occupants is None and cat.density is not None
+                and not (cat.default_occupants == "bedrooms-plus-one" and zone.bedrooms is not None)):
+            steps["density"] = rates[2]
+            by_density.append(len(trails))
+            pz.append(0.0)  # density × Az, below
+        else:
+            pz.append(_population(trail, ctx, pack, emitter))
+        trails.append(trail)
+    area = np.array([t.steps["Az"].value for t in trails])
+    pz = np.array(pz)
+    if by_density:
+        pz[by_density] = zone_rates.default_population(
+            np.array([trails[i].steps["density"].value for i in by_density]), area[by_density])
+        _density_steps(trails, by_density, pz, pack, emitter)
     vbz = zone_rates.breathing_zone_outdoor_airflow(
-        cat.rp, trail.value("Pz"), cat.ra, trail.value("Az"))
-    trail.add("Vbz", vbz, "airflow", formula="{Rp}·{Pz} + {Ra}·{Az}",
-              source=pack.cite("breathing_zone_outdoor_airflow"))
-    trail.add("Ez", ctx.ez.ez, "fraction", origin=ctx.ez.origin, note=ctx.ez.note,
-              source=ctx.ez.source)
-    trail.add("Voz", zone_rates.zone_outdoor_airflow(vbz, ctx.ez.ez), "airflow",
-              formula="{Vbz} / {Ez}", source=pack.cite("zone_outdoor_airflow"))
-    if ctx.ez.origin == "assumed" and ctx.mechanical:
+        np.array([c.category.rp for c in ctxs], dtype=float), pz,
+        np.array([c.category.ra for c in ctxs], dtype=float), area)
+    voz = zone_rates.zone_outdoor_airflow(vbz, np.array([c.ez.ez for c in ctxs], dtype=float))
+    cites = pack.cite("breathing_zone_outdoor_airflow"), pack.cite("zone_outdoor_airflow")
+    return [_record(ctx, trail, b, o, cites, shared, emitter)
+            for ctx, trail, b, o in zip(ctxs, trails, vbz.tolist(), voz.tolist())]
+
+
+def _category_steps(cat: OccupancyCategory) -> tuple[Step, Step, Step | None]:
+    """A category's Rp, Ra and default density steps (the same on every zone of it)."""
+    density = None if cat.density is None else Step(
+        "density", float(cat.density), "density", "", cat.cite("density"),
+        "default occupant density", "table")
+    return (Step("Rp", float(cat.rp), "airflow_per_person", "", cat.cite("Rp"), "", "table"),
+            Step("Ra", float(cat.ra), "airflow_per_area", "", cat.cite("Ra"), "", "table"),
+            density)
+
+
+def _density_steps(trails: list[Trail], which: list[int], pz: np.ndarray, pack: RulePack,
+                   emitter: Emitter) -> None:
+    """Pz = default density × Az (Table 6-1) in the trails ``which``."""
+    # the density is shown per 1000 ft² (per 100 m²): the formula says so
+    per = unit_factor(("people",), ("density", "area"), emitter.units)
+    formula = "{density}·{Az}" + (f" / {per}" if per else "")
+    source = pack.cite("default_population")
+    values = pz.tolist()
+    for i in which:
+        trails[i].steps["Pz"] = Step("Pz", values[i], "people", formula, source,
+                                     "occupants not stated: default density × Az", "computed")
+
+
+def _record(ctx: ZoneContext, trail: Trail, vbz: float, voz: float, cites: tuple[str, str],
+            shared: dict, emitter: Emitter) -> ZoneResult:
+    """One zone's Vbz, Ez, Voz steps, its findings, its exhaust; its result."""
+    zone, cat, ez = ctx.zone, ctx.category, ctx.ez
+    steps = trail.steps
+    steps["Vbz"] = Step("Vbz", vbz, "airflow", "{Rp}·{Pz} + {Ra}·{Az}", cites[0], "", "computed")
+    key = (float(ez.ez), ez.source, ez.note, ez.origin)
+    ez_step = shared.get(key)
+    if ez_step is None:
+        ez_step = shared[key] = Step("Ez", key[0], "fraction", "", key[1], key[2], key[3])
+    steps["Ez"] = ez_step
+    steps["Voz"] = Step("Voz", voz, "airflow", "{Vbz} / {Ez}", cites[1], "", "computed")
+    if ez.origin == "assumed" and ctx.mechanical:
         emitter.emit("air-distribution-assumed", ctx.subject,
-                     f"air distribution not stated; Ez {ctx.ez.ez:.1f} assumed ({ctx.ez.note}) — "
+                     f"air distribution not stated; Ez {ez.ez:.1f} assumed ({ez.note}) — "
                      "state air_distribution or an explicit ez with its basis",
                      ctx.location, system=ctx.system_id, zone=zone.id)
     if cat.rp == 0 and cat.ra == 0:
@@ -115,3 +178,8 @@ def evaluate_zone(ctx: ZoneContext, pack: RulePack, emitter: Emitter) -> ZoneRes
     return ZoneResult(id=zone.id, name=zone.name, space=cat.id, space_label=cat.label,
                       location=ctx.location, trail=trail, air_class=ctx.air_class,
                       exhaust=ctx.exhaust.id if ctx.exhaust is not None else None)
+
+
+def evaluate_zone(ctx: ZoneContext, pack: RulePack, emitter: Emitter) -> ZoneResult:
+    """Compute Vbz and Voz for one zone, keeping every step of the trail."""
+    return evaluate_zones([ctx], pack, emitter)[0]
