@@ -129,7 +129,7 @@ def _first_where(hit, starts):
 
 
 def multiple_zone_figures(rp, pz, ra, az, ez, vpz, starts, ps=0.0, ps_stated=False, vps=0.0,
-                          vps_stated=False, ep=1.0, er=0.0, method="detailed", breakpoint=0.60,
+                          vps_stated=False, ep=None, er=None, method="detailed", breakpoint=0.60,
                           slope=0.88, intercept=0.22, above_breakpoint=0.75,
                           rows: Sequence[tuple[float, float]] = (), interpolate=True,
                           above_table=None) -> MultipleZoneFigures:
@@ -160,9 +160,10 @@ def multiple_zone_figures(rp, pz, ra, az, ez, vpz, starts, ps=0.0, ps_stated=Fal
         used where ``ps_stated`` / ``vps_stated``; else ΣPz and ΣVpz.
     ps_stated, vps_stated : bool or array_like of bool
         Per system: whether Ps, Vps are stated. [-]
-    ep, er : float or array_like
+    ep, er : float or array_like or None
         Per zone: primary air fraction Ep in (0, 1] (1: a single supply path) and the
-        secondary recirculation drawn from the system return Er in [0, 1]. [-]
+        secondary recirculation drawn from the system return Er in [0, 1]; None (default):
+        every zone a single supply path (Ep 1, Er 0). [-]
     method : str
         ``"simplified"``, ``"detailed"`` or ``"table"``, for every system of the call. [-]
     breakpoint, slope, intercept, above_breakpoint : float
@@ -208,7 +209,8 @@ def multiple_zone_figures(rp, pz, ra, az, ez, vpz, starts, ps=0.0, ps_stated=Fal
     m = starts.size
     ps, vps = _zones("ps", ps, m), _zones("vps", vps, m)
     ps_stated, vps_stated = _mask("ps_stated", ps_stated, m), _mask("vps_stated", vps_stated, m)
-    ep, er = _zones("ep", ep, n, strict=True, top=1.0), _zones("er", er, n, top=1.0)
+    ep = None if ep is None else _zones("ep", ep, n, strict=True, top=1.0)
+    er = np.zeros(n) if er is None else _zones("er", er, n, top=1.0)
     if method not in METHODS:
         raise ValueError(f"method must be one of {', '.join(METHODS)}, got {method!r}")
     coefficients = [finite(k, v) for k, v in (("breakpoint", breakpoint), ("slope", slope),
@@ -226,24 +228,27 @@ def multiple_zone_figures(rp, pz, ra, az, ez, vpz, starts, ps=0.0, ps_stated=Fal
     vbz = rp_pz + ra_az  # Equation 6-1
     voz = vbz / ez  # Equation 6-2
     sum_pz = np.add.reduceat(pz, starts)
-    ps = np.where(ps_stated, ps, sum_pz)
-    occupied = sum_pz > 0
-    d = np.where(occupied, ps / np.where(occupied, sum_pz, 1.0), 1.0)
+    if ps_stated.any():
+        ps = np.where(ps_stated, ps, sum_pz)
+        occupied = sum_pz > 0
+        d = np.where(occupied, ps / np.where(occupied, sum_pz, 1.0), 1.0)
+    else:  # Ps = ΣPz: D = 1 exactly (and 1 where ΣPz = 0)
+        ps, d = sum_pz, np.ones(m)
     sum_rp_pz, sum_ra_az = np.add.reduceat(rp_pz, starts), np.add.reduceat(ra_az, starts)
     vou = d * sum_rp_pz + sum_ra_az
     sum_vpz = np.add.reduceat(vpz, starts)
     _finite((sum_rp_pz, sum_ra_az, sum_vpz), rp=rp, pz=pz, ra=ra, az=az, vpz=vpz)
-    known = vpz > 0
-    if known.all():  # every zone has a Vpz (the detailed and table methods need it)
+    if vpz.min() > 0:  # every zone has a Vpz (the detailed and table methods need it)
         zpz = voz / vpz
-        vps = np.where(vps_stated, vps, sum_vpz)
+        vps = np.where(vps_stated, vps, sum_vpz) if vps_stated.any() else sum_vpz
     else:
+        known = vpz > 0
         every = np.logical_and.reduceat(known, starts)
         zpz = np.where(known, voz / np.where(known, vpz, 1.0), np.nan)
         vps = np.where(vps_stated, vps, np.where(every, sum_vpz, np.nan))
     xs = vou / vps  # NaN where Vps is not known
-    if ep.min() == 1.0:  # single supply paths: Fa = Fb = Fc = 1 and Evz = 1 + Xs − Zpz exactly
-        fa = fb = fc = np.ones(n)
+    if ep is None or ep.min() == 1.0:  # single supply paths: Fa = Fb = Fc = 1 and Evz = 1 + Xs − Zpz exactly
+        fa = fb = fc = np.broadcast_to(np.float64(1.0), (n,))
         evz = 1.0 + xs[system] - zpz
     else:
         fa, fb, fc = (np.asarray(f) for f in eff.secondary_recirculation_factors(ep, er, ez))

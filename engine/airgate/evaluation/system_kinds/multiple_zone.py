@@ -49,8 +49,15 @@ def core_inputs(system: System, fields: list, zones: list[ZoneResult], method) -
         rp=rp, pz=pz, ra=ra, az=az, ez=ez, vpz=[f.primary_airflow or 0.0 for f in fields],
         starts=[0], ps=system.population or 0.0, ps_stated=system.population is not None,
         vps=system.supply_airflow or 0.0, vps_stated=system.supply_airflow is not None,
-        ep=[1.0 if f.ep is None else f.ep for f in fields], er=[f.er or 0.0 for f in fields],
-        method=_METHOD[type(method)], **kwargs)
+        method=_METHOD[type(method)], **kwargs, **_secondary(fields))
+
+
+def _secondary(fields: list) -> dict:
+    """Ep and Er of the zones, where some zone states Ep (else every zone a single path)."""
+    if all(f.ep is None for f in fields):
+        return {}
+    return dict(ep=[1.0 if f.ep is None else f.ep for f in fields],
+                er=[f.er or 0.0 for f in fields])
 
 
 def _population(system: System, f, n: int, trail: Trail, pack: RulePack, emitter: Emitter,
