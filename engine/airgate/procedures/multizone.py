@@ -247,38 +247,46 @@ def multiple_zone_figures(rp, pz, ra, az, ez, vpz, starts, ps=0.0, ps_stated=Fal
         zpz = np.where(known, voz / np.where(known, vpz, 1.0), np.nan)
         vps = np.where(vps_stated, vps, np.where(every, sum_vpz, np.nan))
     xs = vou / vps  # NaN where Vps is not known
-    if ep is None or ep.min() == 1.0:  # single supply paths: Fa = Fb = Fc = 1 and Evz = 1 + Xs − Zpz exactly
+    if ep is None or ep.min() == 1.0:  # single paths: Fa = Fb = Fc = 1, Evz = 1 + Xs − Zpz
         fa = fb = fc = np.broadcast_to(np.float64(1.0), (n,))
         evz = 1.0 + xs[system] - zpz
     else:
         fa, fb, fc = (np.asarray(f) for f in eff.secondary_recirculation_factors(ep, er, ez))
         evz = (fa + xs[system] * fb - zpz * ep * fc) / fa
-    critical = np.full(m, -1)
-    from_zones = np.zeros(m, dtype=bool)
-    max_zpz = np.full(m, np.nan)
-    if method == "simplified":
-        ev = np.asarray(eff.system_ventilation_efficiency_simplified(d, *coefficients))
-    else:
-        least = np.minimum.reduceat(evz, starts)
-        if method == "detailed":
-            ev, from_zones = least, np.ones(m, dtype=bool)
-            critical = _first_where(evz == least[system], starts)
-        else:
-            max_zpz = np.maximum.reduceat(zpz, starts)
-            ev = np.atleast_1d(eff.system_ventilation_efficiency_table(max_zpz, rows, interpolate))
-            critical = _first_where(zpz == max_zpz[system], starts)
-            above = np.isnan(ev)
-            if above_table is not None:
-                ev = np.where(above, above_table, ev)
-            elif above.any():
-                from_zones = above
-                ev = np.where(above, least, ev)
-                critical = np.where(above, _first_where(evz == least[system], starts),
-                                    critical)
+    ev, critical, from_zones, max_zpz = _system_ev(
+        method, d, evz, zpz, system, starts, coefficients, rows, interpolate, above_table)
     positive = ev > 0
     vot = np.where(positive, vou / np.where(positive, ev, 1.0), np.inf)
     return MultipleZoneFigures(vbz, voz, zpz, fa, fb, fc, evz, system, sum_pz, ps, d, sum_rp_pz,
                                sum_ra_az, vou, vps, xs, max_zpz, ev, critical, from_zones, vot)
+
+
+def _system_ev(method, d, evz, zpz, system, starts, coefficients, rows, interpolate,
+               above_table):
+    """Ev of each system by ``method``, its critical zone (-1: none), whether Ev is the least
+    Evz, and the largest Zpz (the table method; NaN otherwise)."""
+    m = starts.size
+    critical = np.full(m, -1)
+    from_zones = np.zeros(m, dtype=bool)
+    max_zpz = np.full(m, np.nan)
+    if method == "simplified":  # Section 6.2.5
+        return (np.asarray(eff.system_ventilation_efficiency_simplified(d, *coefficients)),
+                critical, from_zones, max_zpz)
+    least = np.minimum.reduceat(evz, starts)  # Appendix A: Ev = min Evz
+    if method == "detailed":
+        return (least, _first_where(evz == least[system], starts), np.ones(m, dtype=bool),
+                max_zpz)
+    max_zpz = np.maximum.reduceat(zpz, starts)  # the table against the largest Zpz
+    ev = np.atleast_1d(eff.system_ventilation_efficiency_table(max_zpz, rows, interpolate))
+    critical = _first_where(zpz == max_zpz[system], starts)
+    above = np.isnan(ev)
+    if above_table is not None:
+        ev = np.where(above, above_table, ev)
+    elif above.any():
+        from_zones = above
+        ev = np.where(above, least, ev)
+        critical = np.where(above, _first_where(evz == least[system], starts), critical)
+    return ev, critical, from_zones, max_zpz
 
 
 def delivered_by_zone_ev(vpz, xs, vou, vot_design, ep=1.0, fa=1.0, fb=1.0, fc=1.0,
