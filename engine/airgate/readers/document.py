@@ -11,7 +11,6 @@ field being read when it happened.
 
 from __future__ import annotations
 
-import math
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -21,6 +20,7 @@ import yaml
 
 from airgate.errors import AirgateError, Path_
 from airgate.readers import limits as L  # the limits (docs/limits.md), read when used
+from airgate.readers.document_yaml import int_of, read_events
 from airgate.readers.limits import AliasBudget, current_budget, limit_error, utf8_len
 from airgate.readers.textfile import (  # noqa: F401 - the readers' file functions, here too
     followable, read_bytes, read_text)
@@ -68,16 +68,9 @@ class _Rules:
 
     def construct_yaml_int(self, node: yaml.ScalarNode) -> int:
         """Decimal, ``0o`` octal or ``0x`` hexadecimal (YAML 1.2); never 1.1 octal or base 60."""
-        text = self.construct_scalar(node)  # type: ignore[attr-defined]
-        sign = -1 if text.startswith("-") else 1
-        digits = text.lstrip("+-")
-        if len(digits) > MAX_DIGITS:  # int() would refuse it, with no position
-            return math.copysign(math.inf, sign)  # the schedule reader refuses it, as written
-        if digits.startswith("0o"):
-            return sign * int(digits[2:], 8)
-        if digits.startswith("0x"):
-            return sign * int(digits[2:], 16)
-        return sign * int(digits, 10)
+        # int() would refuse a very long one, with no position: read as infinite, it is
+        # refused by the schedule reader where it is written
+        return int_of(self.construct_scalar(node), MAX_DIGITS)  # type: ignore[attr-defined]
 
 
 class _Loader(_Rules, yaml.SafeLoader):
@@ -451,6 +444,9 @@ def parse_yaml(text: str, file: str, error_cls: type[AirgateError]) -> Document:
     with a tab goes to the reference loader alone: libyaml accepts tabs as separators where
     PyYAML's loader refuses them, and a schedule must read the same on every machine."""
     if len(_LOADERS) > 1 and "\t" not in text:  # libyaml takes tabs PyYAML refuses
+        read = _read_events(text)
+        if read is not None:
+            return Document(file, *read)
         budget = current_budget()
         spent = (budget.values, budget.bytes) if budget is not None else None
         try:
@@ -462,6 +458,16 @@ def parse_yaml(text: str, file: str, error_cls: type[AirgateError]) -> Document:
         return _parse_with(_Loader, text, file, error_cls)
     except _SyntaxSeen as seen:  # both readings fail: the reference loader's own report
         raise seen.error from None
+
+
+def _read_events(text: str) -> tuple[Any, dict, dict] | None:
+    """Data, positions and texts read straight from libyaml's events
+    (:mod:`airgate.readers.document_yaml`), or None where the composer must read the text."""
+    parser = _CParser(text)
+    try:
+        return read_events(parser, _FastLoader.yaml_implicit_resolvers, MAX_DIGITS)
+    finally:
+        parser.dispose()
 
 
 class _SyntaxSeen(Exception):
