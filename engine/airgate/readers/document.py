@@ -439,8 +439,11 @@ def _syntax_error(exc: yaml.MarkedYAMLError, text: str, file: str,
 def parse_yaml(text: str, file: str, error_cls: type[AirgateError]) -> Document:
     """Parse YAML (or JSON, a near subset) text into a :class:`Document`.
 
-    The fast loader reads first; if it meets a syntax error the pure-Python loader reads the
-    text again, so the message and position reported are always the reference loader's. Text
+    libyaml's events are read straight into data and positions first
+    (:mod:`airgate.readers.document_yaml`); a text that reading gives way on is composed by the
+    fast loader (libyaml's events, the Python composer), which refuses what it refused before;
+    if it meets a syntax error the pure-Python loader reads the text again, so the message and
+    position reported are always the reference loader's. Text
     with a tab goes to the reference loader alone: libyaml accepts tabs as separators where
     PyYAML's loader refuses them, and a schedule must read the same on every machine."""
     if len(_LOADERS) > 1 and "\t" not in text:  # libyaml takes tabs PyYAML refuses

@@ -38,6 +38,10 @@ _BOOLS = {"true": True, "false": False}
 _NAN = yaml.constructor.SafeConstructor.nan_value
 
 
+#: distinct plain texts whose values are kept for their repetitions (the first ones read)
+_PLAIN_KEPT = 4096
+
+
 class _GiveWay(Exception):
     """The text uses something this reading leaves to the composer."""
 
@@ -106,6 +110,7 @@ def _build(get: Any, resolvers: dict, max_digits: int) -> tuple[Any, dict, dict]
     max_depth = min(L.MAX_DEPTH, COMPOSER_SAFE_DEPTH)
     positions: dict = {}
     texts: dict = {}
+    plain: dict = {}  # plain text → its value, for the first _PLAIN_KEPT texts
     stack: list = []
     # the open collection: its value, path, whether a mapping, the key read (None: expecting
     # a key) or the last index of a sequence
@@ -136,9 +141,14 @@ def _build(get: Any, resolvers: dict, max_digits: int) -> tuple[Any, dict, dict]
             positions[here] = (mark.line + 1, mark.column + 1)
             value = event.value
             if event.implicit[0]:
-                value = _plain(value, resolvers, max_digits)
+                text = value
+                value = plain.get(text, plain)
+                if value is plain:  # a repeated text (space types, units) resolved once
+                    value = _plain(text, resolvers, max_digits)
+                    if len(plain) < _PLAIN_KEPT:
+                        plain[text] = value
                 if value is not None and value.__class__ is not str:
-                    texts[here] = event.value
+                    texts[here] = text
             if mapping:
                 box[here[-1]] = value
             else:
