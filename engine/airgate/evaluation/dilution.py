@@ -150,9 +150,32 @@ def _excess(t: Trail) -> None:
 def _rates(t: Trail, u: str, coupled: bool = False) -> None:
     """Change rate, time constant, time to 95 % of steady state, purge times (``coupled``: Q_oa
     is the CO2-equivalent airflow, which already counts the makeup air)."""
-    q = t.value("Q_oa")
-    mu = 0.0 if coupled else makeup_of(t).get("makeup_airflow", 0.0)
-    lam = float(dilution.loss_rate(t.value("V"), q, makeup_airflow=mu))
+    _rate_steps(t, u, *rate_values([t], coupled)[0])
+
+
+def rate_values(trails: list[Trail], coupled: bool = False) -> list[tuple[float, ...]]:
+    """``(λ, Q_mu, t95, t99, t99.9)`` of each trail's zone [1/h, L/s, h, h, h], the procedures
+    called once over arrays for the whole list (the same operations on each element as on one
+    zone); the times are NaN where λ ≤ 0 (no decay: :func:`_rate_steps` records none)."""
+    n = len(trails)
+    volume = np.array([t.value("V") for t in trails])
+    q = np.array([t.value("Q_oa") for t in trails])
+    mu = np.zeros(n) if coupled else np.array([makeup_of(t).get("makeup_airflow", 0.0)
+                                               for t in trails])
+    lam = np.asarray(dilution.loss_rate(volume, q, makeup_airflow=mu), dtype=float).reshape(n)
+    times = np.full((3, n), math.nan)
+    decays = lam > 0
+    if decays.any():
+        k = lam[decays]
+        times[0, decays] = dilution.time_to_fraction_of_steady_state(k, 0.95)
+        times[1, decays] = dilution.time_to_fraction_removed(k, 0.99)
+        times[2, decays] = dilution.time_to_fraction_removed(k, 0.999)
+    return list(zip(lam.tolist(), mu.tolist(), *times.tolist()))
+
+
+def _rate_steps(t: Trail, u: str, lam: float, mu: float, t95: float, t99: float,
+                t999: float) -> None:
+    """The steps of :func:`_rates` from its values (:func:`rate_values`)."""
     ach = unit_factor(("airflow",), ("volume", "rate"), u,
                       times=units.factor("L/s/m**3", "1/hour"))
     if mu > 0:
@@ -166,24 +189,42 @@ def _rates(t: Trail, u: str, coupled: bool = False) -> None:
         return
     per_hour = unit_factor((), ("rate", "time"), u) or "1"
     t.add("tau", 1 / lam, "time", formula=f"{per_hour} / {{ACH}}", note="time constant")
-    t.add("t95", float(dilution.time_to_fraction_of_steady_state(lam, 0.95)), "time",
-          formula="3·{tau}", note="time to 95 % of steady state", source=MB)
-    t.add("t99", float(dilution.time_to_fraction_removed(lam, 0.99)), "time",
-          formula="4.61·{tau}", note="purge time to 99 % removal", source=PURGE)
-    t.add("t99.9", float(dilution.time_to_fraction_removed(lam, 0.999)), "time",
-          formula="6.91·{tau}", note="purge time to 99.9 % removal", source=PURGE)
+    t.add("t95", t95, "time", formula="3·{tau}", note="time to 95 % of steady state", source=MB)
+    t.add("t99", t99, "time", formula="4.61·{tau}", note="purge time to 99 % removal",
+          source=PURGE)
+    t.add("t99.9", t999, "time", formula="6.91·{tau}", note="purge time to 99.9 % removal",
+          source=PURGE)
 
 
 def _dcv(t: Trail, z: ZoneResult, u: str) -> None:
     """CO2 set point that keeps the zone at its required Voz at design occupancy."""
+    _dcv_steps(t, z, u, dcv_values([t], [z])[0])
+
+
+def dcv_values(trails: list[Trail], zones: list[ZoneResult]) -> list[float | None]:
+    """The DCV set point of each zone [ppm], None where it has none (no occupants, no required
+    outdoor air, or no CO2 generated): the procedure called once over arrays for the list."""
+    value = lambda symbol: np.array([t.value(symbol) for t in trails])  # noqa: E731
+    pz, generation, c_out = value("Pz"), value("N"), value("C_out")
+    voz = np.array([z.trail.value("Voz") for z in zones])
+    with np.errstate(divide="ignore", invalid="ignore"):
+        per_person = voz / pz
+    has = (pz > 0) & (voz > 0) & np.isfinite(per_person) & (generation > 0)
+    out: list[float | None] = [None] * len(trails)
+    if has.any():
+        setpoints = np.asarray(dilution.dcv_setpoint_ppm(c_out[has], generation[has],
+                                                         per_person[has]), dtype=float)
+        for i, setpoint in zip(np.flatnonzero(has).tolist(), setpoints.reshape(-1).tolist()):
+            out[i] = setpoint
+    return out
+
+
+def _dcv_steps(t: Trail, z: ZoneResult, u: str, setpoint: float | None) -> None:
+    """The steps of :func:`_dcv` from its set point (:func:`dcv_values`)."""
     t.copy_from(z.trail, "Voz")
-    if t.value("Pz") <= 0 or t.value("Voz") <= 0:
+    if setpoint is None:
         return
-    per_person = t.value("Voz") / t.value("Pz")
-    if not math.isfinite(per_person) or t.value("N") <= 0:
-        return
-    setpoint = dilution.dcv_setpoint_ppm(t.value("C_out"), t.value("N"), per_person)
-    t.add("C_dcv", float(setpoint), "concentration_ppm", formula="{C_out} + 10⁶·{N}·{Pz} / " + _per_airflow("Voz", u),
+    t.add("C_dcv", setpoint, "concentration_ppm", formula="{C_out} + 10⁶·{N}·{Pz} / " + _per_airflow("Voz", u),
           source=MB, note="DCV set point: steady CO2 when the zone gets exactly its Voz")
     t.copy_from(z.trail, "Rp")
     t.copy_from(z.trail, "Ra")
@@ -480,9 +521,11 @@ def _multiple_zone(system, ctxs, result, schedule, emitter, out, table) -> None:
     if not _coupled_steady(system, ctxs, result, trails, emitter.units, air):
         return
     _coupled_series(schedule, system, ctxs, result, trails, air)
-    for ctx, z, t in zip(ctxs, result.zones, trails):
-        _rates(t, emitter.units, coupled=True)
-        _dcv(t, z, emitter.units)
+    rates = rate_values(trails, coupled=True)
+    setpoints = dcv_values(trails, result.zones)
+    for ctx, z, t, rate, setpoint in zip(ctxs, result.zones, trails, rates, setpoints):
+        _rate_steps(t, emitter.units, *rate)
+        _dcv_steps(t, z, emitter.units, setpoint)
         if z.series is not None and ctx.zone.profile is not None:
             _short_term(t, ctx, z, z.series.occupancy[:-1], emitter)
         _limit(t, ctx, schedule, emitter)
@@ -525,30 +568,84 @@ def _vot_with(system_trail: Trail, zones: list[ZoneResult], j: int, people: floa
     return vou / ev if ev > 0 else math.inf
 
 
+class _Occupied:
+    """Required Vot of a detailed-Ev system as each zone j of ``which`` alone holds
+    ``people[j]`` (others unchanged, D held) [L/s]: :func:`_vot_with` for those zones at once.
+    The least Ev over the zones is ``1 + Xs − max Zpz`` (subtracting is monotone, so the same
+    float as the least of ``1 + Xs − Zpz`` over the zones), the largest Zpz of the others
+    taken from the two largest of the system."""
+
+    def __init__(self, system_trail: Trail, zones: list[ZoneResult], which: np.ndarray) -> None:
+        value = lambda s: np.array([z.trail.value(s) for z in zones])  # noqa: E731
+        rp, ra, az, ez, pz, vpz, zpz = (value(s) for s in ("Rp", "Ra", "Az", "Ez", "Pz", "Vpz",
+                                                            "Zpz"))
+        # the largest Zpz of the other zones: the system's largest, or for that zone the second
+        order = np.argsort(-zpz, kind="stable")
+        others_max = np.full(len(zones), zpz[order[0]])
+        others_max[order[0]] = zpz[order[1]] if len(zones) > 1 else -math.inf
+        self.rp, self.ra, self.az, self.ez, self.pz, self.vpz, self.others_max = (
+            a[which] for a in (rp, ra, az, ez, pz, vpz, others_max))
+        self.d = system_trail.value("D")
+        self.sum_rp = system_trail.value("Σ(Rp·Pz)")
+        self.sum_ra = system_trail.value("Σ(Ra·Az)")
+        self.vps = system_trail.value("Vps")
+
+    def vot(self, people: np.ndarray) -> np.ndarray:
+        """Required Vot [L/s] with each zone holding ``people``."""
+        vou = self.d * (self.sum_rp + self.rp * (people - self.pz)) + self.sum_ra
+        xs = vou / self.vps
+        zpz = (self.rp * people + self.ra * self.az) / self.ez / self.vpz
+        ev = 1 + xs - np.maximum(self.others_max, zpz)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return np.where(ev > 0, vou / np.where(ev > 0, ev, 1.0), math.inf)
+
+
+def _most_people(occupied: _Occupied, target: float) -> np.ndarray:
+    """The most people each zone can hold with Vot within ``target``: the bound doubled from
+    max(1, Pz) until it fails (or reaches 10⁷), then 80 bisections, ended early once a
+    bisection changes no bound (each step depends on the bounds alone, so the rest would
+    change nothing either) [people]."""
+    lo = np.zeros(len(occupied.pz))
+    hi = np.maximum(1.0, occupied.pz)
+    growing = np.ones(len(lo), dtype=bool)
+    while True:
+        growing &= (occupied.vot(hi) <= target) & (hi < 1e7)
+        if not growing.any():
+            break
+        hi = np.where(growing, hi * 2, hi)
+    for _ in range(80):
+        mid = 0.5 * (lo + hi)
+        within = occupied.vot(mid) <= target
+        new_lo, new_hi = np.where(within, mid, lo), np.where(within, hi, mid)
+        if np.array_equal(new_lo, lo) and np.array_equal(new_hi, hi):
+            break
+        lo, hi = new_lo, new_hi
+    return lo
+
+
 def multiple_zone_capacity(system: System, result: SystemResult) -> None:
     """P_max per zone of a detailed-Ev, single-path system: the most people zone j can hold
     (others unchanged, D held) before the required Vot exceeds the scheduled intake. Found by
-    bisection on the monotone Vot(P) of ANSI/ASHRAE 62.1-2019 Appendix A (derived)."""
+    bisection on the monotone Vot(P) of ANSI/ASHRAE 62.1-2019 Appendix A (derived), for every
+    zone of the system at once (:class:`_Occupied`)."""
     if result.method != "detailed" or any(c.ep is not None for c in
                                           (z for z in system.zones)):
         return
-    st = result.trail
     target = system.outdoor_air
-    short: list[str] = []
-    for j, z in enumerate(result.zones):
-        if z.dilution is None or z.trail.value("Rp") <= 0:
-            continue
-        if _vot_with(st, result.zones, j, 0.0) > target:
-            short.append(z.id)  # no occupancy of this zone alone restores the intake
-            continue
-        lo, hi = 0.0, max(1.0, z.trail.value("Pz"))
-        while _vot_with(st, result.zones, j, hi) <= target and hi < 1e7:
-            hi *= 2
-        for _ in range(80):
-            mid = 0.5 * (lo + hi)
-            lo, hi = (mid, hi) if _vot_with(st, result.zones, j, mid) <= target else (lo, mid)
-        z.dilution.add("P_max", lo, "people", note="occupants the zone can hold at the scheduled "
-                       "intake, other zones unchanged and D held (detailed Ev, bisection)")
+    candidates = np.array([j for j, z in enumerate(result.zones)
+                           if z.dilution is not None and z.trail.value("Rp") > 0], dtype=int)
+    if not len(candidates):
+        return
+    empty_ok = _Occupied(result.trail, result.zones, candidates).vot(
+        np.zeros(len(candidates))) <= target
+    # no occupancy of a zone alone restores the intake when it is short with the zone empty
+    short = [result.zones[j].id for j in candidates[~empty_ok]]
+    which = candidates[empty_ok]
+    most = _most_people(_Occupied(result.trail, result.zones, which), target)
+    for j, most in zip(which.tolist(), most.tolist()):
+        result.zones[j].dilution.add(
+            "P_max", most, "people", note="occupants the zone can hold at the scheduled "
+            "intake, other zones unchanged and D held (detailed Ev, bisection)")
     if short:
         result.notes.append(
             f"P_max (the occupants a zone can hold at the scheduled intake) is not given for "

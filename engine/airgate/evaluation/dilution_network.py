@@ -78,9 +78,11 @@ def analyse(system, ctxs, result, schedule, emitter, out, table) -> None:
     for j, (t, z) in enumerate(zip(trails, result.zones)):
         _steady_steps(t, z, net, j, conc, c_out, emitter.units)
     _design_day(schedule, ctxs, result, trails, net, vol, gen, c_out)
-    for ctx, z, t in zip(ctxs, result.zones, trails):
-        co2._rates(t, emitter.units, coupled=net.coupling is not None)
-        co2._dcv(t, z, emitter.units)
+    rates = co2.rate_values(trails, coupled=net.coupling is not None)
+    setpoints = co2.dcv_values(trails, result.zones)
+    for ctx, z, t, rate, setpoint in zip(ctxs, result.zones, trails, rates, setpoints):
+        co2._rate_steps(t, emitter.units, *rate)
+        co2._dcv_steps(t, z, emitter.units, setpoint)
         if net.coupling is None:
             co2._capacity(t, z, t.value("Q_oa"), result.notes)
         if z.series is not None and ctx.zone.profile is not None:
