@@ -84,6 +84,7 @@ def test_a_passing_district_finds_no_position(tmp_path, counted):
     shown = [st.source for s in report.systems for st in s.trail.steps.values()
              if isinstance(st.source, Location)]
     assert shown and counted["locate"] == len(report.systems) + len(shown)
+    assert counted["scan"] == 0
     assert not any(z.location.found for s in report.systems for z in s.zones)
 
 
@@ -93,7 +94,7 @@ def test_a_district_finds_the_positions_of_its_findings_only(tmp_path, counted):
     assert report.findings and zones == 200
     # common practice: each finding's location is looked up once (some share one), no zone's
     assert 0 < counted["locate"] <= len(report.findings)
-    assert counted["scan"] == 1
+    assert counted["scan"] == 0  # found path by path (the finder), the text never scanned whole
     assert all(f.location.found for f in report.findings)
     assert sum(z.location.found for s in report.systems for z in s.zones) < zones // 4
 
@@ -158,3 +159,43 @@ def test_zone_lines_come_with_the_trails(tmp_path):
                                           "column": z.location.column}
             assert z_full["location"]["line"] is not None
     assert [f["location"] for f in short["findings"]] == [f["location"] for f in full["findings"]]
+
+
+def _every_path(data, path=()):
+    yield path
+    if isinstance(data, dict):
+        for k, v in data.items():
+            yield from _every_path(v, path + (k,))
+    elif isinstance(data, list):
+        for i, v in enumerate(data):
+            yield from _every_path(v, path + (i,))
+
+
+_ODD = ('{"a": {"k\\u00e9y \\"q\\"": [1, -2.5e3, true, null, {}, [], [[{"x": "é𝄞\\n"}]]],'
+        '\n\t"": {"b": [ ]}, "ünï": "a\\\\b"},\n  "z"  :  {  "c" : [ 7 ,\n 8 ] } }\n')
+
+
+@pytest.mark.parametrize("text", [
+    _ODD, json.dumps(json.loads(_ODD)), json.dumps(json.loads(_ODD), indent=4),
+    json.dumps(synthetic.vav_portfolio(30, per_system=10, heights=True), indent=2),
+    json.dumps(synthetic.demo_portfolio(17), indent=1, ensure_ascii=False),
+    "[]", " {} ", "3",
+], ids=["odd", "one-line", "indented", "district", "demo", "empty-list", "empty-map", "scalar"])
+def test_the_finder_gives_the_positions_of_the_scan(text):
+    """Each value's position found path by path is the one the scan of every token gives
+    (that scan is itself held to a YAML composition of the same text in
+    test_document_loaders.py), and so is the nearest ancestor of a path the text lacks."""
+    positions, _ = document_json._scan_json_positions(text)
+    finder = document_json._Finder(text)
+    scanned = document.Document(file="s.json", data=json.loads(text), positions=positions)
+    paths = list(_every_path(json.loads(text)))
+    assert set(paths) == set(positions)
+    missing = [p + ("nowhere", 3) for p in paths] + [p + (0,) for p in paths] + [("zz",)]
+    for path in paths + missing:
+        assert finder.locate(path) == scanned.locate(path), path
+
+
+def test_a_json_schedule_is_located_without_the_scan(tmp_path, counted):
+    loaded, report = _checked(tmp_path, synthetic.vav_portfolio(100, per_system=20))
+    assert report.findings and counted["scan"] == 0
+    assert loaded.doc.finder is not None and counted["locate"] > 0

@@ -228,9 +228,14 @@ class Document:
     data: Any
     positions: dict[Path_, tuple[int, int]] = field(default_factory=dict)
     texts: dict[Path_, str] = field(default_factory=dict)
+    #: finds the position of one path without all of ``positions`` (well-formed JSON text,
+    #: :class:`airgate.readers.document_json._Finder`); None: ``positions`` holds them
+    finder: Any = None
 
     def locate(self, path: Path_) -> tuple[int | None, int | None]:
         """Line and column of ``path``, or of its nearest ancestor that has one."""
+        if self.finder is not None:
+            return self.finder.locate(path)
         path = tuple(path)
         while True:
             if path in self.positions:

@@ -1,10 +1,12 @@
 """Read strict JSON with the C decoder, finding positions only when they are first asked for.
 
 A well-formed document within the limits is decoded by :func:`json.loads` alone (duplicate keys
-and ``NaN`` flagged by its hooks, values and depth counted without a path per value); its
-positions and number texts come from one scan of its tokens (or a YAML composition of the same
-text) the first time a finding or an error asks for one. A document with a problem is walked value
-by value so that the problem is reported at its line and column, as the YAML reader reports it.
+and ``NaN`` flagged by its hooks, values and depth counted without a path per value); the
+position of a path is found when a finding, an error or a report first asks for it, reading
+only the containers on that path (:class:`_Finder`), and its number texts from one scan of its
+tokens (or a YAML composition of the same text) the first time one is asked for. A document
+with a problem is walked value by value so that the problem is reported at its line and column,
+as the YAML reader reports it.
 """
 
 from __future__ import annotations
@@ -12,6 +14,9 @@ from __future__ import annotations
 import json
 import math
 import re
+from bisect import bisect_right
+from itertools import accumulate
+from json.decoder import scanstring
 from typing import Any
 
 from airgate.errors import AirgateError, Path_
@@ -134,6 +139,69 @@ def _scan_json_positions(text: str) -> tuple[dict[Path_, tuple[int, int]], dict[
     return positions, texts
 
 
+#: JSON whitespace
+_WS = re.compile(r"[ \t\n\r]*")
+#: steps over one JSON value in C (the standard library's scanner), making as little as it can
+_SKIP = json.JSONDecoder(object_pairs_hook=len, parse_int=len, parse_float=len,
+                         parse_constant=len).scan_once
+
+
+class _Finder:
+    """Where the values of well-formed JSON text (with "\n" as its only line break) begin,
+    found path by path: the positions :func:`_scan_json_positions` gives, without scanning the
+    whole text. Each container on a path asked for is read once for where its members begin
+    (the standard library's C scanner steps over each member); a line and column are worked
+    out from the offset (1-based, in characters)."""
+
+    def __init__(self, text: str) -> None:
+        self.text = text
+        self.root = _WS.match(text).end()
+        self.members: dict[Path_, dict[Any, int]] = {}
+        self.lines: list[int] | None = None  # where each line begins, made when first needed
+
+    def _members(self, start: int) -> dict[Any, int]:
+        """Key (or index) → offset of each member of the container that begins at ``start``."""
+        text, ws = self.text, _WS.match
+        out: dict[Any, int] = {}
+        mapping = text[start] == "{"
+        i = ws(text, start + 1).end()
+        if text[i] in "}]":
+            return out
+        n = 0
+        while True:
+            if mapping:
+                key, i = scanstring(text, i + 1)
+                i = ws(text, ws(text, i).end() + 1).end()  # past the colon
+            else:
+                key, n = n, n + 1
+            out[key] = i
+            i = ws(text, _SKIP(text, i)[1]).end()
+            if text[i] != ",":
+                return out
+            i = ws(text, i + 1).end()
+
+    def locate(self, path: Path_) -> tuple[int, int]:
+        """Line and column of ``path``, or of its nearest ancestor that has one."""
+        at, prefix = self.root, ()
+        for part in path:
+            members = self.members.get(prefix)
+            if members is None:
+                if self.text[at] not in "{[":
+                    break
+                members = self.members[prefix] = self._members(at)
+            if part not in members:
+                break
+            at, prefix = members[part], prefix + (part,)
+        return self._line_column(at)
+
+    def _line_column(self, offset: int) -> tuple[int, int]:
+        if self.lines is None:
+            self.lines = list(accumulate(map((1).__add__, map(len, self.text.split("\n"))),
+                                         initial=0))
+        line = bisect_right(self.lines, offset) - 1
+        return (line + 1, offset - self.lines[line] + 1)
+
+
 def _json_decode_error(exc: json.JSONDecodeError, text: str, file: str,
                        error_cls: type[AirgateError]) -> AirgateError:
     before = text[: exc.pos].rstrip()
@@ -224,7 +292,8 @@ def parse_json(text: str, file: str, error_cls: type[AirgateError]) -> Document:
                 return index[0][part]
 
             return Document(file=file, data=data, positions=Lazy(lambda: found(0)),
-                            texts=Lazy(lambda: found(1)))
+                            texts=Lazy(lambda: found(1)),
+                            finder=None if _OTHER_BREAKS.search(text) else _Finder(text))
     problem = _walk_json(data)
     try:
         if problem is None and not _OTHER_BREAKS.search(text):
