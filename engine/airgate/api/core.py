@@ -22,6 +22,7 @@ from airgate.evaluation.checks import DECLARED_CHECKS, KNOWN_CHECKS
 from airgate.evaluation.report import Supplement
 from airgate.evaluation.review import CommentEntry, rule_errors, statuses
 from airgate.evaluation.waivers import WaiverEntry
+from airgate.gcpause import pausing
 from airgate.models.loaded import LoadedSchedule
 from airgate.models.rules import RulePack
 from airgate.readers import datatables, rulepack
@@ -53,6 +54,7 @@ class Report(results.Report):
         return cls(**{f.name: getattr(report, f.name) for f in dataclasses.fields(report)})
 
 
+@pausing
 def load_schedule(path: str | Path) -> LoadedSchedule:
     """Read and validate a schedule: YAML/JSON, or imported from CSV tables, XLSX, gbXML or IFC
     (chosen by the file's suffix, ``docs/importing.md``)."""
@@ -90,6 +92,7 @@ def load_pack(id_or_path: str | Path, search: Search = None, *,
     return rulepack.load_pack(str(id_or_path), options=options, search=tuple(search or ()))
 
 
+@pausing
 def evaluate(schedule: LoadedSchedule, pack: RulePack, *, waivers: Sequence[WaiverEntry] = (),
              as_of: dt.date | None = None, review: Sequence[CommentEntry] = (),
              also: Sequence[RulePack] | None = None, search: Search = None) -> Report:
