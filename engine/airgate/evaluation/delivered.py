@@ -31,7 +31,7 @@ import math
 import numpy as np
 
 from airgate.evaluation.report import SystemResult
-from airgate.evaluation.trail import Step, Trail
+from airgate.evaluation.trail import Step, Trail, shared_text
 from airgate.models.rules import RulePack
 from airgate.procedures import multizone
 
@@ -100,7 +100,7 @@ def _appendix_a(zones, st: Trail, pack: RulePack, f) -> None:
             note += ("; the intake is below what the other zones take, so none is left for this "
                      "zone (shown as 0)")
         steps[SYMBOL] = Step(SYMBOL, values[k], "airflow", formula, cite[bool(secondary[k])],
-                             note, "computed")
+                             shared_text(note), "computed")
 
 
 _SINGLE = "{Vpz}·(1 + {Xs} − {Vou} / {Vot_design})"

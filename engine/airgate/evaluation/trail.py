@@ -20,6 +20,25 @@ def _symbolic(formula: str) -> str:
     return _PLACEHOLDER.sub(lambda m: m.group(1), formula)
 
 
+#: texts that many steps repeat (notes, citations), one copy each; bounded, so texts that name a
+#: zone or a value cannot make it grow with a portfolio
+_TEXTS: dict[str, str] = {}
+_TEXTS_KEPT = 20_000
+
+
+def shared_text(text: str) -> str:
+    """The one copy kept of ``text`` (the same characters as ``text``): the notes and citations
+    of a portfolio's steps are a few hundred distinct texts, each made again for every zone
+    (an f-string gives a new string each time), which held apart would cost some 30 MiB per
+    100,000 zones each."""
+    kept = _TEXTS.get(text)
+    if kept is not None:
+        return kept
+    if len(_TEXTS) < _TEXTS_KEPT:
+        _TEXTS[text] = text
+    return text
+
+
 class Step(NamedTuple):
     """One quantity of a trail.
 
@@ -56,7 +75,9 @@ class Trail:
             source: str | Location = "",
             note: str = "", origin: str = "computed") -> float:
         value = float(value)
-        self.steps[symbol] = Step(symbol, value, kind, formula, source, note, origin)
+        if type(source) is str:
+            source = shared_text(source)
+        self.steps[symbol] = Step(symbol, value, kind, formula, source, shared_text(note), origin)
         return value
 
     def copy_from(self, other: Trail, symbol: str) -> None:
