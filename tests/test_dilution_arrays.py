@@ -153,3 +153,13 @@ def test_the_largest_zpz_of_the_others(report):
         occupied = co2._Occupied(s.trail, s.zones, np.arange(len(s.zones)))
         assert occupied.others_max.tolist() == [max(zpz[:j] + zpz[j + 1:])
                                                 for j in range(len(zpz))]
+
+
+def test_steps_share_their_repeated_texts(report):
+    # the notes and citations many zones repeat are one string each (memory, common practice)
+    notes = {}
+    for _, z in _zones(report):
+        for step in z.dilution.steps.values():
+            if step.note:
+                assert notes.setdefault(step.note, step.note) is step.note
+    assert len(notes) < 60

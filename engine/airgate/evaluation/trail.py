@@ -83,7 +83,7 @@ class Trail:
     def copy_from(self, other: Trail, symbol: str) -> None:
         step = other.steps[symbol]
         self.steps[symbol] = Step(step.symbol, step.value, step.kind, source=step.source,
-                                  note=step.note or "system value", origin="system")
+                                  note=shared_text(step.note or "system value"), origin="system")
 
     def __contains__(self, symbol: str) -> bool:
         return symbol in self.steps
