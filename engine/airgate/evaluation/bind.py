@@ -137,6 +137,54 @@ def air_distribution(loaded: LoadedSchedule, pack: RulePack, zone: Zone, path: P
                     tuple(r.id for r in rows))
 
 
+class Binder:
+    """Binds the zones of one schedule to one pack, sharing what equal statements give.
+
+    What a zone is bound to depends only on what it states (its space; its air distribution or
+    explicit Ez), never on where it stands: the row, or the :class:`EzChoice` worked out for
+    one zone, is shared by every zone that states the same (both are frozen, nothing changes
+    them per zone). Only results are kept: a statement the pack refuses is worked out again for
+    each zone that makes it, so each error is located at its own zone's path, as when every
+    zone is bound alone.
+    """
+
+    def __init__(self, loaded: LoadedSchedule, pack: RulePack) -> None:
+        self.loaded = loaded
+        self.pack = pack
+        self._ez: dict[tuple, EzChoice] = {}
+
+    def category(self, zone: Zone, path: Path_) -> OccupancyCategory:
+        """:func:`category`: the row of the zone's space (shared by every zone of that space)."""
+        row = self.pack.categories.get(zone.space)
+        return row if row is not None else category(self.loaded, self.pack, zone, path)
+
+    def air_distribution(self, zone: Zone, path: Path_, key: tuple = ()) -> EzChoice:
+        """:func:`air_distribution`, worked out once per distinct statement."""
+        stated = _statement(zone)
+        if stated is None:
+            return air_distribution(self.loaded, self.pack, zone, path, key)
+        found = self._ez.get(stated)
+        if found is None:
+            found = air_distribution(self.loaded, self.pack, zone, path, key)
+            self._ez[stated] = found
+        return found
+
+
+def _statement(zone: Zone) -> tuple | None:
+    """What decides a zone's :class:`EzChoice` without an explicit Ez, as a key: its stated
+    air distribution (a row id, a stated configuration, a list of modes, or none); None where
+    it cannot be a key (an explicit Ez, which costs nothing to bind, or a value not hashable)."""
+    if zone.ez is not None:
+        return None
+    refs = zone.air_distribution
+    stated = (True, tuple(refs)) if isinstance(refs, list) else (False, refs)
+    try:
+        hash(stated)
+    except TypeError:
+        return None
+    return stated
+
+
 def check_pack_checks(pack: RulePack, known: set[str]) -> None:
     """Every check a pack lists must be one the engine implements (else the pack is wrong)."""
     from airgate.errors import RulePackError

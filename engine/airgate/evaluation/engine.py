@@ -56,27 +56,33 @@ def _bind_all(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
     zone contexts of each condition (one unnamed condition for a system without any); a zone
     of an exhaust fan is bound to its exhaust row only (:class:`exhaust.FanZone`)."""
     errors: list[AirgateError] = []
+    binder = bind.Binder(loaded, pack)  # equal statements share their rows and Ez
+    adjust = run.adjust if run is not None else None
     out = []
     for i, stated in enumerate(loaded.model.systems):
         by_condition: dict[str | None, list[ZoneContext]] = {}
+        kind = kind_of(stated)
         for cond in conditions.names(stated):
             system = stated.at(cond)
             ctxs = by_condition.setdefault(cond, [])
             for j, zone in enumerate(system.zones):
                 path = ("systems", i, "zones", j)
-                if not kind_of(system).supplies:  # an exhaust fan's zone: its exhaust row only
+                subject = f"{system.id}/{zone.id}"
+                if not kind.supplies:  # an exhaust fan's zone: its exhaust row only
                     row = bind.collect(errors, exhaust.bind_fan_zone, loaded, pack, zone, path)
                     if row is not None:
                         ctxs.append(exhaust.FanZone(zone, path, _location(loaded, path), row,
-                                                    f"{system.id}/{zone.id}", system.id))
+                                                    subject, system.id))
                     continue
-                cat = bind.collect(errors, bind.category, loaded, pack, zone, path)
+                cat = bind.collect(errors, binder.category, zone, path)
                 key = (cond,) if isinstance(stated.zones[j].air_distribution, dict) else ()
-                ez = bind.collect(errors, bind.air_distribution, loaded, pack, zone, path, key)
-                bind.collect(errors, bind.dilution_refs, loaded, zone, path, tables)
-                exhaust_row = bind.collect(errors, exhaust.bind, loaded, pack, zone, path)
-                if cat is not None and ez is not None and run is not None:  # pack requirements
-                    cat, ez = bind.collect(errors, run.adjust, i, j, cat, ez, zone) or (None, None)
+                ez = bind.collect(errors, binder.air_distribution, zone, path, key)
+                if zone.profile is not None or zone.activity is not None:
+                    bind.collect(errors, bind.dilution_refs, loaded, zone, path, tables)
+                exhaust_row = (None if zone.exhaust is None else
+                               bind.collect(errors, exhaust.bind, loaded, pack, zone, path))
+                if cat is not None and ez is not None and adjust is not None:  # requirements
+                    cat, ez = bind.collect(errors, adjust, i, j, cat, ez, zone) or (None, None)
                 if cat is not None and ez is not None:
                     fields = {name: _location(loaded, conditions.keyed(path + (name,), cond))
                               for name in ("area", "occupants", "bedrooms")
@@ -86,11 +92,9 @@ def _bind_all(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
                                        for name in ("airflow", "fixtures")
                                        if getattr(zone.exhaust, name) is not None})
                     ctxs.append(ZoneContext(zone=zone, path=path, location=_location(loaded, path),
-                                            category=cat, ez=ez, subject=f"{system.id}/{zone.id}",
+                                            category=cat, ez=ez, subject=subject,
                                             system_id=system.id, fields=fields,
-                                            mechanical=kind_of(system).intake,
-
-                                            exhaust=exhaust_row))
+                                            mechanical=kind.intake, exhaust=exhaust_row))
         out.append(by_condition)
         errors.extend(kind_of(stated).check_inputs(loaded, pack, i))
     errors.extend(makeup.check_inputs(loaded))

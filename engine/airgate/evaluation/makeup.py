@@ -88,16 +88,30 @@ def _zone_paths(loaded: LoadedSchedule) -> dict[str, tuple]:
             for j, zone in enumerate(system.zones)}
 
 
+def _exhausted(loaded: LoadedSchedule) -> list[tuple[str, tuple, object]]:
+    """Each zone that states an exhaust, in schedule order: its id, path and zone (zone ids are
+    unique in a schedule); most zones of a large schedule have none."""
+    return [(zone.id, ("systems", i, "zones", j), zone)
+            for i, system in enumerate(loaded.model.systems)
+            for j, zone in enumerate(system.zones) if zone.exhaust is not None]
+
+
+def _transferred(zone) -> bool:
+    made = zone.exhaust.makeup
+    return made is not None and made != "outdoor"
+
+
 def check_inputs(loaded: LoadedSchedule) -> list[AirgateError]:
     """Every ``transfer_from`` names another zone of the schedule (located errors with the
     nearest zone ids)."""
+    transfers = [(zid, path, zone) for zid, path, zone in _exhausted(loaded)
+                 if _transferred(zone)]
+    if not transfers:
+        return []
     paths = _zone_paths(loaded)
     errors = []
-    for zid, path in paths.items():
-        zone = loaded.model.systems[path[1]].zones[path[3]]
-        made = zone.exhaust.makeup if zone.exhaust is not None else None
-        if made is None or made == "outdoor":
-            continue
+    for zid, path, zone in transfers:
+        made = zone.exhaust.makeup
         at = path + ("exhaust", "makeup", "transfer_from")
         if made.transfer_from == zid:
             errors.append(loaded.error(f"zone '{zid}' cannot transfer makeup air from itself",
@@ -117,12 +131,17 @@ def check(loaded: LoadedSchedule, pack: RulePack, results: list[SystemResult],
           emitter: Emitter, locate) -> list[str]:
     """Record each exhausted zone's makeup on its result, check transfers by air class, and
     return the report notes (the zones whose makeup is not stated)."""
+    exhausted = _exhausted(loaded)
+    if not exhausted:
+        return []
+    wanted = {zid for zid, _, _ in exhausted}
+    wanted.update(zone.exhaust.makeup.transfer_from for _, _, zone in exhausted
+                  if _transferred(zone))
     found: dict[str, tuple[SystemResult, ZoneResult]] = {
-        z.id: (s, z) for s in results for z in s.zones}
+        z.id: (s, z) for s in results for z in s.zones if z.id in wanted}
     unstated = []
-    for zid, path in _zone_paths(loaded).items():
-        zone = loaded.model.systems[path[1]].zones[path[3]]
-        if zone.exhaust is None or zid not in found:
+    for zid, path, zone in exhausted:
+        if zid not in found:
             continue
         system, result = found[zid]
         made = zone.exhaust.makeup

@@ -65,6 +65,11 @@ class Run:
         self.zone_reqs = [r for r in pack.requirements.values() if r.subject == "zone"]
         for req in pack.requirements.values():
             behaviour(req)  # every kind has its evaluation before anything runs
+        #: the modifying requirements on zones, in the order they act: kind by kind in the
+        #: order the kinds are registered, then in the pack's order
+        self.adjusting = [(found.adjust, req) for kind, found in EVALUATORS.items()
+                          if found.adjust is not None
+                          for req in self.zone_reqs if req.kind == kind]
 
     def amount(self, value: float, kind: str) -> str:
         return formatting.amount(value, kind, self.units)
@@ -79,13 +84,12 @@ class Run:
         system = self.loaded.model.systems[i]
         zone = system.zones[j] if zone is None else zone
         self._dwelling_inputs(zone, cat, ("systems", i, "zones", j))
+        if not self.adjusting:  # nothing modifies a zone: no subject to select
+            return cat, ez
         subject = zone_subject(system, zone, cat, ez.rows)
-        for kind, found in EVALUATORS.items():
-            if found.adjust is None:
-                continue
-            for req in self.zone_reqs:
-                if req.kind == kind and req.selector.matches(subject):
-                    cat, ez = found.adjust(self, req, system, zone, cat, ez)
+        for adjust, req in self.adjusting:
+            if req.selector.matches(subject):
+                cat, ez = adjust(self, req, system, zone, cat, ez)
         return cat, ez
 
     def _dwelling_inputs(self, zone: Any, cat: OccupancyCategory, path: tuple) -> None:
@@ -102,6 +106,8 @@ class Run:
     def evaluate(self, i: int, system: Any, ctxs: list[ZoneContext], result: SystemResult,
                  emitter: Emitter) -> None:
         """Outcomes (and findings) of every requirement on ``system`` and its zones."""
+        if not self.pack.requirements:
+            return
         zone_subjects = [zone_subject(system, c.zone, c.category, c.ez.rows) for c in ctxs]
         for req in self.pack.requirements.values():
             run = behaviour(req).evaluate
