@@ -136,3 +136,51 @@ def test_every_format_renders_every_scenario(evaluate, name):
             assert ET.fromstring(out.encode("utf-8")).tag == "testsuites"
         elif fmt == "sarif":
             assert_valid_sarif(out)
+
+
+def test_cases_in_schedule_order_then_pack_order(evaluate):
+    """The order of the cases (every writer lists them so): subject by subject as the schedule
+    lists them (a system, then its zones), each subject's rules in the order the pack lists its
+    checks (common practice: a report follows its inputs' order)."""
+    import yaml
+
+    from conftest import DEMO
+
+    for data in [schedule(CASES[name]) for name in sorted(CASES)] + [
+            yaml.safe_load(DEMO.read_text(encoding="utf-8"))]:
+        report = evaluate(data)
+        subjects = [x for s in report.systems
+                    for x in (s.id, *(f"{s.id}/{z.id}" for z in s.zones))]
+        rank = list(report.pack.checks) + list(report.pack.requirements)
+        base = [c for c in report.cases if c.pack is None]  # a supplement pack's come after
+        assert list(report.cases)[:len(base)] == base
+        keys = [(subjects.index(c.subject), rank.index(c.rule)) for c in base]
+        assert keys == sorted(keys)
+        assert len(set(keys)) == len(keys)  # one case per check and subject
+
+
+def test_cases_are_worked_out_when_first_read():
+    """coverage.Cases reads like the list it stands for, and works it out once, when asked."""
+    import copy
+    import pickle
+
+    from airgate.evaluation.coverage import Cases, CheckCase
+    from airgate.evaluation.findings import Location
+
+    at = Location("b.yaml", 3, 5)
+    made = [CheckCase("system-intake", "AHU-1", "AHU-1", None, at),
+            CheckCase("zone-primary-airflow", "AHU-1/1", "AHU-1", "1", at)]
+    more = [CheckCase("extra-rule", "AHU-1", "AHU-1", None, at, pack="supplement-pack")]
+    calls = []
+    lazy = Cases(lambda: calls.append(1) or list(made))
+    lazy += more  # before anything is read: kept after the derived cases
+    assert calls == []
+    assert len(lazy) == 3 and calls == [1]
+    assert list(lazy) == made + more and lazy[1] is made[1] and lazy[-1] is more[0]
+    assert lazy == made + more and lazy[:2] == made
+    assert any(c.rule == "extra-rule" for c in lazy)
+    assert calls == [1]  # worked out once
+    lazy += more  # after: appended to the list
+    assert len(lazy) == 4
+    for copied in (pickle.loads(pickle.dumps(lazy)), copy.deepcopy(lazy)):
+        assert type(copied) is list and copied == list(lazy)
