@@ -94,16 +94,10 @@ def _path_checks(system: System, checks: Iterator[tuple]) -> Iterator[tuple]:
     return (c for c in checks if not (iaqp.on_path(system) and c[0] in iaqp.RATE_CHECKS))
 
 
-def _zone_checks(system: System, z: ZoneResult, result: SystemResult,
-                 pack: RulePack) -> Iterator[tuple]:
-    """The checks that apply to zone ``z`` of ``system``, each (rule, field, required,
-    provided)."""
-    return _ZoneChecks(system, result, pack)(z)
-
-
 class _ZoneChecks:
-    """The checks of one system's zones: what the system decides (its kind, its procedure,
-    whether it recirculates) is looked at once, not once per zone."""
+    """The checks that apply to each zone of one system, each (rule, field, required,
+    provided): what the system decides (its kind, its procedure, whether it recirculates) is
+    looked at once, not once per zone."""
 
     def __init__(self, system: System, result: SystemResult, pack: RulePack) -> None:
         kind = kind_of(system)
