@@ -362,7 +362,7 @@ def test_limits_are_configurable_by_environment(tmp_path):
 
 
 def test_value_limit_follows_the_file_size_limit(tmp_path):
-    # docs/limits.md: by default one value per 32 bytes of the file-size limit; text denser
+    # docs/limits.md: by default one value per 16 bytes of the file-size limit; text denser
     # than that (a list of '0,' is 2 bytes a value) is stopped within the size limit.
     import subprocess
     import sys
@@ -371,11 +371,11 @@ def test_value_limit_follows_the_file_size_limit(tmp_path):
 
     path = tmp_path / "dense.yaml"
     path.write_text("schedule: 1\nnotes: [" + ",".join(["0"] * 300) + "]\n", encoding="utf-8")
-    env = subprocess_env(AIRGATE_MAX_BYTES=str(32 * 100))  # so 100 values
+    env = subprocess_env(AIRGATE_MAX_BYTES=str(16 * 100))  # so 100 values
     env.pop("AIRGATE_MAX_NODES", None)
     run = subprocess.run([sys.executable, "-m", "airgate", "check", str(path)], cwd=ROOT,
                          env=env, capture_output=True, text=True)
-    assert path.stat().st_size < 32 * 100
+    assert path.stat().st_size < 16 * 100
     assert run.returncode == 2
     assert "more than 100 values" in run.stderr and "Traceback" not in run.stderr
 

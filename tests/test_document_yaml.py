@@ -38,14 +38,23 @@ def _message(exc: AirgateError) -> str:
 
 def _reference(text: str):
     """The reference reading's outcome: data (as its repr: NaN is not equal to itself, and
-    1, 1.0 and True must not pass for each other), positions and texts, or the refusal."""
-    try:
-        doc = docmod._parse_with(docmod._Loader, text, "f.yaml", ScheduleError)
-    except docmod._SyntaxSeen as seen:
-        return ("failed", _message(seen.error), seen.error.line, seen.error.column)
-    except AirgateError as exc:
-        return ("failed", _message(exc), exc.line, exc.column)
-    return ("read", repr(doc.data), doc.positions, doc.texts)
+    1, 1.0 and True must not pass for each other), positions and texts, or the refusal.
+
+    The reference is the reading before the events were read straight: the composer over
+    libyaml's events (which takes a few texts PyYAML's Python scanner refuses, e.g. ``0?`` in a
+    flow mapping), and PyYAML's Python loader where that composer meets a syntax error or the
+    text holds a tab."""
+    loaders = docmod._LOADERS if "\t" not in text else (docmod._Loader,)
+    for loader in loaders:
+        try:
+            doc = docmod._parse_with(loader, text, "f.yaml", ScheduleError)
+        except docmod._SyntaxSeen as seen:
+            if loader is not docmod._Loader:
+                continue
+            return ("failed", _message(seen.error), seen.error.line, seen.error.column)
+        except AirgateError as exc:
+            return ("failed", _message(exc), exc.line, exc.column)
+        return ("read", repr(doc.data), doc.positions, doc.texts)
 
 
 def _public(text: str):

@@ -30,11 +30,13 @@ def _limit(name: str, default: int) -> int:
 #: set by an environment variable of the same name with the AIRGATE_ prefix (docs/limits.md).
 MAX_BYTES = _limit("AIRGATE_MAX_BYTES", 50 * 1024 * 1024)
 #: Bytes of the file-size limit per value of the value limit: the value limit follows the
-#: file-size limit (1,638,400 values at 50 MiB), so any schedule a file of the size limit can
-#: hold in ordinary layout (about 12 bytes a value in YAML, 16 in indented JSON: a 100,000-zone
-#: schedule is 15–20 MB and 1.25 million values) is read, while text denser than that (a long
-#: list of ``0,``) is stopped before it is held in memory
-BYTES_PER_NODE = 32
+#: file-size limit (3,276,800 values at 50 MiB), so a schedule in ordinary layout (about 12 bytes
+#: a value in YAML, 16 in indented JSON: a 100,000-zone schedule is 15–20 MB and 1.25 million
+#: values; the demo building repeated to 60,000 zones is 19.4 MiB and 1.64 million) is read up to
+#: the size limit in JSON and up to about 38 MiB in YAML, while text denser than that (a long
+#: list of ``0,``) is stopped before it is held in memory (the densest text the defaults admit,
+#: a flow list of 3.27 million numbers, peaked at 1.3 GB read as YAML, docs/limits.md)
+BYTES_PER_NODE = 16
 MAX_NODES = _limit("AIRGATE_MAX_NODES", MAX_BYTES // BYTES_PER_NODE)
 MAX_DEPTH = _limit("AIRGATE_MAX_DEPTH", 64)
 #: Values reached through aliases (a repeated anchor is expanded at each alias), and the text
