@@ -19,7 +19,7 @@ sys.path.insert(0, str(ROOT / "bench"))
 import synthetic  # noqa: E402
 
 from airgate.api.core import evaluate, load_pack, load_schedule  # noqa: E402
-from airgate.evaluation import dilution as co2  # noqa: E402
+from airgate.evaluation import capacity, dilution as co2  # noqa: E402
 from airgate.evaluation.trail import Trail  # noqa: E402
 from airgate.procedures import dilution  # noqa: E402
 
@@ -99,17 +99,34 @@ def test_dcv_set_point_worked_example():
     assert co2.dcv_values([t], [Zone])[0] == pytest.approx(1060.0, rel=1e-12)
 
 
+def _vot_with(system_trail, zones, j: int, people: float) -> float:
+    """Required Vot of a detailed-Ev system if zone j held ``people`` (D held) [L/s], one zone at a
+    time: ANSI/ASHRAE 62.1-2019 Section 6.2.5 and Appendix A (Vou = D·ΣRp·Pz + ΣRa·Az,
+    Xs = Vou/Vps, Ev = min(1 + Xs − Zpz), Vot = Vou/Ev)."""
+    zt = zones[j].trail
+    rp, ra, az, ez = (zt.value(s) for s in ("Rp", "Ra", "Az", "Ez"))
+    d = system_trail.value("D")
+    vou = d * (system_trail.value("Σ(Rp·Pz)") + rp * (people - zt.value("Pz"))) + \
+        system_trail.value("Σ(Ra·Az)")
+    xs = vou / system_trail.value("Vps")
+    zpz = np.array([z.trail.value("Zpz") for z in zones])
+    zpz[j] = (rp * people + ra * az) / ez / zt.value("Vpz")
+    ev = float(np.min(1 + xs - zpz))
+    return vou / ev if ev > 0 else math.inf
+
+
+
 def _reference_p_max(system_trail, zones, j, target):
     """P_max of zone j as it was computed one zone at a time: the bound doubled from
     max(1, Pz), then 80 bisections on Vot(P) (62.1-2019 Appendix A, detailed Ev, derived)."""
-    if co2._vot_with(system_trail, zones, j, 0.0) > target:
+    if _vot_with(system_trail, zones, j, 0.0) > target:
         return None
     lo, hi = 0.0, max(1.0, zones[j].trail.value("Pz"))
-    while co2._vot_with(system_trail, zones, j, hi) <= target and hi < 1e7:
+    while _vot_with(system_trail, zones, j, hi) <= target and hi < 1e7:
         hi *= 2
     for _ in range(80):
         mid = 0.5 * (lo + hi)
-        lo, hi = (mid, hi) if co2._vot_with(system_trail, zones, j, mid) <= target else (lo, mid)
+        lo, hi = (mid, hi) if _vot_with(system_trail, zones, j, mid) <= target else (lo, mid)
     return lo
 
 
@@ -141,16 +158,16 @@ def test_p_max_holds_the_intake(report):
                 continue
             p = z.dilution.value("P_max")
             intake = s.trail.value("Vot_design")
-            assert co2._vot_with(s.trail, s.zones, j, p) <= intake
+            assert _vot_with(s.trail, s.zones, j, p) <= intake
             if p < 1e7:
-                assert co2._vot_with(s.trail, s.zones, j, p + 1.0) > intake
+                assert _vot_with(s.trail, s.zones, j, p + 1.0) > intake
 
 
 def test_the_largest_zpz_of_the_others(report):
     # the least Ev with zone j changed uses the largest Zpz of the other zones
     for s in report.systems[:3]:
         zpz = [z.trail.value("Zpz") for z in s.zones]
-        occupied = co2._Occupied(s.trail, s.zones, np.arange(len(s.zones)))
+        occupied = capacity._Occupied(s.trail, s.zones, np.arange(len(s.zones)))
         assert occupied.others_max.tolist() == [max(zpz[:j] + zpz[j + 1:])
                                                 for j in range(len(zpz))]
 

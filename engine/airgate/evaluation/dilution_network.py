@@ -13,7 +13,7 @@ from __future__ import annotations
 import numpy as np
 
 from airgate.evaluation import dilution as co2
-from airgate.evaluation import zone_air, zone_network
+from airgate.evaluation import capacity, zone_air, zone_network
 from airgate.evaluation.dilution import MB, PPM, Series
 from airgate.evaluation.system_kinds import kind_of
 from airgate.evaluation.trail import Trail
@@ -91,7 +91,7 @@ def analyse(system, ctxs, result, schedule, emitter, out, table) -> None:
         z.dilution = t
         out.append(z)
     if net.coupling is not None:
-        co2.multiple_zone_capacity(system, result)
+        capacity.multiple_zone_capacity(system, result)
 
 
 def _steady_steps(t: Trail, z, net, j: int, conc, c_out: float, units: str) -> None:
