@@ -94,6 +94,17 @@ class Trail:
     def value(self, symbol: str) -> float:
         return self.steps[symbol].value
 
+    def signature(self) -> tuple[tuple[str, str], ...]:
+        """Each step's ``(symbol, kind)`` in order: the shape of the trail, the same for every
+        zone computed alike. Writers key what they look up once per shape on it (JSON keys,
+        units, unit factors), and read the numbers from :meth:`values`. A trail kept as a row of
+        per-system arrays may answer both without making its steps."""
+        return tuple((s.symbol, s.kind) for s in self.steps.values())
+
+    def values(self) -> list[float]:
+        """Each step's value [internal units of its kind], in the order of :meth:`signature`."""
+        return [s.value for s in self.steps.values()]
+
     def substituted(self, step: Step, render) -> str:
         """The formula with each placeholder replaced by ``render(step_of_placeholder)``."""
         return _PLACEHOLDER.sub(lambda m: render(self.steps[m.group(1)]), step.formula)
