@@ -197,6 +197,21 @@ def test_a_supplement_naming_a_space_the_rates_pack_lacks_is_a_pack_error(tmp_pa
     assert err.file.endswith("test-supplement.yaml") and err.line is not None
 
 
+def test_a_supplement_beside_a_pack_it_was_not_written_for_is_one_error(tmp_path):
+    # The project's own contract (docs/schedule-format.md, several packs): the ASHRAE 241 pack's
+    # selectors name 62.1 space types; beside the dwelling-unit pack (62.2, which has none of
+    # them) the run says so once, listing the names, rather than once per name.
+    data = _schedule(["ashrae-62.2-2019", "ashrae-241-2023"], [_system("A", "120 cfm")])
+    with pytest.raises(AirgateError) as info:
+        check(_write(tmp_path, data))
+    err = info.value
+    assert not getattr(err, "errors", None) or len(err.errors) == 1
+    assert "names 24 space types that rates pack ashrae-62.2-2019 does not have" in err.message
+    assert "'office-space'" in err.message and "and 20 more" in err.message
+    assert "it has none of them" in err.message and "another rates pack" in err.message
+    assert err.file.endswith("ashrae-241-2023.yaml") and (err.line, err.column) == (51, 26)
+
+
 def test_waivers_name_the_pack_when_rule_ids_collide(tmp_path):
     # Both supplements have requirement eca-office: 12 cfm per person fails the invented 20 and
     # the 30 of ASHRAE 241-2023 (Table 5-1, office, from memory).

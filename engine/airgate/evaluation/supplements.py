@@ -39,30 +39,59 @@ def _selector_terms(raw: Any, path: tuple) -> Iterator[tuple[str, list, tuple]]:
             yield from _selector_terms(raw[key], path + (key,))
 
 
+#: more unknown names than this, and more unknown than known, and the supplement was written for
+#: another rates pack: one error lists them rather than one error each
+_FOREIGN = 3
+
+
 def check_names(base: RulePack, supplement: RulePack) -> list[AirgateError]:
     """The space types and groups a supplement's selectors name must be the rates pack's: a
-    pack error at the supplement's line, naming both packs."""
+    pack error at the supplement's line, naming both packs. A supplement whose selectors are
+    mostly foreign to the rates pack (checked beside a pack it was not written for, e.g. a
+    dwelling-unit pack under a commercial supplement) gets one error listing the names."""
     doc = supplement.document_positions
     if doc is None:
         return []
     known = {"space": set(base.categories),
              "group": {c.group for c in base.categories.values()}}
-    out: list[AirgateError] = []
+    unknown: list[tuple[str, str, tuple, list[str]]] = []
+    found = 0
     for i, r in enumerate(doc.data.get("requirements", [])):
         for term, ids, path in _selector_terms(r.get("applies_to"), ("requirements", i,
                                                                       "applies_to")):
             for k, value in enumerate(ids):
                 if value in known[term]:
+                    found += 1
                     continue
-                close = nearest(value, known[term])
                 what = "space type" if term == "space" else "group"
-                out.append(doc.error(
-                    RulePackError, f"supplement pack {supplement.id} names {what} '{value}', "
-                    f"which rates pack {base.id} does not have"
-                    + (f"; did you mean '{close[0]}'?" if close else ""), path + (k,),
-                    hint=f"a supplement's selectors name the categories of the rates pack it is "
-                         f"checked beside; list it beside a pack with {what} '{value}'"))
-    return out
+                unknown.append((what, value, path + (k,), nearest(value, known[term])))
+    if len(unknown) > _FOREIGN and len(unknown) > found:
+        return [_foreign(base, supplement, unknown, found)]
+    return [doc.error(
+        RulePackError, f"supplement pack {supplement.id} names {what} '{value}', "
+        f"which rates pack {base.id} does not have"
+        + (f"; did you mean '{close[0]}'?" if close else ""), path,
+        hint=f"a supplement's selectors name the categories of the rates pack it is "
+             f"checked beside; list it beside a pack with {what} '{value}'")
+        for what, value, path, close in unknown]
+
+
+def _foreign(base: RulePack, supplement: RulePack,
+             unknown: list[tuple[str, str, tuple, list[str]]], found: int) -> AirgateError:
+    """One error for a supplement checked beside a rates pack it was not written for, at its
+    first unknown name."""
+    names = [f"'{value}'" for _, value, _, _ in unknown]
+    shown = ", ".join(names[:4]) + (f" and {len(names) - 4} more" if len(names) > 4 else "")
+    kinds = sorted({what for what, _, _, _ in unknown})
+    what = " and ".join(f"{k}s" for k in kinds)
+    has = f"it has {found} of the names" if found else "it has none of them"
+    return supplement.document_positions.error(
+        RulePackError, f"supplement pack {supplement.id} names {len(unknown)} {what} that "
+        f"rates pack {base.id} does not have ({shown}); {has}: the supplement's selectors "
+        f"were written for another rates pack", unknown[0][2],
+        hint=f"check {supplement.id} beside a rates pack with these categories (the one its "
+             f"selectors were written for; rules: [RATES, {supplement.id}]), or leave it out "
+             f"of this run (a schedule's rules: or a system's extra_rules lists it)")
 
 
 class Runs:
