@@ -10,6 +10,7 @@ a pack, located errors) is the project's own contract (docs/schedule-format.md).
 from __future__ import annotations
 
 import json
+import re
 import subprocess
 import sys
 from pathlib import Path
@@ -64,6 +65,34 @@ def test_eca_per_person_is_the_hand_sum_of_the_credited_mechanisms(tmp_path):
     assert "Qc_dep" not in t and "Qc_inact" not in t
     assert report.verdict == "pass"
     assert [o.pack for o in report.requirements if o.rule == "eca-office"] == ["ashrae-241-2023"]
+
+
+def test_the_pack_figures_are_shown_in_the_text_html_and_markdown_reports(tmp_path):
+    # The same hand sum as above (ASHRAE 241-2023, from memory): 450 cfm of equivalent clean
+    # airflow, 45 cfm per person against 30; every human-readable report lists it per zone, the
+    # HTML report with the pack's trail among the zone's.
+    data = _schedule(["ashrae-62.1-2019", "ashrae-241-2023"], [
+        _system("A", "120 cfm", supply_airflow="600 cfm", filter={"efficiency": 0.5},
+                zone={"air_cleaners": [{"cadr": "90 cfm"}]})])
+    path = _write(tmp_path, data)
+    row = ["a", "450", "10", "45", "30", "Qc_oa, Qc_filter, Qc_cleaner"]
+    for fmt in ("text", "markdown", "html"):
+        out = tmp_path / f"report.{fmt}"
+        run = subprocess.run([sys.executable, "-m", "airgate", "check", str(path), "--format",
+                              f"{fmt}:{out}"], capture_output=True, text=True,
+                             env=subprocess_env(), check=False)
+        assert run.returncode == 0, run.stderr
+        text = out.read_text(encoding="utf-8")
+        assert "ashrae-241-2023" in text and "equivalent clean airflow of the credited" in text
+        if fmt == "html":
+            cells = "".join(f'<td class="n">{v}</td>' for v in row[1:5])
+            assert f"<tr><td><b>a</b></td>{cells}<td>{row[5]}</td></tr>" in text
+            assert "rule pack ashrae-241-2023</p>" in text  # the pack's trail, in the zone's
+        elif fmt == "markdown":
+            assert "| " + " | ".join(row).replace("_", "\\_") + " |" in text
+        else:
+            assert re.search(r"^\s*a\s+450\s+10\s+45\s+30\s+Qc_oa, Qc_filter, Qc_cleaner$",
+                             text, re.M)
 
 
 def test_a_failing_supplement_requirement_fails_zone_system_and_report(tmp_path):

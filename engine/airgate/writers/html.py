@@ -228,6 +228,8 @@ class _View:
             "zone_rows": (self.zone_row(s, z) for z in s.zones) if s.supplies else (),
             "fan": "" if s.supplies else shared.fan_line(s, self.u),
             "exhaust": shared.exhaust_rows(s, self.u),
+            "packs": [{"id": pid, "head": head, "rows": rows}
+                      for pid, head, rows in shared.pack_tables(s, self.u)],
             "co2": [f for f in (self.co2(s, z) for z in shown_zones) if f is not None],
             "trails": self.trails(s, shown_zones),
             "trails_left_out": (f"{left_out:,} of the zones above are listed without their "
@@ -297,6 +299,8 @@ class _View:
                               "rows": self.trail_rows(z.dilution)})
             for cid, t in z.contaminants.items():
                 parts.append({"label": cid, "rows": self.trail_rows(t)})
+            for pid, t in sorted(z.packs.items()):
+                parts.append({"label": f"rule pack {pid}", "rows": self.trail_rows(t)})
             yield {"what": "zone", "id": z.id, "name": z.name or "", "parts": parts}
         yield {"what": "system", "id": s.id, "name": "",
                "parts": [{"label": "", "rows": self.trail_rows(s.trail)}]}

@@ -106,6 +106,19 @@ def _exhaust_table(report: Report) -> list[str]:
     return out + [""]
 
 
+def _pack_tables(report: Report) -> list[str]:
+    """What each supplement pack computed on the zones (their equivalent clean airflow)."""
+    out: list[str] = []
+    for s in report.systems:
+        for pid, head, rows in shared.pack_tables(s, report.units):
+            out += [f"{md(pid)} on {md(s.id)}: equivalent clean airflow of the credited "
+                    "mechanisms:", "", "| " + " | ".join(md(h) for h in head) + " |",
+                    "|---|---:|---:|---:|---:|---|"]
+            out += ["| " + " | ".join(md(c) for c in row) + " |" for row in rows]
+            out.append("")
+    return out
+
+
 def _items_table(report: Report, items: list[Finding]) -> list[str]:
     u = report.units
     out = ["| subject | check | required | provided | margin | where |",
@@ -188,7 +201,7 @@ def _report(report: Report, level: str = "###", gate: str | None = None) -> list
               if report.declared_count() else ""), ""]
     if gate:
         out += [f"**{md(gate)}**", ""]
-    out += (_systems_table(report) + [""] + _conditions_table(report) + _exhaust_table(report)
+    out += (_systems_table(report) + [""] + _conditions_table(report) + _exhaust_table(report) + _pack_tables(report)
             + _failing(report) + _declared(report)
             + _waived(report) + review_table(report.review) + _notes(report))
     return out

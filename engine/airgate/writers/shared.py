@@ -10,6 +10,7 @@ import math
 from dataclasses import dataclass
 
 from airgate import formatting, units
+from airgate import units as units_  # the module; ``units`` is a parameter name below
 from airgate.evaluation.checks import DECLARED_CHECKS, what_it_verifies
 from airgate.evaluation import findings
 from airgate.evaluation.findings import DECLARED, Amount, WaiverMark
@@ -34,6 +35,37 @@ def exhaust_rows(s: SystemResult, units: str) -> list[tuple[str, ...]]:
         count = formatting.number(t.value("Ne"), "count") if "Ne" in t else "–"
         out.append((z.id, z.exhaust, count, amount(req, units), amount(prov, units),
                     margin(req, prov, units), z.makeup.text() if z.makeup is not None else "–"))
+    return out
+
+
+def _figure(trail, symbol: str, system: str) -> str:
+    """A trail value in the display unit of ``system``, ``–`` when the trail has no such step."""
+    if symbol not in trail:
+        return "–"
+    step = trail[symbol]
+    return formatting.number(units_.to_display(step.value, step.kind, system), step.kind)
+
+
+def pack_tables(s: SystemResult, system: str) -> list[tuple[str, list[str], list[list[str]]]]:
+    """What each supplement pack computed on the zones of ``s`` (its equivalent clean airflow),
+    as evaluated: ``(pack id, header, rows)``, one row per zone the pack reached — zone, ECA,
+    Pz, ECA per person (``–`` for a zone without occupants), the pack's target per person, and
+    the credited mechanisms (the trail's ``Qc_`` steps)."""
+    out = []
+    for pid in sorted({p for z in s.zones for p in z.packs}):
+        q = units_.label("airflow", system)
+        pp = units_.label("airflow_per_person", system)
+        head = ["zone", f"ECA {q}", "Pz", f"ECA {pp}", f"target {pp}", "credited"]
+        rows = []
+        for z in s.zones:
+            t = z.packs.get(pid)
+            if t is None:
+                continue
+            credited = ", ".join(step.symbol for step in t.steps.values()
+                                 if step.symbol.startswith("Qc_"))
+            rows.append([z.id, _figure(t, "ECA", system), _figure(t, "Pz", system),
+                         _figure(t, "ECA_pp", system), _figure(t, "ECAi", system), credited])
+        out.append((pid, head, rows))
     return out
 
 

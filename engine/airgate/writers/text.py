@@ -136,20 +136,9 @@ def _system(s: SystemResult, system: str, amounts: dict[str, str]) -> list[str]:
 def _pack_rows(s: SystemResult, system: str) -> list[str]:
     """What supplement packs computed on the zones (their equivalent clean airflow)."""
     out: list[str] = []
-    for pid in sorted({p for z in s.zones for p in z.packs}):
-        q, pp = units.label("airflow", system), units.label("airflow_per_person", system)
-        rows = [["zone", f"ECA {q}", "Pz", f"ECA {pp}", f"target {pp}", "credited"]]
-        for z in s.zones:
-            t = z.packs.get(pid)
-            if t is None:
-                continue
-            credited = ", ".join(step.symbol for step in t.steps.values()
-                                 if step.symbol.startswith("Qc_"))
-            rows.append([clean(z.id), _num(t, "ECA", system), _num(t, "Pz", system),
-                         _num(t, "ECA_pp", system) if "ECA_pp" in t else "–",
-                         _num(t, "ECAi", system), credited])
+    for pid, head, rows in shared.pack_tables(s, system):
         out += ["", f"    {clean(pid)}: equivalent clean airflow of the credited mechanisms"]
-        out += _table(rows, right={1, 2, 3, 4})
+        out += _table([head, *([clean(r[0]), *r[1:]] for r in rows)], right={1, 2, 3, 4})
     return out
 
 
