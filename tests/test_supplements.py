@@ -10,6 +10,7 @@ a pack, located errors) is the project's own contract (docs/schedule-format.md).
 from __future__ import annotations
 
 import json
+import xml.etree.ElementTree as ET  # parses our own report
 import re
 import subprocess
 import sys
@@ -93,6 +94,25 @@ def test_the_pack_figures_are_shown_in_the_text_html_and_markdown_reports(tmp_pa
         else:
             assert re.search(r"^\s*a\s+450\s+10\s+45\s+30\s+Qc_oa, Qc_filter, Qc_cleaner$",
                              text, re.M)
+
+
+def test_a_passing_supplement_requirement_carries_its_amounts_in_junit(tmp_path):
+    # The hand sum above (ASHRAE 241-2023, from memory): 45 cfm per person provided against the
+    # 30 required; a passing case says both, as a passing check of the rates pack does.
+    data = _schedule(["ashrae-62.1-2019", "ashrae-241-2023"], [
+        _system("A", "120 cfm", supply_airflow="600 cfm", filter={"efficiency": 0.5},
+                zone={"air_cleaners": [{"cadr": "90 cfm"}]})])
+    out = tmp_path / "report.xml"
+    run = subprocess.run([sys.executable, "-m", "airgate", "check", str(_write(tmp_path, data)),
+                          "--format", f"junit:{out}"], capture_output=True, text=True,
+                         env=subprocess_env(), check=False)
+    assert run.returncode == 0, run.stderr
+    case = [c for c in ET.parse(out).iter("testcase") if "ashrae-241-2023: eca-office" in
+            c.get("name")]
+    assert len(case) == 1 and case[0].find("failure") is None
+    text = case[0].find("system-out").text
+    assert "required: 30 cfm/person" in text and "provided: 45 cfm/person" in text
+    assert "margin: +15 cfm/person (+50.0 %)" in text
 
 
 def test_a_failing_supplement_requirement_fails_zone_system_and_report(tmp_path):

@@ -173,7 +173,8 @@ def _requirement_cases(outcomes, results: list[SystemResult], seen) -> list[Chec
         if o.verdict != "pass" or (o.rule, o.subject) in seen or o.subject not in where:
             continue
         system, zone, location = where[o.subject]
-        out.append(CheckCase(o.rule, o.subject, system, zone, location))
+        out.append(CheckCase(o.rule, o.subject, system, zone, location,
+                             o.required, o.provided))
         seen.add((o.rule, o.subject))
     return out
 

@@ -125,10 +125,14 @@ class Run:
     # --- for the kinds ------------------------------------------------------------------------
 
     def record(self, req: Requirement, subject: str, verdict: str, emitter: Emitter,
-               finding: Finding | None = None) -> None:
+               finding: Finding | None = None, required: Amount | None = None,
+               provided: Amount | None = None) -> None:
+        """An outcome; ``required`` and ``provided``: the amounts a passing requirement
+        compared (a failing one's finding has its own)."""
         if finding is not None:
             emitter.findings.append(finding)
-        self.outcomes.append(Outcome(req.id, subject, verdict, finding))
+        self.outcomes.append(Outcome(req.id, subject, verdict, finding, required=required,
+                                     provided=provided))
 
     def finding(self, req: Requirement, subject: str, message: str, location: Location, *,
                 system: str, zone: str | None = None, severity: str | None = None,

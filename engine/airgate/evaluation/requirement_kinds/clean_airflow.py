@@ -92,8 +92,12 @@ def evaluate(run: Any, req: Requirement, t: Target) -> None:
     total, c, parts = best
     need = req.params["per_person"]
     z.packs[run.pack.id] = _trail(run, req, c, parts, total, pz, need)
-    if pz <= 0 or total >= need * pz * (1 - TOL):
+    if pz <= 0:  # no occupants: no per-person target to compare
         run.record(req, ctx.subject, "pass", emitter)
+        return
+    if total >= need * pz * (1 - TOL):
+        run.record(req, ctx.subject, "pass", emitter, required=Amount(need, "airflow_per_person"),
+                   provided=Amount(total / pz, "airflow_per_person"))
         return
     have = total / pz
     message = (f"{req.message}: equivalent clean airflow {run.amount(total, 'airflow')} for "

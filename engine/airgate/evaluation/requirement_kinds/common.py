@@ -35,6 +35,10 @@ class Outcome:
     finding: Finding | None = None
     #: the pack of the requirement where the report lists several packs
     pack: str | None = None
+    #: what the requirement asked and what the design gives, where it compares two amounts
+    #: (a failing outcome's finding carries its own)
+    required: Amount | None = None
+    provided: Amount | None = None
 
 
 @dataclass(frozen=True)

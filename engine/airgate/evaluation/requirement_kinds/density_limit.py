@@ -16,7 +16,9 @@ def evaluate(run: Any, req: Requirement, t: Target) -> None:
     limit = req.params["max_density"]
     density = pz / az
     if density <= limit * (1 + TOL):
-        run.record(req, ctx.subject, "pass", emitter)
+        run.record(req, ctx.subject, "pass", emitter,
+                   required=Amount(limit, "density", at_most=True),
+                   provided=Amount(density, "density"))
         return
     message = (f"{req.message}: {formatting.number(pz, 'people')} people on "
                f"{run.amount(az, 'area')} is {run.amount(density, 'density')}, above "

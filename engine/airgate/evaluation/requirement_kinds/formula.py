@@ -75,7 +75,9 @@ def evaluate(run: Any, req: Requirement, t: Target) -> None:
     ok = (provided >= required * (1 - TOL) if f.compare == "at-least"
           else provided <= required * (1 + TOL))
     if ok:
-        run.record(req, subject, "pass", emitter)
+        run.record(req, subject, "pass", emitter,
+                   required=Amount(required, f.quantity, at_most=f.compare != "at-least"),
+                   provided=Amount(provided, f.quantity))
         return
     relation = "at least" if f.compare == "at-least" else "at most"
     message = (f"{req.message}: {f.provided_text} = {run.amount(provided, f.quantity)}, "
