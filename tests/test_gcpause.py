@@ -55,3 +55,26 @@ def test_reading_and_evaluating_pause_it(monkeypatch):
     assert report.systems and seen == [False] and gc.isenabled()
     check(DEMO)
     assert seen == [False, False] and gc.isenabled()
+
+
+def test_the_check_command_pauses_once_and_resumes_after_its_reports_are_freed(monkeypatch,
+                                                                              tmp_path):
+    # common practice (the standard library's gc module): the collector stays off from reading
+    # to writing, and is on again when the command returns; nothing re-enables it in between
+    from airgate.cli import main
+    from airgate.writers import output
+
+    seen = []
+    original = output.write_all
+
+    def spying(*args, **kw):
+        seen.append(gc.isenabled())
+        return original(*args, **kw)
+
+    monkeypatch.setattr(output, "write_all", spying)
+    toggles = []
+    real_enable = gc.enable
+    monkeypatch.setattr(gc, "enable", lambda: (toggles.append("on"), real_enable())[1])
+    code = main(["check", str(DEMO), "--format", f"json:{tmp_path / 'r.json'}"])
+    assert code in (0, 1) and seen == [False] and gc.isenabled()
+    assert toggles == ["on"]  # once, at the end of the command
