@@ -178,6 +178,76 @@ def test_invalid_input_is_a_value_error_naming_it(change, name):
         mz.multiple_zone_figures(**args)
 
 
+@pytest.mark.parametrize("change, name", [
+    (dict(rp=[2.5, math.inf, 5.0, 2.5, 5.0]), "rp"), (dict(pz=[10.0, 30.0, math.inf, 4, 0]), "pz"),
+    (dict(ra=[0.3, 0.3, 0.6, math.inf, 0.6]), "ra"), (dict(az=[math.inf, 60, 80, 40, 30]), "az"),
+    (dict(vpz=[500.0, 150.0, 300.0, 100.0, math.inf]), "vpz"),
+    (dict(rp=[0.0, 2.5, 5.0, 2.5, 5.0], pz=[math.inf, 30, 25, 4, 0]), "pz"),  # 0·inf is NaN
+    (dict(az=[200.0, 60, 80, math.inf, 30], ps=[0.0, 0.0], ps_stated=True), "az"),
+    (dict(pz=[10.0, 30.0, 25.0, 4.0, math.nan]), "pz"),
+    (dict(starts=[0, 5]), "starts"), (dict(starts=[0.0, 3.0]), "starts"),
+    (dict(starts=[0, 4, 3]), "starts"), (dict(starts=[]), "starts"),
+    (dict(er=[0.0, 1.5, 0.0, 0.0, 0.0]), "er"), (dict(vps=[0.0, 10.0],
+                                                     vps_stated=np.array([True, False])), "vps"),
+])
+def test_an_infinite_or_misplaced_input_is_named(change, name):
+    # common practice: one invalid-input policy (DEVELOPERS.md, "Rules of the road"); an
+    # infinite zone value is found from the sums it makes infinite or NaN, then named
+    args = dict(rp=RP, pz=PZ, ra=RA, az=AZ, ez=EZ, vpz=VPZ, starts=STARTS) | change
+    with pytest.raises(ValueError, match=f"^{name} must"):
+        mz.multiple_zone_figures(**args)
+
+
+def test_the_system_of_each_zone_and_the_shared_factors():
+    # the reference is the computation as it was before (numpy indexing by each zone's system,
+    # np.cumsum of the segment marks; Fa = Fb = Fc = 1 for single paths, Appendix A)
+    starts = [0, 1, 4, 5, 9]
+    n = 12
+    rng = np.random.default_rng(7)
+    rp, pz, ra, az = (rng.uniform(0, 10, n) for _ in range(4))
+    ez, vpz = rng.uniform(0.5, 1.2, n), rng.uniform(50, 500, n)
+    f = mz.multiple_zone_figures(rp, pz, ra, az, ez, vpz, starts)
+    marks = np.zeros(n, dtype=np.intp)
+    marks[starts[1:]] = 1
+    system = np.cumsum(marks)
+    assert f.system.tolist() == system.tolist()
+    assert f.evz.tolist() == (1.0 + f.xs[system] - f.zpz).tolist()  # the same floats
+    least = [min(f.evz[a:b]) for a, b in zip(starts, starts[1:] + [n])]
+    assert f.ev.tolist() == least
+    assert f.critical.tolist() == [a + int(np.argmin(f.evz[a:b]))
+                                   for a, b in zip(starts, starts[1:] + [n])]
+    assert (f.ev > 0).any() and (f.ev <= 0).any()  # both branches of Vot = Vou/Ev
+    assert f.vot.tolist() == np.where(f.ev > 0, f.vou / f.ev, np.inf).tolist()
+    assert f.fa.tolist() == f.fb.tolist() == f.fc.tolist() == [1.0] * n
+    assert not f.fa.flags.writeable  # shared by every zone: never written through
+
+
+def test_secondary_recirculation_without_er_draws_none_from_the_return():
+    # Appendix A with Er = 0: Fa = Ep, Fb = Ep, Fc = 1 − (1 − Ez)(1 − Ep) (factor forms from
+    # memory); er not given is Er = 0 for every zone
+    ep = [1.0, 0.6, 1.0, 0.5, 1.0]
+    f = mz.multiple_zone_figures(RP, PZ, RA, AZ, EZ, VPZ, STARTS, ep=ep)
+    zero = mz.multiple_zone_figures(RP, PZ, RA, AZ, EZ, VPZ, STARTS, ep=ep, er=[0.0] * 5)
+    for name in ("fa", "fb", "fc", "evz", "ev", "vot", "critical"):
+        assert getattr(f, name).tolist() == getattr(zero, name).tolist(), name
+    hand = _scalar(RP[:3], PZ[:3], RA[:3], AZ[:3], EZ[:3], VPZ[:3], ep=[None, 0.6, None])
+    _check_system(f, 0, 0, hand)
+    assert f.fa[1] == pytest.approx(0.6) and f.fc[1] == pytest.approx(1 - 0.2 * 0.4)
+
+
+def test_table_method_above_the_table_in_one_system_of_several():
+    # ANSI/ASHRAE 62.1-2010 Table 6-3 and its fallback (the detailed Ev, Appendix A) side by
+    # side in one call: each system as if alone
+    rows = [(0.15, 1.0), (0.25, 0.9), (0.35, 0.8), (0.45, 0.7), (0.55, 0.6)]
+    vpz = [2000.0, 700.0, 1500.0, 40.0, 60.0]
+    both = mz.multiple_zone_figures(RP + RP, PZ + PZ, RA + RA, AZ + AZ, EZ + EZ, vpz + vpz,
+                                    [0, 3, 5, 8], method="table", rows=rows)
+    one = mz.multiple_zone_figures(RP, PZ, RA, AZ, EZ, vpz, STARTS, method="table", rows=rows)
+    assert both.ev.tolist() == one.ev.tolist() * 2
+    assert both.from_zones.tolist() == [False, True] * 2
+    assert both.critical.tolist() == one.critical.tolist() + (one.critical + 5).tolist()
+
+
 def test_delivered_outdoor_air_by_zone_efficiency():
     # Appendix A's Evz ≥ Vou/Vot_design solved for Voz (derived): single path
     # Vpz·(1 + Xs − Vou/Vot_design); secondary Vpz·(Fa·(1 − Vou/Vot_design) + Xs·Fb)/(Ep·Fc).
