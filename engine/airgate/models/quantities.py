@@ -17,9 +17,28 @@ _QUANTITY_SCHEMA = {
 }
 
 
+#: distinct quantity texts whose values each field type keeps (a schedule repeats its texts:
+#: a handful of units, many equal areas and airflows)
+_TEXTS_KEPT = 4096
+
+
 def _quantity(kind: str, *, positive: bool) -> BeforeValidator:
+    # (text, unit system) → its value, for texts that were read without error
+    kept: dict[tuple[str, str], float] = {}
+
     def validate(value: Any, info: ValidationInfo) -> float:
         system = (info.context or {}).get("units", units.IP)
+        if value.__class__ is str:
+            x = kept.get((value, system))
+            if x is not None:
+                return x
+            x = _checked(value, system)
+            if len(kept) < _TEXTS_KEPT:
+                kept[(value, system)] = x
+            return x
+        return _checked(value, system)
+
+    def _checked(value: Any, system: str) -> float:
         x = units.parse(value, kind, system)  # a QuantityError carries its hint
         example = units.KINDS[kind].example
         if positive and x <= 0:

@@ -81,6 +81,8 @@ def cross_field(field: str | tuple, message: str) -> PydanticCustomError:
 
 
 def _id(value: Any) -> Any:
+    if value.__class__ is str:  # the usual case
+        return value
     if isinstance(value, bool):
         raise ValueError(f"an id must be text such as \"204\" or \"AHU-1\", got "
                          f"{str(value).lower()}; put it in quotes if that is the id")
@@ -323,6 +325,15 @@ class Zone(_Model):
 
     @model_validator(mode="after")
     def _ez_has_basis(self) -> Zone:
+        if self.ez is not None:  # without an explicit ez (most zones) neither rule can fail
+            self._ez_rules()
+        if self.er is not None and self.ep is None:
+            raise cross_field("er", "er (secondary recirculation) needs ep, the primary air "
+                                    "fraction")
+        return self
+
+    def _ez_rules(self) -> None:
+        """An explicit ez has its basis, and no air_distribution beside it, at each condition."""
         # once validated, a per-condition value is a dict (a stated distribution is a model)
         keys = sorted({k for name in ZONE_CONDITION_FIELDS
                        if isinstance(v := getattr(self, name), dict) for k in v}) or [None]
@@ -335,10 +346,6 @@ class Zone(_Model):
             if ez is not None and at_condition(self.air_distribution, key) is not None:
                 raise cross_field("ez", f"give either air_distribution or an explicit "
                                         f"ez{where}, not both")
-        if self.er is not None and self.ep is None:
-            raise cross_field("er", "er (secondary recirculation) needs ep, the primary air "
-                                    "fraction")
-        return self
 
 
 def _pack_list(items: list[str]) -> list[str]:

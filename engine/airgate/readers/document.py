@@ -231,6 +231,9 @@ class Document:
     #: finds the position of one path without all of ``positions`` (well-formed JSON text,
     #: :class:`airgate.readers.document_json._Finder`); None: ``positions`` holds them
     finder: Any = None
+    #: True when the reader saw that every number of ``data`` is finite and within the range
+    #: airgate reads (docs/limits.md), so the schedule reader need not look; None: not known
+    in_range: bool | None = None
 
     def locate(self, path: Path_) -> tuple[int | None, int | None]:
         """Line and column of ``path``, or of its nearest ancestor that has one."""
@@ -454,7 +457,8 @@ def parse_yaml(text: str, file: str, error_cls: type[AirgateError]) -> Document:
     if len(_LOADERS) > 1 and "\t" not in text:  # libyaml takes tabs PyYAML refuses
         read = _read_events(text)
         if read is not None:
-            return Document(file, *read)
+            data, positions, texts, in_range = read
+            return Document(file, data, positions, texts, in_range=in_range)
         budget = current_budget()
         spent = (budget.values, budget.bytes) if budget is not None else None
         try:
@@ -468,8 +472,9 @@ def parse_yaml(text: str, file: str, error_cls: type[AirgateError]) -> Document:
         raise seen.error from None
 
 
-def _read_events(text: str) -> tuple[Any, dict, dict] | None:
-    """Data, positions and texts read straight from libyaml's events
+def _read_events(text: str) -> tuple[Any, dict, dict, bool] | None:
+    """Data, positions, texts and whether every number is in range, read straight from
+    libyaml's events
     (:mod:`airgate.readers.document_yaml`), or None where the composer must read the text."""
     parser = _CParser(text)
     try:

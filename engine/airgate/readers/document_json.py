@@ -15,7 +15,7 @@ import json
 import math
 import re
 from bisect import bisect_right
-from itertools import accumulate
+from itertools import accumulate, chain, compress
 from json.decoder import scanstring
 from typing import Any
 
@@ -23,6 +23,7 @@ from airgate.errors import AirgateError, Path_
 from airgate.readers import limits as L  # the limits (docs/limits.md), read when used
 from airgate.readers.document import MAX_DIGITS, Document, Lazy, parse_yaml, path_at_error
 from airgate.readers.limits import limit_error
+from airgate.units import MAX_MAGNITUDE, MIN_MAGNITUDE
 
 
 class _Duplicated(dict):
@@ -88,6 +89,12 @@ _JSON_TOKEN = re.compile(r'"(?:[^"\\]|\\.)*"|[{}\[\]:,]|[^\s{}\[\]:,"]+')
 #: characters YAML counts as line breaks or skips in a column besides "\n" (the scan below
 #: counts lines by "\n" alone, so text holding one of these is composed as YAML instead)
 _OTHER_BREAKS = re.compile("[\r\x85\u2028\u2029\ufeff]")
+
+
+def _other_breaks(text: str) -> bool:
+    """Whether ``text`` holds one of :data:`_OTHER_BREAKS` (in ASCII text only "\\r" can be:
+    a search in C for one character)."""
+    return "\r" in text if text.isascii() else _OTHER_BREAKS.search(text) is not None
 
 
 def _scan_json_positions(text: str) -> tuple[dict[Path_, tuple[int, int]], dict[Path_, str]]:
@@ -226,20 +233,23 @@ def _same_problem(problem: tuple[str, Path_, str] | None, exc: AirgateError) -> 
     return problem[0] in ("nodes", "depth") and "limit stops it" in exc.message
 
 
+_CONTAINERS = frozenset({dict, list})
+
+
 def _extent(data: Any) -> tuple[int, int]:
     """(values, deepest path length) of parsed JSON, counted as :func:`_walk_json` counts them
-    but without building a path per value (a problem found is located by that walk)."""
+    but without building a path per value (a problem found is located by that walk): level by
+    level, each level's values chained and its containers picked out in C."""
     values, deepest = 1, 0
-    todo: list[tuple[Any, int]] = [(data, 0)]
-    containers = (dict, list)
-    while todo:
-        node, depth = todo.pop()
-        items = node.values() if type(node) is dict else node
-        if items:
-            values += len(items)
-            depth += 1
-            deepest = max(deepest, depth)
-            todo.extend((v, depth) for v in items if type(v) in containers)
+    level = [data] if data.__class__ in _CONTAINERS else []
+    while level:
+        items = list(chain.from_iterable(
+            [node.values() if node.__class__ is dict else node for node in level]))
+        if not items:
+            break
+        values += len(items)
+        deepest += 1
+        level = list(compress(items, map(_CONTAINERS.__contains__, map(type, items))))
     return values, deepest
 
 
@@ -247,7 +257,7 @@ def _json_index(text: str, file: str,
                 error_cls: type[AirgateError]) -> tuple[dict[Path_, tuple[int, int]], dict[Path_, str]]:
     """The positions and number texts of well-formed JSON text with no problem to report."""
     try:
-        if not _OTHER_BREAKS.search(text):
+        if not _other_breaks(text):
             return _scan_json_positions(text)
         composed = _json_positions(text, file, error_cls)
         return composed.positions, composed.texts
@@ -274,9 +284,28 @@ def parse_json(text: str, file: str, error_cls: type[AirgateError]) -> Document:
         flagged.append("constant")
         return _Constant(name)
 
+    # whether every number is within the range airgate reads (docs/limits.md), seen as each
+    # is read: the schedule reader then need not walk the data for them
+    wide: list[bool] = []
+    low, high = MIN_MAGNITUDE, MAX_MAGNITUDE
+
+    def integer(text: str) -> int | float:
+        if len(text) <= 15:  # at most 15 digits: within the range, and no longer than MAX_DIGITS
+            return int(text)
+        value = _json_int(text)
+        if abs(value) > high:
+            wide.append(True)
+        return value
+
+    def real(text: str) -> float:
+        value = float(text)
+        if value != 0 and not low <= abs(value) <= high:  # infinite too
+            wide.append(True)
+        return value
+
     try:
         data = json.loads(text, object_pairs_hook=pairs, parse_constant=constant,
-                          parse_int=_json_int)
+                          parse_int=integer, parse_float=real)
     except json.JSONDecodeError as exc:
         raise _json_decode_error(exc, text, file, error_cls) from None
     except RecursionError:
@@ -293,10 +322,11 @@ def parse_json(text: str, file: str, error_cls: type[AirgateError]) -> Document:
 
             return Document(file=file, data=data, positions=Lazy(lambda: found(0)),
                             texts=Lazy(lambda: found(1)),
-                            finder=None if _OTHER_BREAKS.search(text) else _Finder(text))
+                            finder=None if _other_breaks(text) else _Finder(text),
+                            in_range=not wide)
     problem = _walk_json(data)
     try:
-        if problem is None and not _OTHER_BREAKS.search(text):
+        if problem is None and not _other_breaks(text):
             positions, texts = _scan_json_positions(text)
         else:
             composed = _json_positions(text, file, error_cls)

@@ -23,6 +23,7 @@ from yaml import (DocumentEndEvent, DocumentStartEvent, MappingEndEvent,
                   StreamEndEvent, StreamStartEvent)
 
 from airgate.readers import limits as L  # the limits (docs/limits.md), read when used
+from airgate.units import MAX_MAGNITUDE, MIN_MAGNITUDE
 
 #: Nesting the composer follows before Python's recursion limit could stop it first (about
 #: three frames a level under the default limit of 1,000); deeper documents give way to it,
@@ -94,16 +95,18 @@ def _plain(value: str, resolvers: dict, max_digits: int) -> Any:
 
 
 def read_events(parser: Any, resolvers: dict, max_digits: int
-                ) -> tuple[Any, dict, dict] | None:
+                ) -> tuple[Any, dict, dict, bool] | None:
     """Data, positions and number texts of the one document ``parser`` (a libyaml
-    ``CParser``) reads, or ``None`` when the composer must read it (see the module)."""
+    ``CParser``) reads, and whether every number of it is finite and within the range
+    airgate reads (each distinct text looked at once, as it is resolved); or ``None`` when the
+    composer must read it (see the module)."""
     try:
         return _build(parser.get_event, resolvers, max_digits)
     except (_GiveWay, yaml.YAMLError):
         return None
 
 
-def _build(get: Any, resolvers: dict, max_digits: int) -> tuple[Any, dict, dict]:
+def _build(get: Any, resolvers: dict, max_digits: int) -> tuple[Any, dict, dict, bool]:
     if get().__class__ is not StreamStartEvent or get().__class__ is not DocumentStartEvent:
         raise _GiveWay  # an empty stream, or a directive the parser reports
     max_nodes = L.MAX_NODES
@@ -111,6 +114,8 @@ def _build(get: Any, resolvers: dict, max_digits: int) -> tuple[Any, dict, dict]
     positions: dict = {}
     texts: dict = {}
     plain: dict = {}  # plain text → its value, for the first _PLAIN_KEPT texts
+    in_range = True
+    low, high = MIN_MAGNITUDE, MAX_MAGNITUDE
     stack: list = []
     # the open collection: its value, path, whether a mapping, the key read (None: expecting
     # a key) or the last index of a sequence
@@ -145,6 +150,9 @@ def _build(get: Any, resolvers: dict, max_digits: int) -> tuple[Any, dict, dict]
                 value = plain.get(text, plain)
                 if value is plain:  # a repeated text (space types, units) resolved once
                     value = _plain(text, resolvers, max_digits)
+                    if (value.__class__ is int or value.__class__ is float) and value != 0 \
+                            and not low <= abs(value) <= high:  # NaN too
+                        in_range = False
                     if len(plain) < _PLAIN_KEPT:
                         plain[text] = value
                 if value is not None and value.__class__ is not str:
@@ -184,4 +192,4 @@ def _build(get: Any, resolvers: dict, max_digits: int) -> tuple[Any, dict, dict]
             raise _GiveWay
     if stack or len(box) != 1 or get().__class__ is not StreamEndEvent:
         raise _GiveWay  # more than one document: the composer's message
-    return box[0], positions, texts
+    return box[0], positions, texts, in_range

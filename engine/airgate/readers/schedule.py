@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import math
 import re
+from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
@@ -139,7 +140,7 @@ def _all_in_range(data: Any) -> bool:
 def _out_of_range(doc: Document) -> list[AirgateError]:
     """Numbers outside the range airgate reads (docs/limits.md), each at its position; a whole
     number too long to read arrives here as infinity and is described by its digits."""
-    if _all_in_range(doc.data):
+    if doc.in_range or _all_in_range(doc.data):  # the reader may have seen it as it read
         return []
     errors: list[AirgateError] = []
     todo: list[tuple[Any, Path_]] = [(doc.data, ())]
@@ -281,6 +282,86 @@ def _items(value: Any) -> list[Any]:
     return value if isinstance(value, list) else []
 
 
+#: the fields of a system and of a zone that may be given per design condition
+_SYSTEM_CONDITIONS = frozenset(SYSTEM_CONDITION_FIELDS)
+_ZONE_CONDITIONS = frozenset(ZONE_CONDITION_FIELDS)
+#: values :func:`_as_written` leaves as they are in a text field (a list is looked into)
+_LEFT = frozenset({str, type(None), bool, dict})
+#: values of a condition field that no validation makes a per-condition mapping
+_NOT_MAPPINGS = frozenset({str, int, float, bool, type(None), list})
+
+
+@dataclass
+class _Survey:
+    """What one pass over a schedule's systems and zones (before validation) tells the checks
+    that follow; each flag is True where a check may find something, and that check then runs
+    in full, so only the usual case (nothing to find) is decided here."""
+
+    #: a text field holds a number (or the data has an unusual shape): :func:`_as_written`
+    written: bool = True
+    #: an id is not text, or one is given twice: :func:`_duplicate_ids`
+    duplicates: bool = True
+    #: a field may be given as a mapping per condition: :func:`_condition_errors`
+    by_condition: bool = True
+
+
+def _numbers_in(value: Any) -> bool:
+    """Whether :func:`_as_written` may change this value of a text field."""
+    kind = value.__class__
+    if kind in _LEFT:
+        return False
+    return kind is not list or any(item.__class__ not in _LEFT for item in value)
+
+
+def _survey(data: dict) -> _Survey:
+    """One pass over the systems and zones of a schedule document (see :class:`_Survey`)."""
+    unusual = _Survey()
+    project, systems = data.get("project"), data.get("systems")
+    if project.__class__ is not dict or systems.__class__ is not list or "zones" in data \
+            or "project" in project:
+        return unusual  # a shape :func:`_as_written` walks otherwise
+    if any(_numbers_in(data[key]) for key in _TEXT_FIELDS[Schedule] & data.keys()) or \
+            any(_numbers_in(project[key]) for key in _TEXT_FIELDS[Project] & project.keys()):
+        return unusual
+    system_text, zone_text = _TEXT_FIELDS[System], _TEXT_FIELDS[Zone]
+    written = by_condition = False
+    system_ids: set[str] = set()
+    zone_ids: set[str] = set()
+    count = 0
+    for system in systems:
+        if system.__class__ is not dict or "project" in system or "systems" in system:
+            return unusual
+        for key, value in system.items():
+            kind = value.__class__
+            if kind is str:
+                continue
+            if key in system_text:
+                written = written or _numbers_in(value)
+            elif key in _SYSTEM_CONDITIONS and kind not in _NOT_MAPPINGS:
+                by_condition = True
+        zones = system.get("zones")
+        if system.get("id").__class__ is not str or zones.__class__ is not list:
+            return unusual
+        system_ids.add(system["id"])
+        for zone in zones:
+            if zone.__class__ is not dict or "project" in zone:
+                return unusual
+            for key, value in zone.items():
+                kind = value.__class__
+                if kind is str:
+                    continue
+                if key in zone_text:
+                    written = written or _numbers_in(value)
+                if key in _ZONE_CONDITIONS and kind not in _NOT_MAPPINGS:
+                    by_condition = True
+            if zone.get("id").__class__ is not str:
+                return unusual
+            zone_ids.add(zone["id"])
+        count += len(zones)
+    return _Survey(written=written, by_condition=by_condition,
+                   duplicates=len(system_ids) != len(systems) or len(zone_ids) != count)
+
+
 def _duplicate_ids(doc: Document) -> list[AirgateError]:
     errors: list[AirgateError] = []
     systems: dict[str, Path_] = {}
@@ -346,9 +427,12 @@ def validate(doc: Document) -> Schedule:
         raise doc.error(ScheduleError, "missing 'schedule: 1' (the format version)",
                         ("schedule",), hint="add 'schedule: 1' as the first line")
     system = _units(doc)
-    _as_written(doc, data, (), Schedule)
+    survey = _survey(data)
+    if survey.written:
+        _as_written(doc, data, (), Schedule)
+        survey = _Survey()  # numbers made text: every check looks in full
     raise_all(_out_of_range(doc))
-    errors = _duplicate_ids(doc)
+    errors = _duplicate_ids(doc) if survey.duplicates else []
     try:
         model = Schedule.model_validate(data, context={"units": system})
     except ValidationError as exc:
@@ -357,7 +441,7 @@ def validate(doc: Document) -> Schedule:
                  if not (e.field == ("systems",) and "duplicate" in e.message)]
         raise_all(found + errors)
         raise doc.error(ScheduleError, f"the schedule is not valid: {exc}", ()) from None
-    raise_all(errors + _condition_errors(model, doc))
+    raise_all(errors + (_condition_errors(model, doc) if survey.by_condition else []))
     return model
 
 
