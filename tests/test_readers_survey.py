@@ -5,7 +5,8 @@ to the plain computation it replaces). ``readers.schedule._survey`` lets the rea
 a check in the usual case where it finds nothing (numbers in text fields, repeated ids, values
 per condition); the JSON and YAML readers say whether every number is within the range
 airgate reads, seen as each number is read, so the schedule reader need not walk the data for
-them; quantity fields keep the values of the texts they have read. Every test reads the same
+them; quantity fields keep the values of the texts they have read, and an id or a count that
+is plain text or a plain number passes at once. Every test reads the same
 documents both ways (every check forced to run in full, and the shortcuts) and asks for the
 same model, or the same messages at the same lines and columns. Documents are damaged copies
 of bench/synthetic.py portfolios and of the demo (invented data).
@@ -34,9 +35,11 @@ from airgate.readers import document, document_json  # noqa: E402
 from airgate.readers import schedule as reader  # noqa: E402
 
 #: values put where a schedule has others: numbers in text fields, mappings per condition,
-#: numbers at and beyond the limits of the range read (docs/limits.md), wrong types
+#: numbers at and beyond the limits of the range read (docs/limits.md), ids and counts at the
+#: edges of what passes at once (length, space around, '/', whole numbers beyond 2**53)
 VALUES = [0, 1, -1, 101, 1.5, 3.0, 1e15, 1e-15, 1e16, -1e16, 1e-16, 1e300, True, False, None,
-          "", " ", "a/b", " x", "0101", "x" * 201, {"c1": 5}, {"cool": "10 ft"},
+          -0.0, 2**53 + 1, 2**60, "", " ", "a/b", " a/b ", " x", "0101", "x" * 201, "y" * 200,
+          "\x1cid", "id\u00a0", "\u2028", {"c1": 5}, {"cool": "10 ft"},
           {"supply": "ceiling"}, {"cool": 3, "heat": 4}, [1, 2], ["x"], [], {}, "12 ft",
           "-5 cfm", "0 ft2", "5 CFM", "5 people", "abc", 12345678901234567890123]
 ZONE_KEYS = ["id", "name", "space", "area", "occupants", "height", "air_distribution", "ez",
@@ -199,3 +202,55 @@ def test_a_quantity_text_read_again_gives_the_value_read_first():
             with pytest.raises(ValidationError, match="unknown unit"):
                 area.validate_python("3 blorps", context={"units": system})
     assert area.validate_python("10 ft2", context=None) == units.parse("10 ft2", "area", "IP")
+
+
+#: every character Python or the validator's regular expressions may take for a space
+SPACES = [chr(c) for c in range(0x3001) if chr(c).isspace()] + ["\u180e", "\u200b", "\ufeff"]
+
+
+def test_an_id_or_a_count_passing_at_once_is_what_the_full_validation_gives():
+    """``Id`` and ``People`` pass a plain value at once; the reference is each type without
+    that shortcut (its definition before), given the same values: the same result, or the
+    same errors (type, message, location, input)."""
+    from typing import Annotated
+
+    from pydantic import BeforeValidator, Field, ValidationError
+
+    from airgate.models import schedule as models
+
+    reference_id = Annotated[str, BeforeValidator(models._id),
+                             Field(min_length=1, max_length=200, pattern=models._ID_PATTERN)]
+    reference_people = Annotated[float, BeforeValidator(models._finite_count),
+                                 Field(ge=0, allow_inf_nan=False)]
+
+    class Reference(models._Model):
+        id: reference_id | None = None
+        people: reference_people | None = None
+
+    class Shortcut(models._Model):
+        id: models.Id | None = None
+        people: models.People | None = None
+
+    ids = ["", "a", "x" * 200, "x" * 201, "a/b", "/a", "AHU-1", "0101", 204, 2.5, True, None,
+           "é" * 200, "é" * 201, ["a"], {"a": 1}]
+    ids += [f"{s}a" for s in SPACES] + [f"a{s}" for s in SPACES] + [f"a{s}b" for s in SPACES]
+    ids += [s for s in SPACES] + [f"{s}a/b" for s in SPACES]
+    counts = [0, 5, -1, 2**53, 2**53 + 1, 2**64, 10**400, 0.0, -0.0, 1.5, -1.5, 1e308,
+              float("inf"), float("-inf"), float("nan"), "5", "5 people", "-2", True, None, [1]]
+
+    def outcome(model, **values):
+        try:
+            return ("read", model(**values).model_dump())
+        except ValidationError as exc:
+            return ("refused", exc.errors(include_url=False))
+
+    compared = 0
+    for value in ids:
+        got, want = outcome(Shortcut, id=value), outcome(Reference, id=value)
+        assert repr(got) == repr(want), repr(value)  # repr: an error's exception is not equal
+        compared += 1
+    for value in counts:
+        got, want = outcome(Shortcut, people=value), outcome(Reference, people=value)
+        assert repr(got) == repr(want), repr(value)  # repr: NaN is not equal to itself
+        compared += 1
+    assert compared == len(ids) + len(counts)

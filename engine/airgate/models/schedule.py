@@ -8,6 +8,7 @@ The JSON Schema published by ``airgate schema schedule`` is generated from these
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import Annotated, Any, Literal
 
@@ -18,7 +19,9 @@ from pydantic import (
     Discriminator,
     Field,
     Tag,
+    ValidatorFunctionWrapHandler,
     WithJsonSchema,
+    WrapValidator,
     field_validator,
     model_validator,
 )
@@ -65,12 +68,22 @@ PerPersonGeneration = Annotated[
 ]
 
 
+def _plain_count(value: Any, handler: ValidatorFunctionWrapHandler) -> Any:
+    """A count that is a plain number of people, taken as the full validation would take it
+    (a whole number exactly as a float); any other value goes through that validation."""
+    kind = value.__class__
+    if kind is int and 0 <= value <= 2**53 or kind is float and 0 <= value < math.inf:
+        return float(value)
+    return handler(value)
+
+
 People = Annotated[
     float,
     BeforeValidator(_finite_count),
     Field(ge=0, allow_inf_nan=False, description="Number of people. [people]"),
     WithJsonSchema({"anyOf": [{"type": "number", "minimum": 0}, {"type": "string"}],
                     "description": "Number of people. [people]"}),
+    WrapValidator(_plain_count),
 ]
 
 
@@ -94,6 +107,17 @@ def _id(value: Any) -> Any:
 _ID_PATTERN = r"^[^\s/][^/]*$"
 _ID_TEXT = "Identifier: text without '/' and not starting with a space. [–]"
 
+
+
+def _plain_id(value: Any, handler: ValidatorFunctionWrapHandler) -> Any:
+    """An id that is plain text (no space around it, no '/', 1 to 200 characters), taken as
+    the full validation would take it; any other value goes through that validation."""
+    if value.__class__ is str and 0 < len(value) <= 200 and "/" not in value \
+            and not value[0].isspace() and not value[-1].isspace():
+        return value
+    return handler(value)
+
+
 Id = Annotated[
     str,
     BeforeValidator(_id),
@@ -103,6 +127,7 @@ Id = Annotated[
         {"type": "number", "description": "a bare number is read as text (quote ids to keep "
                                           "leading zeros in JSON)"}],
         "description": _ID_TEXT}),
+    WrapValidator(_plain_id),
 ]
 
 

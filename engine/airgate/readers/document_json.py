@@ -2,11 +2,11 @@
 
 A well-formed document within the limits is decoded by :func:`json.loads` alone (duplicate keys
 and ``NaN`` flagged by its hooks, values and depth counted without a path per value); the
-position of a path is found when a finding, an error or a report first asks for it, reading
-only the containers on that path (:class:`_Finder`), and its number texts from one scan of its
-tokens (or a YAML composition of the same text) the first time one is asked for. A document
-with a problem is walked value by value so that the problem is reported at its line and column,
-as the YAML reader reports it.
+position of a path is found when a finding, an error or a report first asks for it, from an
+index of the text's punctuation made then (:class:`_Finder`), and its number texts from one
+scan of its tokens (or a YAML composition of the same text) the first time one is asked for.
+A document with a problem is walked value by value so that the problem is reported at its line
+and column, as the YAML reader reports it.
 """
 
 from __future__ import annotations
@@ -14,8 +14,7 @@ from __future__ import annotations
 import json
 import math
 import re
-from bisect import bisect_right
-from itertools import accumulate, chain, compress
+from itertools import chain, compress
 from json.decoder import scanstring
 from typing import Any
 
@@ -148,65 +147,154 @@ def _scan_json_positions(text: str) -> tuple[dict[Path_, tuple[int, int]], dict[
 
 #: JSON whitespace
 _WS = re.compile(r"[ \t\n\r]*")
-#: steps over one JSON value in C (the standard library's scanner), making as little as it can
-_SKIP = json.JSONDecoder(object_pairs_hook=len, parse_int=len, parse_float=len,
-                         parse_constant=len).scan_once
+#: a mapping's key as written (group 1, between its quotes) up to where its value begins
+_KEY = re.compile(r'[ \t\n\r]*"((?:[^"\\]|\\.)*)"[ \t\n\r]*:[ \t\n\r]*')
+
+
+#: characters of the text looked at in one piece while it is indexed (bounds the memory used)
+_PIECE = 1 << 22
+
+
+def _marks(text: str) -> tuple[Any, Any, Any, Any, Any]:
+    """Offsets (in characters, ascending) of the quotes, backslashes, brackets and commas and
+    line breaks of ``text``: (quotes, backslashes, punctuation, its characters, line breaks)."""
+    import numpy as np  # used by the evaluation anyway; imported when a position is first asked
+
+    found: list[list] = [[], [], [], [], []]
+    for begin in range(0, len(text), _PIECE):
+        piece = text[begin: begin + _PIECE]
+        if piece.isascii():
+            codes = np.frombuffer(piece.encode("ascii"), np.uint8)
+            follow = None
+        else:  # offsets in UTF-8 bytes, less the continuation bytes before each
+            codes = np.frombuffer(piece.encode("utf-8", "surrogatepass"), np.uint8)
+            follow = np.flatnonzero((codes & 0xC0) == 0x80)
+        punct = np.flatnonzero((codes == 0x2C) | (codes == 0x5B) | (codes == 0x5D)
+                               | (codes == 0x7B) | (codes == 0x7D))
+        for n, offsets in enumerate((np.flatnonzero(codes == 0x22),
+                                     np.flatnonzero(codes == 0x5C), punct,
+                                     None, np.flatnonzero(codes == 0x0A))):
+            if offsets is None:
+                found[n].append(codes[punct])
+                continue
+            if follow is not None and len(follow):
+                offsets = offsets - np.searchsorted(follow, offsets)
+            found[n].append(offsets + begin)
+    empty = np.zeros(0, np.int64)
+    return tuple(np.concatenate(part) if part else empty  # type: ignore[return-value]
+                 for part in found)
+
+
+class _Index:
+    """The punctuation of well-formed JSON text outside its strings, for :class:`_Finder`:
+    per nesting level, where its commas and closing brackets are (a container whose content
+    is at level ``d`` ends at the first closing bracket of level ``d`` after it, and its
+    members are separated by the commas of level ``d`` between), and where each line break
+    is. Found over the whole text at once with numpy."""
+
+    def __init__(self, text: str) -> None:
+        import numpy as np
+
+        quotes, backslashes, punct, chars, self.breaks = _marks(text)
+        if len(backslashes) and len(quotes):  # a quote after an odd run of backslashes is text
+            first = np.ones(len(backslashes), bool)
+            first[1:] = backslashes[1:] != backslashes[:-1] + 1
+            run_start = np.maximum.accumulate(np.where(first, backslashes, -1))
+            before = np.searchsorted(backslashes, quotes) - 1
+            ends = (before >= 0) & (backslashes[np.maximum(before, 0)] == quotes - 1)
+            escaped = ends & ((quotes - run_start[np.maximum(before, 0)]) % 2 == 1)
+            quotes = quotes[~escaped]
+        outside = np.searchsorted(quotes, punct) % 2 == 0  # an even count of quotes before
+        punct, chars = punct[outside], chars[outside]
+        opens = (chars == 0x5B) | (chars == 0x7B)
+        closes = (chars == 0x5D) | (chars == 0x7D)
+        level = np.cumsum(opens.astype(np.int64) - closes)  # the level after each mark
+        level[closes] += 1  # a closing bracket belongs to the level it closes
+        self.commas = self._by_level(punct[chars == 0x2C], level[chars == 0x2C])
+        self.closes = self._by_level(punct[closes], level[closes])
+
+    @staticmethod
+    def _by_level(offsets: Any, level: Any) -> dict[int, Any]:
+        import numpy as np
+
+        order = np.argsort(level, kind="stable")
+        offsets, level = offsets[order], level[order]
+        bounds = np.flatnonzero(np.diff(level)) + 1
+        return {int(group[0]): part for group, part in
+                zip(np.split(level, bounds), np.split(offsets, bounds)) if len(group)}
+
+    def separators(self, start: int, level: int) -> list[int]:
+        """The offsets after which each member of the container at ``start`` (content at
+        ``level``) begins: its opening bracket, then each comma of its level."""
+        closes = self.closes[level]
+        end = closes[closes.searchsorted(start)]
+        commas = self.commas.get(level)
+        if commas is None:
+            return [start]
+        return [start, *commas[commas.searchsorted(start): commas.searchsorted(end)].tolist()]
+
+    def line_column(self, offset: int) -> tuple[int, int]:
+        line = int(self.breaks.searchsorted(offset))  # the line breaks before the offset
+        return (line + 1, offset - (int(self.breaks[line - 1]) + 1 if line else 0) + 1)
 
 
 class _Finder:
     """Where the values of well-formed JSON text (with "\n" as its only line break) begin,
     found path by path: the positions :func:`_scan_json_positions` gives, without scanning the
-    whole text. Each container on a path asked for is read once for where its members begin
-    (the standard library's C scanner steps over each member); a line and column are worked
-    out from the offset (1-based, in characters)."""
+    whole text in Python. The first position asked for indexes the text's punctuation
+    (:class:`_Index`); each container on a path is then read for where its members begin
+    from the commas of its level (the keys of a mapping read once); a line and column are
+    worked out from the offset (1-based, in characters)."""
 
     def __init__(self, text: str) -> None:
         self.text = text
         self.root = _WS.match(text).end()
-        self.members: dict[Path_, dict[Any, int]] = {}
-        self.lines: list[int] | None = None  # where each line begins, made when first needed
+        self.index: _Index | None = None  # made when a position is first asked for
+        #: offset of a container → its members' offsets (a list's) or key → offset (a mapping's)
+        self.members: dict[int, Any] = {}
 
-    def _members(self, start: int) -> dict[Any, int]:
-        """Key (or index) → offset of each member of the container that begins at ``start``."""
-        text, ws = self.text, _WS.match
+    def _members(self, start: int, level: int) -> Any:
+        """The members of the container that begins at ``start``: for a list, the offsets
+        after which each begins (whitespace before it); for a mapping, key → offset."""
+        text = self.text
+        if text[_WS.match(text, start + 1).end()] in "}]":
+            return {} if text[start] == "{" else []
+        after = self.index.separators(start, level)
+        if text[start] == "[":
+            return after
         out: dict[Any, int] = {}
-        mapping = text[start] == "{"
-        i = ws(text, start + 1).end()
-        if text[i] in "}]":
-            return out
-        n = 0
-        while True:
-            if mapping:
-                key, i = scanstring(text, i + 1)
-                i = ws(text, ws(text, i).end() + 1).end()  # past the colon
-            else:
-                key, n = n, n + 1
-            out[key] = i
-            i = ws(text, _SKIP(text, i)[1]).end()
-            if text[i] != ",":
-                return out
-            i = ws(text, i + 1).end()
+        for at in after:
+            m = _KEY.match(text, at + 1)
+            key = m[1]
+            out[key if "\\" not in key else scanstring(text, m.start(1))[0]] = m.end()
+        return out
 
     def locate(self, path: Path_) -> tuple[int, int]:
         """Line and column of ``path``, or of its nearest ancestor that has one."""
-        at, prefix = self.root, ()
+        if self.index is None:
+            self.index = _Index(self.text)
+        at, level = self.root, 0
         for part in path:
-            members = self.members.get(prefix)
+            members = self.members.get(at)
             if members is None:
                 if self.text[at] not in "{[":
                     break
-                members = self.members[prefix] = self._members(at)
-            if part not in members:
+                members = self.members[at] = self._members(at, level + 1)
+            if members.__class__ is list:
+                if part.__class__ is not int:  # an index given otherwise (True, 1.0), or a key
+                    indexes = dict.fromkeys(range(len(members)))
+                    if part not in indexes:
+                        break
+                    part = next(i for i in indexes if i == part)
+                if not 0 <= part < len(members):
+                    break
+                at = _WS.match(self.text, members[part] + 1).end()
+            elif part in members:
+                at = members[part]
+            else:
                 break
-            at, prefix = members[part], prefix + (part,)
-        return self._line_column(at)
-
-    def _line_column(self, offset: int) -> tuple[int, int]:
-        if self.lines is None:
-            self.lines = list(accumulate(map((1).__add__, map(len, self.text.split("\n"))),
-                                         initial=0))
-        line = bisect_right(self.lines, offset) - 1
-        return (line + 1, offset - self.lines[line] + 1)
+            level += 1
+        return self.index.line_column(at)
 
 
 def _json_decode_error(exc: json.JSONDecodeError, text: str, file: str,
