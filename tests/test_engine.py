@@ -274,3 +274,94 @@ def test_fields_a_system_kind_ignores_are_noted(evaluate):
                             "population": 3, "zones": [z]}]))
     assert any("systems[0].population" in n and "ignored" in n for n in r.notes)
     assert any("systems[0].zones[0].primary_airflow" in n for n in r.notes)
+
+
+def _bound(tmp_path, data):
+    import airgate
+    from airgate.evaluation import engine
+    from airgate.evaluation.requirements import Run
+    from airgate.readers import datatables
+
+    path = tmp_path / "bound.yaml"
+    path.write_text(yaml.safe_dump(data, sort_keys=False), encoding="utf-8")
+    loaded = airgate.load_schedule(path)
+    pack = airgate.load_pack(loaded.model.rules)
+    return loaded, pack, engine._bind_all(loaded, pack, datatables.BUILTIN, Run(pack, loaded))
+
+
+def test_bound_zones_name_where_each_stated_field_is_written(tmp_path):
+    # common practice (a finding names the line of the value it is about); the reference is
+    # the rule as the binding wrote it before: a field stated per condition is located at that
+    # condition's value, any other at the field, an exhaust's airflow and fixtures at theirs
+    from airgate.evaluation import conditions
+    from airgate.evaluation.findings import Location
+
+    zones = [zone("1", "office-space", "1000 ft2", occupants={"cooling": 5, "heating": 9},
+                  primary_airflow="500 cfm"),
+             zone("2", "conference-meeting", "400 ft2", occupants=20, primary_airflow="600 cfm",
+                  exhaust={"category": "toilets-public", "airflow": "200 cfm", "fixtures": 4}),
+             zone("3", "office-space", "800 ft2", primary_airflow="300 cfm",
+                  exhaust={"category": "kitchenettes", "airflow": "40 cfm"})]
+    data = schedule([{"id": "AHU", "kind": "multiple-zone", "conditions": ["cooling", "heating"],
+                      "outdoor_air": "400 cfm", "zones": zones}])
+    loaded, pack, bound = _bound(tmp_path, data)
+    at = lambda path: Location.deferred(loaded, path, loaded.file)  # noqa: E731
+    assert list(bound[0]) == ["cooling", "heating"]
+    seen = 0
+    for cond, ctxs in bound[0].items():
+        assert [c.path for c in ctxs] == [("systems", 0, "zones", j) for j in range(3)]
+        for c, stated in zip(ctxs, zones):
+            want = {name: at(conditions.keyed(c.path + (name,), cond))
+                    for name in ("area", "occupants") if name in stated}
+            want.update({f"exhaust.{name}": at(c.path + ("exhaust", name))
+                         for name in ("airflow", "fixtures") if name in stated.get("exhaust", {})})
+            assert c.fields == want
+            assert c.location == at(c.path) and c.subject == f"AHU/{stated['id']}"
+            assert (c.system_id, c.mechanical) == ("AHU", True)
+            seen += len(want)
+    assert seen == 2 * 8  # area 3, occupants 2, exhaust airflow 2 and fixtures 1, twice
+    # the per-condition occupants are located at their own lines
+    first = bound[0]
+    assert first["cooling"][0].fields["occupants"] != first["heating"][0].fields["occupants"]
+
+
+def test_an_unknown_space_is_an_error_at_its_zone_among_others(tmp_path):
+    # common practice: every input error of a run reported at once, each located
+    import airgate
+    from airgate.errors import AirgateError
+
+    zones = [zone("1", "office-space", "1000 ft2"), zone("2", "ofice-space", "100 ft2"),
+             zone("3", "office-space", "500 ft2", air_distribution="no-such-row")]
+    data = schedule([{"id": "S", "kind": "multiple-zone", "outdoor_air": "400 cfm",
+                      "ventilation_efficiency": "simplified", "zones": zones}])
+    with pytest.raises(AirgateError) as err:
+        _bound(tmp_path, data)
+    text = str(err.value)
+    assert "ofice-space" in text and "no-such-row" in text
+
+
+def test_zone_steps_as_the_population_and_ez_rules_record_them(tmp_path):
+    # the reference is the code as it was before: a stated Pz is the step _population records
+    # (Trail.add); zones stating the same explicit Ez share one step with its value and basis
+    from airgate.evaluation import zones as zones_mod
+    from airgate.evaluation.checks import Emitter
+    from airgate.evaluation.trail import Trail
+
+    z = [{"id": str(k), "space": "office-space", "area": "500 ft2", "occupants": k,
+          "ez": 0.9, "ez_basis": "invented test basis"} for k in (3, 4)]
+    data = schedule([{"id": "S", "kind": "multiple-zone", "outdoor_air": "400 cfm",
+                      "ventilation_efficiency": "simplified", "zones": z}])
+    loaded, pack, bound = _bound(tmp_path, data)
+    ctxs = bound[0][None]
+    emitter = Emitter(pack, "IP", None)
+    got = zones_mod.evaluate_zones(ctxs, pack, emitter)
+    for ctx, result in zip(ctxs, got):
+        ref = Trail()
+        ref.add("Az", float(ctx.zone.area), "area", source=ctx.where("area"), origin="schedule")
+        zones_mod._population(ref, ctx, pack, emitter)
+        assert result.trail.steps["Pz"] == ref.steps["Pz"]
+        assert type(result.trail.steps["Pz"]) is type(ref.steps["Pz"])
+        assert result.trail.steps["Az"] == ref.steps["Az"]
+    ez = [r.trail.steps["Ez"] for r in got]
+    assert ez[0] is ez[1] and ez[0].value == 0.9 and "invented test basis" in ez[0].note
+    assert ctxs[0].ez is not ctxs[1].ez  # two explicit statements, one step

@@ -74,35 +74,36 @@ def _appendix_a(zones, st: Trail, pack: RulePack, f) -> None:
     :func:`airgate.procedures.multizone.delivered_by_zone_ev` over the zones ``zones`` (indices
     into the system's zones, each with Evz and Vpz in its trail)."""
     design = st.value("Vot_design")
-    secondary = np.array(["Fa" in f.zones[i].trail for i in zones], dtype=bool)
+    trails = [f.zones[i].trail.steps for i in zones]
+    secondary = ["Fa" in steps for steps in trails]
     index = np.asarray(zones, dtype=int)
     values = np.atleast_1d(multizone.delivered_by_zone_ev(
         np.asarray(f.vpz_list)[index], st.value("Xs"), st.value("Vou"), design,
-        np.where(secondary, [f.zones[i].trail.steps["Ep"].value if s else 1.0
-                             for i, s in zip(zones, secondary)], 1.0),
-        f.fa[index], f.fb[index], f.fc[index], secondary)).tolist()
+        np.array([steps["Ep"].value if s else 1.0 for steps, s in zip(trails, secondary)])
+        if any(secondary) else 1.0,
+        f.fa[index], f.fb[index], f.fc[index], np.array(secondary, dtype=bool))).tolist()
     shared = [_copy(st, s) for s in ("Vou", "Vot_design", "Xs")]
     why = ("derived from Appendix A: Evz ≥ Vou/Vot_design solved for the zone outdoor airflow")
     cite = {False: pack.cite("detailed_ev"), True: pack.cite("detailed_ev_secondary")}
-    for k, i in enumerate(zones):
-        steps = f.zones[i].trail.steps
+    note = shared_text(f"{_NOTE}; {why}")
+    none_left = shared_text(note + "; the intake is below what the other zones take, so none "
+                            "is left for this zone (shown as 0)")
+    for steps, sec, value in zip(trails, secondary, values):
         steps["Vou"], steps["Vot_design"] = shared[0], shared[1]
         if "Xs" not in steps:
             steps["Xs"] = shared[2]
         if design <= 0:
-            steps[SYMBOL] = Step(SYMBOL, 0.0, "airflow", "", cite[bool(secondary[k])],
+            steps[SYMBOL] = Step(SYMBOL, 0.0, "airflow", "", cite[sec],
                                  f"{_NOTE}: no intake is scheduled, so the zone receives none",
                                  "computed")
             continue
-        formula = _SECONDARY if secondary[k] else _SINGLE
-        note = f"{_NOTE}; {why}"
-        if not values[k] > 0:
-            note += ("; the intake is below what the other zones take, so none is left for this "
-                     "zone (shown as 0)")
-        steps[SYMBOL] = Step(SYMBOL, values[k], "airflow", formula, cite[bool(secondary[k])],
-                             shared_text(note), "computed")
+        steps[SYMBOL] = _step(Step, (SYMBOL, value, "airflow", _SECONDARY if sec else _SINGLE,
+                                     cite[sec], note if value > 0 else none_left, "computed"))
 
 
+#: a :class:`Step` made from its fields in order, without the named tuple's constructor written
+#: in Python (half the time; one per zone)
+_step = tuple.__new__
 _SINGLE = "{Vpz}·(1 + {Xs} − {Vou} / {Vot_design})"
 _SECONDARY = "{Vpz}·({Fa}·(1 − {Vou} / {Vot_design}) + {Xs}·{Fb}) / ({Ep}·{Fc})"
 

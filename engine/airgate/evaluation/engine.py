@@ -50,6 +50,11 @@ def _location(loaded: LoadedSchedule, path: tuple) -> Location:
     return Location.deferred(loaded, path, loaded.file if loaded.one_file else None)
 
 
+#: a zone's stated fields whose location its trail gives as their source
+_FIELDS = ("area", "occupants", "bedrooms")
+_EXHAUST_FIELDS = ("airflow", "fixtures")
+
+
 def _bind_all(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
               run: RequirementRun | None = None) -> list[dict[str | None, list]]:
     """Every zone bound to the pack at every design condition of its system: per system, the
@@ -58,6 +63,8 @@ def _bind_all(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
     errors: list[AirgateError] = []
     binder = bind.Binder(loaded, pack)  # equal statements share their rows and Ez
     adjust = run.adjust if run is not None else None
+    make = Location.deferred_in(loaded, loaded.file if loaded.one_file else None)
+    categories = pack.categories
     out = []
     for i, stated in enumerate(loaded.model.systems):
         by_condition: dict[str | None, list[ZoneContext]] = {}
@@ -65,36 +72,45 @@ def _bind_all(loaded: LoadedSchedule, pack: RulePack, tables: Tables,
         for cond in conditions.names(stated):
             system = stated.at(cond)
             ctxs = by_condition.setdefault(cond, [])
-            for j, zone in enumerate(system.zones):
-                path = ("systems", i, "zones", j)
-                subject = f"{system.id}/{zone.id}"
-                if not kind.supplies:  # an exhaust fan's zone: its exhaust row only
+            if not kind.supplies:  # an exhaust fan's zones: their exhaust rows only
+                for j, zone in enumerate(system.zones):
+                    path = ("systems", i, "zones", j)
                     row = bind.collect(errors, exhaust.bind_fan_zone, loaded, pack, zone, path)
                     if row is not None:
-                        ctxs.append(exhaust.FanZone(zone, path, _location(loaded, path), row,
-                                                    subject, system.id))
-                    continue
-                cat = bind.collect(errors, binder.category, zone, path)
+                        ctxs.append(exhaust.FanZone(zone, path, make(path), row,
+                                                    f"{system.id}/{zone.id}", system.id))
+                continue
+            system_id, mechanical = system.id, kind.intake
+            for j, zone in enumerate(system.zones):
+                path = ("systems", i, "zones", j)
+                # the row of the zone's space, else the error it makes (Binder.category)
+                cat = categories.get(zone.space)
+                if cat is None:
+                    cat = bind.collect(errors, binder.category, zone, path)
                 key = (cond,) if isinstance(stated.zones[j].air_distribution, dict) else ()
                 ez = bind.collect(errors, binder.air_distribution, zone, path, key)
                 if zone.profile is not None or zone.activity is not None:
                     bind.collect(errors, bind.dilution_refs, loaded, zone, path, tables)
                 exhaust_row = (None if zone.exhaust is None else
                                bind.collect(errors, exhaust.bind, loaded, pack, zone, path))
-                if cat is not None and ez is not None and adjust is not None:  # requirements
+                if cat is None or ez is None:
+                    continue
+                if adjust is not None:  # requirements
                     cat, ez = bind.collect(errors, adjust, i, j, cat, ez, zone) or (None, None)
-                if cat is not None and ez is not None:
-                    fields = {name: _location(loaded, conditions.keyed(path + (name,), cond))
-                              for name in ("area", "occupants", "bedrooms")
-                              if getattr(zone, name) is not None}
-                    if zone.exhaust is not None:
-                        fields.update({f"exhaust.{name}": _location(loaded, path + ("exhaust", name))
-                                       for name in ("airflow", "fixtures")
-                                       if getattr(zone.exhaust, name) is not None})
-                    ctxs.append(ZoneContext(zone=zone, path=path, location=_location(loaded, path),
-                                            category=cat, ez=ez, subject=subject,
-                                            system_id=system.id, fields=fields,
-                                            mechanical=kind.intake, exhaust=exhaust_row))
+                    if cat is None or ez is None:
+                        continue
+                fields = {}
+                for name in _FIELDS:
+                    if getattr(zone, name) is not None:
+                        at = path + (name,)
+                        fields[name] = make(at if cond is None else conditions.keyed(at, cond))
+                if zone.exhaust is not None:
+                    for name in _EXHAUST_FIELDS:
+                        if getattr(zone.exhaust, name) is not None:
+                            fields[f"exhaust.{name}"] = make(path + ("exhaust", name))
+                ctxs.append(ZoneContext(zone, path, make(path), cat, ez,
+                                        f"{system_id}/{zone.id}", system_id, fields, mechanical,
+                                        exhaust_row))
         out.append(by_condition)
         errors.extend(kind_of(stated).check_inputs(loaded, pack, i))
     errors.extend(makeup.check_inputs(loaded))

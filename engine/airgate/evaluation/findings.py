@@ -87,12 +87,24 @@ class Location:
         """The location of field ``path`` of ``of`` (a loaded schedule), found when first
         read; ``file``: the file it is in where that is known already (reading it then finds
         nothing)."""
-        loc = cls.__new__(cls)
-        setattr_ = object.__setattr__
-        setattr_(loc, "_file", file)
-        setattr_(loc, "_of", of)
-        setattr_(loc, "_path", path)
+        loc = _new(cls)
+        _set_file(loc, file)
+        _set_of(loc, of)
+        _set_path(loc, path)
         return loc
+
+    @staticmethod
+    def deferred_in(of: _Locator, file: str | None = None):
+        """``make(path)``, the :meth:`deferred` location of field ``path`` of ``of``: for the
+        many locations of one schedule (several per zone), without looking the class's
+        constructor up for each."""
+        def make(path: tuple) -> Location:
+            loc = _new(Location)
+            _set_file(loc, file)
+            _set_of(loc, of)
+            _set_path(loc, path)
+            return loc
+        return make
 
     def _find(self) -> None:
         file, line, column = self._of.locate(self._path)
@@ -156,6 +168,12 @@ class Location:
         if line is None:
             return file
         return f"{file}:{line}" if column is None else f"{file}:{line}:{column}"
+
+
+# a deferred location's slots set directly (the class refuses attribute assignment): half the time
+# of object.__setattr__ by name, for the few hundred thousand a portfolio makes
+_new = object.__new__
+_set_file, _set_of, _set_path = (Location.__dict__[k].__set__ for k in ("_file", "_of", "_path"))
 
 
 @dataclass(frozen=True)

@@ -83,7 +83,8 @@ class Run:
         condition bound (default: as the schedule states it)."""
         system = self.loaded.model.systems[i]
         zone = system.zones[j] if zone is None else zone
-        self._dwelling_inputs(zone, cat, ("systems", i, "zones", j))
+        if cat.default_occupants == "bedrooms-plus-one":
+            self._dwelling_inputs(zone, cat, ("systems", i, "zones", j))
         if not self.adjusting:  # nothing modifies a zone: no subject to select
             return cat, ez
         subject = zone_subject(system, zone, cat, ez.rows)

@@ -93,25 +93,32 @@ def evaluate_zones(ctxs: list[ZoneContext], pack: RulePack, emitter: Emitter) ->
     if not ctxs:
         return []
     shared: dict = {}
-    trails, pz, by_density = [], [], []
+    trails, area, pz, by_density = [], [], [], []
     for ctx in ctxs:
         trail = Trail()
         zone, cat = ctx.zone, ctx.category
         steps = trail.steps
-        steps["Az"] = Step("Az", float(zone.area), "area", "", ctx.where("area"), "", "schedule")
+        az = float(zone.area)
+        area.append(az)
+        steps["Az"] = _step(Step, ("Az", az, "area", "", ctx.where("area"), "", "schedule"))
         rates = shared.get(id(cat))
         if rates is None:
             rates = shared[id(cat)] = _category_steps(cat)
         steps["Rp"], steps["Ra"] = rates[0], rates[1]
-        if (zone.occupants is None and cat.density is not None
-                and not (cat.default_occupants == "bedrooms-plus-one" and zone.bedrooms is not None)):
+        if zone.occupants is not None:  # stated (as _population would record it)
+            value = float(zone.occupants)
+            steps["Pz"] = _step(Step, ("Pz", value, "people", "", ctx.where("occupants"),
+                                       _STATED, "schedule"))
+            pz.append(value)
+        elif cat.density is not None and not (cat.default_occupants == "bedrooms-plus-one"
+                                              and zone.bedrooms is not None):
             steps["density"] = rates[2]
             by_density.append(len(trails))
             pz.append(0.0)  # density × Az, below
         else:
             pz.append(_population(trail, ctx, pack, emitter))
         trails.append(trail)
-    area = np.array([t.steps["Az"].value for t in trails])
+    area = np.array(area)
     pz = np.array(pz)
     if by_density:
         pz[by_density] = zone_rates.default_population(
@@ -124,6 +131,13 @@ def evaluate_zones(ctxs: list[ZoneContext], pack: RulePack, emitter: Emitter) ->
     cites = pack.cite("breathing_zone_outdoor_airflow"), pack.cite("zone_outdoor_airflow")
     return [_record(ctx, trail, b, o, cites, shared, emitter)
             for ctx, trail, b, o in zip(ctxs, trails, vbz.tolist(), voz.tolist())]
+
+
+#: a :class:`Step` made from its fields in order, without the named tuple's constructor written
+#: in Python (half the time; a portfolio makes some twenty per zone)
+_step = tuple.__new__
+_STATED = "stated in the schedule"
+_VBZ, _VOZ = "{Rp}·{Pz} + {Ra}·{Az}", "{Vbz} / {Ez}"
 
 
 def _category_steps(cat: OccupancyCategory) -> tuple[Step, Step, Step | None]:
@@ -154,13 +168,16 @@ def _record(ctx: ZoneContext, trail: Trail, vbz: float, voz: float, cites: tuple
     """One zone's Vbz, Ez, Voz steps, its findings, its exhaust; its result."""
     zone, cat, ez = ctx.zone, ctx.category, ctx.ez
     steps = trail.steps
-    steps["Vbz"] = Step("Vbz", vbz, "airflow", "{Rp}·{Pz} + {Ra}·{Az}", cites[0], "", "computed")
-    key = (float(ez.ez), ez.source, ez.note, ez.origin)
-    ez_step = shared.get(key)
+    steps["Vbz"] = _step(Step, ("Vbz", vbz, "airflow", _VBZ, cites[0], "", "computed"))
+    ez_step = shared.get(id(ez))  # the Binder shares one EzChoice among equal statements
     if ez_step is None:
-        ez_step = shared[key] = Step("Ez", key[0], "fraction", "", key[1], key[2], key[3])
+        key = (float(ez.ez), ez.source, ez.note, ez.origin)
+        ez_step = shared.get(key)
+        if ez_step is None:
+            ez_step = shared[key] = Step("Ez", key[0], "fraction", "", key[1], key[2], key[3])
+        shared[id(ez)] = ez_step
     steps["Ez"] = ez_step
-    steps["Voz"] = Step("Voz", voz, "airflow", "{Vbz} / {Ez}", cites[1], "", "computed")
+    steps["Voz"] = _step(Step, ("Voz", voz, "airflow", _VOZ, cites[1], "", "computed"))
     if ez.origin == "assumed" and ctx.mechanical:
         emitter.emit("air-distribution-assumed", ctx.subject,
                      f"air distribution not stated; Ez {ez.ez:.1f} assumed ({ez.note}) — "
@@ -176,7 +193,8 @@ def _record(ctx: ZoneContext, trail: Trail, vbz: float, voz: float, cites: tuple
                          system_id=ctx.system_id, airflow_at=ctx.fields["exhaust.airflow"],
                          fixtures_at=ctx.fields.get("exhaust.fixtures", ctx.location))
     return ZoneResult(id=zone.id, name=zone.name, space=cat.id, space_label=cat.label,
-                      location=ctx.location, trail=trail, air_class=ctx.air_class,
+                      location=ctx.location, trail=trail,
+                      air_class=zone.air_class or cat.air_class,
                       exhaust=ctx.exhaust.id if ctx.exhaust is not None else None)
 
 

@@ -62,8 +62,11 @@ def nonneg(name, value, *, strict=False):
     if a.ndim == 0:  # the common scalar case, without numpy reductions
         x = float(a)
         ok = math.isfinite(x) and (x > 0 if strict else x >= 0)
+    elif a.size:  # the least and largest value: NaN fails every comparison
+        lo = a.min()
+        ok = bool(lo > 0 if strict else lo >= 0) and bool(a.max() < math.inf)
     else:
-        ok = bool(np.all(np.isfinite(a))) and not np.any(a <= 0 if strict else a < 0)
+        ok = True
     if not ok:
         raise ValueError(f"{name} must be finite and {'>' if strict else '>='} 0, got {value!r}")
     return a
@@ -130,8 +133,11 @@ def fraction(name, value, *, open_top=False):
     if a.ndim == 0:
         x = float(a)
         ok = 0 <= x < 1 if open_top else 0 <= x <= 1
+    elif a.size:  # the least and largest value: NaN fails every comparison
+        hi = a.max()
+        ok = bool(a.min() >= 0) and bool(hi < 1 if open_top else hi <= 1)
     else:
-        ok = bool(np.all((a >= 0) & (a < 1 if open_top else a <= 1)))
+        ok = True
     if not ok:
         allowed = "[0, 1)" if open_top else "[0, 1]"
         raise ValueError(f"{name} must lie in {allowed}, got {value!r}")

@@ -27,6 +27,9 @@ from airgate.procedures import multizone as mz
 
 #: the Ev methods' names in :func:`airgate.procedures.multizone.multiple_zone_figures`
 _METHOD = {SimplifiedEv: "simplified", DetailedEv: "detailed", TableEv: "table"}
+#: a :class:`Step` made from its fields in order, without the named tuple's constructor written
+#: in Python (half the time; steps are made per zone)
+_step = tuple.__new__
 _VPZ_NOTE = "zone primary airflow at the condition analysed"
 
 
@@ -35,8 +38,9 @@ def core_inputs(system: System, fields: list, zones: list[ZoneResult], method) -
     system: Rp, Pz, Ra, Az, Ez from the zones' trails, Vpz, Ep, Er from their schedule fields
     ``fields`` (a zone without a Vpz as 0), Ps and Vps where stated, the Ev method's
     parameters."""
-    steps = [z.trail.steps for z in zones]
-    rp, pz, ra, az, ez = ([s[k].value for s in steps] for k in ("Rp", "Pz", "Ra", "Az", "Ez"))
+    rp, pz, ra, az, ez = (list(c) for c in zip(*[
+        (s["Rp"].value, s["Pz"].value, s["Ra"].value, s["Az"].value, s["Ez"].value)
+        for s in (z.trail.steps for z in zones)])) if zones else ([], [], [], [], [])
     kwargs = {}
     if isinstance(method, SimplifiedEv):
         kwargs = dict(breakpoint=method.breakpoint, slope=method.slope,
@@ -87,11 +91,12 @@ def _primary_airflows(system: System, ctxs, zones, f, trail: Trail, pack: RulePa
     """Vpz, Zpz per zone (with the zone-primary-airflow check) and Vps, Xs for the system."""
     src = pack.cite("detailed_ev")
     vpz, zpz = f.vpz_list, f.zpz.tolist()
-    for i, z in enumerate(zones):
-        if vpz[i] > 0:
+    for z, v, zp in zip(zones, vpz, zpz):
+        if v > 0:
             steps = z.trail.steps
-            steps["Vpz"] = Step("Vpz", vpz[i], "airflow", "", "", _VPZ_NOTE, "schedule")
-            steps["Zpz"] = Step("Zpz", zpz[i], "fraction", "{Voz} / {Vpz}", src, "", "computed")
+            steps["Vpz"] = _step(Step, ("Vpz", v, "airflow", "", "", _VPZ_NOTE, "schedule"))
+            steps["Zpz"] = _step(Step, ("Zpz", zp, "fraction", "{Voz} / {Vpz}", src, "",
+                                        "computed"))
     vpz_a = np.asarray(vpz)
     known = vpz_a > 0
     voz = f.voz
@@ -140,6 +145,13 @@ def _zone_efficiencies(ctxs, zones, f, trail: Trail, pack: RulePack) -> None:
     xs = _shared(trail, "Xs")
     src, sec = pack.cite("detailed_ev"), pack.cite("detailed_ev_secondary")
     evz = f.evz.tolist()
+    if all(ctx.zone.ep is None for ctx in ctxs):  # single supply paths only
+        for z, v in zip(zones, evz):
+            steps = z.trail.steps
+            steps["Xs"] = xs
+            steps["Evz"] = _step(Step, ("Evz", v, "fraction", "1 + {Xs} − {Zpz}", src, "",
+                                        "computed"))
+        return
     fa, fb, fc = f.fa.tolist(), f.fb.tolist(), f.fc.tolist()
     for i, (ctx, z) in enumerate(zip(ctxs, zones)):
         steps = z.trail.steps
