@@ -8,13 +8,18 @@ Every zone carries its values; its calculation trails (the zone's, its dilution'
 contaminants') and its line and column only when asked (``trails=True``, ``check --trails``),
 so that a portfolio's report stays a small multiple of its input and its zones' positions are
 not looked up for it. Systems always carry their trail and location.
+
+A streamed report (:func:`chunks`, :func:`batch_chunks`) writes its zones without trails as
+text, a batch at a time (:func:`_zone_texts`, the values objects by ``json_values``); the text
+is the one :func:`to_dict`'s dictionaries give.
 """
 
 from __future__ import annotations
 
 import math
 from collections.abc import Iterator
-from functools import lru_cache
+from functools import partial
+from json.encoder import encode_basestring
 from typing import TYPE_CHECKING, Any
 
 from airgate import __version__, units
@@ -22,6 +27,10 @@ from airgate.evaluation.findings import Amount, Finding
 from airgate.evaluation.report import ConditionResult, Report, SystemResult, ZoneResult
 from airgate.evaluation.waivers import WaiverStatus
 from airgate.evaluation.trail import Step, Trail
+from airgate.writers import json_encode
+from airgate.writers.json_values import json_unit as _json_unit
+from airgate.writers.json_values import symbol_key as _symbol_key
+from airgate.writers.json_values import values_texts
 from airgate.writers.output import Lazy, Streamed, json_chunks, json_text
 
 if TYPE_CHECKING:
@@ -41,38 +50,19 @@ def value(x: float, kind: str, system: str) -> dict[str, Any]:
             "unit": units.JSON_UNITS[(kind, system)]}
 
 
-#: (kind, system) → (internal per display unit, display scale, JSON unit): what
-#: :func:`units.to_json_unit` divides by, looked up once per kind rather than once per value
-_JSON_UNIT: dict[tuple[str, str], tuple[float, float, str]] = {}
-
-
-def _json_unit(kind: str, system: str) -> tuple[float, float, str]:
-    got = _JSON_UNIT.get((kind, system))
-    if got is None:
-        got = _JSON_UNIT[(kind, system)] = (units.to_internal(1.0, kind, system),
-                                            units.KINDS[kind].scale(system),
-                                            units.JSON_UNITS[(kind, system)])
-    return got
-
-
-@lru_cache(maxsize=4096)
-def _symbol_key(symbol: str) -> str:
-    """ASCII keys for machine use: ``ΣRp·Pz`` → ``sum_Rp_Pz``, ``max Zpz`` → ``max_Zpz``."""
-    out = symbol.replace("Σ", "sum_").replace("·", "_").replace(" ", "_")
-    return out.replace("(", "").replace(")", "")
-
-
 def _values(trail: Trail, system: str) -> dict[str, Any]:
     """Every step's value: :func:`value` of each, with the key, unit and factors looked up once
-    per symbol and kind (the same divisions in the same order, so the same numbers)."""
+    per symbol and kind (the same divisions in the same order, so the same numbers); read from
+    the trail's :meth:`~Trail.signature` and :meth:`~Trail.values`, so a trail kept as arrays
+    makes no steps for it."""
     out: dict[str, Any] = {}
     entries = _VALUE_ENTRIES
-    for s in trail.steps.values():
-        entry = entries.get((s.symbol, s.kind, system))
+    for (symbol, kind), v in zip(trail.signature(), trail.values()):
+        entry = entries.get((symbol, kind, system))
         if entry is None:
-            entry = _value_entry(s.symbol, s.kind, system)
+            entry = _value_entry(symbol, kind, system)
         key, factor, scale, unit = entry
-        x = s.value / factor / scale
+        x = v / factor / scale
         if x != x or x in _INFINITE:
             out[key] = {"value": None, "unit": unit}
         else:
@@ -161,17 +151,129 @@ def _zone(z: ZoneResult, system: str, step_minutes: int = 0,
 
 def _system(s: SystemResult, system: str, step_minutes: int = 0,
             lazy: bool = False, trails: bool = False) -> dict[str, Any]:
-    zones = (_zone(z, system, step_minutes, trails) for z in s.zones)
+    if lazy and not trails:  # each zone's text made from templates, many zones at a time
+        zones: object = Lazy(s.zones, partial(_zone_texts, system=system,
+                                              step_minutes=step_minutes))
+    else:
+        made = (_zone(z, system, step_minutes, trails) for z in s.zones)
+        zones = Lazy(made) if lazy else list(made)
     out = dict(
         id=s.id, name=s.name, kind=s.kind, procedure=s.procedure, verdict=s.verdict,
         ventilation_efficiency_method=s.method, critical_zone=s.critical_zone,
         values=_values(s.trail, system), location=_location(s.location),
-        trail=_trail(s.trail, system), zones=Lazy(zones) if lazy else list(zones),
+        trail=_trail(s.trail, system), zones=zones,
     )
     if s.condition is not None:  # only a system that lists design conditions
         out["condition"] = s.condition
         out["conditions"] = [_condition(c, system) for c in s.conditions]
     return (Streamed if lazy else dict)(out)
+
+
+def _scalar(x: object) -> str:
+    """A scalar's JSON text."""
+    t = type(x)
+    if t is str:
+        return encode_basestring(x)
+    if x is None:
+        return "null"
+    if t is int:
+        return int.__repr__(x)
+    return json_encode.dumps(x)  # True, False, a float, anything else as the encoder writes it
+
+
+#: indentation level → the %-format of a zone's members up to its contaminants
+_ZONE_HEADS: dict[int, str] = {}
+
+
+def _zone_head(level: int) -> str:
+    got = _ZONE_HEADS.get(level)
+    if got is None:
+        n1 = "\n" + "  " * (level + 1)
+        n2 = n1 + "  "
+        got = _ZONE_HEADS[level] = (
+            "{" + n1 + '"id": %s,' + n1 + '"name": %s,' + n1 + '"space": %s,' + n1
+            + '"space_label": %s,' + n1 + '"air_class": %s,' + n1 + '"verdict": %s,' + n1
+            + '"values": %s,' + n1 + '"location": {' + n2 + '"file": %s,' + n2 + '"line": null,'
+            + n2 + '"column": null' + n1 + "}," + n1 + '"dilution": %s,' + n1
+            + '"contaminants": %s')
+    return got
+
+
+def _named_trails(trails: dict) -> list | None:
+    """``trails`` sorted by name, or None when a name is not a plain string."""
+    for name in trails:
+        if type(name) is not str:
+            return None
+    return sorted(trails.items())
+
+
+def _zone_texts(zones: list[ZoneResult], level: int, system: str,
+                step_minutes: int = 0) -> list[str]:
+    """The text of each zone (without its trails) at indentation ``level``: what
+    ``json.dumps(_zone(z, system, step_minutes), indent=2, ensure_ascii=False)`` writes there,
+    with the values objects of all the zones made together (:func:`json_values.values_texts`).
+    A zone whose contaminants or packs are named other than by plain strings is written from
+    :func:`_zone`."""
+    wanted: list[tuple[Trail, int]] = []
+    plans: list[tuple | None] = []
+    for z in zones:
+        contaminants = _named_trails(z.contaminants)
+        packs = _named_trails(z.packs) if z.packs else []
+        if contaminants is None or packs is None:
+            plans.append(None)
+            continue
+        wanted.append((z.trail, level + 1))
+        if z.dilution is not None:
+            wanted.append((z.dilution, level + 2))
+        for _name, t in contaminants:
+            wanted.append((t, level + 3))
+        for _name, t in packs:
+            wanted.append((t, level + 3))
+        plans.append((contaminants, packs))
+    texts = iter(values_texts(wanted, system))
+    head = _zone_head(level)
+    n0 = "\n" + "  " * level
+    n1 = n0 + "  "
+    n2 = n1 + "  "
+    n3 = n2 + "  "
+    out = []
+    for z, plan in zip(zones, plans):
+        if plan is None:
+            out.append(json_encode.dumps(_zone(z, system, step_minutes), level))
+            continue
+        contaminants, packs = plan
+        values = next(texts)
+        if z.dilution is None:
+            dilution = "null"
+        else:
+            dilution = "{" + n2 + '"contaminant": "CO2 from occupants",' + n2 + '"values": ' \
+                + next(texts)
+            series = _series(z, step_minutes)
+            if series is not None:
+                dilution += "," + n2 + '"series": ' + json_encode.dumps(series, level + 2)
+            dilution += n1 + "}"
+        text = head % (_scalar(z.id), _scalar(z.name), _scalar(z.space), _scalar(z.space_label),
+                       _scalar(z.air_class), _scalar(z.verdict), values,
+                       _scalar(z.location.file), dilution, _named_texts(contaminants, texts, n2, n3))
+        if packs:
+            text += "," + n1 + '"packs": ' + _named_texts(packs, texts, n2, n3)
+        if z.makeup is not None:
+            m = z.makeup
+            makeup = ({"from": "outdoor"} if m.source == "outdoor" else
+                      {"from": m.source, "zone": m.zone, "air_class": m.air_class})
+            text += "," + n1 + '"makeup": ' + json_encode.dumps(makeup, level + 1)
+        out.append(text + n0 + "}")
+    return out
+
+
+def _named_texts(named: list, texts: Iterator[str], n2: str, n3: str) -> str:
+    """``{name: {"values": …}}`` of trails whose values texts come next in ``texts``."""
+    if not named:
+        return "{}"
+    n1 = n2[:-2]
+    return "{" + n2 + ("," + n2).join(
+        encode_basestring(name) + ": {" + n3 + '"values": ' + next(texts) + n2 + "}"
+        for name, _t in named) + n1 + "}"
 
 
 def _condition(c: ConditionResult, system: str) -> dict[str, Any]:

@@ -32,7 +32,7 @@ import stat
 import sys
 import tempfile
 import threading
-from collections.abc import Iterable, Iterator, Sequence
+from collections.abc import Callable, Iterable, Iterator, Sequence
 from contextlib import contextmanager
 from pathlib import Path
 from typing import Union
@@ -70,12 +70,20 @@ class Interrupted(BaseException):
 
 class Lazy:
     """A JSON list whose items are produced one at a time while it is written (by
-    :func:`json_chunks`), so a list of 60,000 zones is never held whole."""
+    :func:`json_chunks`), so a list of 60,000 zones is never held whole.
 
-    __slots__ = ("items",)
+    ``encode``, where given, writes the items itself: called with a list of up to
+    :data:`_BATCH` items and the indentation level of the items, it returns each
+    item's JSON text as ``json.dumps(item, indent=2, ensure_ascii=False)`` would write it there
+    (lines after the first indented by that many steps of two spaces). The items are then
+    whatever ``encode`` takes, not JSON data."""
 
-    def __init__(self, items: Iterable[object]) -> None:
+    __slots__ = ("items", "encode")
+
+    def __init__(self, items: Iterable[object],
+                 encode: Callable[[list, int], list[str]] | None = None) -> None:
         self.items = items
+        self.encode = encode
 
 
 class Streamed(dict):
@@ -113,6 +121,13 @@ def _streamed(value: object, level: int) -> Iterator[str]:
             sep = ","
             yield from _streamed(item, level + 1)
         yield "\n" + "  " * level + "}"
+    elif isinstance(value, Lazy) and value.encode is not None:
+        sep = "["
+        joiner = "," + inner
+        for batch in _runs(value.items, _BATCH):
+            yield sep + inner + joiner.join(value.encode(batch, level + 1))
+            sep = ","
+        yield "[]" if sep == "[" else "\n" + "  " * level + "]"
     elif isinstance(value, Lazy):
         sep = "["
         for batch in _batches(value.items):
@@ -128,7 +143,8 @@ def _streamed(value: object, level: int) -> Iterator[str]:
         yield json_encode.dumps(value, level)
 
 
-#: how many plain items of a lazy list are made and encoded at a time
+#: how many plain items of a lazy list (or items of one with its own ``encode``) are made and
+#: encoded at a time
 _BATCH = 64
 
 
@@ -147,6 +163,18 @@ def _batches(items: Iterable[object]) -> Iterator[object]:
             if len(run) == _BATCH:
                 yield run
                 run = []
+    if run:
+        yield run
+
+
+def _runs(items: Iterable[object], size: int) -> Iterator[list]:
+    """``items`` in lists of up to ``size``."""
+    run: list[object] = []
+    for item in items:
+        run.append(item)
+        if len(run) == size:
+            yield run
+            run = []
     if run:
         yield run
 
