@@ -365,3 +365,47 @@ def test_zone_steps_as_the_population_and_ez_rules_record_them(tmp_path):
     ez = [r.trail.steps["Ez"] for r in got]
     assert ez[0] is ez[1] and ez[0].value == 0.9 and "invented test basis" in ez[0].note
     assert ctxs[0].ez is not ctxs[1].ez  # two explicit statements, one step
+
+
+def test_steps_made_from_their_fields_follow_the_named_tuple():
+    # the zone, multiple-zone and delivered steps are made with tuple.__new__ from their fields
+    # in order (evaluation/zones.py): they must be the named tuple's fields, in its order, and
+    # equal to the step its constructor makes (the reference: Step itself)
+    from airgate.evaluation import delivered, zones as zones_mod
+    from airgate.evaluation.system_kinds import multiple_zone
+    from airgate.evaluation.trail import Step
+
+    assert Step._fields == ("symbol", "value", "kind", "formula", "source", "note", "origin")
+    for make in (zones_mod._step, multiple_zone._step, delivered._step):
+        made = make(Step, ("Vbz", 1.5, "airflow", "{Rp}·{Pz}", "cite", "", "computed"))
+        assert type(made) is Step
+        assert made == Step("Vbz", 1.5, "airflow", "{Rp}·{Pz}", "cite", "", "computed")
+        assert made.origin == "computed" and made.symbolic() == "Rp·Pz"
+
+
+def test_detailed_ev_names_each_zone_and_condition_without_primary_airflow(tmp_path):
+    # ANSI/ASHRAE 62.1-2019 Normative Appendix A: the detailed method needs every zone's Vpz;
+    # the reference is the rule as the check wrote it before: one located error per zone and
+    # condition where none is given, in zone order, none for a plain or per-condition value
+    import airgate
+    from airgate.errors import AirgateError
+
+    zones = [zone("1", "office-space", "1000 ft2"),  # none at all: both conditions
+             zone("2", "office-space", "1000 ft2", primary_airflow="600 cfm"),
+             zone("3", "office-space", "1000 ft2",
+                  primary_airflow={"cooling": "700 cfm", "heating": "500 cfm"}),
+             zone("4", "office-space", "1000 ft2",
+                  primary_airflow={"cooling": "700 cfm", "heating": None})]
+    data = schedule([{"id": "AHU", "kind": "multiple-zone", "conditions": ["cooling", "heating"],
+                      "ventilation_efficiency": "detailed", "outdoor_air": "900 cfm",
+                      "zones": zones}])
+    path = tmp_path / "vpz.yaml"
+    path.write_text(yaml.safe_dump(data, sort_keys=False), encoding="utf-8")
+    with pytest.raises(AirgateError) as err:
+        airgate.check(path)
+    found = err.value.errors if hasattr(err.value, "errors") else [err.value]
+    assert [e.field for e in found] == [
+        ("systems", 0, "zones", 0, "primary_airflow", "cooling"),
+        ("systems", 0, "zones", 0, "primary_airflow", "heating"),
+        ("systems", 0, "zones", 3, "primary_airflow", "heating")]
+    assert all("needs primary_airflow (Vpz) for every zone" in e.message for e in found)

@@ -125,10 +125,12 @@ def _evaluate_system(loaded: LoadedSchedule, pack: RulePack, emitter: Emitter, i
     condition's own results on it, findings naming their condition."""
     stated = loaded.model.systems[i]
     where = _location(loaded, ("systems", i))
+    make = Location.deferred_in(loaded, loaded.file if loaded.one_file else None)
     runs = []
     for cond, ctxs in by_condition.items():
         system = stated.at(cond)
-        locate = lambda path, c=cond: _location(loaded, conditions.keyed(path, c))  # noqa: E731
+        locate = ((lambda path, c=cond: make(conditions.keyed(path, c))) if cond is not None
+                  else make)
         intake_at = locate(("systems", i, "outdoor_air"))
         start = len(emitter.findings)
         zones = evaluate_zones(ctxs, pack, emitter)

@@ -133,6 +133,47 @@ def evaluate_zones(ctxs: list[ZoneContext], pack: RulePack, emitter: Emitter) ->
             for ctx, trail, b, o in zip(ctxs, trails, vbz.tolist(), voz.tolist())]
 
 
+def _record(ctx: ZoneContext, trail: Trail, vbz: float, voz: float, cites: tuple[str, str],
+            shared: dict, emitter: Emitter) -> ZoneResult:
+    """One zone's Vbz, Ez, Voz steps, its findings, its exhaust; its result."""
+    zone, cat, ez = ctx.zone, ctx.category, ctx.ez
+    steps = trail.steps
+    steps["Vbz"] = _step(Step, ("Vbz", vbz, "airflow", _VBZ, cites[0], "", "computed"))
+    ez_step = shared.get(id(ez))  # the Binder shares one EzChoice among equal statements
+    if ez_step is None:
+        ez_step = _ez_step(ez, shared)
+    steps["Ez"] = ez_step
+    steps["Voz"] = _step(Step, ("Voz", voz, "airflow", _VOZ, cites[1], "", "computed"))
+    if ez.origin == "assumed" and ctx.mechanical:
+        emitter.emit("air-distribution-assumed", ctx.subject,
+                     f"air distribution not stated; Ez {ez.ez:.1f} assumed ({ez.note}) — "
+                     "state air_distribution or an explicit ez with its basis",
+                     ctx.location, system=ctx.system_id, zone=zone.id)
+    if cat.rp == 0 and cat.ra == 0:
+        emitter.emit("space-without-rates", ctx.subject,
+                     f"'{cat.id}' ({cat.label}) has no outdoor air rates in the table; "
+                     "no outdoor air is required by this procedure",
+                     ctx.location, system=ctx.system_id, zone=zone.id)
+    if ctx.exhaust is not None:
+        exhaust.evaluate(trail, zone, ctx.exhaust, emitter, subject=ctx.subject,
+                         system_id=ctx.system_id, airflow_at=ctx.fields["exhaust.airflow"],
+                         fixtures_at=ctx.fields.get("exhaust.fixtures", ctx.location))
+    return ZoneResult(id=zone.id, name=zone.name, space=cat.id, space_label=cat.label,
+                      location=ctx.location, trail=trail,
+                      air_class=zone.air_class or cat.air_class,
+                      exhaust=ctx.exhaust.id if ctx.exhaust is not None else None)
+
+
+def _ez_step(ez: EzChoice, shared: dict) -> Step:
+    """The Ez step of ``ez``: one for every EzChoice of the same value, basis and origin."""
+    key = (float(ez.ez), ez.source, ez.note, ez.origin)
+    step = shared.get(key)
+    if step is None:
+        step = shared[key] = Step("Ez", key[0], "fraction", "", key[1], key[2], key[3])
+    shared[id(ez)] = step
+    return step
+
+
 #: a :class:`Step` made from its fields in order, without the named tuple's constructor written
 #: in Python (half the time; a portfolio makes some twenty per zone)
 _step = tuple.__new__
@@ -161,41 +202,6 @@ def _density_steps(trails: list[Trail], which: list[int], pz: np.ndarray, pack: 
     for i in which:
         trails[i].steps["Pz"] = Step("Pz", values[i], "people", formula, source,
                                      "occupants not stated: default density × Az", "computed")
-
-
-def _record(ctx: ZoneContext, trail: Trail, vbz: float, voz: float, cites: tuple[str, str],
-            shared: dict, emitter: Emitter) -> ZoneResult:
-    """One zone's Vbz, Ez, Voz steps, its findings, its exhaust; its result."""
-    zone, cat, ez = ctx.zone, ctx.category, ctx.ez
-    steps = trail.steps
-    steps["Vbz"] = _step(Step, ("Vbz", vbz, "airflow", _VBZ, cites[0], "", "computed"))
-    ez_step = shared.get(id(ez))  # the Binder shares one EzChoice among equal statements
-    if ez_step is None:
-        key = (float(ez.ez), ez.source, ez.note, ez.origin)
-        ez_step = shared.get(key)
-        if ez_step is None:
-            ez_step = shared[key] = Step("Ez", key[0], "fraction", "", key[1], key[2], key[3])
-        shared[id(ez)] = ez_step
-    steps["Ez"] = ez_step
-    steps["Voz"] = _step(Step, ("Voz", voz, "airflow", _VOZ, cites[1], "", "computed"))
-    if ez.origin == "assumed" and ctx.mechanical:
-        emitter.emit("air-distribution-assumed", ctx.subject,
-                     f"air distribution not stated; Ez {ez.ez:.1f} assumed ({ez.note}) — "
-                     "state air_distribution or an explicit ez with its basis",
-                     ctx.location, system=ctx.system_id, zone=zone.id)
-    if cat.rp == 0 and cat.ra == 0:
-        emitter.emit("space-without-rates", ctx.subject,
-                     f"'{cat.id}' ({cat.label}) has no outdoor air rates in the table; "
-                     "no outdoor air is required by this procedure",
-                     ctx.location, system=ctx.system_id, zone=zone.id)
-    if ctx.exhaust is not None:
-        exhaust.evaluate(trail, zone, ctx.exhaust, emitter, subject=ctx.subject,
-                         system_id=ctx.system_id, airflow_at=ctx.fields["exhaust.airflow"],
-                         fixtures_at=ctx.fields.get("exhaust.fixtures", ctx.location))
-    return ZoneResult(id=zone.id, name=zone.name, space=cat.id, space_label=cat.label,
-                      location=ctx.location, trail=trail,
-                      air_class=zone.air_class or cat.air_class,
-                      exhaust=ctx.exhaust.id if ctx.exhaust is not None else None)
 
 
 def evaluate_zone(ctx: ZoneContext, pack: RulePack, emitter: Emitter) -> ZoneResult:

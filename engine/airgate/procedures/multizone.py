@@ -114,7 +114,7 @@ def _mask(name, value, n):
     a = np.asarray(value)
     if a.dtype != bool:
         raise ValueError(f"{name} must be True/False values, got {value!r}")
-    a = np.broadcast_to(a, (n,)) if a.ndim == 0 else a
+    a = np.full(n, a) if a.ndim == 0 else a
     if a.shape != (n,):
         raise ValueError(f"{name} must hold {n} values, got shape {a.shape}")
     return a

@@ -335,14 +335,16 @@ def _inputs(loaded: LoadedSchedule, pack: RulePack, i: int) -> list[AirgateError
         return [loaded.error(what, ("systems", i, at), allowed=sorted(pack.methods))]
     if name == "simplified":
         return []
+    names = conditions.names(system)
     return [
         loaded.error(f"the {name} Ev method needs primary_airflow (Vpz) for every zone; "
                      f"zone '{zone.id}' gives none" + (f" at condition '{c}'" if c else ""),
                      conditions.keyed(("systems", i, "zones", j, "primary_airflow"), c),
                      hint="add primary_airflow, or use ventilation_efficiency: simplified if "
                      "the pack allows it")
-        for j, zone in enumerate(system.zones) for c in conditions.names(system)
-        if at_condition(zone.primary_airflow, c) is None
+        for j, zone in enumerate(system.zones)
+        if zone.primary_airflow is None or isinstance(zone.primary_airflow, dict)  # else stated
+        for c in names if at_condition(zone.primary_airflow, c) is None
     ]
 
 
