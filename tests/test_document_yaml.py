@@ -10,6 +10,8 @@ docs/limits.md before they are held (common practice for untrusted input).
 
 from __future__ import annotations
 
+import random
+
 import yaml
 import pytest
 from hypothesis import HealthCheck, given, settings
@@ -222,12 +224,17 @@ def test_deep_nesting_is_refused_at_the_same_place(text):
     assert _public(text) == ref
 
 
-def test_an_alias_bomb_is_refused_before_it_is_expanded():
+def test_an_alias_bomb_is_refused_before_it_is_expanded(monkeypatch):
     # Aliases repeat the anchored node where they are used (YAML 1.1 spec, anchors and
-    # aliases): nine levels of ten make 10^9 values. The fast reading gives way at the first
-    # anchor; the composer's alias budget refuses it at the alias where it runs out.
+    # aliases): nine levels of ten make 10^9 values. The fast reading gives way where the
+    # alias budget runs out, having repeated no more than the budget; the composer's budget
+    # refuses it at the alias where it runs out.
     text = (ROOT / "fixtures" / "bad" / "alias-bomb.yaml").read_text(encoding="utf-8")
+    repeated = []  # the texts of the scalars and keys repeated (each is counted in bytes)
+    monkeypatch.setattr(fast, "utf8_len", lambda t: repeated.append(t) or len(t))
     assert _fast(text) is None
+    monkeypatch.undo()
+    assert 0 < len(repeated) <= 2 * (limits.MAX_ALIAS_VALUES + 1)  # a key per value at most
     ref = _reference(text)
     assert ref[0] == "failed" and "aliases expand to more than" in ref[1]
     assert _public(text) == ref
@@ -275,10 +282,10 @@ def test_an_endless_document_is_given_up_at_the_limit(deeper, monkeypatch):
     assert parser.given == 2 + most
 
 
-def test_repeated_keys_anchors_tags_and_merges_give_way_to_the_composer():
+def test_repeated_keys_tags_and_merges_give_way_to_the_composer():
     # Each is read (or refused) by the composer, whose messages name the first occurrence.
     for text, what in [("a: 1\nb: 2\na: 3\n", "duplicate key 'a' (first given on line 1)"),
-                       ("a: &x 1\nb: *x\n", None), ("a: !!str 1\n", None),
+                       ("a: !!str 1\n", None),
                        ("a: {b: 1}\nc: {<<: {b: 2}, d: 3}\n", None), ("? [a]\n: 1\n", "key"),
                        ("a: 1\n---\nb: 2\n", "expected a single document"), ("", "empty"),
                        ("a: !!python/name:os.system x\n", "cannot read value")]:
@@ -298,3 +305,69 @@ def test_numbers_read_as_the_safe_constructor_reads_them():
     for text in ["1.5", "-0.0", "1e5", "+.5", "5.", "-.inf", ".Inf", "+.INF", ".nan", "1e400"]:
         node = yaml.ScalarNode("tag:yaml.org,2002:float", text)
         assert repr(fast.float_of(text)) == repr(loader.construct_yaml_float(node))
+
+
+# --- anchors and aliases: read as the composer reads them ---------------------------------------
+
+_ANCHORED = [
+    ("a: &x 1\nb: *x\n", True),
+    ("a: &x [1, 2, {c: 3}]\nb: *x\nc: [*x, *x]\n", True),
+    ("base: &z\n  area: 30 m2\n  name: &n Room\nzones:\n- *z\n- {id: 1, name: *n}\n- *z\n", True),
+    ("a: &o {b: &i [1, 2], c: *i}\nd: *o\ne: *i\n", True),  # an alias inside an anchor
+    ("a: &x\nb: *x\n", True),  # an anchored null
+    ("a: &x '1'\nb: *x\nc: &y \"0101\"\nd: *y\n", True),  # quoted: text, no texts entry
+    ("- &a 1.5\n- *a\n- &b .nan\n- *b\n- &c 1e400\n- *c\n", True),
+    ("a: &x 1\n*x : 2\n", False),  # an alias as a key
+    ("&k a: 1\nb: 2\n", False),  # an anchored key
+    ("a: &x [1, *x]\n", False),  # an alias inside the value it names
+    ("a: *nowhere\n", False),  # undefined: the composer's message
+    ("a: &x 1\nb: &x 2\nc: *x\n", False),  # an anchor given twice
+    ("a: &x {b: 1}\nc: {<<: *x, d: 3}\n", False),  # a merge
+    ("a: &x {b: 1, b: 2}\nc: *x\n", False),  # a repeated key
+]
+
+
+@pytest.mark.parametrize("text,fast_reads", _ANCHORED)
+def test_anchors_and_aliases_are_read_as_the_composer_reads_them(text, fast_reads):
+    # The composer over libyaml's events is the reference (the reading before aliases were
+    # read from the events): an alias repeats the anchored value, at the anchor's position.
+    assert _agree(text) == fast_reads
+
+
+@pytest.mark.parametrize("seed", range(6))
+def test_shared_values_dumped_with_anchors_read_the_same(seed):
+    # PyYAML's emitter writes a value reached twice once, with an anchor, and aliases it after
+    # (its own reading of anchors and aliases is the outside reference, through _agree).
+    rng = random.Random(seed)
+    shared = [[rng.choice(_LOOKALIKES) for _ in range(3)], {"k": rng.choice(_LOOKALIKES)},
+              rng.choice(_LOOKALIKES)]
+    read = 0
+    for _ in range(40):
+        doc = {f"v{i}": rng.choice(shared + [[rng.choice(shared), {"in": rng.choice(shared)}]])
+               for i in range(rng.randint(1, 6))}
+        text = yaml.dump(doc, Dumper=yaml.SafeDumper, sort_keys=False,
+                         default_flow_style=rng.choice([False, True, None]))
+        read += _agree(text)
+    assert read > 20
+
+
+def test_aliases_spend_the_budget_the_composer_spends(monkeypatch):
+    # The alias budget (docs/limits.md) is shared by the YAML texts of one file: reading the
+    # aliases from the events spends of it what the composer's builder spends, and a text
+    # that would pass it is refused where the composer refuses it.
+    text = "a: &x {b: [1, 2], cc: dd}\nb: *x\nc: [*x, *x]\nd: &s some text\ne: *s\n"
+    with limits.shared_alias_budget() as budget:
+        assert docmod._read_events(text) is not None
+        by_events = (budget.values, budget.bytes)
+    with limits.shared_alias_budget() as budget:
+        docmod._parse_with(docmod._LOADERS[0], text, "f.yaml", ScheduleError)
+        by_composer = (budget.values, budget.bytes)
+    # counted by hand: values 3 × (x, b, 1, 2, dd) + s; bytes 3 × (b, cc, 1, 2, dd) + s
+    assert by_events == by_composer == (16, 30)
+    for values, bytes_ in [(15, 30), (16, 29), (16, 30)]:
+        monkeypatch.setattr(limits, "MAX_ALIAS_VALUES", values)
+        monkeypatch.setattr(limits, "MAX_ALIAS_BYTES", bytes_)
+        ref = _reference(text)
+        assert _public(text) == ref
+        assert (ref[0] == "read") == ((values, bytes_) == by_composer), ref
+        assert (docmod._read_events(text) is None) == (ref[0] == "failed")

@@ -4,12 +4,17 @@ libyaml (C) scans and parses the text; this module builds the values from its ev
 loop, with no node graph: every value is counted and its depth checked as its event arrives, so
 the value and depth limits (docs/limits.md) stop a document before it is held, as the composer
 of :mod:`airgate.readers.document` does. It reads the plain part of YAML that schedules are
-written in — block and flow collections, plain and quoted scalars, one document — and gives way
-(returns ``None``) on anything else: an anchor, an alias, an explicit tag, a merge key, a key
-that is not a scalar, a repeated key, a value or depth limit reached, a syntax error. The
-composer then reads the text again and says what it says today (its messages and positions are
-the reference; ``tests/test_document_loaders.py`` holds the two readings to the same data,
-positions and texts on generated documents).
+written in — block and flow collections, plain and quoted scalars, anchors and the aliases that
+repeat them, one document — and gives way (returns ``None``) on anything else: an explicit tag,
+a merge key, a key that is not a scalar or is anchored or an alias, an anchor given twice, an
+alias that is undefined or inside the value it names, a repeated key, a value, depth or alias
+budget limit reached, a syntax error. An alias repeats the events of its anchored value where it
+stands (positions those of the anchored value, as the composer gives them), spending of the
+alias budget of :mod:`airgate.readers.limits` what the composer's builder spends, committed
+only once the text is read. The composer then reads a text given way on again and says what it
+says today (its messages and positions are the reference; ``tests/test_document_loaders.py``
+and ``tests/test_document_yaml.py`` hold the two readings to the same data, positions and texts
+on generated documents).
 """
 
 from __future__ import annotations
@@ -18,11 +23,12 @@ import math
 from typing import Any
 
 import yaml
-from yaml import (DocumentEndEvent, DocumentStartEvent, MappingEndEvent,
+from yaml import (AliasEvent, DocumentEndEvent, DocumentStartEvent, MappingEndEvent,
                   MappingStartEvent, ScalarEvent, SequenceEndEvent, SequenceStartEvent,
                   StreamEndEvent, StreamStartEvent)
 
 from airgate.readers import limits as L  # the limits (docs/limits.md), read when used
+from airgate.readers.limits import utf8_len
 from airgate.units import MAX_MAGNITUDE, MIN_MAGNITUDE
 
 #: Nesting the composer follows before Python's recursion limit could stop it first (about
@@ -124,18 +130,51 @@ def _build(get: Any, resolvers: dict, max_digits: int) -> tuple[Any, dict, dict,
     mapping = False
     key: Any = -1
     count = 0
-    for event in iter(get, None):
+    # anchors and aliases: the events of each anchored value (an alias's expanded), repeated
+    # where an alias names it, and what repeating them spends of the alias budget, as the
+    # composer's builder counts it (each value again, the text of each scalar and key again)
+    anchors: dict[str, list] = {}
+    recording: list[tuple[str, list, int]] = []  # anchored collections still open
+    replay: list = []  # events still to repeat, the next last
+    budget = L.current_budget()
+    spent_values = budget.values if budget is not None else 0
+    spent_bytes = budget.bytes if budget is not None else 0
+    max_values, max_bytes = L.MAX_ALIAS_VALUES, L.MAX_ALIAS_BYTES
+    again = False
+    while True:
+        if replay:
+            event = replay.pop()
+            again = True
+        else:
+            event = get()
+            if event is None:
+                break
+            again = False
         cls = event.__class__
+        if recording and cls is not AliasEvent:
+            for _, events, _ in recording:
+                events.append(event)
         if cls is ScalarEvent:
             count += 1
-            if count > max_nodes or len(stack) > max_depth or event.anchor is not None \
-                    or event.tag is not None:
+            if count > max_nodes or len(stack) > max_depth or event.tag is not None:
                 raise _GiveWay
+            if event.anchor is not None and not again:
+                if mapping and key is None or event.anchor in anchors:
+                    raise _GiveWay  # an anchored key, or an anchor given twice
+                anchors[event.anchor] = [event]
+            if again:
+                spent_bytes += utf8_len(event.value)
+                if spent_bytes > max_bytes:
+                    raise _GiveWay  # the composer refuses it where the budget runs out
             if mapping and key is None:  # a key: as written, whatever it resolves to
                 key = event.value
                 if key in box or (key == "<<" and event.implicit[0]):
                     raise _GiveWay  # repeated (the composer says where), or a merge
                 continue
+            if again:
+                spent_values += 1
+                if spent_values > max_values:
+                    raise _GiveWay
             if mapping:
                 here = path + (key,)
                 key = None
@@ -163,9 +202,18 @@ def _build(get: Any, resolvers: dict, max_digits: int) -> tuple[Any, dict, dict,
                 box.append(value)
         elif cls is MappingStartEvent or cls is SequenceStartEvent:
             count += 1
-            if count > max_nodes or len(stack) > max_depth or event.anchor is not None \
-                    or event.tag is not None or (mapping and key is None):
+            if count > max_nodes or len(stack) > max_depth or event.tag is not None \
+                    or (mapping and key is None):
                 raise _GiveWay  # ... or a key that is a collection
+            if event.anchor is not None and not again:
+                if event.anchor in anchors:
+                    raise _GiveWay  # an anchor given twice
+                anchors[event.anchor] = events = [event]
+                recording.append((event.anchor, events, len(stack)))
+            if again:
+                spent_values += 1
+                if spent_values > max_values:
+                    raise _GiveWay
             if mapping:
                 here = path + (key,)
             else:
@@ -186,10 +234,20 @@ def _build(get: Any, resolvers: dict, max_digits: int) -> tuple[Any, dict, dict,
             box, path, mapping, key = stack.pop()
             if mapping:
                 key = None
+            if recording and recording[-1][2] == len(stack):
+                recording.pop()  # the anchored collection is complete
+        elif cls is AliasEvent:
+            events = anchors.get(event.anchor)
+            if events is None or (mapping and key is None) or \
+                    any(name == event.anchor for name, _, _ in recording):
+                raise _GiveWay  # undefined, a key, or inside the value it names
+            replay.extend(reversed(events))
         elif cls is DocumentEndEvent:
             break
-        else:  # an alias, or anything unforeseen
+        else:  # anything unforeseen
             raise _GiveWay
     if stack or len(box) != 1 or get().__class__ is not StreamEndEvent:
         raise _GiveWay  # more than one document: the composer's message
+    if budget is not None:
+        budget.values, budget.bytes = spent_values, spent_bytes
     return box[0], positions, texts, in_range
