@@ -27,8 +27,15 @@ class _Occupied:
     float as the least of ``1 + Xs − Zpz`` over the zones), the largest Zpz of the others
     taken from the two largest of the system."""
 
-    def __init__(self, system_trail: Trail, zones: list[ZoneResult], which: np.ndarray) -> None:
-        value = lambda s: np.array([z.trail.value(s) for z in zones])  # noqa: E731
+    def __init__(self, system_trail: Trail, zones: list[ZoneResult], which: np.ndarray,
+                 known: dict[str, np.ndarray] | None = None) -> None:
+        known = known or {}
+
+        def value(s: str) -> np.ndarray:
+            if s in known:  # the caller's array over the zones
+                return known[s]
+            return np.array([z.trail.value(s) for z in zones])
+
         rp, ra, az, ez, pz, vpz, zpz = (value(s) for s in ("Rp", "Ra", "Az", "Ez", "Pz", "Vpz",
                                                             "Zpz"))
         # the largest Zpz of the other zones: the system's largest, or for that zone the second
@@ -41,6 +48,14 @@ class _Occupied:
         self.sum_rp = system_trail.value("Σ(Rp·Pz)")
         self.sum_ra = system_trail.value("Σ(Ra·Az)")
         self.vps = system_trail.value("Vps")
+
+    def only(self, keep: np.ndarray) -> _Occupied:
+        """The same for the zones ``keep`` selects (a mask over this one's zones)."""
+        other = object.__new__(_Occupied)
+        other.__dict__.update(self.__dict__)
+        for name in ("rp", "ra", "az", "ez", "pz", "vpz", "others_max"):
+            setattr(other, name, getattr(self, name)[keep])
+        return other
 
     def vot(self, people: np.ndarray) -> np.ndarray:
         """Required Vot [L/s] with each zone holding ``people``."""
@@ -75,29 +90,47 @@ def _most_people(occupied: _Occupied, target: float) -> np.ndarray:
     return lo
 
 
+#: what a P_max step of a multiple-zone system says
+P_MAX_NOTE = ("occupants the zone can hold at the scheduled intake, other zones unchanged and D "
+              "held (detailed Ev, bisection)")
+
+
 def multiple_zone_capacity(system: System, result: SystemResult) -> None:
+    """P_max per zone of a detailed-Ev, single-path system (:func:`most_people`), added to the
+    dilution trail of each zone that has one."""
+    most = most_people(system, result, [z.dilution is not None for z in result.zones])
+    if most is None:
+        return
+    for j, people in zip(*most):
+        result.zones[j].dilution.add("P_max", people, "people", note=P_MAX_NOTE)
+
+
+def most_people(system: System, result: SystemResult, covered: list[bool],
+                known: dict[str, np.ndarray] | None = None
+                ) -> tuple[list[int], list[float]] | None:
     """P_max per zone of a detailed-Ev, single-path system: the most people zone j can hold
     (others unchanged, D held) before the required Vot exceeds the scheduled intake. Found by
     bisection on the monotone Vot(P) of ANSI/ASHRAE 62.1-2019 Appendix A (derived), for every
-    zone of the system at once (:class:`_Occupied`)."""
+    zone of the system at once (:class:`_Occupied`), among the zones ``covered`` (those with a
+    dilution analysis) with Rp > 0: ``(zone indices, P_max of each)``, None where the system
+    has none. A note names the zones short of the intake even when empty. ``known``: zone
+    values the caller holds as arrays over the zones (``Pz``, ``Vpz``), read from there."""
     if result.method != "detailed" or any(c.ep is not None for c in
                                           (z for z in system.zones)):
-        return
+        return None
     target = system.outdoor_air
-    candidates = np.array([j for j, z in enumerate(result.zones)
-                           if z.dilution is not None and z.trail.value("Rp") > 0], dtype=int)
+    known = dict(known or {})
+    if "Rp" not in known:
+        known["Rp"] = np.array([z.trail.value("Rp") for z in result.zones])
+    candidates = np.flatnonzero(np.asarray(covered, dtype=bool) & (known["Rp"] > 0))
     if not len(candidates):
-        return
-    empty_ok = _Occupied(result.trail, result.zones, candidates).vot(
-        np.zeros(len(candidates))) <= target
+        return None
+    occupied = _Occupied(result.trail, result.zones, candidates, known)
+    empty_ok = occupied.vot(np.zeros(len(candidates))) <= target
     # no occupancy of a zone alone restores the intake when it is short with the zone empty
     short = [result.zones[j].id for j in candidates[~empty_ok]]
     which = candidates[empty_ok]
-    most = _most_people(_Occupied(result.trail, result.zones, which), target)
-    for j, most in zip(which.tolist(), most.tolist()):
-        result.zones[j].dilution.add(
-            "P_max", most, "people", note="occupants the zone can hold at the scheduled "
-            "intake, other zones unchanged and D held (detailed Ev, bisection)")
+    most = _most_people(occupied.only(empty_ok), target)
     if short:
         result.notes.append(
             f"P_max (the occupants a zone can hold at the scheduled intake) is not given for "
@@ -105,3 +138,4 @@ def multiple_zone_capacity(system: System, result: SystemResult) -> None:
             "short of the required Vot even with that zone empty, so no occupancy of the zone "
             "alone brings the system within its intake; the system's intake finding says what "
             "to change")
+    return which.tolist(), most.tolist()
