@@ -104,3 +104,25 @@ def test_a_position_is_counted_in_characters_past_wide_ones():
     assert finder.locate(("z",)) == (1, 19)  # counted by hand: 18 characters before "["
     assert finder.locate(("z", 1)) == (2, 2)
     assert finder.locate(("z", 2, "\u00e9")) == (2, 14)
+
+
+@pytest.mark.parametrize("text,path", [
+    ('{"a": "x\\"b", "c": {"b": 1}, "b": 2}', ("b",)),  # "b" inside a text and a nested mapping
+    ('{"c": {"b": 1, "d": "\\"b\\": 3"}, "b": [2]}', ("b", 0)),
+    ('{"a": 1, "\\u0062": 5}', ("b",)),  # a key written with an escape
+    ('{"q\\"k": 1, "q": 2}', ('q"k',)),  # a key with a quote
+    ('{"back\\\\": 1, "back": 2}', ("back\\",)),  # a key with a backslash
+    ('{"a\\"x": 1, "a\\\\": 2}', ("a\\",)),  # '"a\"' written is where 'a"x' begins
+    ('{"a": {"b": {"b": 7}}, "b": 8}', ("a", "b", "b")),
+    ('{"a": 1}', ("b",)),  # not there: the mapping's own position
+    ('{"a": 1}', (1,)),
+])
+def test_a_key_is_found_as_written_and_otherwise(text, path):
+    """A key found where it is written as asked for (``"key"`` where a member of the mapping
+    begins) is the scan's, and one written otherwise, or not there, is found by reading
+    every key of the mapping (the scan of every token is the reference)."""
+    positions, _ = document_json._scan_json_positions(text)
+    scanned = document.Document(file="s.json", data=json.loads(text), positions=positions)
+    finder = document_json._Finder(text)
+    assert finder.locate(path) == scanned.locate(path)
+    assert finder.locate(path) == scanned.locate(path)  # kept, and found again the same

@@ -14,6 +14,7 @@ from __future__ import annotations
 import json
 import math
 import re
+from bisect import bisect_right
 from itertools import chain, compress
 from json.decoder import scanstring
 from typing import Any
@@ -149,6 +150,8 @@ def _scan_json_positions(text: str) -> tuple[dict[Path_, tuple[int, int]], dict[
 _WS = re.compile(r"[ \t\n\r]*")
 #: a mapping's key as written (group 1, between its quotes) up to where its value begins
 _KEY = re.compile(r'[ \t\n\r]*"((?:[^"\\]|\\.)*)"[ \t\n\r]*:[ \t\n\r]*')
+#: from after a key to where its value begins
+_COLON = re.compile(r"[ \t\n\r]*:[ \t\n\r]*")
 
 
 #: characters of the text looked at in one piece while it is indexed (bounds the memory used)
@@ -223,15 +226,16 @@ class _Index:
         return {int(group[0]): part for group, part in
                 zip(np.split(level, bounds), np.split(offsets, bounds)) if len(group)}
 
-    def separators(self, start: int, level: int) -> list[int]:
+    def separators(self, start: int, level: int) -> tuple[list[int], int]:
         """The offsets after which each member of the container at ``start`` (content at
-        ``level``) begins: its opening bracket, then each comma of its level."""
+        ``level``) begins (its opening bracket, then each comma of its level), and the offset
+        of its closing bracket."""
         closes = self.closes[level]
-        end = closes[closes.searchsorted(start)]
+        end = int(closes[closes.searchsorted(start)])
         commas = self.commas.get(level)
         if commas is None:
-            return [start]
-        return [start, *commas[commas.searchsorted(start): commas.searchsorted(end)].tolist()]
+            return [start], end
+        return [start, *commas[commas.searchsorted(start): commas.searchsorted(end)].tolist()], end
 
     def line_column(self, offset: int) -> tuple[int, int]:
         line = int(self.breaks.searchsorted(offset))  # the line breaks before the offset
@@ -255,19 +259,12 @@ class _Finder:
 
     def _members(self, start: int, level: int) -> Any:
         """The members of the container that begins at ``start``: for a list, the offsets
-        after which each begins (whitespace before it); for a mapping, key → offset."""
+        after which each begins (whitespace before it); for a mapping, its :class:`_Keys`."""
         text = self.text
         if text[_WS.match(text, start + 1).end()] in "}]":
             return {} if text[start] == "{" else []
-        after = self.index.separators(start, level)
-        if text[start] == "[":
-            return after
-        out: dict[Any, int] = {}
-        for at in after:
-            m = _KEY.match(text, at + 1)
-            key = m[1]
-            out[key if "\\" not in key else scanstring(text, m.start(1))[0]] = m.end()
-        return out
+        after, end = self.index.separators(start, level)
+        return after if text[start] == "[" else _Keys(text, after, end)
 
     def locate(self, path: Path_) -> tuple[int, int]:
         """Line and column of ``path``, or of its nearest ancestor that has one."""
@@ -289,12 +286,52 @@ class _Finder:
                 if not 0 <= part < len(members):
                     break
                 at = _WS.match(self.text, members[part] + 1).end()
-            elif part in members:
-                at = members[part]
             else:
-                break
+                found = members.get(part)
+                if found is None:
+                    break
+                at = found
             level += 1
         return self.index.line_column(at)
+
+
+class _Keys:
+    """Where the values of one mapping of the text begin, by key. A key asked for is looked
+    for as written (``"key"`` between the mapping's brackets, where a member begins); a key
+    not found so, or that could be written otherwise (with a quote or a backslash), has
+    every key of the mapping read, once."""
+
+    __slots__ = ("text", "after", "end", "found", "whole")
+
+    def __init__(self, text: str, after: list[int], end: int) -> None:
+        self.text, self.after, self.end = text, after, end
+        self.found: dict[Any, int] = {}
+        self.whole = False  # every key read
+
+    def get(self, key: Any) -> int | None:
+        at = self.found.get(key)
+        if at is not None or self.whole:
+            return at
+        if key.__class__ is str and '"' not in key and "\\" not in key:
+            text, after, ws = self.text, self.after, _WS.match
+            written = f'"{key}"'
+            at = text.find(written, after[0], self.end)
+            while at >= 0:
+                before = after[bisect_right(after, at) - 1]  # the member's comma or bracket
+                if ws(text, before + 1).end() == at:
+                    self.found[key] = at = _COLON.match(text, at + len(written)).end()
+                    return at
+                at = text.find(written, at + 1, self.end)
+        self._read()
+        return self.found.get(key)
+
+    def _read(self) -> None:
+        text = self.text
+        for at in self.after:
+            m = _KEY.match(text, at + 1)
+            key = m[1]
+            self.found[key if "\\" not in key else scanstring(text, m.start(1))[0]] = m.end()
+        self.whole = True
 
 
 def _json_decode_error(exc: json.JSONDecodeError, text: str, file: str,
