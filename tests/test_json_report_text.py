@@ -62,6 +62,7 @@ def _before(data: dict) -> str:
 def test_streamed_report_is_the_plain_data_dumped(report, series_step):
     text = joined(json_report.chunks(report, series_step))
     assert text == _before(json_report.to_dict(report, series_step))
+    assert json_report.render(report, series_step) == text
     assert json.loads(text)["systems"][0]["zones"]  # a report with zones written
 
 
@@ -86,6 +87,7 @@ def test_small_batches_and_the_batch_wrapper(report, monkeypatch):
     batch = gather([report, report], [], "fail")
     text = joined(json_report.batch_chunks(batch, 30))
     assert text == _before(json_report._batch_dict(batch, 30))
+    assert json_report.render_batch(batch, 30) == text
 
 
 def test_zone_trails_are_written_as_before(report):

@@ -31,7 +31,7 @@ from airgate.writers import json_encode
 from airgate.writers.json_values import json_unit as _json_unit
 from airgate.writers.json_values import symbol_key as _symbol_key
 from airgate.writers.json_values import values_texts
-from airgate.writers.output import Lazy, Streamed, json_chunks, json_text
+from airgate.writers.output import Lazy, Streamed, json_chunks, joined
 
 if TYPE_CHECKING:
     from airgate.evaluation.review import CommentStatus
@@ -217,8 +217,8 @@ def _zone_texts(zones: list[ZoneResult], level: int, system: str,
     wanted: list[tuple[Trail, int]] = []
     plans: list[tuple | None] = []
     for z in zones:
-        contaminants = _named_trails(z.contaminants)
-        packs = _named_trails(z.packs) if z.packs else []
+        contaminants = _named_trails(z.contaminants) if z.contaminants else ()
+        packs = _named_trails(z.packs) if z.packs else ()
         if contaminants is None or packs is None:
             plans.append(None)
             continue
@@ -236,6 +236,8 @@ def _zone_texts(zones: list[ZoneResult], level: int, system: str,
     n1 = n0 + "  "
     n2 = n1 + "  "
     n3 = n2 + "  "
+    opened = "{" + n2 + '"contaminant": "CO2 from occupants",' + n2 + '"values": '
+    escaped = encode_basestring
     out = []
     for z, plan in zip(zones, plans):
         if plan is None:
@@ -246,15 +248,23 @@ def _zone_texts(zones: list[ZoneResult], level: int, system: str,
         if z.dilution is None:
             dilution = "null"
         else:
-            dilution = "{" + n2 + '"contaminant": "CO2 from occupants",' + n2 + '"values": ' \
-                + next(texts)
-            series = _series(z, step_minutes)
+            dilution = opened + next(texts)
+            series = _series(z, step_minutes) if step_minutes else None
             if series is not None:
                 dilution += "," + n2 + '"series": ' + json_encode.dumps(series, level + 2)
             dilution += n1 + "}"
-        text = head % (_scalar(z.id), _scalar(z.name), _scalar(z.space), _scalar(z.space_label),
-                       _scalar(z.air_class), _scalar(z.verdict), values,
-                       _scalar(z.location.file), dilution, _named_texts(contaminants, texts, n2, n3))
+        zid, name, space, label, verdict, file = (z.id, z.name, z.space, z.space_label,
+                                                  z.verdict, z.location.file)
+        text = head % (escaped(zid) if type(zid) is str else _scalar(zid),
+                       escaped(name) if type(name) is str else _scalar(name),
+                       escaped(space) if type(space) is str else _scalar(space),
+                       escaped(label) if type(label) is str else _scalar(label),
+                       _scalar(z.air_class),
+                       escaped(verdict) if type(verdict) is str else _scalar(verdict),
+                       values,
+                       escaped(file) if type(file) is str else _scalar(file),
+                       dilution,
+                       _named_texts(contaminants, texts, n2, n3) if contaminants else "{}")
         if packs:
             text += "," + n1 + '"packs": ' + _named_texts(packs, texts, n2, n3)
         if z.makeup is not None:
@@ -397,16 +407,18 @@ def chunks(report: Report, series_step: int = 0, gated: dict[str, Any] | None = 
 
 def render(report: Report, series_step: int = 0, trails: bool = False) -> str:
     """The JSON report; ``series_step`` > 0 adds each zone's design-day CO2 series [minutes];
-    ``trails``: every zone's calculation trails too."""
-    return json_text(to_dict(report, series_step, trails))
+    ``trails``: every zone's calculation trails too. The text of :func:`chunks` (the same as
+    :func:`to_dict`'s data dumped, made faster)."""
+    return joined(chunks(report, series_step, trails=trails))
 
 
 BATCH_VERSION = 1
 
 
 def render_batch(batch, series_step: int = 0, trails: bool = False) -> str:
-    """Several schedules: a wrapper with the run's summary around one report object each."""
-    return json_text(_batch_dict(batch, series_step, trails=trails))
+    """Several schedules: a wrapper with the run's summary around one report object each (the
+    text of :func:`batch_chunks`)."""
+    return joined(batch_chunks(batch, series_step, trails=trails))
 
 
 def batch_chunks(batch, series_step: int = 0, trails: bool = False) -> Iterator[str]:

@@ -164,9 +164,10 @@ def shape(signature: tuple[tuple[str, str], ...], system: str) -> Shape:
     return got
 
 
-#: a plain :class:`Trail`'s step → (symbol, kind), and → value: what its
-#: :meth:`~Trail.signature` and :meth:`~Trail.values` give, read by C-level getters
-_SYMBOL_KIND = itemgetter(Step._fields.index("symbol"), Step._fields.index("kind"))
+#: a plain :class:`Trail`'s step → its kind, and → its value: what its
+#: :meth:`~Trail.signature` and :meth:`~Trail.values` give (with the steps' symbols, the keys
+#: of ``steps``), read by C-level getters
+_KIND = itemgetter(Step._fields.index("kind"))
 _VALUE = itemgetter(Step._fields.index("value"))
 
 
@@ -176,25 +177,29 @@ def values_texts(trails: Sequence[tuple[Trail, int]], system: str) -> list[str]:
     unit's factor and scale (in that order, as ``json_report._values`` does), rounded by
     :func:`round6`, ``null`` where not finite. The trails are grouped by signature; all their
     numbers are rounded in one array."""
-    groups: dict[tuple[tuple[str, str], ...], tuple[list[int], list[list[float]]]] = {}
+    #: signature, or for a plain Trail (its symbols, its kinds) → (positions, numbers)
+    groups: dict[tuple, tuple[list[int], list[list[float]]]] = {}
+    plain: set[tuple] = set()
     for i, (trail, _level) in enumerate(trails):
-        if type(trail) is Trail:  # the same tuples and numbers as its methods, made faster
-            steps = trail.steps.values()
-            sig = tuple(map(_SYMBOL_KIND, steps))
-            numbers = list(map(_VALUE, steps))
+        if type(trail) is Trail:  # what its methods give, read faster
+            steps = trail.steps
+            key: tuple = (tuple(steps), tuple(map(_KIND, steps.values())))
+            numbers = list(map(_VALUE, steps.values()))
         else:
-            sig = trail.signature()
+            key = trail.signature()
             numbers = trail.values()
-        group = groups.get(sig)
+        group = groups.get(key)
         if group is None:
-            groups[sig] = ([i], [numbers])
+            groups[key] = ([i], [numbers])
+            if type(trail) is Trail:
+                plain.add(key)
         else:
             group[0].append(i)
             group[1].append(numbers)
     out: list[str] = [""] * len(trails)
     work = []
-    for sig, (members, rows) in groups.items():
-        sh = shape(sig, system)
+    for key, (members, rows) in groups.items():
+        sh = shape(tuple(zip(*key)) if key in plain else key, system)
         if sh.empty:
             for i in members:
                 out[i] = "{}"
