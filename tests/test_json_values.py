@@ -152,3 +152,25 @@ def test_units_and_keys_with_percent_signs_are_literal(system):
     t = Trail()
     t.add("100%·Voz", 12.5, "airflow")  # a key with a % is not a format directive
     assert values_texts([(t, 1)], system) == [_std_values(t, system, 1)]
+
+
+def test_rows_sharing_one_signature_object_and_equal_ones_apart():
+    """Rows of one table share their signature object; another object equal to it, and plain
+    trails of the same shape, are grouped with them; each text is its own trail's."""
+    shared = (("Vbz", "airflow"), ("Az", "area"))
+    equal = tuple(list(shared))
+    rows = [_ArrayTrail(shared, [100.0 + i, 9.5 * i]) for i in range(5)]
+    others = [_ArrayTrail(equal, [7.25, 1e-7])]
+    plain = Trail()
+    plain.add("Vbz", 3.0, "airflow")
+    plain.add("Az", 12.0, "area")
+    trails = rows + others + [plain] + rows[:2]
+    for system in ("IP", "SI"):
+        got = values_texts([(t, 2) for t in trails], system)
+        expected = []
+        for t in trails:
+            reference = Trail()
+            for (symbol, kind), value in zip(t.signature(), t.values()):
+                reference.add(symbol, value, kind)
+            expected.append(_std_values(reference, system, 2))
+        assert got == expected

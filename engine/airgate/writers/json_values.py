@@ -164,9 +164,11 @@ def shape(signature: tuple[tuple[str, str], ...], system: str) -> Shape:
     return got
 
 
-#: a plain :class:`Trail`'s step → its kind, and → its value: what its
-#: :meth:`~Trail.signature` and :meth:`~Trail.values` give (with the steps' symbols, the keys
-#: of ``steps``), read by C-level getters
+#: a plain :class:`Trail`'s step → its symbol, kind, value: what its :meth:`~Trail.signature`
+#: and :meth:`~Trail.values` give, read by C-level getters
+_SYMBOL = itemgetter(Step._fields.index("symbol"))
+#: marks a plain trail's grouping key (no signature holds it)
+_PLAIN = object()
 _KIND = itemgetter(Step._fields.index("kind"))
 _VALUE = itemgetter(Step._fields.index("value"))
 
@@ -177,29 +179,36 @@ def values_texts(trails: Sequence[tuple[Trail, int]], system: str) -> list[str]:
     unit's factor and scale (in that order, as ``json_report._values`` does), rounded by
     :func:`round6`, ``null`` where not finite. The trails are grouped by signature; all their
     numbers are rounded in one array."""
-    #: signature, or for a plain Trail (its symbols, its kinds) → (positions, numbers)
+    #: signature, or for a plain Trail (_PLAIN, its symbols, its kinds) → (positions, numbers)
     groups: dict[tuple, tuple[list[int], list[list[float]]]] = {}
-    plain: set[tuple] = set()
+    #: id of a signature object met → (it, its group): the rows of one table share theirs, and
+    #: an id is not looked up by hashing the tuple (kept alive here, so no id is reused)
+    met: dict[int, tuple] = {}
     for i, (trail, _level) in enumerate(trails):
         if type(trail) is Trail:  # what its methods give, read faster
-            steps = trail.steps
-            key: tuple = (tuple(steps), tuple(map(_KIND, steps.values())))
-            numbers = list(map(_VALUE, steps.values()))
+            steps = trail.steps.values()
+            key: tuple = (_PLAIN, tuple(map(_SYMBOL, steps)), tuple(map(_KIND, steps)))
+            numbers = list(map(_VALUE, steps))
         else:
             key = trail.signature()
             numbers = trail.values()
+            seen = met.get(id(key))
+            if seen is not None and seen[0] is key:
+                seen[1][0].append(i)
+                seen[1][1].append(numbers)
+                continue
         group = groups.get(key)
         if group is None:
-            groups[key] = ([i], [numbers])
-            if type(trail) is Trail:
-                plain.add(key)
+            group = groups[key] = ([i], [numbers])
         else:
             group[0].append(i)
             group[1].append(numbers)
+        if type(trail) is not Trail:
+            met[id(key)] = (key, group)
     out: list[str] = [""] * len(trails)
     work = []
     for key, (members, rows) in groups.items():
-        sh = shape(tuple(zip(*key)) if key in plain else key, system)
+        sh = shape(tuple(zip(key[1], key[2])) if key and key[0] is _PLAIN else key, system)
         if sh.empty:
             for i in members:
                 out[i] = "{}"
