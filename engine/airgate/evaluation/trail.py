@@ -132,8 +132,14 @@ def template(formula: str = "", source: str | Location = "", note: str = "",
              origin: str = "computed") -> Template:
     """A :class:`Template` with its texts shared as :meth:`Trail.add` shares them."""
     if type(source) is str:
-        source = shared_text(source)
+        return _template(formula, source, note, origin)
     return Template(formula, source, shared_text(note), origin)
+
+
+@lru_cache(maxsize=4096)
+def _template(formula: str, source: str, note: str, origin: str) -> Template:
+    """:func:`template` of a citation (the same few on every system: kept, bounded)."""
+    return Template(formula, shared_text(source), shared_text(note), origin)
 
 
 #: a column copied from each row's own source trail (:meth:`StepTable.copy`)
