@@ -108,3 +108,22 @@ def test_a_zone_with_contaminants_named_otherwise_is_written_from_its_dictionary
         assert '"7": {' in text
     finally:
         zone.contaminants = {k: v for k, v in zone.contaminants.items() if k != 7}
+
+
+@pytest.mark.parametrize("count", [0, 1, 64, 65, 130])
+def test_a_lazy_list_with_its_own_encoder_is_the_list_dumped(count):
+    """output.Lazy(items, encode): the items' texts come from ``encode`` a batch at a time,
+    at the indentation of the list's items; the whole is the standard library's dump."""
+    items = [{"n": i, "name": f"zone {i} é", "v": [i / 7, None]} for i in range(count)]
+    batches = []
+
+    def encode(batch, level):
+        batches.append(len(batch))
+        return [json.dumps(item, indent=2, ensure_ascii=False).replace("\n", "\n" + "  " * level)
+                for item in batch]
+
+    data = output.Streamed(head=1, zones=output.Lazy(iter(items), encode),
+                           inner=output.Streamed(more=output.Lazy(iter(items[:3]), encode)))
+    plain = {"head": 1, "zones": items, "inner": {"more": items[:3]}}
+    assert joined(output.json_chunks(data)) == _before(plain)
+    assert all(size <= output._BATCH for size in batches)
