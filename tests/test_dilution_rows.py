@@ -261,3 +261,22 @@ def test_row_trail_adds_after_its_table_steps():
     assert second["Pz"] == Step("Pz", 11.0, "people", "", "", "system value", "system")
     assert first["Pz"].note == "stated"
     assert second.values() == [200.0, 11.0, 3.0]
+
+
+@pytest.mark.parametrize("columns", [3, 64, 65, 80])
+def test_rows_group_by_the_columns_they_hold(columns):
+    # common practice (the Trail API): each row holds the columns its mask says, in column
+    # order, whatever the number of columns (a row's columns are grouped as the bits of one
+    # number up to 64 columns, as rows of a boolean array beyond)
+    n = 7
+    table = StepTable([Trail() for _ in range(n)])
+    held = [[(row + col) % 3 != 0 or col == 0 for col in range(columns)] for row in range(n)]
+    for col in range(columns):
+        table.add(f"s{col}", [row * 1000.0 + col for row in range(n)], "volume",
+                  template(note=f"column {col}"), where=[held[row][col] for row in range(n)])
+    for row, t in enumerate(table.trails()):
+        cols = [col for col in range(columns) if held[row][col]]
+        assert t.signature() == tuple((f"s{col}", "volume") for col in cols)
+        assert t.values() == [row * 1000.0 + col for col in cols]
+        assert list(t.steps.values()) == [
+            Step(f"s{col}", row * 1000.0 + col, "volume", note=f"column {col}") for col in cols]
