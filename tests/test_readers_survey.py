@@ -186,9 +186,10 @@ def test_a_document_that_is_not_a_mapping_is_refused_alike(text, suffix, tmp_pat
     assert (caught.value.line, caught.value.column) == (1, 1)
 
 
-def test_a_quantity_text_read_again_gives_the_value_read_first():
-    """The values a quantity field keeps per text are those units.parse gives (the
-    reference), in each unit system; a text that cannot be read is refused each time."""
+def test_a_quantity_read_again_gives_the_value_read_first():
+    """The values a quantity field keeps per text or number are those units.parse gives (the
+    reference), in each unit system, the sign of zero too; a value that cannot be read is
+    refused each time, a boolean although it equals 1 or 0."""
     from pydantic import TypeAdapter, ValidationError
 
     area = TypeAdapter(Q("area", "Area. [ft² or m²]", positive=True))
@@ -202,6 +203,15 @@ def test_a_quantity_text_read_again_gives_the_value_read_first():
             with pytest.raises(ValidationError, match="unknown unit"):
                 area.validate_python("3 blorps", context={"units": system})
     assert area.validate_python("10 ft2", context=None) == units.parse("10 ft2", "area", "IP")
+    flow = TypeAdapter(Q("airflow", "Airflow. [cfm or L/s]"))
+    for system in (units.IP, units.SI):
+        for number in (850, 850.0, 850, 2**49 + 1, 2**49, 0.5, 0.0, -0.0, 0, 1e15, 10**15):
+            got = flow.validate_python(number, context={"units": system})
+            assert repr(got) == repr(units.parse(number, "airflow", system))  # -0.0 kept
+        for value in (True, False, -1, float("nan"), 1e16):
+            for _ in range(2):  # refused each time, never taken for an equal number kept
+                with pytest.raises(ValidationError):
+                    flow.validate_python(value, context={"units": system})
 
 
 #: every character Python or the validator's regular expressions may take for a space

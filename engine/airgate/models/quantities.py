@@ -17,18 +17,21 @@ _QUANTITY_SCHEMA = {
 }
 
 
-#: distinct quantity texts whose values each field type keeps (a schedule repeats its texts:
-#: a handful of units, many equal areas and airflows)
+#: distinct quantity texts and numbers whose values each field type keeps (a schedule repeats
+#: its texts: a handful of units, many equal areas and airflows)
 _TEXTS_KEPT = 4096
 
 
 def _quantity(kind: str, *, positive: bool) -> BeforeValidator:
-    # (text, unit system) → its value, for texts that were read without error
+    # (text or number, unit system) → its value, for those read without error
     kept: dict[tuple[str, str], float] = {}
 
     def validate(value: Any, info: ValidationInfo) -> float:
         system = (info.context or {}).get("units", units.IP)
-        if value.__class__ is str:
+        cls = value.__class__
+        # text, or a number other than zero (whose sign a kept 0.0 would lose); never a
+        # boolean, which equals 1 or 0 as a key but is refused as a quantity
+        if cls is str or (cls is float or cls is int) and value != 0:
             x = kept.get((value, system))
             if x is not None:
                 return x

@@ -246,9 +246,9 @@ class _Finder:
     """Where the values of well-formed JSON text (with "\n" as its only line break) begin,
     found path by path: the positions :func:`_scan_json_positions` gives, without scanning the
     whole text in Python. The first position asked for indexes the text's punctuation
-    (:class:`_Index`); each container on a path is then read for where its members begin
-    from the commas of its level (the keys of a mapping read once); a line and column are
-    worked out from the offset (1-based, in characters)."""
+    (:class:`_Index`); each container on a path then finds where its members begin from the
+    commas of its level (a mapping's key where it is written as asked for, :class:`_Keys`); a
+    line and column are worked out from the offset (1-based, in characters)."""
 
     def __init__(self, text: str) -> None:
         self.text = text
