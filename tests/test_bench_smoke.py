@@ -92,7 +92,8 @@ def test_bench_run_prints_every_figure_with_its_ratio_and_target():
                    "defaults: the 60-zone YAML schedule", "evaluation core (100 zones)",
                    "numpy Vot agrees", "sweep 20×20", "read and validate (json)",
                    "read and validate (yaml)", "defaults: the demo repeated to 40 zones",
-                   "of it, a 50-zone check", "of it, the zones beyond"):
+                   "of it, a 50-zone check", "of it, the zones beyond",
+                   "floor: the report, C encoder", "floor: the report's text written"):
         assert figure in out, figure
     rows = [line for line in out.splitlines() if line.rstrip().endswith(("met", "NOT MET"))]
     assert len(rows) == 11  # startup, 4 × (scale, memory), evaluation core, sweep
