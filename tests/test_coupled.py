@@ -13,7 +13,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy.integrate import solve_ivp
 
-from airgate.procedures import coupled
+from airgate.procedures import coupled, coupled_modes
 
 from conftest import examples
 from in_m3h import in_m3h
@@ -61,13 +61,13 @@ def _reference_transient(breaks, gen, vol, vpz, vot, exh, loss, c0, times, c_out
     c = np.broadcast_to(np.asarray(c0, dtype=float), np.shape(vol)).copy()
     for j in range(n_p):
         z = [np.broadcast_to(at(a, j, True), np.shape(vol)) for a in (gen, vpz, exh, loss)]
-        rhs, supply = _physics_rhs(vol, z[1], at(vot, j, False), z[2], z[3], c_out, eta_oa,
-                                   eta_rec)
+        rhs, supply = _physics_rhs(vol, z[1], at(vot, j, False), z[2], z[3],
+                                   at(c_out, j, False), eta_oa, eta_rec)
         last = j == n_p - 1
         sel = (times >= breaks[j]) & ((times < breaks[j + 1]) | (last & (times <= breaks[j + 1])))
         t_eval = np.unique(np.concatenate((times[sel], [breaks[j + 1]])))
-        scale = max(np.abs(c).max(), (z[0] * (breaks[j + 1] - breaks[j]) / vol).max(), c_out,
-                    1e-9)
+        scale = max(np.abs(c).max(), (z[0] * (breaks[j + 1] - breaks[j]) / vol).max(),
+                    np.max(c_out), 1e-9)
         sol = solve_ivp(rhs, (breaks[j], breaks[j + 1]), c, method="LSODA", rtol=1e-12,
                         atol=1e-18 * scale, t_eval=t_eval, args=(z[0],))
         out[sel] = sol.y[:, : sel.sum()].T
@@ -352,6 +352,51 @@ def test_unsorted_uneven_output_times_and_a_very_fast_zone_match_solve_ivp():
     ref, _ = _reference_transient(breaks, gen, vol, vpz, vot, exh, cadr, 1.0, times[order],
                                   2.0)
     _assert_agrees(got.zone[order], ref)
+
+
+@pytest.mark.parametrize("chunk", [1 << 21, 21, 14])
+def test_runs_of_shared_modes_and_pieces_without_outputs_match_solve_ivp(monkeypatch, chunk):
+    # The pieces that share one set of modes (airflows and losses unchanged) are evaluated
+    # together: airflows A, A, A, B, B, C over six pieces (three runs), output times in some
+    # pieces only (pieces 1 and 3 have none, so their end states carry the trajectory),
+    # and, with blocks of 21 values (three rows of seven zones), output blocks that straddle
+    # pieces; with blocks of 14, a run of three pieces has its end states made one piece at a
+    # time. Checked against scipy.integrate.solve_ivp (LSODA, rtol=1e-12) as outside
+    # reference, 1e-9 relative, and against restarting the solution at every break from the
+    # state it reached there (an exact solution of a piecewise-constant linear system
+    # composes piece by piece: common practice), 1e-12 relative.
+    monkeypatch.setattr(coupled_modes, "_CHUNK", chunk)
+    rng = np.random.default_rng(23)
+    vol, vpz_a, exh, cadr, _ = _distinct_system(rng, 7, n_types=4)
+    vpz = np.stack([vpz_a, vpz_a, vpz_a, 0.6 * vpz_a, 0.6 * vpz_a, 1.3 * vpz_a])
+    exh = np.tile(exh, (6, 1))
+    exh[:, 0] = vpz[:, 0]  # one room whose air all leaves by exhaust (a zone that returns none)
+    vot = 0.35 * vpz.sum(axis=1) + exh.sum(axis=1)
+    breaks = np.array([0.0, 0.5, 1.25, 2.0, 3.5, 4.0, 6.0])
+    gen = rng.uniform(0, 3e3, (6, 7))
+    times = rng.permutation(np.concatenate((rng.uniform(0.0, 0.5, 8), rng.uniform(1.25, 2.0, 5),
+                                            rng.uniform(3.5, 4.0, 4), rng.uniform(4.0, 6.0, 8),
+                                            [6.0])))
+    c_out = np.array([3.0, 5.0, 1.0, 4.0, 2.0, 3.5])  # the supply's outdoor part per piece
+    kw = dict(recirc_filter_efficiency=0.4, cadr=cadr)
+    got = cpl.coupled_piecewise_transient(breaks, gen, vol, vpz, vot, 2.0, times,
+                                          outdoor_concentration=c_out, zone_exhaust=exh, **kw)
+    order = np.argsort(times)
+    ref, ref_supply = _reference_transient(breaks, gen, vol, vpz, vot, exh, cadr, 2.0,
+                                           times[order], c_out, 0.0, 0.4)
+    _assert_agrees(got.zone[order], ref)
+    np.testing.assert_allclose(got.supply[order], ref_supply, rtol=1e-9)
+    c = np.full(7, 2.0)
+    for j in range(6):  # one call per piece, each started from where the one before ended
+        span = breaks[j:j + 2]
+        sel = (times >= span[0]) & ((times < span[1]) | (j == 5))
+        one = cpl.coupled_piecewise_transient(span, gen[j], vol, vpz[j], vot[j], c,
+                                              np.append(times[sel], span[1]),
+                                              outdoor_concentration=c_out[j],
+                                              zone_exhaust=exh[j], **kw)
+        np.testing.assert_allclose(got.zone[sel], one.zone[:-1], rtol=1e-12, atol=1e-12)
+        np.testing.assert_allclose(got.supply[sel], one.supply[:-1], rtol=1e-12)
+        c = one.zone[-1]
 
 
 def test_closed_system_conserves_mass():

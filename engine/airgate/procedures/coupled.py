@@ -47,14 +47,12 @@ from typing import NamedTuple
 
 import numpy as np
 
+from airgate.procedures.coupled_modes import run as _run
 from airgate.procedures.numeric import (
     PER_HOUR,
     check_breaks as _check_breaks,
     in_room_loss as _in_room_loss,
     layout_pieces as _layout_pieces,
-    exp_and_integral as _exp_and_integral,
-    exp_convolution as _exp_convolution,
-    exp_convolution_ramp as _exp_convolution_ramp,
     fraction as _fraction,
     nonneg as _nonneg,
     positive as _positive,
@@ -381,7 +379,6 @@ makeup_concentration
 #: system with more distinct rates is refused with TooManyRates (group equal zones, or round
 #: their volumes and airflows, to bring K down).
 MAX_DISTINCT_RATES = 4000
-_CHUNK = 1 << 21  # values per block of the (output times × zones) arrays
 
 
 class TooManyRates(ValueError):
@@ -422,38 +419,6 @@ def _modes(d, u, w):
     o_rates, o_group = np.unique(d[others], return_inverse=True)
     return _Modes(d, u, w, ret, group, p, sqrt_c, u[ret] / c[group], np.maximum(-lam, 0.0),
                   q, q.T @ sqrt_c, others, o_rates, o_group)
-
-
-def _piece(m, c0, b, tau):
-    """Zone concentrations (n_t, n) and coupling signal y = wᵀC (n_t,) at the times ``tau``
-    (n_t,) after the start of a piece with start state ``c0`` and right-hand side ``b``."""
-    wr = m.w[m.ret]
-    x0 = np.bincount(m.group, weights=wr * c0[m.ret], minlength=m.p.size)
-    beta = np.bincount(m.group, weights=wr * b[m.ret], minlength=m.p.size)
-    zeta0 = m.q.T @ (x0 / m.sqrt_c)
-    g = m.q.T @ (beta / m.sqrt_c)
-    alpha = c0[m.ret] - m.rho * x0[m.group]
-    delta = b[m.ret] - m.rho * beta[m.group]
-    out, y = np.empty((tau.size, m.d.size)), np.empty(tau.size)
-    rows = max(1, _CHUNK // max(m.d.size, m.p.size, m.o_rates.size * m.p.size, 1))
-    for lo in range(0, tau.size, rows):
-        tt = tau[lo:lo + rows, None]
-        blk = out[lo:lo + rows]
-        e_nu, i_nu = _exp_and_integral(m.nu[None, :], tt)
-        x = ((e_nu * zeta0 + i_nu * g) @ m.q.T) * m.sqrt_c  # (rows, K) aggregates X_k(τ)
-        y[lo:lo + rows] = x.sum(axis=1)
-        e_p, i_p = _exp_and_integral(m.p[None, :], tt)
-        blk[:, m.ret] = (e_p[:, m.group] * alpha + i_p[:, m.group] * delta
-                         + x[:, m.group] * m.rho)
-        if m.others.size:
-            e_o, i_o = _exp_and_integral(m.o_rates[None, :], tt)
-            t3, d3, nu3 = tt[:, :, None], m.o_rates[None, :, None], m.nu[None, None, :]
-            drive = (_exp_convolution(d3, nu3, t3) * (m.h * zeta0)
-                     + _exp_convolution_ramp(d3, nu3, t3) * (m.h * g)).sum(axis=2)
-            og, oz = m.o_group, m.others
-            blk[:, oz] = (e_o[:, og] * c0[oz] + i_o[:, og] * b[oz]
-                          + drive[:, og] * m.u[oz])
-    return out, y
 
 
 class CoupledTransient(NamedTuple):
@@ -581,7 +546,8 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
     out_zone, out_supply = np.empty((t.size, vol.size)), np.empty(t.size)
     air = (zone["primary_airflow"], system["outdoor_intake"], zone["zone_exhaust"],
            system["recirc_filter_efficiency"])
-    last_air, sysm, last_key, m = None, None, None, None
+    last_air, sysm, last_key = None, None, None
+    runs = []  # [modes, pieces, right-hand sides, supply's outdoor parts] of consecutive pieces
     for j in range(n):
         vpz = zone["primary_airflow"][j]
         inputs = tuple(x[j] for x in air)
@@ -589,12 +555,16 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
             last_air, sysm = inputs, _system(*inputs)
         key = (vpz.tobytes(), loss[j].tobytes(), sysm.w.tobytes())
         if key != last_key:  # modes are shared while airflows and losses stay the same
-            last_key, m = key, _modes(PER_HOUR * (vpz + loss[j]) / vol, PER_HOUR * vpz / vol,
-                                      sysm.w)
+            last_key = key
+            runs.append((_modes(PER_HOUR * (vpz + loss[j]) / vol, PER_HOUR * vpz / vol, sysm.w),
+                         [], [], []))
         a = sysm.x * outdoor[j]
-        sel = order[bounds[j]:bounds[j + 1]]
-        values, y = _piece(m, c, PER_HOUR * (gen[j] + vpz * a) / vol,
-                           np.append(t[sel] - b[j], b[j + 1] - b[j]))
-        out_zone[sel], out_supply[sel] = values[:-1], a + y[:-1]
-        c = values[-1]
+        runs[-1][1].append(j)
+        runs[-1][2].append(PER_HOUR * (gen[j] + vpz * a) / vol)
+        runs[-1][3].append(a)
+    for m, pieces, rhs, a in runs:
+        sel = order[bounds[pieces[0]]:bounds[pieces[-1] + 1]]  # the run's rows, piece by piece
+        span = b[pieces[0]:pieces[-1] + 2]
+        c = _run(m, c, np.array(rhs), np.diff(span), t[sel] - b[piece_of[sel]],
+                 piece_of[sel] - pieces[0], out_zone, out_supply, sel, np.array(a, dtype=float))
     return CoupledTransient(out_zone, out_supply)
