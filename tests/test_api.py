@@ -123,6 +123,52 @@ def test_a_pack_loaded_for_other_options_is_an_error_at_the_schedule(tmp_path):
     assert airgate.evaluate(loaded, same).to_dict() == airgate.check(path).to_dict()
 
 
+def test_series_false_drops_only_the_series(capsys, monkeypatch):
+    # evaluate(series=False) (docs/api.md): the design-day series are let go, nothing else
+    # changes; asking such a report for series is an error, not an empty answer. Regression
+    # pins against the demo's own report with series kept (not published values).
+    monkeypatch.chdir(ROOT)
+    kept, dropped = airgate.check(DEMO_ARG), airgate.check(DEMO_ARG, series=False)
+    with_series = [z for s in kept.systems for z in s.zones if z.series is not None]
+    assert with_series and kept.series  # the demo has design days
+    assert all(z.series is None and z.rise is None for s in dropped.systems for z in s.zones)
+    assert not dropped.series
+    assert dropped.to_dict() == kept.to_dict()
+    assert [z.dilution.value("C_peak") for s in dropped.systems for z in s.zones
+            if z.dilution is not None and "C_peak" in z.dilution.steps] == \
+        [z.dilution.value("C_peak") for s in kept.systems for z in s.zones
+         if z.dilution is not None and "C_peak" in z.dilution.steps]
+    with pytest.raises(ValueError, match="series=False"):
+        dropped.to_dict(series_step=30)
+
+
+@pytest.mark.parametrize(("formats", "step", "kept"), [
+    (["json"], 0, False), (["text", "sarif", "junit", "markdown"], 0, False),
+    (["json"], 30, True), (["json", "html:r.html"], 0, True), (["pdf:r.pdf"], 0, True)])
+def test_check_keeps_the_series_only_for_what_draws_them(formats, step, kept):
+    # The formats registry says which formats draw the series (html, pdf); --series-step asks
+    # for them in JSON (docs/report-format.md).
+    from airgate.commands.check import keeps_series
+
+    targets = [(f.partition(":")[0], f.partition(":")[2] or None) for f in formats]
+    args = type("Args", (), {"series_step": step})()
+    assert keeps_series(args, targets) is kept
+
+
+def test_html_report_is_the_same_when_json_is_written_beside_it(tmp_path, monkeypatch):
+    # The evaluation keeps the series for a run that writes html, whatever else it writes:
+    # the html written beside json is the html written alone.
+    monkeypatch.chdir(ROOT)
+    alone, both = tmp_path / "alone.html", tmp_path / "both.html"
+    main(["check", DEMO_ARG, "--format", f"html:{alone}"])
+    main(["check", DEMO_ARG, "--format", f"json:{tmp_path / 'r.json'}", "--format",
+          f"html:{both}"])
+    assert alone.read_bytes() == both.read_bytes()
+    charts = both.read_text(encoding="utf-8").count("<figure>")  # one per design-day series
+    assert charts == sum(z.series is not None for s in airgate.check(DEMO_ARG).systems
+                         for z in s.zones) > 0
+
+
 def test_import_airgate_loads_nothing_else():
     """``import airgate`` is cheap: no engine, no pydantic, numpy, pint or YAML until used."""
     code = ("import sys, airgate; print(sorted(m for m in sys.modules if m.startswith("

@@ -231,19 +231,20 @@ def _jobs(args: argparse.Namespace, files: int) -> int:
     return max(1, min(args.jobs or cores, files))
 
 
-def _check_one(f: str, rules, entries, as_of, search, comments):
+def _check_one(f: str, rules, entries, as_of, search, comments, series=True):
     """A worker's check of one schedule: its report, or None when the check raised (the parent
     then checks that schedule itself, so its errors are raised exactly as in a serial run)."""
     from airgate.api.core import check
 
     try:
-        return check(f, rules, waivers=entries, as_of=as_of, search=search, review=comments)
+        return check(f, rules, waivers=entries, as_of=as_of, search=search, review=comments,
+                     series=series)
     except Exception:  # noqa: BLE001 - reported by the parent's own check of the file
         return None
 
 
 def _in_workers(files: list[str], jobs: int, args, entries, as_of, comments,
-                progress: _Progress) -> list:
+                progress: _Progress, series: bool = True) -> list:
     """Each schedule's report checked in ``jobs`` processes, in the order given; None for a
     schedule whose check raised or whose report could not be handed back."""
     import multiprocessing
@@ -255,7 +256,7 @@ def _in_workers(files: list[str], jobs: int, args, entries, as_of, comments,
     try:
         with ProcessPoolExecutor(jobs, mp_context=context) as pool:
             futures = [pool.submit(_check_one, f, args.rules, entries, as_of,
-                                   args.rules_path, comments) for f in files]
+                                   args.rules_path, comments, series) for f in files]
             for i, (f, future) in enumerate(zip(files, futures)):
                 progress.step(i, f)
                 try:
@@ -267,17 +268,27 @@ def _in_workers(files: list[str], jobs: int, args, entries, as_of, comments,
     return out + [None] * (len(files) - len(out))
 
 
-def _evaluate(files: list[str], args, entries, as_of, comments=()):
+def keeps_series(args: argparse.Namespace, targets: list[tuple[str, str | None]]) -> bool:
+    """Whether the evaluation keeps the zones' design-day series: only a format that draws
+    them (html, pdf) or ``--series-step`` reads them; the rest let them go (about 11.5 kB a
+    zone with a design day, docs/performance.md)."""
+    from airgate.writers.formats import FORMATS
+
+    return args.series_step > 0 or any(FORMATS[name].series for name, _ in targets)
+
+
+def _evaluate(files: list[str], args, entries, as_of, comments=(), series: bool = True):
     """Every schedule's report, in the order given; with several schedules and cores, checked
-    in parallel processes (``--jobs``), with results identical to a serial run."""
+    in parallel processes (``--jobs``), with results identical to a serial run. ``series``:
+    keep the zones' design-day series (:func:`keeps_series`)."""
     from airgate.api.core import check
 
     jobs = _jobs(args, len(files))
     reports, errors = [], []
     progress = _Progress(len(files))
     try:
-        done = (_in_workers(files, jobs, args, entries, as_of, comments, progress) if jobs > 1
-                else [None] * len(files))
+        done = (_in_workers(files, jobs, args, entries, as_of, comments, progress, series)
+                if jobs > 1 else [None] * len(files))
         for i, (f, report) in enumerate(zip(files, done)):
             if report is not None:
                 reports.append(report)
@@ -285,7 +296,8 @@ def _evaluate(files: list[str], args, entries, as_of, comments=()):
             progress.step(i, f)
             try:
                 reports.append(check(f, args.rules, waivers=entries, as_of=as_of,
-                                     search=args.rules_path, review=comments))
+                                     search=args.rules_path, review=comments,
+                                     series=series))
             except ErrorGroup as exc:
                 errors += exc.errors
             except AirgateError as exc:
@@ -328,7 +340,7 @@ def _run(args: argparse.Namespace) -> int:
     comments, review_errors = review_entries(args.review)
     waiver_errors += review_errors
     try:
-        reports = _evaluate(files, args, entries, as_of, comments)
+        reports = _evaluate(files, args, entries, as_of, comments, keeps_series(args, targets))
     except ErrorGroup as exc:
         raise_all(_unique(waiver_errors + list(exc.errors)))
     except AirgateError as exc:

@@ -127,6 +127,9 @@ class Report:
     #: the supplement packs checked beside ``pack`` (docs/schedule-format.md, several packs),
     #: each with the systems it applies to (None: every system)
     supplements: list[Supplement] = field(default_factory=list)
+    #: whether the zones' design-day series were kept (evaluated with ``series=False``, every
+    #: zone's ``series`` is None: its peak and average are in its trail all the same)
+    series: bool = True
 
     @property
     def packs(self) -> list[RulePack]:

@@ -39,6 +39,9 @@ class ReportFormat:
     #: the format carries every zone's calculation trails on request (``check --trails``):
     #: its writer then takes ``trails=`` as a keyword
     trails: bool = False
+    #: the format draws each zone's design-day series (charts): the evaluation keeps them,
+    #: which the other formats do not need (``--series-step`` asks for them in JSON)
+    series: bool = False
 
 
 def _whole_run(module: str) -> Callable[[Batch, int], Body]:
@@ -112,8 +115,8 @@ FORMATS: dict[str, ReportFormat] = {f.name: f for f in (
     ReportFormat("junit", ".xml", _whole_run("junit")),
     ReportFormat("sarif", ".sarif", _whole_run("sarif")),
     ReportFormat("markdown", ".md", _whole_run("markdown")),
-    ReportFormat("html", ".html", _whole_run("html")),
-    ReportFormat("pdf", ".pdf", _whole_run("pdf"), binary=True),
+    ReportFormat("html", ".html", _whole_run("html"), series=True),
+    ReportFormat("pdf", ".pdf", _whole_run("pdf"), binary=True, series=True),
 )}
 #: the usual file extension of each format
 EXTENSIONS = {name: f.extension for name, f in FORMATS.items()}
