@@ -357,9 +357,9 @@ def test_unsorted_uneven_output_times_and_a_very_fast_zone_match_solve_ivp():
 @pytest.mark.parametrize("chunk", [1 << 21, 21, 14])
 def test_runs_of_shared_modes_and_pieces_without_outputs_match_solve_ivp(monkeypatch, chunk):
     # The pieces that share one set of modes (airflows and losses unchanged) are evaluated
-    # together: airflows A, A, A, B, B, C over six pieces (three runs), output times in some
-    # pieces only (pieces 1 and 3 have none, so their end states carry the trajectory),
-    # and, with blocks of 21 values (three rows of seven zones), output blocks that straddle
+    # together: airflows A, A, A, B, B, C over six pieces, losses changed at piece 4 (four
+    # runs), output times in some pieces only (pieces 1 and 3 have none, so their end
+    # states carry the trajectory), and, with blocks of 21 values (three rows of seven zones), output blocks that straddle
     # pieces; with blocks of 14, a run of three pieces has its end states made one piece at a
     # time. Checked against scipy.integrate.solve_ivp (LSODA, rtol=1e-12) as outside
     # reference, 1e-9 relative, and against restarting the solution at every break from the
@@ -372,15 +372,18 @@ def test_runs_of_shared_modes_and_pieces_without_outputs_match_solve_ivp(monkeyp
     exh = np.tile(exh, (6, 1))
     exh[:, 0] = vpz[:, 0]  # one room whose air all leaves by exhaust (a zone that returns none)
     vot = 0.35 * vpz.sum(axis=1) + exh.sum(axis=1)
+    cadr = np.tile(cadr, (6, 1))
+    cadr[4:] += 40.0  # piece 4: the airflows of piece 3, other losses (new modes all the same)
     breaks = np.array([0.0, 0.5, 1.25, 2.0, 3.5, 4.0, 6.0])
     gen = rng.uniform(0, 3e3, (6, 7))
     times = rng.permutation(np.concatenate((rng.uniform(0.0, 0.5, 8), rng.uniform(1.25, 2.0, 5),
                                             rng.uniform(3.5, 4.0, 4), rng.uniform(4.0, 6.0, 8),
                                             [6.0])))
     c_out = np.array([3.0, 5.0, 1.0, 4.0, 2.0, 3.5])  # the supply's outdoor part per piece
-    kw = dict(recirc_filter_efficiency=0.4, cadr=cadr)
+    kw = dict(recirc_filter_efficiency=0.4)
     got = cpl.coupled_piecewise_transient(breaks, gen, vol, vpz, vot, 2.0, times,
-                                          outdoor_concentration=c_out, zone_exhaust=exh, **kw)
+                                          outdoor_concentration=c_out, zone_exhaust=exh,
+                                          cadr=cadr, **kw)
     order = np.argsort(times)
     ref, ref_supply = _reference_transient(breaks, gen, vol, vpz, vot, exh, cadr, 2.0,
                                            times[order], c_out, 0.0, 0.4)
@@ -393,7 +396,7 @@ def test_runs_of_shared_modes_and_pieces_without_outputs_match_solve_ivp(monkeyp
         one = cpl.coupled_piecewise_transient(span, gen[j], vol, vpz[j], vot[j], c,
                                               np.append(times[sel], span[1]),
                                               outdoor_concentration=c_out[j],
-                                              zone_exhaust=exh[j], **kw)
+                                              zone_exhaust=exh[j], cadr=cadr[j], **kw)
         np.testing.assert_allclose(got.zone[sel], one.zone[:-1], rtol=1e-12, atol=1e-12)
         np.testing.assert_allclose(got.supply[sel], one.supply[:-1], rtol=1e-12)
         c = one.zone[-1]

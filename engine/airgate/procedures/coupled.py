@@ -421,6 +421,12 @@ def _modes(d, u, w):
                   q, q.T @ sqrt_c, others, o_rates, o_group)
 
 
+def _differs(x):
+    """Whether each piece's row of ``x`` (n_pieces, ...) differs from the row before: (n − 1,)."""
+    d = x[1:] != x[:-1]
+    return d.any(axis=tuple(range(1, d.ndim)))
+
+
 class CoupledTransient(NamedTuple):
     """Concentrations of a coupled system at the output times.
 
@@ -546,25 +552,30 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
     out_zone, out_supply = np.empty((t.size, vol.size)), np.empty(t.size)
     air = (zone["primary_airflow"], system["outdoor_intake"], zone["zone_exhaust"],
            system["recirc_filter_efficiency"])
-    last_air, sysm, last_key = None, None, None
-    runs = []  # [modes, pieces, right-hand sides, supply's outdoor parts] of consecutive pieces
+    vpz_all = zone["primary_airflow"]
+    air_changed = np.ones(n, dtype=bool)  # piece j's airflows differ from piece j − 1's
+    air_changed[1:] = False
+    for x in air:
+        air_changed[1:] |= _differs(x)
+    new_modes = air_changed.copy()  # airflows or losses differ: the modes may too
+    new_modes[1:] |= _differs(loss)
+    sysm, last_key, x_of = None, None, np.empty(n)
+    runs = []  # [modes, first piece, last piece] of consecutive pieces that share the modes
     for j in range(n):
-        vpz = zone["primary_airflow"][j]
-        inputs = tuple(x[j] for x in air)
-        if last_air is None or not all(np.array_equal(x, y) for x, y in zip(inputs, last_air)):
-            last_air, sysm = inputs, _system(*inputs)
-        key = (vpz.tobytes(), loss[j].tobytes(), sysm.w.tobytes())
-        if key != last_key:  # modes are shared while airflows and losses stay the same
-            last_key = key
-            runs.append((_modes(PER_HOUR * (vpz + loss[j]) / vol, PER_HOUR * vpz / vol, sysm.w),
-                         [], [], []))
-        a = sysm.x * outdoor[j]
-        runs[-1][1].append(j)
-        runs[-1][2].append(PER_HOUR * (gen[j] + vpz * a) / vol)
-        runs[-1][3].append(a)
-    for m, pieces, rhs, a in runs:
-        sel = order[bounds[pieces[0]]:bounds[pieces[-1] + 1]]  # the run's rows, piece by piece
-        span = b[pieces[0]:pieces[-1] + 2]
-        c = _run(m, c, np.array(rhs), np.diff(span), t[sel] - b[piece_of[sel]],
-                 piece_of[sel] - pieces[0], out_zone, out_supply, sel, np.array(a, dtype=float))
+        if air_changed[j]:
+            sysm = _system(*(x[j] for x in air))
+        if new_modes[j]:
+            key = (vpz_all[j].tobytes(), loss[j].tobytes(), sysm.w.tobytes())
+            if key != last_key:  # modes are shared while airflows and losses stay the same
+                last_key = key
+                runs.append([_modes(PER_HOUR * (vpz_all[j] + loss[j]) / vol,
+                                    PER_HOUR * vpz_all[j] / vol, sysm.w), j, j])
+        runs[-1][2] = j
+        x_of[j] = sysm.x
+    a = x_of * outdoor  # the supply's outdoor part per piece
+    rhs = PER_HOUR * (gen + vpz_all * a[:, None]) / vol
+    for m, first, last in runs:
+        sel = order[bounds[first]:bounds[last + 1]]  # the run's rows, piece by piece
+        c = _run(m, c, rhs[first:last + 1], np.diff(b[first:last + 2]), t[sel] - b[piece_of[sel]],
+                 piece_of[sel] - first, out_zone, out_supply, sel, a[first:last + 1])
     return CoupledTransient(out_zone, out_supply)
