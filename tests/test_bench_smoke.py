@@ -93,9 +93,12 @@ def test_bench_run_prints_every_figure_with_its_ratio_and_target():
                    "numpy Vot agrees", "sweep 20×20", "read and validate (json)",
                    "read and validate (yaml)", "defaults: the demo repeated to 40 zones",
                    "of it, a 50-zone check", "of it, the zones beyond",
-                   "floor: the report, C encoder", "floor: the report's text written"):
+                   "floor: the report, C encoder", "floor: the report's text written",
+                   "checked whole, vs C loader"):
         assert figure in out, figure
     rows = [line for line in out.splitlines() if line.rstrip().endswith(("met", "NOT MET"))]
     assert len(rows) == 11  # startup, 4 × (scale, memory), evaluation core, sweep
     assert "read under the default limits" in out
     assert "MiB), is read (" in out  # the demo portfolio, read and validated
+    # then checked whole: the demo's deliberately failing zones (fixtures/demo)
+    assert "(no target; its failing zones)" in out
