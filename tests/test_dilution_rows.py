@@ -23,7 +23,7 @@ sys.path.insert(0, str(ROOT / "bench"))
 import synthetic  # noqa: E402
 
 from airgate.api.core import evaluate, load_pack, load_schedule  # noqa: E402
-from airgate.evaluation import capacity, dilution as co2, zone_air  # noqa: E402
+from airgate.evaluation import capacity, dilution as co2, dilution_rows, zone_air  # noqa: E402
 from airgate.evaluation.trail import RowTrail, Step, StepTable, Trail, template  # noqa: E402
 from airgate.procedures import coupled  # noqa: E402
 from airgate.writers.json_report import to_dict  # noqa: E402
@@ -164,7 +164,7 @@ def _both(path, monkeypatch):
     pack = load_pack(loaded.model.rules)
     lazy = evaluate(loaded, pack)
     with monkeypatch.context() as m:
-        m.setattr(co2, "_multiple_zone", _eager_multiple_zone)
+        m.setattr(dilution_rows, "multiple_zone", _eager_multiple_zone)
         eager = evaluate(load_schedule(path), pack)
     return lazy, eager
 
