@@ -265,9 +265,9 @@ def _capacity(t: Trail, z: ZoneResult, q_oa: float, notes: list[str]) -> None:
 
 def _short_term(t: Trail, ctx: ZoneContext, z: ZoneResult, fractions: np.ndarray,
                 emitter: Emitter) -> None:
+    """T = 3v/Vbz: whether the profile's peak may be averaged over it (Section 6.2.6.2)."""
     k = unit_factor(("volume",), ("airflow", "time"), emitter.units,
                     times=3 / units.factor("L/s/m**3", "1/hour"))
-    """T = 3v/Vbz: whether the profile's peak may be averaged over it (Section 6.2.6.2)."""
     vbz = z.trail.value("Vbz")
     if vbz <= 0:
         return
@@ -281,13 +281,18 @@ def _short_term(t: Trail, ctx: ZoneContext, z: ZoneResult, fractions: np.ndarray
     if peak > 0 and z.trail.value("Pz") > 0 and best < peak * (1 - 1e-9):
         t.add("Pz_avg", best * z.trail.value("Pz"), "people", note="largest population averaged "
               "over any window of length T in the profile")
-        avg = t.value("Pz_avg")  # below one person, two significant figures (not "0.0")
-        shown = f"{avg:.1f}" if avg >= 1 else f"{avg:.2g}"
-        emitter.emit("short-term-averaging", ctx.subject,
-                     f"the profile's peak ({peak:.2f} × Pz) lasts less than T = "
-                     f"{t.value('T') * 60:.0f} min; the population may be averaged over T to "
-                     f"{shown} people (the design uses Pz)",
-                     ctx.location, system=ctx.system_id, zone=z.id)
+        emit_short_term(emitter, ctx, z, peak, t.value("T") * 60, t.value("Pz_avg"))
+
+
+def emit_short_term(emitter: Emitter, ctx: ZoneContext, z: ZoneResult, peak: float,
+                    minutes: float, avg: float) -> None:
+    """The ``short-term-averaging`` finding: the profile's peak (``peak`` × Pz) lasts less than
+    the averaging time T (``minutes``), over which the population may be averaged to ``avg``."""
+    shown = f"{avg:.1f}" if avg >= 1 else f"{avg:.2g}"  # below one person: not "0.0"
+    emitter.emit("short-term-averaging", ctx.subject,
+                 f"the profile's peak ({peak:.2f} × Pz) lasts less than T = {minutes:.0f} min; "
+                 f"the population may be averaged over T to {shown} people (the design uses Pz)",
+                 ctx.location, system=ctx.system_id, zone=z.id)
 
 
 def _profile_pieces(schedule: Schedule, ctx: ZoneContext) -> tuple[np.ndarray, np.ndarray] | None:

@@ -299,18 +299,14 @@ def _short_term_and_limit(rows: StepTable, ctxs, zones: list[ZoneResult], schedu
 def _short_term_average(ctx: ZoneContext, z: ZoneResult, fractions: np.ndarray, averaging: float,
                         emitter: Emitter) -> tuple[float, bool]:
     """The largest population averaged over ``averaging`` [h] where the profile's peak may be
-    averaged (with its finding, as :func:`co2._short_term`): ``(Pz_avg, True)``, else ``(0, False)``."""
+    averaged (with its finding, as :func:`airgate.evaluation.dilution._short_term`):
+    ``(Pz_avg, True)``, else ``(0, False)``."""
     best = piecewise.largest_window_mean(fractions, averaging / STEP_H)
     peak = float(np.max(fractions))
     if not (peak > 0 and z.trail.value("Pz") > 0 and best < peak * (1 - 1e-9)):
         return 0.0, False
     avg = float(best * z.trail.value("Pz"))
-    shown = f"{avg:.1f}" if avg >= 1 else f"{avg:.2g}"
-    emitter.emit("short-term-averaging", ctx.subject,
-                 f"the profile's peak ({peak:.2f} × Pz) lasts less than T = "
-                 f"{averaging * 60:.0f} min; the population may be averaged over T to "
-                 f"{shown} people (the design uses Pz)",
-                 ctx.location, system=ctx.system_id, zone=z.id)
+    co2.emit_short_term(emitter, ctx, z, peak, averaging * 60, avg)
     return avg, True
 
 
