@@ -140,6 +140,13 @@ def test_series_false_drops_only_the_series(capsys, monkeypatch):
          if z.dilution is not None and "C_peak" in z.dilution.steps]
     with pytest.raises(ValueError, match="series=False"):
         dropped.to_dict(series_step=30)
+    from airgate.evaluation.batch import gather
+    from airgate.writers import formats
+
+    with pytest.raises(ValueError, match="series=False"):  # a format that draws them
+        formats.render("html", gather([dropped], []))
+    assert formats.render("json", gather([dropped], [])) == \
+        formats.render("json", gather([kept], []))
 
 
 @pytest.mark.parametrize(("formats", "step", "kept"), [

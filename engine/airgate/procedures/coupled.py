@@ -550,11 +550,11 @@ def coupled_piecewise_transient(times_breaks, generation_per_piece, volume, prim
     order = np.argsort(piece_of, kind="stable")
     bounds = np.searchsorted(piece_of[order], np.arange(n + 1))
     out_zone, out_supply = np.empty((t.size, vol.size)), np.empty(t.size)
-    air = (zone["primary_airflow"], system["outdoor_intake"], zone["zone_exhaust"],
-           system["recirc_filter_efficiency"])
     vpz_all = zone["primary_airflow"]
-    air_changed = np.ones(n, dtype=bool)  # piece j's airflows differ from piece j − 1's
-    air_changed[1:] = False
+    air = (vpz_all, system["outdoor_intake"], zone["zone_exhaust"],
+           system["recirc_filter_efficiency"])
+    air_changed = np.zeros(n, dtype=bool)  # piece j's airflows differ from piece j − 1's
+    air_changed[0] = True
     for x in air:
         air_changed[1:] |= _differs(x)
     new_modes = air_changed.copy()  # airflows or losses differ: the modes may too

@@ -163,6 +163,10 @@ def stream(name: str, batch: Batch, series_step: int = 0, trails: bool = False) 
     if fmt is None:
         raise UsageError(f"unknown report format '{name}'", allowed=list(FORMATS),
                          field=("--format",))
+    if (fmt.series or series_step) and not all(r.series for r in batch.reports):
+        raise ValueError(f"the {name} report draws the design-day series, and a report of "
+                         "this run was evaluated with series=False; evaluate it with "
+                         "series=True")
     if fmt.trails:
         return fmt.write(batch, series_step, trails=trails)
     return fmt.write(batch, series_step)
